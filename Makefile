@@ -1,0 +1,121 @@
+# Makefile for ionmix.  `make help` lists the targets.
+
+# ---- user settings (override on the command line or in the environment) ----
+PREFIX     ?= /usr/local
+BINDIR     ?= $(PREFIX)/bin
+MANDIR     ?= $(PREFIX)/share/man
+DESTDIR    ?=
+CC         ?= cc
+CFLAGS     ?= -O2 -g
+LDFLAGS    ?=
+PKG_CONFIG ?= pkg-config
+# the Debian interpreter, which has python3-periodictable and python3-scipy
+PYTHON     ?= /usr/bin/python3
+BUILD      ?= build
+# SAN=1 builds with AddressSanitizer and UndefinedBehaviorSanitizer
+SAN        ?=
+
+# ---- project flags, added on top of the user's ----
+PKGS       := sqlite3 readline
+PKG_CFLAGS := $(shell $(PKG_CONFIG) --cflags $(PKGS) 2>/dev/null)
+PKG_LIBS   := $(shell $(PKG_CONFIG) --libs $(PKGS) 2>/dev/null)
+CMOCKA     := $(shell $(PKG_CONFIG) --cflags --libs cmocka 2>/dev/null)
+IM_CFLAGS  := -std=c11 -D_POSIX_C_SOURCE=200809L -D_DEFAULT_SOURCE \
+              -Wall -Wextra -Wstrict-prototypes -MMD -MP \
+              -Isrc -I$(BUILD)/gen $(PKG_CFLAGS)
+IM_LIBS    := $(PKG_LIBS) -lm
+ifeq ($(SAN),1)
+IM_CFLAGS  += -fsanitize=address,undefined -fno-omit-frame-pointer -fno-sanitize-recover=undefined
+IM_LDFLAGS := -fsanitize=address,undefined
+endif
+ALL_CFLAGS := $(IM_CFLAGS) $(CFLAGS)
+
+VERSION    := $(shell cat VERSION 2>/dev/null || echo 0.0.0)
+
+# ---- what gets built ----
+SRC        := $(wildcard src/*.c)
+LIBSRC     := $(filter-out src/main.c,$(SRC))
+LIBOBJ     := $(patsubst src/%.c,$(BUILD)/obj/%.o,$(LIBSRC)) $(BUILD)/obj/refdata.o
+# reference data, embedded in this order: schema, sources, then the rest
+DATA_FIRST := data/schema.sql data/sources.sql data/ions.sql data/compounds.sql
+DATA_SQL   := $(DATA_FIRST) $(sort $(filter-out $(DATA_FIRST),$(wildcard data/*.sql)))
+TESTSRC    := $(wildcard tests/test_*.c)
+TESTBIN    := $(patsubst tests/%.c,$(BUILD)/tests/%,$(TESTSRC))
+BENCHSRC   := $(wildcard tests/bench_*.c)
+BENCHBIN   := $(patsubst tests/%.c,$(BUILD)/tests/%,$(BENCHSRC))
+
+.PHONY: all run check test bench install uninstall clean deps deps-test help
+
+all: $(BUILD)/ionmix
+
+help:
+	@echo "make            build $(BUILD)/ionmix"
+	@echo "make run        check dependencies, build, start the shell"
+	@echo "make check      check dependencies, run every test, plain and under ASan+UBSan"
+	@echo "make bench      run the benchmarks and print a table of figures and goals"
+	@echo "make install    install to \$$(DESTDIR)\$$(PREFIX) (PREFIX=$(PREFIX))"
+	@echo "make clean      remove $(BUILD)/"
+
+deps:
+	@sh src/tools/ensure-deps.sh build
+
+deps-test:
+	@sh src/tools/ensure-deps.sh test
+
+run: deps
+	@$(MAKE) --no-print-directory all
+	$(BUILD)/ionmix
+
+check: deps-test
+	@$(MAKE) --no-print-directory test BUILD=build
+	@$(MAKE) --no-print-directory test BUILD=build/san SAN=1 CFLAGS="-O1 -g"
+
+test: $(BUILD)/ionmix $(TESTBIN)
+	@IONMIX=$(BUILD)/ionmix PYTHON=$(PYTHON) TESTBIN_DIR=$(BUILD)/tests \
+		sh tests/run.sh "$(BUILD)" $(TESTBIN)
+
+bench: deps-test
+	@$(MAKE) --no-print-directory all $(BENCHBIN)
+	@IONMIX=build/ionmix PYTHON=$(PYTHON) sh tests/bench.sh build
+
+$(BUILD)/ionmix: $(BUILD)/obj/main.o $(LIBOBJ)
+	$(CC) $(IM_LDFLAGS) $(LDFLAGS) -o $@ $^ $(IM_LIBS)
+
+$(BUILD)/libionmix.a: $(LIBOBJ)
+	rm -f $@
+	ar rcs $@ $^
+
+$(BUILD)/obj/%.o: src/%.c $(BUILD)/gen/version.h | $(BUILD)/obj
+	$(CC) $(ALL_CFLAGS) -c -o $@ $<
+
+$(BUILD)/obj/refdata.o: $(BUILD)/gen/refdata.c | $(BUILD)/obj
+	$(CC) $(ALL_CFLAGS) -c -o $@ $<
+
+# The SQL text is embedded by a small host tool, so no xxd or ld tricks.
+$(BUILD)/gen/refdata.c: $(BUILD)/embed $(DATA_SQL) | $(BUILD)/gen
+	$(BUILD)/embed $(DATA_SQL) > $@.tmp && mv $@.tmp $@
+
+$(BUILD)/embed: src/tools/embed.c | $(BUILD)/gen
+	$(CC) -std=c11 -Wall -Wextra -O1 -o $@ $<
+
+$(BUILD)/gen/version.h: VERSION | $(BUILD)/gen
+	printf '#define IONMIX_VERSION "%s"\n' "$(VERSION)" > $@.tmp && mv $@.tmp $@
+
+$(BUILD)/tests/%: tests/%.c $(BUILD)/libionmix.a tests/testutil.h | $(BUILD)/tests
+	$(CC) $(ALL_CFLAGS) $(IM_LDFLAGS) $(LDFLAGS) -o $@ $< $(BUILD)/libionmix.a $(CMOCKA) $(IM_LIBS)
+
+$(BUILD)/obj $(BUILD)/gen $(BUILD)/tests:
+	mkdir -p $@
+
+install: $(BUILD)/ionmix
+	install -d $(DESTDIR)$(BINDIR) $(DESTDIR)$(MANDIR)/man1
+	install -m 755 $(BUILD)/ionmix $(DESTDIR)$(BINDIR)/ionmix
+	if [ -f doc/ionmix.1 ]; then install -m 644 doc/ionmix.1 $(DESTDIR)$(MANDIR)/man1/ionmix.1; fi
+
+uninstall:
+	rm -f $(DESTDIR)$(BINDIR)/ionmix $(DESTDIR)$(MANDIR)/man1/ionmix.1
+
+clean:
+	rm -rf build
+
+-include $(wildcard $(BUILD)/obj/*.d $(BUILD)/tests/*.d)

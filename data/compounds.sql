@@ -1,0 +1,667 @@
+-- compounds.sql - compounds as weighed: formula, formula weight, kind, hazard
+-- and use; the other names they go by; and what one formula unit yields.
+--
+-- Three tables, in this order (foreign keys are enforced while loading):
+--   compounds         name (canonical: hydrates with a dot, 'MgCl2.6H2O'),
+--                     formula (machine-readable for python3-periodictable:
+--                     elements, counts, parentheses, water as '(H2O)6'),
+--                     fw_g_mol (with the water of hydration) and its source,
+--                     hydrate_of (the anhydrous row, which must come first),
+--                     kind, hazard (one line ending with the pointer to the
+--                     safety data sheet, or NULL), description (its use).
+--   compound_aliases  other spellings; matched case-insensitively, so
+--                     'kcl' needs no row of its own.  Only correct chemistry:
+--                     methanesulfonate is CH3SO3- (MeSO3), not MeSO4.
+--   compound_yields   species per formula unit as dissolved, before any
+--                     acid-base or metal-ligand reaction; water of hydration
+--                     is not a yield; the charges of a compound sum to zero.
+--
+-- To add a compound: compute fw_g_mol from the formula, e.g.
+--     /usr/bin/python3 -c 'import periodictable as p; print(p.formula("MgCl2(H2O)6").mass)'
+-- round to 0.01 and cite 'iupac-fw'; add its aliases and yields (every
+-- yielded species must be a row of data/ions.sql); hazards follow the usual
+-- safety data sheet ('sds-hazard'), uses are common practice.  Then run
+--     /usr/bin/python3 tests/ref/check_formula_weights.py
+
+-- ---- compounds ------------------------------------------------------------
+
+-- Inorganic salts
+INSERT INTO compounds (name, formula, fw_g_mol, fw_source, hydrate_of, kind,
+                       hazard, description) VALUES
+-- name                   formula               fw_g_mol fw_source   hydrate_of    kind
+--     hazard
+--     description
+('NaCl',                  'NaCl',                 58.44, 'iupac-fw', NULL,         'salt',
+    NULL,
+    'main salt of bath solutions; sets Na+ and Cl-'),
+('KCl',                   'KCl',                  74.55, 'iupac-fw', NULL,         'salt',
+    NULL,
+    'main salt of K+-based pipette solutions; K+ in the bath'),
+('CsCl',                  'CsCl',                168.36, 'iupac-fw', NULL,         'salt',
+    NULL,
+    'Cs+ salt for pipette solutions that block K+ currents'),
+('LiCl',                  'LiCl',                 42.39, 'iupac-fw', NULL,         'salt',
+    'Harmful if swallowed; skin and eye irritant; see the safety data sheet and '
+    || 'local chemical-safety rules.',
+    'Li+ as a Na+ substitute in bath solutions'),
+('RbCl',                  'RbCl',                120.92, 'iupac-fw', NULL,         'salt',
+    NULL,
+    'Rb+ as a K+ substitute (permeation studies)'),
+('NH4Cl',                 'NH4Cl',                53.49, 'iupac-fw', NULL,         'salt',
+    'Harmful if swallowed; eye irritant; see the safety data sheet and local '
+    || 'chemical-safety rules.',
+    'NH4+ for permeation studies and intracellular pH loads'),
+('KBr',                   'KBr',                 119.00, 'iupac-fw', NULL,         'salt',
+    'Eye irritant; see the safety data sheet and local chemical-safety rules.',
+    'Br- as a Cl- substitute (anion permeation)'),
+('CaCl2',                 'CaCl2',               110.98, 'iupac-fw', NULL,         'salt',
+    'Eye irritant; see the safety data sheet and local chemical-safety rules.',
+    'Ca2+ source (anhydrous; hygroscopic, weigh the dihydrate where possible)'),
+('CaCl2.2H2O',            'CaCl2(H2O)2',         147.01, 'iupac-fw', 'CaCl2',      'salt',
+    'Eye irritant; see the safety data sheet and local chemical-safety rules.',
+    'Ca2+ source for bath solutions and Ca2+ buffers'),
+('MgCl2',                 'MgCl2',                95.21, 'iupac-fw', NULL,         'salt',
+    NULL,
+    'Mg2+ source (anhydrous; hygroscopic)'),
+('MgCl2.6H2O',            'MgCl2(H2O)6',         203.30, 'iupac-fw', 'MgCl2',      'salt',
+    NULL,
+    'Mg2+ source for bath and pipette solutions'),
+('SrCl2',                 'SrCl2',               158.53, 'iupac-fw', NULL,         'salt',
+    'Causes serious eye damage; see the safety data sheet and local chemical-'
+    || 'safety rules.',
+    'Sr2+ as a Ca2+ substitute (anhydrous)'),
+('SrCl2.6H2O',            'SrCl2(H2O)6',         266.62, 'iupac-fw', 'SrCl2',      'salt',
+    'Causes serious eye damage; see the safety data sheet and local chemical-'
+    || 'safety rules.',
+    'Sr2+ as a Ca2+ substitute'),
+('BaCl2',                 'BaCl2',               208.23, 'iupac-fw', NULL,         'salt',
+    'Toxic if swallowed or inhaled (soluble barium); see the safety data sheet '
+    || 'and local chemical-safety rules.',
+    'Ba2+ as charge carrier through Ca2+ channels, or to block K+ channels (anhydrous)'),
+('BaCl2.2H2O',            'BaCl2(H2O)2',         244.26, 'iupac-fw', 'BaCl2',      'salt',
+    'Toxic if swallowed or inhaled (soluble barium); see the safety data sheet '
+    || 'and local chemical-safety rules.',
+    'Ba2+ as charge carrier through Ca2+ channels, or to block K+ channels'),
+('CdCl2',                 'CdCl2',               183.32, 'iupac-fw', NULL,         'salt',
+    'Very toxic; carcinogenic, mutagenic and toxic to reproduction; toxic to '
+    || 'aquatic life, collect as hazardous waste; see the safety data sheet and '
+    || 'local chemical-safety rules.',
+    'Cd2+ to block voltage-gated Ca2+ channels'),
+('ZnCl2',                 'ZnCl2',               136.31, 'iupac-fw', NULL,         'salt',
+    'Corrosive (skin burns, eye damage); harmful if swallowed; very toxic to '
+    || 'aquatic life; see the safety data sheet and local chemical-safety rules.',
+    'Zn2+ as a channel modulator'),
+('MnCl2',                 'MnCl2',               125.84, 'iupac-fw', NULL,         'salt',
+    'Harmful if swallowed; causes serious eye damage; may damage organs on '
+    || 'repeated exposure; see the safety data sheet and local chemical-safety '
+    || 'rules.',
+    'Mn2+ as a Ca2+ channel permeant ion or blocker (anhydrous)'),
+('MnCl2.4H2O',            'MnCl2(H2O)4',         197.91, 'iupac-fw', 'MnCl2',      'salt',
+    'Harmful if swallowed; causes serious eye damage; may damage organs on '
+    || 'repeated exposure; see the safety data sheet and local chemical-safety '
+    || 'rules.',
+    'Mn2+ as a Ca2+ channel permeant ion or blocker'),
+('CoCl2.6H2O',            'CoCl2(H2O)6',         237.93, 'iupac-fw', NULL,         'salt',
+    'Carcinogenic; may cause allergic skin and respiratory reactions; toxic to '
+    || 'reproduction; see the safety data sheet and local chemical-safety rules.',
+    'Co2+ to block Ca2+ channels and Ca2+-dependent release'),
+('NiCl2.6H2O',            'NiCl2(H2O)6',         237.69, 'iupac-fw', NULL,         'salt',
+    'Carcinogenic; toxic; may cause allergic skin and respiratory reactions; see '
+    || 'the safety data sheet and local chemical-safety rules.',
+    'Ni2+ to block T-type Ca2+ channels'),
+('LaCl3.7H2O',            'LaCl3(H2O)7',         371.37, 'iupac-fw', NULL,         'salt',
+    'Causes serious eye damage; see the safety data sheet and local chemical-'
+    || 'safety rules.',
+    'La3+ to block Ca2+ and other cation channels'),
+('NaHCO3',                'NaHCO3',               84.01, 'iupac-fw', NULL,         'salt',
+    NULL,
+    'HCO3- buffer of bath solutions gassed with 95% O2 / 5% CO2'),
+('NaH2PO4',               'NaH2PO4',             119.98, 'iupac-fw', NULL,         'salt',
+    NULL,
+    'phosphate of bicarbonate-buffered bath solutions (anhydrous)'),
+('NaH2PO4.H2O',           'NaH2PO4(H2O)',        137.99, 'iupac-fw', 'NaH2PO4',    'salt',
+    NULL,
+    'phosphate of bicarbonate-buffered bath solutions'),
+('Na2HPO4',               'Na2HPO4',             141.96, 'iupac-fw', NULL,         'salt',
+    NULL,
+    'phosphate buffer component (anhydrous)'),
+('KH2PO4',                'KH2PO4',              136.09, 'iupac-fw', NULL,         'salt',
+    NULL,
+    'phosphate buffer component; K+ source'),
+('K2HPO4',                'K2HPO4',              174.18, 'iupac-fw', NULL,         'salt',
+    NULL,
+    'phosphate buffer component; K+ source'),
+('MgSO4',                 'MgSO4',               120.37, 'iupac-fw', NULL,         'salt',
+    NULL,
+    'Mg2+ source where Cl- is to be kept low (anhydrous)'),
+('MgSO4.7H2O',            'MgSO4(H2O)7',         246.47, 'iupac-fw', 'MgSO4',      'salt',
+    NULL,
+    'Mg2+ source where Cl- is to be kept low'),
+('Na2SO4',                'Na2SO4',              142.04, 'iupac-fw', NULL,         'salt',
+    NULL,
+    'Na+ with an impermeant divalent anion (Cl- substitution)'),
+('KF',                    'KF',                   58.10, 'iupac-fw', NULL,         'salt',
+    'Toxic if swallowed, in contact with skin or inhaled (fluoride); causes '
+    || 'serious eye irritation; see the safety data sheet and local chemical-safety '
+    || 'rules.',
+    'F- in pipette solutions (stabilises whole-cell recordings; inhibits phosphatases)'),
+('CsF',                   'CsF',                 151.90, 'iupac-fw', NULL,         'salt',
+    'Toxic if swallowed, in contact with skin or inhaled (fluoride); skin and eye'
+    || ' irritant; see the safety data sheet and local chemical-safety rules.',
+    'F- and Cs+ in pipette solutions for Na+ and Ca2+ current recordings'),
+('NaF',                   'NaF',                  41.99, 'iupac-fw', NULL,         'salt',
+    'Toxic if swallowed (fluoride); skin and eye irritant; see the safety data '
+    || 'sheet and local chemical-safety rules.',
+    'F- as a phosphatase inhibitor');
+
+-- Acids and bases
+INSERT INTO compounds (name, formula, fw_g_mol, fw_source, hydrate_of, kind,
+                       hazard, description) VALUES
+-- name                   formula               fw_g_mol fw_source   hydrate_of    kind
+--     hazard
+--     description
+('HCl',                   'HCl',                  36.46, 'iupac-fw', NULL,         'acid',
+    'Corrosive (skin burns, eye damage), fumes irritate the airways, especially '
+    || 'as concentrated stock; see the safety data sheet and local chemical-safety '
+    || 'rules.',
+    'titrates bases (NMDG, Tris) and sets pH; weighed as a standard solution '
+    || 'rather than as gas'),
+('methanesulfonic acid',  'CH4O3S',               96.11, 'iupac-fw', NULL,         'acid',
+    'Corrosive (skin burns, eye damage); see the safety data sheet and local '
+    || 'chemical-safety rules.',
+    'titrates CsOH or KOH to methanesulfonate pipette solutions'),
+('NaOH',                  'NaOH',                 40.00, 'iupac-fw', NULL,         'base',
+    'Corrosive (skin burns, eye damage), especially as concentrated stock; see '
+    || 'the safety data sheet and local chemical-safety rules.',
+    'sets the pH of Na+-based solutions'),
+('KOH',                   'KOH',                  56.11, 'iupac-fw', NULL,         'base',
+    'Corrosive (skin burns, eye damage), harmful if swallowed, especially as '
+    || 'concentrated stock; see the safety data sheet and local chemical-safety '
+    || 'rules.',
+    'sets the pH of K+-based pipette solutions'),
+('CsOH',                  'CsOH',                149.91, 'iupac-fw', NULL,         'base',
+    'Corrosive (skin burns, eye damage), harmful if swallowed, especially as '
+    || 'concentrated stock; see the safety data sheet and local chemical-safety '
+    || 'rules.',
+    'sets the pH of Cs+-based pipette solutions (usually bought as an aqueous solution)'),
+('NMDG',                  'C7H17NO5',            195.21, 'iupac-fw', NULL,         'base',
+    NULL,
+    'large impermeant cation (as NMDG+ after titration with HCl) to replace Na+ or K+');
+
+-- Buffers
+INSERT INTO compounds (name, formula, fw_g_mol, fw_source, hydrate_of, kind,
+                       hazard, description) VALUES
+-- name                   formula               fw_g_mol fw_source   hydrate_of    kind
+--     hazard
+--     description
+('HEPES',                 'C8H18N2O4S',          238.30, 'iupac-fw', NULL,         'buffer',
+    NULL,
+    'pH buffer (pKa about 7.5) of bath and pipette solutions, free acid'),
+('Na-HEPES',              'C8H17N2NaO4S',        260.29, 'iupac-fw', NULL,         'buffer',
+    NULL,
+    'sodium salt of HEPES, mixed with the free acid to set pH'),
+('Tris',                  'C4H11NO3',            121.14, 'iupac-fw', NULL,         'buffer',
+    'Skin, eye and airway irritant; see the safety data sheet and local chemical-'
+    || 'safety rules.',
+    'pH buffer base; as Tris+ a large cation to replace Na+'),
+('Tris-HCl',              'C4H12ClNO3',          157.60, 'iupac-fw', NULL,         'buffer',
+    'Skin, eye and airway irritant; see the safety data sheet and local chemical-'
+    || 'safety rules.',
+    'hydrochloride of Tris (Tris+ and Cl-), mixed with Tris base to set pH');
+
+-- Chelators (free acids)
+INSERT INTO compounds (name, formula, fw_g_mol, fw_source, hydrate_of, kind,
+                       hazard, description) VALUES
+-- name                   formula               fw_g_mol fw_source   hydrate_of    kind
+--     hazard
+--     description
+('EGTA',                  'C14H24N2O10',         380.35, 'iupac-fw', NULL,         'chelator',
+    'Eye irritant; see the safety data sheet and local chemical-safety rules.',
+    'Ca2+ buffer of pipette solutions (free acid; dissolves on titration with KOH'
+    || ' or CsOH)'),
+('BAPTA',                 'C22H24N2O10',         476.43, 'iupac-fw', NULL,         'chelator',
+    'Skin, eye and airway irritant; see the safety data sheet and local chemical-'
+    || 'safety rules.',
+    'fast Ca2+ buffer of pipette solutions (free acid; dissolves on titration '
+    || 'with KOH or CsOH)'),
+('EDTA',                  'C10H16N2O8',          292.24, 'iupac-fw', NULL,         'chelator',
+    'Harmful if inhaled; may damage the airways on repeated inhalation; eye '
+    || 'irritant; see the safety data sheet and local chemical-safety rules.',
+    'chelator of divalent cations (free acid; dissolves on titration with NaOH or KOH)');
+
+-- Sugars and sugar alcohols (osmolytes)
+INSERT INTO compounds (name, formula, fw_g_mol, fw_source, hydrate_of, kind,
+                       hazard, description) VALUES
+-- name                   formula               fw_g_mol fw_source   hydrate_of    kind
+--     hazard
+--     description
+('glucose',               'C6H12O6',             180.16, 'iupac-fw', NULL,         'sugar',
+    NULL,
+    'energy source of bath solutions; adjusts osmolality'),
+('sucrose',               'C12H22O11',           342.30, 'iupac-fw', NULL,         'sugar',
+    NULL,
+    'impermeant osmolyte to adjust osmolality'),
+('mannitol',              'C6H14O6',             182.17, 'iupac-fw', NULL,         'sugar',
+    NULL,
+    'impermeant osmolyte to adjust osmolality');
+
+-- Organic salts
+INSERT INTO compounds (name, formula, fw_g_mol, fw_source, hydrate_of, kind,
+                       hazard, description) VALUES
+-- name                   formula               fw_g_mol fw_source   hydrate_of    kind
+--     hazard
+--     description
+('choline chloride',      'C5H14ClNO',           139.62, 'iupac-fw', NULL,         'organic-salt',
+    NULL,
+    'choline+ as a large cation to replace Na+ in bath solutions'),
+('K-gluconate',           'C6H11KO7',            234.25, 'iupac-fw', NULL,         'organic-salt',
+    NULL,
+    'main K+ salt of pipette solutions with low Cl-'),
+('Na-gluconate',          'C6H11NaO7',           218.14, 'iupac-fw', NULL,         'organic-salt',
+    NULL,
+    'Na+ with a large anion to replace NaCl (Cl- substitution)'),
+('K-methanesulfonate',    'CH3KO3S',             134.20, 'iupac-fw', NULL,         'organic-salt',
+    NULL,
+    'K+ salt of pipette solutions with low Cl-'),
+('Cs-methanesulfonate',   'CH3CsO3S',            228.00, 'iupac-fw', NULL,         'organic-salt',
+    'Skin and eye irritant; see the safety data sheet and local chemical-safety rules.',
+    'Cs+ salt of pipette solutions that block K+ currents, with low Cl-'),
+('K-aspartate',           'C4H6KNO4',            171.19, 'iupac-fw', NULL,         'organic-salt',
+    NULL,
+    'K+ salt of pipette solutions with low Cl- (monopotassium L-aspartate, anhydrous)'),
+('K-glutamate',           'C5H8KNO4',            185.22, 'iupac-fw', NULL,         'organic-salt',
+    NULL,
+    'K+ salt of pipette solutions with low Cl- (monopotassium L-glutamate, anhydrous)'),
+('Na-pyruvate',           'C3H3NaO3',            110.04, 'iupac-fw', NULL,         'organic-salt',
+    NULL,
+    'energy substrate of bath or pipette solutions'),
+('Na-acetate',            'C2H3NaO2',             82.03, 'iupac-fw', NULL,         'organic-salt',
+    NULL,
+    'acetate as a Cl- substitute or weak-acid load (anhydrous)'),
+('Na-acetate.3H2O',       'C2H3NaO2(H2O)3',      136.08, 'iupac-fw', 'Na-acetate', 'organic-salt',
+    NULL,
+    'acetate as a Cl- substitute or weak-acid load'),
+('Na2-phosphocreatine',   'C4H8N3Na2O5P',        255.08, 'iupac-fw', NULL,         'organic-salt',
+    NULL,
+    'ATP-regenerating substrate of pipette solutions (anhydrous disodium salt)');
+
+-- Nucleotides
+INSERT INTO compounds (name, formula, fw_g_mol, fw_source, hydrate_of, kind,
+                       hazard, description) VALUES
+-- name                   formula               fw_g_mol fw_source   hydrate_of    kind
+--     hazard
+--     description
+('Na2ATP',                'C10H14N5Na2O13P3',    551.14, 'iupac-fw', NULL,         'nucleotide',
+    NULL,
+    'ATP of pipette solutions, as disodium salt Na2H2ATP (anhydrous)'),
+-- MgATP: taken as MgH2ATP, one Mg2+ per ATP; commercial magnesium salts vary, check the label
+('MgATP',                 'C10H14MgN5O13P3',     529.47, 'iupac-fw', NULL,         'nucleotide',
+    NULL,
+    'ATP with its Mg2+, taken here as MgH2ATP (anhydrous)'),
+-- Na2GTP: taken as Na2H2GTP; GTP is also sold as other sodium and lithium salts, check the label
+('Na2GTP',                'C10H14N5Na2O14P3',    567.14, 'iupac-fw', NULL,         'nucleotide',
+    NULL,
+    'GTP of pipette solutions (keeps G-protein signalling), as Na2H2GTP (anhydrous)');
+
+-- Drugs (channel blockers)
+INSERT INTO compounds (name, formula, fw_g_mol, fw_source, hydrate_of, kind,
+                       hazard, description) VALUES
+-- name                   formula               fw_g_mol fw_source   hydrate_of    kind
+--     hazard
+--     description
+('TEA-Cl',                'C8H20ClN',            165.70, 'iupac-fw', NULL,         'drug',
+    'Harmful if swallowed; skin and eye irritant; a K+ channel blocker; see the '
+    || 'safety data sheet and local chemical-safety rules.',
+    'TEA+ to block K+ channels, or as an impermeant cation to replace Na+'),
+('QX-314 chloride',       'C16H27ClN2O',         298.85, 'iupac-fw', NULL,         'drug',
+    'Harmful if swallowed; skin and eye irritant; a Na+ channel blocker; see the '
+    || 'safety data sheet and local chemical-safety rules.',
+    'QX-314+ in pipette solutions to block Na+ channels from inside'),
+('QX-314 bromide',        'C16H27BrN2O',         343.30, 'iupac-fw', NULL,         'drug',
+    'Harmful if swallowed; skin and eye irritant; a Na+ channel blocker; see the '
+    || 'safety data sheet and local chemical-safety rules.',
+    'QX-314+ in pipette solutions to block Na+ channels from inside'),
+('4-aminopyridine',       'C5H6N2',               94.11, 'iupac-fw', NULL,         'drug',
+    'Highly toxic: fatal if swallowed, toxic in contact with skin or inhaled; a '
+    || 'convulsant K+ channel blocker; see the safety data sheet and local chemical-'
+    || 'safety rules.',
+    '4-AP to block A-type and other K+ channels');
+
+-- ---- compound_aliases -----------------------------------------------------
+
+INSERT INTO compound_aliases (alias, compound) VALUES
+('sodium chloride',                       'NaCl'),
+('potassium chloride',                    'KCl'),
+('caesium chloride',                      'CsCl'),
+('cesium chloride',                       'CsCl'),
+('lithium chloride',                      'LiCl'),
+('rubidium chloride',                     'RbCl'),
+('ammonium chloride',                     'NH4Cl'),
+('potassium bromide',                     'KBr'),
+('calcium chloride',                      'CaCl2'),
+('CaCl2 anhydrous',                       'CaCl2'),
+('calcium chloride anhydrous',            'CaCl2'),
+('CaCl2 dihydrate',                       'CaCl2.2H2O'),
+('calcium chloride dihydrate',            'CaCl2.2H2O'),
+('CaCl2 2H2O',                            'CaCl2.2H2O'),
+('magnesium chloride',                    'MgCl2'),
+('MgCl2 anhydrous',                       'MgCl2'),
+('magnesium chloride anhydrous',          'MgCl2'),
+('MgCl2 hexahydrate',                     'MgCl2.6H2O'),
+('magnesium chloride hexahydrate',        'MgCl2.6H2O'),
+('MgCl2 6H2O',                            'MgCl2.6H2O'),
+('strontium chloride',                    'SrCl2'),
+('SrCl2 hexahydrate',                     'SrCl2.6H2O'),
+('strontium chloride hexahydrate',        'SrCl2.6H2O'),
+('SrCl2 6H2O',                            'SrCl2.6H2O'),
+('barium chloride',                       'BaCl2'),
+('BaCl2 dihydrate',                       'BaCl2.2H2O'),
+('barium chloride dihydrate',             'BaCl2.2H2O'),
+('BaCl2 2H2O',                            'BaCl2.2H2O'),
+('cadmium chloride',                      'CdCl2'),
+('zinc chloride',                         'ZnCl2'),
+('manganese chloride',                    'MnCl2'),
+('manganese(II) chloride',                'MnCl2'),
+('MnCl2 tetrahydrate',                    'MnCl2.4H2O'),
+('manganese chloride tetrahydrate',       'MnCl2.4H2O'),
+('MnCl2 4H2O',                            'MnCl2.4H2O'),
+('CoCl2 hexahydrate',                     'CoCl2.6H2O'),
+('cobalt chloride hexahydrate',           'CoCl2.6H2O'),
+('cobalt(II) chloride hexahydrate',       'CoCl2.6H2O'),
+('CoCl2 6H2O',                            'CoCl2.6H2O'),
+('NiCl2 hexahydrate',                     'NiCl2.6H2O'),
+('nickel chloride hexahydrate',           'NiCl2.6H2O'),
+('nickel(II) chloride hexahydrate',       'NiCl2.6H2O'),
+('NiCl2 6H2O',                            'NiCl2.6H2O'),
+('LaCl3 heptahydrate',                    'LaCl3.7H2O'),
+('lanthanum chloride heptahydrate',       'LaCl3.7H2O'),
+('LaCl3 7H2O',                            'LaCl3.7H2O'),
+('sodium bicarbonate',                    'NaHCO3'),
+('sodium hydrogen carbonate',             'NaHCO3'),
+('sodium hydrogencarbonate',              'NaHCO3'),
+('sodium dihydrogen phosphate',           'NaH2PO4'),
+('monosodium phosphate',                  'NaH2PO4'),
+('sodium phosphate monobasic',            'NaH2PO4'),
+('NaH2PO4 monohydrate',                   'NaH2PO4.H2O'),
+('sodium dihydrogen phosphate monohydrate', 'NaH2PO4.H2O'),
+('NaH2PO4 H2O',                           'NaH2PO4.H2O'),
+('disodium hydrogen phosphate',           'Na2HPO4'),
+('disodium phosphate',                    'Na2HPO4'),
+('sodium phosphate dibasic',              'Na2HPO4'),
+('potassium dihydrogen phosphate',        'KH2PO4'),
+('monopotassium phosphate',               'KH2PO4'),
+('potassium phosphate monobasic',         'KH2PO4'),
+('dipotassium hydrogen phosphate',        'K2HPO4'),
+('dipotassium phosphate',                 'K2HPO4'),
+('potassium phosphate dibasic',           'K2HPO4'),
+('magnesium sulfate',                     'MgSO4'),
+('magnesium sulphate',                    'MgSO4'),
+('MgSO4 heptahydrate',                    'MgSO4.7H2O'),
+('magnesium sulfate heptahydrate',        'MgSO4.7H2O'),
+('magnesium sulphate heptahydrate',       'MgSO4.7H2O'),
+('Epsom salt',                            'MgSO4.7H2O'),
+('MgSO4 7H2O',                            'MgSO4.7H2O'),
+('sodium sulfate',                        'Na2SO4'),
+('sodium sulphate',                       'Na2SO4'),
+('potassium fluoride',                    'KF'),
+('caesium fluoride',                      'CsF'),
+('cesium fluoride',                       'CsF'),
+('sodium fluoride',                       'NaF'),
+('hydrochloric acid',                     'HCl'),
+('hydrogen chloride',                     'HCl'),
+('CH3SO3H',                               'methanesulfonic acid'),
+('MeSO3H',                                'methanesulfonic acid'),
+('methanesulphonic acid',                 'methanesulfonic acid'),
+('sodium hydroxide',                      'NaOH'),
+('potassium hydroxide',                   'KOH'),
+('caesium hydroxide',                     'CsOH'),
+('cesium hydroxide',                      'CsOH'),
+('N-methyl-D-glucamine',                  'NMDG'),
+('N-methylglucamine',                     'NMDG'),
+('meglumine',                             'NMDG'),
+('HEPES free acid',                       'HEPES'),
+('HEPES acid',                            'HEPES'),
+('HEPES sodium',                          'Na-HEPES'),
+('HEPES sodium salt',                     'Na-HEPES'),
+('sodium HEPES',                          'Na-HEPES'),
+('NaHEPES',                               'Na-HEPES'),
+('HEPES-Na',                              'Na-HEPES'),
+('Tris base',                             'Tris'),
+('trometamol',                            'Tris'),
+('tromethamine',                          'Tris'),
+('THAM',                                  'Tris'),
+('tris(hydroxymethyl)aminomethane',       'Tris'),
+('Tris hydrochloride',                    'Tris-HCl'),
+('TrisHCl',                               'Tris-HCl'),
+('Tris-Cl',                               'Tris-HCl'),
+('Tris HCl',                              'Tris-HCl'),
+('EGTA free acid',                        'EGTA'),
+('EGTA acid',                             'EGTA'),
+('egtazic acid',                          'EGTA'),
+('BAPTA free acid',                       'BAPTA'),
+('BAPTA acid',                            'BAPTA'),
+('EDTA free acid',                        'EDTA'),
+('EDTA acid',                             'EDTA'),
+('edetic acid',                           'EDTA'),
+('D-glucose',                             'glucose'),
+('dextrose',                              'glucose'),
+('D-(+)-glucose',                         'glucose'),
+('saccharose',                            'sucrose'),
+('D-mannitol',                            'mannitol'),
+('TEACl',                                 'TEA-Cl'),
+('TEA chloride',                          'TEA-Cl'),
+('TEA-chloride',                          'TEA-Cl'),
+('tetraethylammonium chloride',           'TEA-Cl'),
+('choline-Cl',                            'choline chloride'),
+('choline Cl',                            'choline chloride'),
+('cholineCl',                             'choline chloride'),
+('ChCl',                                  'choline chloride'),
+('K gluconate',                           'K-gluconate'),
+('KGluc',                                 'K-gluconate'),
+('K-Gluc',                                'K-gluconate'),
+('KGluconate',                            'K-gluconate'),
+('potassium gluconate',                   'K-gluconate'),
+('potassium D-gluconate',                 'K-gluconate'),
+('Na gluconate',                          'Na-gluconate'),
+('NaGluc',                                'Na-gluconate'),
+('Na-Gluc',                               'Na-gluconate'),
+('sodium gluconate',                      'Na-gluconate'),
+('sodium D-gluconate',                    'Na-gluconate'),
+('KMeSO3',                                'K-methanesulfonate'),
+('K-MeSO3',                               'K-methanesulfonate'),
+('K methanesulfonate',                    'K-methanesulfonate'),
+('KCH3SO3',                               'K-methanesulfonate'),
+('potassium methanesulfonate',            'K-methanesulfonate'),
+('potassium methanesulphonate',           'K-methanesulfonate'),
+('K-methanesulphonate',                   'K-methanesulfonate'),
+('CsMeSO3',                               'Cs-methanesulfonate'),
+('Cs-MeSO3',                              'Cs-methanesulfonate'),
+('Cs methanesulfonate',                   'Cs-methanesulfonate'),
+('CsCH3SO3',                              'Cs-methanesulfonate'),
+('caesium methanesulfonate',              'Cs-methanesulfonate'),
+('cesium methanesulfonate',               'Cs-methanesulfonate'),
+('Cs-methanesulphonate',                  'Cs-methanesulfonate'),
+('K aspartate',                           'K-aspartate'),
+('KAsp',                                  'K-aspartate'),
+('K-Asp',                                 'K-aspartate'),
+('potassium aspartate',                   'K-aspartate'),
+('potassium L-aspartate',                 'K-aspartate'),
+('K glutamate',                           'K-glutamate'),
+('KGlut',                                 'K-glutamate'),
+('K-Glut',                                'K-glutamate'),
+('potassium glutamate',                   'K-glutamate'),
+('potassium L-glutamate',                 'K-glutamate'),
+('Na pyruvate',                           'Na-pyruvate'),
+('sodium pyruvate',                       'Na-pyruvate'),
+('Na acetate',                            'Na-acetate'),
+('sodium acetate',                        'Na-acetate'),
+('NaOAc',                                 'Na-acetate'),
+('CH3COONa',                              'Na-acetate'),
+('sodium acetate trihydrate',             'Na-acetate.3H2O'),
+('Na acetate trihydrate',                 'Na-acetate.3H2O'),
+('NaOAc trihydrate',                      'Na-acetate.3H2O'),
+('Na2PCr',                                'Na2-phosphocreatine'),
+('Na2-PCr',                               'Na2-phosphocreatine'),
+('PCr-Na2',                               'Na2-phosphocreatine'),
+('phosphocreatine disodium',              'Na2-phosphocreatine'),
+('disodium phosphocreatine',              'Na2-phosphocreatine'),
+('creatine phosphate disodium',           'Na2-phosphocreatine'),
+('phosphocreatine disodium salt',         'Na2-phosphocreatine'),
+('ATP disodium',                          'Na2ATP'),
+('ATP disodium salt',                     'Na2ATP'),
+('disodium ATP',                          'Na2ATP'),
+('Na2-ATP',                               'Na2ATP'),
+('ATP-Na2',                               'Na2ATP'),
+('Mg-ATP',                                'MgATP'),
+('ATP-Mg',                                'MgATP'),
+('ATP magnesium',                         'MgATP'),
+('ATP magnesium salt',                    'MgATP'),
+('magnesium ATP',                         'MgATP'),
+('GTP disodium',                          'Na2GTP'),
+('GTP disodium salt',                     'Na2GTP'),
+('disodium GTP',                          'Na2GTP'),
+('Na2-GTP',                               'Na2GTP'),
+('GTP-Na2',                               'Na2GTP'),
+('QX-314 Cl',                             'QX-314 chloride'),
+('QX-314-Cl',                             'QX-314 chloride'),
+('QX314 chloride',                        'QX-314 chloride'),
+('QX314-Cl',                              'QX-314 chloride'),
+('QX-314 Br',                             'QX-314 bromide'),
+('QX-314-Br',                             'QX-314 bromide'),
+('QX314 bromide',                         'QX-314 bromide'),
+('QX314-Br',                              'QX-314 bromide'),
+('4-AP',                                  '4-aminopyridine'),
+('4AP',                                   '4-aminopyridine'),
+('fampridine',                            '4-aminopyridine');
+
+-- ---- compound_yields ------------------------------------------------------
+
+INSERT INTO compound_yields (compound, species, count) VALUES
+('NaCl',                  'Na+',                1),
+('NaCl',                  'Cl-',                1),
+('KCl',                   'K+',                 1),
+('KCl',                   'Cl-',                1),
+('CsCl',                  'Cs+',                1),
+('CsCl',                  'Cl-',                1),
+('LiCl',                  'Li+',                1),
+('LiCl',                  'Cl-',                1),
+('RbCl',                  'Rb+',                1),
+('RbCl',                  'Cl-',                1),
+('NH4Cl',                 'NH4+',               1),
+('NH4Cl',                 'Cl-',                1),
+('KBr',                   'K+',                 1),
+('KBr',                   'Br-',                1),
+('CaCl2',                 'Ca2+',               1),
+('CaCl2',                 'Cl-',                2),
+('CaCl2.2H2O',            'Ca2+',               1),
+('CaCl2.2H2O',            'Cl-',                2),
+('MgCl2',                 'Mg2+',               1),
+('MgCl2',                 'Cl-',                2),
+('MgCl2.6H2O',            'Mg2+',               1),
+('MgCl2.6H2O',            'Cl-',                2),
+('SrCl2',                 'Sr2+',               1),
+('SrCl2',                 'Cl-',                2),
+('SrCl2.6H2O',            'Sr2+',               1),
+('SrCl2.6H2O',            'Cl-',                2),
+('BaCl2',                 'Ba2+',               1),
+('BaCl2',                 'Cl-',                2),
+('BaCl2.2H2O',            'Ba2+',               1),
+('BaCl2.2H2O',            'Cl-',                2),
+('CdCl2',                 'Cd2+',               1),
+('CdCl2',                 'Cl-',                2),
+('ZnCl2',                 'Zn2+',               1),
+('ZnCl2',                 'Cl-',                2),
+('MnCl2',                 'Mn2+',               1),
+('MnCl2',                 'Cl-',                2),
+('MnCl2.4H2O',            'Mn2+',               1),
+('MnCl2.4H2O',            'Cl-',                2),
+('CoCl2.6H2O',            'Co2+',               1),
+('CoCl2.6H2O',            'Cl-',                2),
+('NiCl2.6H2O',            'Ni2+',               1),
+('NiCl2.6H2O',            'Cl-',                2),
+('LaCl3.7H2O',            'La3+',               1),
+('LaCl3.7H2O',            'Cl-',                3),
+('NaHCO3',                'Na+',                1),
+('NaHCO3',                'HCO3-',              1),
+('NaH2PO4',               'Na+',                1),
+('NaH2PO4',               'H2PO4-',             1),
+('NaH2PO4.H2O',           'Na+',                1),
+('NaH2PO4.H2O',           'H2PO4-',             1),
+('Na2HPO4',               'Na+',                2),
+('Na2HPO4',               'HPO4^2-',            1),
+('KH2PO4',                'K+',                 1),
+('KH2PO4',                'H2PO4-',             1),
+('K2HPO4',                'K+',                 2),
+('K2HPO4',                'HPO4^2-',            1),
+('MgSO4',                 'Mg2+',               1),
+('MgSO4',                 'SO4^2-',             1),
+('MgSO4.7H2O',            'Mg2+',               1),
+('MgSO4.7H2O',            'SO4^2-',             1),
+('Na2SO4',                'Na+',                2),
+('Na2SO4',                'SO4^2-',             1),
+('KF',                    'K+',                 1),
+('KF',                    'F-',                 1),
+('CsF',                   'Cs+',                1),
+('CsF',                   'F-',                 1),
+('NaF',                   'Na+',                1),
+('NaF',                   'F-',                 1),
+('HCl',                   'H+',                 1),
+('HCl',                   'Cl-',                1),
+('methanesulfonic acid',  'H+',                 1),
+('methanesulfonic acid',  'methanesulfonate-',  1),
+('NaOH',                  'Na+',                1),
+('NaOH',                  'OH-',                1),
+('KOH',                   'K+',                 1),
+('KOH',                   'OH-',                1),
+('CsOH',                  'Cs+',                1),
+('CsOH',                  'OH-',                1),
+('NMDG',                  'NMDG',               1),
+('HEPES',                 'HEPES',              1),
+('Na-HEPES',              'Na+',                1),
+('Na-HEPES',              'HEPES-',             1),
+('Tris',                  'Tris',               1),
+('Tris-HCl',              'Tris+',              1),
+('Tris-HCl',              'Cl-',                1),
+('EGTA',                  'H4EGTA',             1),
+('BAPTA',                 'H4BAPTA',            1),
+('EDTA',                  'H4EDTA',             1),
+('glucose',               'glucose',            1),
+('sucrose',               'sucrose',            1),
+('mannitol',              'mannitol',           1),
+('TEA-Cl',                'TEA+',               1),
+('TEA-Cl',                'Cl-',                1),
+('choline chloride',      'choline+',           1),
+('choline chloride',      'Cl-',                1),
+('K-gluconate',           'K+',                 1),
+('K-gluconate',           'gluconate-',         1),
+('Na-gluconate',          'Na+',                1),
+('Na-gluconate',          'gluconate-',         1),
+('K-methanesulfonate',    'K+',                 1),
+('K-methanesulfonate',    'methanesulfonate-',  1),
+('Cs-methanesulfonate',   'Cs+',                1),
+('Cs-methanesulfonate',   'methanesulfonate-',  1),
+('K-aspartate',           'K+',                 1),
+('K-aspartate',           'aspartate-',         1),
+('K-glutamate',           'K+',                 1),
+('K-glutamate',           'glutamate-',         1),
+('Na-pyruvate',           'Na+',                1),
+('Na-pyruvate',           'pyruvate-',          1),
+('Na-acetate',            'Na+',                1),
+('Na-acetate',            'acetate-',           1),
+('Na-acetate.3H2O',       'Na+',                1),
+('Na-acetate.3H2O',       'acetate-',           1),
+('Na2-phosphocreatine',   'Na+',                2),
+('Na2-phosphocreatine',   'PCr^2-',             1),
+('Na2ATP',                'Na+',                2),
+('Na2ATP',                'H2ATP^2-',           1),
+-- MgATP: taken as MgH2ATP, one Mg2+ per ATP; commercial magnesium salts vary, check the label
+('MgATP',                 'Mg2+',               1),
+('MgATP',                 'H2ATP^2-',           1),
+-- Na2GTP: taken as Na2H2GTP; GTP is also sold as other sodium and lithium salts, check the label
+('Na2GTP',                'Na+',                2),
+('Na2GTP',                'H2GTP^2-',           1),
+('QX-314 chloride',       'QX-314+',            1),
+('QX-314 chloride',       'Cl-',                1),
+('QX-314 bromide',        'QX-314+',            1),
+('QX-314 bromide',        'Br-',                1),
+('4-aminopyridine',       '4-AP',               1);

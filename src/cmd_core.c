@@ -1,0 +1,898 @@
+/*
+ * cmd_core.c - handlers of the core commands.  They parse arguments, call
+ * the calculators and hand results to the output writer; no physics here.
+ */
+#include "cmd_core.h"
+
+#include <errno.h>
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <time.h>
+#include <unistd.h>
+
+#include "common.h"
+#include "nernst.h"
+#include "units.h"
+#include "userdb.h"
+#include "version.h"
+#include "weigh.h"
+
+/* ---- shared helpers ---- */
+
+int core_solution(im_ctx *ctx, const char *name, solution **out, char *err)
+{
+	*out = name ? ws_find(&ctx->ws, name) : ws_current(&ctx->ws);
+	if (*out)
+		return 0;
+	if (!name)
+		return im_fail(err, "no current solution: start one with `solution NAME`");
+	return im_fail(err, "unknown solution '%.60s' (see `list`; `load NAME` brings a saved one)",
+		       name);
+}
+
+int core_compound(im_ctx *ctx, const char *name, const rd_compound **out, char *err)
+{
+	const char *sug[3];
+	int n;
+	*out = refdb_compound(ctx->ref, name);
+	if (*out)
+		return 0;
+	n = refdb_suggest(ctx->ref, name, sug, 3);
+	if (n == 0)
+		return im_fail(err, "unknown compound '%.60s' (see `compounds`)", name);
+	return im_fail(err, "unknown compound '%.60s'; did you mean %s%s%s%s%s?", name, sug[0],
+		       n > 1 ? (n > 2 ? ", " : " or ") : "", n > 1 ? sug[1] : "",
+		       n > 2 ? " or " : "", n > 2 ? sug[2] : "");
+}
+
+static int valid_name(const char *name, char *err)
+{
+	size_t n = strlen(name);
+	if (n == 0 || n >= SOL_NAME_MAX)
+		return im_fail(err, "solution name '%.40s' must be 1 to %d characters", name,
+			       SOL_NAME_MAX - 1);
+	for (const char *p = name; *p; p++)
+		if (!((*p >= 'a' && *p <= 'z') || (*p >= 'A' && *p <= 'Z') ||
+		      (*p >= '0' && *p <= '9') || *p == '-' || *p == '_' || *p == '.'))
+			return im_fail(err, "solution name '%.40s': use letters, digits, '-', '_' "
+					    "or '.'", name);
+	return 0;
+}
+
+static const char *temp_str(im_ctx *ctx, char *buf, size_t n)
+{
+	snprintf(buf, n, "%.1f C", ctx->temp_C);
+	return buf;
+}
+
+/* ---- temperature and model ---- */
+
+int cmd_temp(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	double t;
+	if (argc == 1) {
+		if (ctx->out->json) {
+			jw w;
+			jw_begin(&w, ctx->out);
+			jw_num(&w, "temperature_C", ctx->temp_C, 6);
+			jw_end(&w);
+		}
+		out_printf(ctx->out, "temperature %.1f C\n", ctx->temp_C);
+		return 0;
+	}
+	if (units_number(argv[1], &t, err))
+		return -1;
+	if (t < 0 || t > 60)
+		return im_fail(err, "temperature %s C is outside 0 to 60 C, where the water "
+				    "data hold", argv[1]);
+	ctx->temp_C = t;
+	out_printf(ctx->out, "temperature %.1f C\n", t);
+	return 0;
+}
+
+int cmd_activity(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	if (argc == 2) {
+		if (im_strcaseeq(argv[1], "davies"))
+			ctx->model = ACT_DAVIES;
+		else if (im_strcaseeq(argv[1], "dh"))
+			ctx->model = ACT_DEBYE_HUCKEL;
+		else
+			return im_fail(err, "unknown activity model '%.30s' (use davies or dh)",
+				       argv[1]);
+	}
+	out_printf(ctx->out, "activity coefficients: %s\n",
+		   ctx->model == ACT_DAVIES ? "Davies (default)"
+					    : "extended Debye-Hueckel with Kielland sizes "
+					      "(Davies where no size is known)");
+	return 0;
+}
+
+/* ---- composing solutions ---- */
+
+int cmd_solution(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	solution *src = NULL, *s;
+	if (argc == 3 || argc > 4)
+		return im_fail(err, "usage: solution NAME [from OTHER]");
+	if (valid_name(argv[1], err))
+		return -1;
+	if (argc == 4) {
+		if (strcmp(argv[2], "from") != 0)
+			return im_fail(err, "expected 'from', got '%.40s'", argv[2]);
+		if (core_solution(ctx, argv[3], &src, err))
+			return -1;
+		if (strcmp(argv[1], argv[3]) == 0)
+			return im_fail(err, "a solution cannot be copied onto itself");
+		s = im_xmalloc(sizeof *s);
+		sol_copy(s, src, argv[1]);
+		ws_put(&ctx->ws, s);
+		ws_open(&ctx->ws, argv[1]);
+		out_printf(ctx->out, "solution %s (copy of %s, %d compounds)\n", argv[1], argv[3],
+			   s->n);
+		return 0;
+	}
+	s = ws_find(&ctx->ws, argv[1]);
+	ws_open(&ctx->ws, argv[1]);
+	out_printf(ctx->out, "solution %s%s\n", argv[1], s ? "" : " (new)");
+	return 0;
+}
+
+static int amount_args(im_ctx *ctx, int argc, char **argv, const rd_compound **c,
+		       double *mM, char *err)
+{
+	if (core_compound(ctx, argv[1], c, err))
+		return -1;
+	return units_amount_mM(argv[2], argc > 3 ? argv[3] : NULL, (*c)->fw_g_mol, mM, err);
+}
+
+static void report_amount(im_ctx *ctx, const solution *s, const rd_compound *c,
+			  const char *verb)
+{
+	sol_item *it = sol_find((solution *)s, c);
+	char amt[48];
+	units_fmt_conc(amt, sizeof amt, it ? it->mM : 0, ctx->out->utf8);
+	if (ctx->out->json) {
+		jw w;
+		jw_begin(&w, ctx->out);
+		jw_str(&w, "solution", s->name);
+		jw_str(&w, "compound", c->name);
+		jw_num(&w, "mM", it ? it->mM : 0, 10);
+		if (c->hazard)
+			jw_str(&w, "caution", c->hazard);
+		jw_end(&w);
+		return;
+	}
+	out_printf(ctx->out, "%s: %s %s, now %s\n", s->name, verb, c->name, amt);
+	if (c->hazard)
+		out_printf(ctx->out, "caution: %s %s\n", c->name, c->hazard);
+}
+
+static int add_or_set(im_ctx *ctx, int argc, char **argv, char *err, int set)
+{
+	const rd_compound *c;
+	solution *s;
+	double mM;
+	if (core_solution(ctx, NULL, &s, err) || amount_args(ctx, argc, argv, &c, &mM, err))
+		return -1;
+	if (!set) {
+		sol_item *it = sol_find(s, c);
+		if (it && it->mM + mM > UNITS_MAX_mM)
+			return im_fail(err, "%s would reach %g mM, beyond %g M", c->name,
+				       it->mM + mM, UNITS_MAX_mM / 1000);
+		sol_add(s, c, mM);
+	} else {
+		sol_set(s, c, mM);
+	}
+	report_amount(ctx, s, c, set ? "set" : "added");
+	return 0;
+}
+
+int cmd_add(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	return add_or_set(ctx, argc, argv, err, 0);
+}
+
+int cmd_set(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	return add_or_set(ctx, argc, argv, err, 1);
+}
+
+int cmd_remove(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	const rd_compound *c;
+	solution *s;
+	(void)argc;
+	if (core_solution(ctx, NULL, &s, err) || core_compound(ctx, argv[1], &c, err))
+		return -1;
+	if (sol_remove(s, c))
+		return im_fail(err, "%s is not in %s", c->name, s->name);
+	out_printf(ctx->out, "%s: removed %s\n", s->name, c->name);
+	return 0;
+}
+
+int cmd_clear(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	solution *s;
+	(void)argc;
+	(void)argv;
+	if (core_solution(ctx, NULL, &s, err))
+		return -1;
+	s->n = 0;
+	out_printf(ctx->out, "%s: emptied\n", s->name);
+	return 0;
+}
+
+/* ---- show ---- */
+
+/* Net charge this far from zero is reported as not electroneutral:
+ * 0.1 mEq/L, or 0.5 % of the cation charge (common practice: a rounding
+ * error in a recipe, not a real imbalance, stays below it). */
+static int unbalanced(const sol_state *st)
+{
+	double lim = 0.005 * st->cation_mEq_L;
+	return fabs(st->net_charge_mEq_L) > (lim > 0.1 ? lim : 0.1);
+}
+
+static void show_json(im_ctx *ctx, const solution *s, const sol_state *st)
+{
+	jw w;
+	jw_begin(&w, ctx->out);
+	jw_str(&w, "solution", s->name);
+	jw_num(&w, "temperature_C", st->t_C, 6);
+	jw_str(&w, "activity_model", st->model == ACT_DAVIES ? "davies" : "dh");
+	jw_arr(&w, "compounds");
+	for (int i = 0; i < s->n; i++) {
+		jw_obj(&w, NULL);
+		jw_str(&w, "compound", s->items[i].c->name);
+		jw_num(&w, "mM", s->items[i].mM, 10);
+		jw_close(&w);
+	}
+	jw_close(&w);
+	jw_arr(&w, "ions");
+	for (int j = 0; j < st->n; j++) {
+		const sol_species *x = &st->sp[j];
+		if (x->ion->z == 0)
+			continue;
+		jw_obj(&w, NULL);
+		jw_str(&w, "ion", x->ion->symbol);
+		jw_int(&w, "z", x->ion->z);
+		jw_num(&w, "mM", x->mM, 10);
+		jw_num(&w, "gamma", x->gamma, 6);
+		jw_num(&w, "activity_mM", x->act_mM, 8);
+		jw_close(&w);
+	}
+	jw_close(&w);
+	jw_arr(&w, "neutral");
+	for (int j = 0; j < st->n; j++) {
+		if (st->sp[j].ion->z != 0)
+			continue;
+		jw_obj(&w, NULL);
+		jw_str(&w, "species", st->sp[j].ion->symbol);
+		jw_num(&w, "mM", st->sp[j].mM, 10);
+		jw_close(&w);
+	}
+	jw_close(&w);
+	jw_num(&w, "ionic_strength_mM", st->ionic_strength_mM, 8);
+	jw_num(&w, "osmolarity_mOsm_L", st->osmolarity_mOsm_L, 8);
+	jw_num(&w, "net_charge_mEq_L", st->net_charge_mEq_L, 6);
+	jw_bool(&w, "electroneutral", !unbalanced(st));
+	jw_end(&w);
+}
+
+int cmd_show(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	solution *s;
+	sol_state st;
+	char buf[64], t[16];
+	int neutral = 0;
+	if (core_solution(ctx, argc > 1 ? argv[1] : NULL, &s, err))
+		return -1;
+	if (sol_compute(s, ctx->temp_C, ctx->model, &st, err))
+		return -1;
+	if (ctx->out->json) {
+		show_json(ctx, s, &st);
+		sol_state_free(&st);
+		return 0;
+	}
+	out_printf(ctx->out, "%s at %s; activity coefficients: %s\n", s->name,
+		   temp_str(ctx, t, sizeof t),
+		   ctx->model == ACT_DAVIES ? "Davies" : "extended Debye-Hueckel (Kielland)");
+	if (s->n == 0) {
+		out_printf(ctx->out, "  (empty: add compounds with `add COMPOUND AMOUNT [UNIT]`)\n");
+		sol_state_free(&st);
+		return 0;
+	}
+	out_printf(ctx->out, "  %-22s %12s\n", "compound", "amount");
+	for (int i = 0; i < s->n; i++) {
+		units_fmt_conc(buf, sizeof buf, s->items[i].mM, ctx->out->utf8);
+		out_printf(ctx->out, "  %-22s %12s%s\n", s->items[i].c->name, buf,
+			   s->items[i].stock_mM > 0 ? "  (from stock)" : "");
+	}
+	out_printf(ctx->out, "\n  %-14s %3s %12s %8s %13s\n", "ion", "z", "mM", "gamma",
+		   "activity mM");
+	for (int j = 0; j < st.n; j++) {
+		const sol_species *x = &st.sp[j];
+		if (x->ion->z == 0) {
+			neutral++;
+			continue;
+		}
+		out_printf(ctx->out, "  %-14s %+3d %12.4f %8.4f %13.4f%s\n", x->ion->symbol,
+			   x->ion->z, x->mM, x->gamma, x->act_mM, x->dh_fallback ? "  (Davies: no size)" : "");
+	}
+	if (neutral) {
+		out_printf(ctx->out, "\n  %-14s %16s\n", "neutral solute", "mM");
+		for (int j = 0; j < st.n; j++)
+			if (st.sp[j].ion->z == 0)
+				out_printf(ctx->out, "  %-14s %16.4f\n", st.sp[j].ion->symbol,
+					   st.sp[j].mM);
+	}
+	out_printf(ctx->out, "\n  ionic strength       %10.2f mM\n", st.ionic_strength_mM);
+	out_printf(ctx->out, "  osmolarity (ideal)   %10.1f mOsm/L   (sum of particles; an "
+			     "osmometer reads less)\n", st.osmolarity_mOsm_L);
+	out_printf(ctx->out, "  net charge           %+10.2f mEq/L%s\n", st.net_charge_mEq_L,
+		   unbalanced(&st) ? "" : "   (electroneutral)");
+	if (unbalanced(&st))
+		out_printf(ctx->out, "  warning: not electroneutral: %+.2f mEq/L of %s charge "
+				     "lacks a counter-ion\n", st.net_charge_mEq_L,
+			   st.net_charge_mEq_L > 0 ? "positive" : "negative");
+	out_printf(ctx->out, "  note: buffers and chelators are taken as added (no pH or "
+			     "binding yet); every salt dissociates fully\n");
+	sol_state_free(&st);
+	return 0;
+}
+
+/* ---- nernst ---- */
+
+typedef struct nernst_row {
+	const rd_ion *ion;
+	double in, out;   /* mM or activity mM */
+	double E;
+	int ok;
+	char why[IM_ERRLEN];
+} nernst_row;
+
+int cmd_nernst(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	solution *in, *outs;
+	sol_state si, so;
+	int use_act = 0, n = 0;
+	nernst_row *rows;
+	char t[16];
+	if (argc == 4) {
+		if (strcmp(argv[3], "activities") != 0)
+			return im_fail(err, "expected 'activities', got '%.40s'", argv[3]);
+		use_act = 1;
+	}
+	if (core_solution(ctx, argv[1], &in, err) || core_solution(ctx, argv[2], &outs, err))
+		return -1;
+	if (sol_compute(in, ctx->temp_C, ctx->model, &si, err))
+		return -1;
+	if (sol_compute(outs, ctx->temp_C, ctx->model, &so, err)) {
+		sol_state_free(&si);
+		return -1;
+	}
+	rows = im_xcalloc(si.n + so.n + 1, sizeof *rows);
+	for (int side = 0; side < 2; side++) {
+		const sol_state *st = side ? &so : &si;
+		for (int j = 0; j < st->n; j++) {
+			const rd_ion *ion = st->sp[j].ion;
+			int k = 0;
+			if (ion->z == 0)
+				continue;
+			while (k < n && rows[k].ion != ion)
+				k++;
+			if (k == n)
+				rows[n++].ion = ion;
+		}
+	}
+	for (int k = 0; k < n; k++) {
+		const sol_species *a = sol_state_find(&si, rows[k].ion);
+		const sol_species *b = sol_state_find(&so, rows[k].ion);
+		char e2[IM_ERRLEN];
+		rows[k].in = a ? (use_act ? a->act_mM : a->mM) : 0;
+		rows[k].out = b ? (use_act ? b->act_mM : b->mM) : 0;
+		rows[k].ok = nernst_mV(rows[k].ion->z, rows[k].in, rows[k].out, ctx->temp_C,
+				       &rows[k].E, e2) == 0;
+		if (!rows[k].ok)
+			snprintf(rows[k].why, sizeof rows[k].why, "%s", e2);
+	}
+	if (ctx->out->json) {
+		jw w;
+		jw_begin(&w, ctx->out);
+		jw_str(&w, "inside", in->name);
+		jw_str(&w, "outside", outs->name);
+		jw_num(&w, "temperature_C", ctx->temp_C, 6);
+		jw_str(&w, "from", use_act ? "activities" : "concentrations");
+		jw_arr(&w, "ions");
+		for (int k = 0; k < n; k++) {
+			jw_obj(&w, NULL);
+			jw_str(&w, "ion", rows[k].ion->symbol);
+			jw_int(&w, "z", rows[k].ion->z);
+			jw_num(&w, "inside_mM", rows[k].in, 10);
+			jw_num(&w, "outside_mM", rows[k].out, 10);
+			if (rows[k].ok) {
+				jw_num(&w, "E_mV", rows[k].E, 6);
+			} else {
+				jw_str(&w, "E_mV", NULL);
+				jw_str(&w, "note", rows[k].why);
+			}
+			jw_close(&w);
+		}
+		jw_end(&w);
+	} else {
+		out_printf(ctx->out, "Nernst potentials of %s (inside) against %s (outside), %s, "
+				     "from %s\n", in->name, outs->name, temp_str(ctx, t, sizeof t),
+			   use_act ? "activities" : "concentrations");
+		out_printf(ctx->out, "sign: E = (RT/zF) ln(out/in), inside relative to outside\n");
+		out_printf(ctx->out, "  %-14s %3s %12s %12s %10s\n", "ion", "z",
+			   use_act ? "inside a mM" : "inside mM",
+			   use_act ? "outside a mM" : "outside mM", "E mV");
+		for (int k = 0; k < n; k++) {
+			out_printf(ctx->out, "  %-14s %+3d %12.4g %12.4g ", rows[k].ion->symbol,
+				   rows[k].ion->z, rows[k].in, rows[k].out);
+			if (rows[k].ok)
+				out_printf(ctx->out, "%+10.1f\n", rows[k].E);
+			else
+				out_printf(ctx->out, "%10s  (%s)\n", "-", rows[k].why);
+		}
+		if (n == 0)
+			out_printf(ctx->out, "  (no ions in either solution)\n");
+	}
+	free(rows);
+	sol_state_free(&si);
+	sol_state_free(&so);
+	return 0;
+}
+
+/* ---- bench sheet ---- */
+
+int cmd_weigh(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	solution *s;
+	double mL, total = 0;
+	char m[32], v[32], conc[32];
+	if (core_solution(ctx, NULL, &s, err) ||
+	    units_volume_mL(argv[1], argc > 2 ? argv[2] : NULL, &mL, err))
+		return -1;
+	if (s->n == 0)
+		return im_fail(err, "%s is empty: nothing to weigh", s->name);
+	if (ctx->out->json) {
+		jw w;
+		jw_begin(&w, ctx->out);
+		jw_str(&w, "solution", s->name);
+		jw_num(&w, "volume_mL", mL, 10);
+		jw_arr(&w, "items");
+		for (int i = 0; i < s->n; i++) {
+			const sol_item *it = &s->items[i];
+			double g = weigh_grams(it->mM, it->c->fw_g_mol, mL);
+			jw_obj(&w, NULL);
+			jw_str(&w, "compound", it->c->name);
+			jw_num(&w, "mM", it->mM, 10);
+			jw_num(&w, "fw_g_mol", it->c->fw_g_mol, 8);
+			jw_num(&w, "grams", g, 6);
+			if (it->stock_mM > 0) {
+				jw_num(&w, "stock_mM", it->stock_mM, 8);
+				jw_num(&w, "stock_mL", weigh_stock_mL(it->mM, it->stock_mM, mL), 6);
+			} else {
+				total += g;
+			}
+			jw_close(&w);
+		}
+		jw_close(&w);
+		jw_num(&w, "total_grams", total, 6);
+		jw_end(&w);
+		return 0;
+	}
+	weigh_fmt_volume(v, sizeof v, mL, ctx->out->utf8);
+	out_printf(ctx->out, "bench sheet: %s, %s final volume\n", s->name, v);
+	out_printf(ctx->out, "  %-22s %12s %10s  %s\n", "compound", "final", "FW g/mol",
+		   "weigh or pipette");
+	for (int i = 0; i < s->n; i++) {
+		const sol_item *it = &s->items[i];
+		double g = weigh_grams(it->mM, it->c->fw_g_mol, mL);
+		units_fmt_conc(conc, sizeof conc, it->mM, ctx->out->utf8);
+		if (it->stock_mM > 0) {
+			char sc[32];
+			weigh_fmt_volume(v, sizeof v,
+					 weigh_stock_mL(it->mM, it->stock_mM, mL), ctx->out->utf8);
+			units_fmt_conc(sc, sizeof sc, it->stock_mM, ctx->out->utf8);
+			out_printf(ctx->out, "  %-22s %12s %10.2f  %s of %s stock\n", it->c->name,
+				   conc, it->c->fw_g_mol, v, sc);
+			continue;
+		}
+		total += g;
+		weigh_fmt_mass(m, sizeof m, g);
+		out_printf(ctx->out, "  %-22s %12s %10.2f  %s%s\n", it->c->name, conc,
+			   it->c->fw_g_mol, m,
+			   g < WEIGH_MIN_GOOD_g ? "  (under 10 mg: better from a stock)" : "");
+	}
+	weigh_fmt_mass(m, sizeof m, total);
+	out_printf(ctx->out, "  %-22s %12s %10s  %s\n", "total to weigh", "", "", m);
+	out_printf(ctx->out, "  dissolve in about 80%% of the volume, adjust the pH, then make up "
+			     "to volume\n");
+	return 0;
+}
+
+int cmd_stock(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	const rd_compound *c;
+	solution *s;
+	sol_item *it;
+	double mM;
+	if (core_solution(ctx, NULL, &s, err) || core_compound(ctx, argv[1], &c, err))
+		return -1;
+	it = sol_find(s, c);
+	if (!it)
+		return im_fail(err, "%s is not in %s: add it first", c->name, s->name);
+	if (strcmp(argv[2], "off") == 0 && argc == 3) {
+		it->stock_mM = 0;
+		out_printf(ctx->out, "%s: %s is weighed\n", s->name, c->name);
+		return 0;
+	}
+	if (units_amount_mM(argv[2], argc > 3 ? argv[3] : NULL, c->fw_g_mol, &mM, err))
+		return -1;
+	if (mM <= it->mM)
+		return im_fail(err, "a stock of %s %s is not more concentrated than the %g mM "
+				    "wanted", argv[2], argc > 3 ? argv[3] : "mM", it->mM);
+	it->stock_mM = mM;
+	out_printf(ctx->out, "%s: %s from a %g mM stock\n", s->name, c->name, mM);
+	return 0;
+}
+
+/* ---- keeping solutions ---- */
+
+int cmd_save(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	solution *s;
+	userdb *u;
+	int failed = 0;
+	if (core_solution(ctx, argc > 1 ? argv[1] : NULL, &s, err))
+		return -1;
+	if (!(u = ctx_userdb(ctx, 1, err, &failed)))
+		return -1;
+	if (udb_save(u, s, err))
+		return -1;
+	if (ctx->out->json) {
+		jw w;
+		jw_begin(&w, ctx->out);
+		jw_str(&w, "saved", s->name);
+		jw_str(&w, "database", ctx->db_path);
+		jw_end(&w);
+	}
+	out_printf(ctx->out, "saved %s (%d compounds) to %s\n", s->name, s->n, ctx->db_path);
+	return 0;
+}
+
+int cmd_load(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	userdb *u;
+	solution *s;
+	int failed = 0;
+	(void)argc;
+	if (valid_name(argv[1], err))
+		return -1;
+	u = ctx_userdb(ctx, 0, err, &failed);
+	if (!u)
+		return failed ? -1 : im_fail(err, "no saved solution named '%s' (no database yet "
+						   "at %s)", argv[1], ctx->db_path);
+	s = im_xmalloc(sizeof *s);
+	if (udb_load(u, ctx->ref, argv[1], s, err)) {
+		free(s);
+		return -1;
+	}
+	ws_put(&ctx->ws, s);
+	ws_open(&ctx->ws, argv[1]);
+	out_printf(ctx->out, "loaded %s (%d compounds)\n", argv[1], s->n);
+	return 0;
+}
+
+int cmd_list(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	char **names = NULL;
+	int n = 0, failed = 0;
+	userdb *u;
+	(void)argc;
+	(void)argv;
+	u = ctx_userdb(ctx, 0, err, &failed);
+	if (failed)
+		return -1;
+	if (u && (n = udb_list(u, &names, err)) < 0)
+		return -1;
+	if (ctx->out->json) {
+		jw w;
+		jw_begin(&w, ctx->out);
+		jw_arr(&w, "workspace");
+		for (int i = 0; i < ctx->ws.n; i++)
+			jw_str(&w, NULL, ctx->ws.sol[i]->name);
+		jw_close(&w);
+		jw_arr(&w, "saved");
+		for (int i = 0; i < n; i++)
+			jw_str(&w, NULL, names[i]);
+		jw_close(&w);
+		jw_end(&w);
+	} else {
+		out_printf(ctx->out, "in the workspace:%s\n", ctx->ws.n ? "" : " none");
+		for (int i = 0; i < ctx->ws.n; i++)
+			out_printf(ctx->out, "  %s%s (%d compounds)\n", ctx->ws.sol[i]->name,
+				   i == ctx->ws.current ? " *" : "", ctx->ws.sol[i]->n);
+		out_printf(ctx->out, "saved in %s:%s\n", ctx->db_path, n ? "" : " none");
+		for (int i = 0; i < n; i++)
+			out_printf(ctx->out, "  %s\n", names[i]);
+	}
+	for (int i = 0; i < n; i++)
+		free(names[i]);
+	free(names);
+	return 0;
+}
+
+int cmd_delete(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	userdb *u;
+	int failed = 0;
+	(void)argc;
+	u = ctx_userdb(ctx, 0, err, &failed);
+	if (!u)
+		return failed ? -1 : im_fail(err, "no saved solution named '%.60s'", argv[1]);
+	if (udb_delete(u, argv[1], err))
+		return -1;
+	out_printf(ctx->out, "deleted saved solution %s (the workspace copy, if any, stays)\n",
+		   argv[1]);
+	return 0;
+}
+
+/* Write the recipe of s to fp: a commented script that rebuilds it. */
+static void write_recipe(FILE *fp, const solution *s)
+{
+	char stamp[32];
+	time_t now = time(NULL);
+	strftime(stamp, sizeof stamp, "%Y-%m-%d", gmtime(&now));
+	fprintf(fp, "# ionmix recipe: %s\n# exported %s by ionmix %s; replay with "
+		    "`ionmix FILE` or `run FILE`\n", s->name, stamp, IONMIX_VERSION);
+	fprintf(fp, "solution %s\nclear\n", s->name);
+	for (int i = 0; i < s->n; i++) {
+		fprintf(fp, "set \"%s\" %.10g mM\n", s->items[i].c->name, s->items[i].mM);
+		if (s->items[i].stock_mM > 0)
+			fprintf(fp, "stock \"%s\" %.10g mM\n", s->items[i].c->name,
+				s->items[i].stock_mM);
+	}
+}
+
+/* Write a file through a temporary in the same directory and rename, so a
+ * failure never leaves a partial file.  fill writes the content. */
+static int write_atomic(const char *path, void (*fill)(FILE *, const solution *),
+			const solution *s, char *err)
+{
+	char tmp[4096];
+	int fd;
+	FILE *fp;
+	if (snprintf(tmp, sizeof tmp, "%s.XXXXXX", path) >= (int)sizeof tmp)
+		return im_fail(err, "file name too long");
+	fd = mkstemp(tmp);
+	if (fd < 0)
+		return im_fail(err, "cannot write %s: %s", path, strerror(errno));
+	fp = fdopen(fd, "w");
+	if (!fp) {
+		close(fd);
+		unlink(tmp);
+		return im_fail(err, "cannot write %s: %s", path, strerror(errno));
+	}
+	fill(fp, s);
+	if (fflush(fp) != 0 || ferror(fp) || fsync(fd) != 0) {
+		int e = errno;
+		fclose(fp);
+		unlink(tmp);
+		return im_fail(err, "cannot write %s: %s", path, strerror(e));
+	}
+	if (fclose(fp) != 0 || rename(tmp, path) != 0) {
+		int e = errno;
+		unlink(tmp);
+		return im_fail(err, "cannot write %s: %s", path, strerror(e));
+	}
+	return 0;
+}
+
+int cmd_export(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	solution *s;
+	(void)argc;
+	if (core_solution(ctx, argv[1], &s, err))
+		return -1;
+	if (write_atomic(argv[2], write_recipe, s, err))
+		return -1;
+	out_printf(ctx->out, "wrote the recipe of %s to %s\n", s->name, argv[2]);
+	return 0;
+}
+
+int core_run_stream(im_ctx *ctx, void *stream, const char *file, int *line_out,
+		    char *err)
+{
+	FILE *fp = stream;
+	char *line = NULL;
+	size_t cap = 0;
+	ssize_t len;
+	int lineno = 0, rc = 0;
+	(void)file; /* the caller names the file in its message */
+	while ((len = getline(&line, &cap, fp)) >= 0) {
+		lineno++;
+		if (len > CMD_LINE_MAX) {
+			rc = im_fail(err, "line is longer than %d bytes", CMD_LINE_MAX);
+			break;
+		}
+		if ((size_t)len != strlen(line)) {
+			rc = im_fail(err, "line holds a NUL byte: not a text script");
+			break;
+		}
+		ctx->errfile[0] = '\0';
+		if (cmd_exec(ctx, line, err)) {
+			rc = -1;
+			break;
+		}
+	}
+	free(line);
+	*line_out = lineno;
+	return rc;
+}
+
+int cmd_run(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	FILE *fp;
+	int line = 0, rc;
+	char inner[IM_ERRLEN];
+	(void)argc;
+	if (ctx->run_depth >= 8)
+		return im_fail(err, "run: scripts nested more than 8 deep (a script runs itself?)");
+	fp = fopen(argv[1], "r");
+	if (!fp)
+		return im_fail(err, "cannot open %s: %s", argv[1], strerror(errno));
+	ctx->run_depth++;
+	rc = core_run_stream(ctx, fp, argv[1], &line, inner);
+	ctx->run_depth--;
+	fclose(fp);
+	if (rc == 0)
+		return 0;
+	if (ctx->errfile[0] == '\0') { /* the failure was in this file, not deeper */
+		snprintf(ctx->errfile, sizeof ctx->errfile, "%s", argv[1]);
+		ctx->errline = line;
+	}
+	snprintf(err, IM_ERRLEN, "%s", inner);
+	return -1;
+}
+
+/* ---- reference data ---- */
+
+static void print_source(im_ctx *ctx, const char *what, const rd_source *src)
+{
+	if (!src)
+		return;
+	out_printf(ctx->out, "  %s: %s%s%s\n", what, src->citation,
+		   src->common_practice ? " [common practice]" : "",
+		   src->from_memory ? " [from memory]" : "");
+}
+
+static void source_json(jw *w, const char *key, const rd_source *src)
+{
+	if (!src) {
+		jw_str(w, key, NULL);
+		return;
+	}
+	jw_obj(w, key);
+	jw_str(w, "id", src->id);
+	jw_str(w, "citation", src->citation);
+	jw_bool(w, "common_practice", src->common_practice);
+	jw_bool(w, "from_memory", src->from_memory);
+	jw_close(w);
+}
+
+int cmd_info(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	const rd_compound *c = refdb_compound(ctx->ref, argv[1]);
+	const rd_ion *ion = c ? NULL : refdb_ion(ctx->ref, argv[1]);
+	(void)argc;
+	if (!c && !ion)
+		return core_compound(ctx, argv[1], &c, err); /* fails with suggestions */
+	if (ctx->out->json) {
+		jw w;
+		jw_begin(&w, ctx->out);
+		if (c) {
+			jw_str(&w, "compound", c->name);
+			jw_str(&w, "formula", c->formula);
+			jw_num(&w, "fw_g_mol", c->fw_g_mol, 8);
+			jw_str(&w, "kind", c->kind);
+			jw_str(&w, "hazard", c->hazard);
+			jw_obj(&w, "yields");
+			for (int k = 0; k < c->nyields; k++)
+				jw_num(&w, c->yields[k].ion->symbol, c->yields[k].count, 6);
+			jw_close(&w);
+			source_json(&w, "fw_source", c->fw_source);
+		} else {
+			jw_str(&w, "ion", ion->symbol);
+			jw_str(&w, "name", ion->name);
+			jw_int(&w, "z", ion->z);
+			jw_num(&w, "lambda_S_cm2_eq", ion->lambda_S_cm2_eq, 6);
+			jw_num(&w, "D_1e9_m2_s", ion->D_1e9_m2_s, 6);
+			jw_num(&w, "kielland_a_pm", ion->kielland_a_pm, 6);
+			source_json(&w, "mobility_source", ion->mobility_source);
+			source_json(&w, "size_source", ion->size_source);
+		}
+		jw_end(&w);
+		return 0;
+	}
+	if (c) {
+		out_printf(ctx->out, "%s  (%s)\n  %s\n  formula %s, %.3f g/mol\n", c->name, c->kind,
+			   c->description, c->formula, c->fw_g_mol);
+		out_printf(ctx->out, "  yields per formula unit:");
+		for (int k = 0; k < c->nyields; k++)
+			out_printf(ctx->out, " %g %s", c->yields[k].count, c->yields[k].ion->symbol);
+		out_printf(ctx->out, "\n");
+		if (c->hydrate_of)
+			out_printf(ctx->out, "  hydrate of %s\n", c->hydrate_of);
+		if (c->hazard)
+			out_printf(ctx->out, "  caution: %s\n", c->hazard);
+		print_source(ctx, "formula weight", c->fw_source);
+		return 0;
+	}
+	out_printf(ctx->out, "%s  (%s), z = %+d\n", ion->symbol, ion->name, ion->z);
+	if (isfinite(ion->lambda_S_cm2_eq))
+		out_printf(ctx->out, "  limiting equivalent conductivity %.2f S cm2/eq at 25 C\n",
+			   ion->lambda_S_cm2_eq);
+	if (isfinite(ion->D_1e9_m2_s))
+		out_printf(ctx->out, "  diffusion coefficient %.3f x 1e-9 m2/s at 25 C\n",
+			   ion->D_1e9_m2_s);
+	print_source(ctx, "mobility", ion->mobility_source);
+	if (isfinite(ion->kielland_a_pm))
+		out_printf(ctx->out, "  Kielland ion size %.0f pm\n", ion->kielland_a_pm);
+	print_source(ctx, "ion size", ion->size_source);
+	return 0;
+}
+
+int cmd_compounds(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	int n = refdb_ncompounds(ctx->ref);
+	(void)err;
+	if (ctx->out->json) {
+		jw w;
+		jw_begin(&w, ctx->out);
+		jw_arr(&w, "compounds");
+		for (int i = 0; i < n; i++) {
+			const rd_compound *c = refdb_compound_at(ctx->ref, i);
+			if (argc > 1 && !im_strcaseeq(argv[1], c->kind))
+				continue;
+			jw_obj(&w, NULL);
+			jw_str(&w, "compound", c->name);
+			jw_str(&w, "kind", c->kind);
+			jw_num(&w, "fw_g_mol", c->fw_g_mol, 8);
+			jw_close(&w);
+		}
+		jw_end(&w);
+		return 0;
+	}
+	out_printf(ctx->out, "  %-24s %-13s %10s\n", "compound", "kind", "FW g/mol");
+	for (int i = 0; i < n; i++) {
+		const rd_compound *c = refdb_compound_at(ctx->ref, i);
+		if (argc > 1 && !im_strcaseeq(argv[1], c->kind))
+			continue;
+		out_printf(ctx->out, "  %-24s %-13s %10.3f%s\n", c->name, c->kind, c->fw_g_mol,
+			   c->hazard ? "  (caution)" : "");
+	}
+	return 0;
+}
+
+int cmd_help(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	int n;
+	const cmd_def *t = cmd_table(&n);
+	if (argc > 1) {
+		const cmd_def *d = cmd_lookup(argv[1]);
+		if (!d)
+			return im_fail(err, "no command '%.40s' (type `help` for the list)", argv[1]);
+		out_printf(ctx->out, "%s %s\n  %s\n", d->name, d->synopsis, d->help);
+		return 0;
+	}
+	out_printf(ctx->out, "commands (`help COMMAND` for one):\n");
+	for (int i = 0; i < n; i++)
+		out_printf(ctx->out, "  %-10s %-44s %s\n", t[i].name, t[i].synopsis, t[i].help);
+	return 0;
+}

@@ -1,0 +1,245 @@
+/*
+ * command.c - the command table, word splitting and dispatch.
+ *
+ * To add a command: write its handler (a cmd_fn) in the cmd_*.c file of
+ * its area, declare it in that file's header, and add one row below.  The
+ * row drives dispatch, the argument-count check, `help` and completion.
+ */
+#include "command.h"
+
+#include <stdlib.h>
+#include <string.h>
+
+#include "cmd_core.h"
+#include "common.h"
+#include "userdb.h"
+
+#define ANY -1
+
+/* name, synopsis, help, min args, max args, handler, completion of the
+ * first argument, of the rest, keep_on_fail.  Keep it in the order `help`
+ * should list. */
+static const cmd_def table[] = {
+	{"solution", "NAME [from OTHER]", "make NAME the current solution (a copy of OTHER)",
+	 1, 3, cmd_solution, COMPL_SOLUTION, COMPL_SOLUTION, 0},
+	{"add", "COMPOUND AMOUNT [UNIT]", "add to the current solution (mM unless a unit: M mM uM nM g/L mg/mL)",
+	 2, 3, cmd_add, COMPL_COMPOUND, COMPL_NONE, 0},
+	{"set", "COMPOUND AMOUNT [UNIT]", "set a compound's amount in the current solution",
+	 2, 3, cmd_set, COMPL_COMPOUND, COMPL_NONE, 0},
+	{"remove", "COMPOUND", "take a compound out of the current solution",
+	 1, 1, cmd_remove, COMPL_COMPOUND, COMPL_NONE, 0},
+	{"clear", "", "empty the current solution",
+	 0, 0, cmd_clear, COMPL_NONE, COMPL_NONE, 0},
+	{"show", "[NAME]", "ions, activities, ionic strength, osmolarity and charge",
+	 0, 1, cmd_show, COMPL_SOLUTION, COMPL_NONE, 0},
+	{"temp", "[C]", "show or set the temperature in degrees C (default 25)",
+	 0, 1, cmd_temp, COMPL_NONE, COMPL_NONE, 0},
+	{"activity", "[davies|dh]", "activity-coefficient model (default davies)",
+	 0, 1, cmd_activity, COMPL_NONE, COMPL_NONE, 0},
+	{"nernst", "INSIDE OUTSIDE [activities]", "equilibrium potential of each ion, inside relative to outside",
+	 2, 3, cmd_nernst, COMPL_SOLUTION, COMPL_SOLUTION, 0},
+	{"weigh", "VOLUME [mL|L]", "bench sheet: what to weigh or pipette for the current solution",
+	 1, 2, cmd_weigh, COMPL_NONE, COMPL_NONE, 0},
+	{"stock", "COMPOUND CONC [UNIT] | COMPOUND off", "take a compound from a stock solution on the bench sheet",
+	 2, 3, cmd_stock, COMPL_COMPOUND, COMPL_NONE, 0},
+	{"save", "[NAME]", "save a solution to the database",
+	 0, 1, cmd_save, COMPL_SOLUTION, COMPL_NONE, 0},
+	{"load", "NAME", "load a saved solution and make it current",
+	 1, 1, cmd_load, COMPL_SAVED, COMPL_NONE, 0},
+	{"list", "", "solutions in the workspace and in the database",
+	 0, 0, cmd_list, COMPL_NONE, COMPL_NONE, 0},
+	{"delete", "NAME", "delete a saved solution from the database",
+	 1, 1, cmd_delete, COMPL_SAVED, COMPL_NONE, 0},
+	{"export", "NAME FILE", "write a recipe: a script of commands that rebuilds NAME",
+	 2, 2, cmd_export, COMPL_SOLUTION, COMPL_FILE, 0},
+	{"run", "FILE", "run the commands in FILE; stops at the first bad line",
+	 1, 1, cmd_run, COMPL_FILE, COMPL_NONE, 1},
+	{"info", "COMPOUND|ION", "reference data of a compound or ion, with sources",
+	 1, 1, cmd_info, COMPL_COMPOUND, COMPL_NONE, 0},
+	{"compounds", "[KIND]", "the compounds ionmix knows",
+	 0, 1, cmd_compounds, COMPL_NONE, COMPL_NONE, 0},
+	{"help", "[COMMAND]", "list the commands, or explain one",
+	 0, 1, cmd_help, COMPL_COMMAND, COMPL_NONE, 0},
+};
+
+const cmd_def *cmd_table(int *n)
+{
+	*n = (int)IM_COUNT(table);
+	return table;
+}
+
+const cmd_def *cmd_lookup(const char *name)
+{
+	for (size_t i = 0; i < IM_COUNT(table); i++)
+		if (strcmp(table[i].name, name) == 0)
+			return &table[i];
+	return NULL;
+}
+
+int cmd_split(char *buf, char **argv, int max, char *err)
+{
+	int argc = 0;
+	char *r = buf, *w = buf;
+	for (;;) {
+		while (*r == ' ' || *r == '\t' || *r == '\n' || *r == '\r')
+			r++;
+		if (*r == '\0' || *r == '#')
+			break;
+		if (argc == max)
+			return im_fail(err, "more than %d words in one command", max);
+		argv[argc++] = w;
+		while (*r && *r != ' ' && *r != '\t' && *r != '\n' && *r != '\r') {
+			if (*r == '"' || *r == '\'') {
+				char q = *r++;
+				while (*r && *r != q)
+					*w++ = *r++;
+				if (*r != q)
+					return im_fail(err, "unterminated %c quote", q);
+				r++;
+			} else {
+				*w++ = *r++;
+			}
+		}
+		if (*r)
+			r++;
+		*w++ = '\0';
+	}
+	return argc;
+}
+
+/* The command a typo most likely meant: the only one it is a prefix of,
+ * or the only one that differs by one letter swapped, added or dropped. */
+static const char *nearest_command(const char *name)
+{
+	const char *best = NULL;
+	size_t n = strlen(name);
+	int hits = 0;
+	for (size_t i = 0; i < IM_COUNT(table); i++)
+		if (n >= 2 && strncmp(table[i].name, name, n) == 0) {
+			best = table[i].name;
+			hits++;
+		}
+	if (hits == 1)
+		return best;
+	hits = 0;
+	for (size_t i = 0; i < IM_COUNT(table); i++) {
+		const char *t = table[i].name;
+		size_t m = strlen(t), a = 0;
+		if (m + 1 < n || n + 1 < m)
+			continue;
+		while (a < n && a < m && t[a] == name[a])
+			a++;
+		/* the rest must match after skipping one letter on either side */
+		if ((m == n && strcmp(t + a + 1, name + a + 1) == 0) ||
+		    (m == n + 1 && strcmp(t + a + 1, name + a) == 0) ||
+		    (n == m + 1 && strcmp(t + a, name + a + 1) == 0) ||
+		    (m == n && a + 1 < n && t[a] == name[a + 1] && t[a + 1] == name[a] &&
+		     strcmp(t + a + 2, name + a + 2) == 0)) {
+			best = t;
+			hits++;
+		}
+	}
+	return hits == 1 ? best : NULL;
+}
+
+static int exec_one(im_ctx *ctx, char *cmd, char *err)
+{
+	char *argv[CMD_ARGS_MAX];
+	int argc = cmd_split(cmd, argv, CMD_ARGS_MAX, err), nargs, rc;
+	const cmd_def *d;
+	workspace saved;
+	double t = ctx->temp_C;
+	act_model m = ctx->model;
+	if (argc <= 0)
+		return argc;
+	d = cmd_lookup(argv[0]);
+	if (!d) {
+		const char *near = nearest_command(argv[0]);
+		if (near)
+			return im_fail(err, "unknown command '%.40s'; did you mean %s?", argv[0], near);
+		return im_fail(err, "unknown command '%.40s' (type `help`)", argv[0]);
+	}
+	nargs = argc - 1;
+	if (nargs < d->min_args)
+		return im_fail(err, "%s: missing argument (usage: %s %s)", d->name, d->name,
+			       d->synopsis);
+	if (d->max_args != ANY && nargs > d->max_args)
+		return im_fail(err, "%s: unexpected '%.40s' (usage: %s %s)", d->name,
+			       argv[d->max_args + 1], d->name, d->synopsis);
+	ws_copy(&saved, &ctx->ws);
+	rc = d->fn(ctx, argc, argv, err);
+	if (rc != 0 && !d->keep_on_fail) {
+		ws_free(&ctx->ws);
+		ctx->ws = saved;
+		ctx->temp_C = t;
+		ctx->model = m;
+	} else {
+		ws_free(&saved);
+	}
+	return rc;
+}
+
+int cmd_exec(im_ctx *ctx, const char *line, char *err)
+{
+	size_t n = strlen(line);
+	char buf[CMD_LINE_MAX + 2];
+	char *start;
+	char q = 0;
+	if (n > CMD_LINE_MAX)
+		return im_fail(err, "line is longer than %d bytes", CMD_LINE_MAX);
+	for (size_t i = 0; i < n; i++) {
+		unsigned char c = (unsigned char)line[i];
+		if ((c < 0x20 && c != '\t' && c != '\n' && c != '\r') || c == 0x7f)
+			return im_fail(err, "line holds the control byte 0x%02x at column %zu: "
+					    "not a command", c, i + 1);
+	}
+	memcpy(buf, line, n + 1);
+	start = buf;
+	for (char *p = buf;; p++) {
+		if (*p == '\0' || (*p == ';' && !q) || (*p == '#' && !q)) {
+			int last = *p != ';';
+			*p = '\0';
+			if (exec_one(ctx, start, err))
+				return -1;
+			if (last)
+				return 0;
+			start = p + 1;
+		} else if ((*p == '"' || *p == '\'') && (!q || q == *p)) {
+			q = q ? 0 : *p;
+		}
+	}
+}
+
+void ctx_init(im_ctx *ctx, refdb *ref, out *o)
+{
+	memset(ctx, 0, sizeof *ctx);
+	ctx->ref = ref;
+	ctx->out = o;
+	ctx->temp_C = 25.0;
+	ctx->model = ACT_DAVIES;
+	ws_init(&ctx->ws);
+}
+
+void ctx_free(im_ctx *ctx)
+{
+	ws_free(&ctx->ws);
+	udb_close(ctx->user);
+	ctx->user = NULL;
+}
+
+struct userdb *ctx_userdb(im_ctx *ctx, int create, char *err, int *failed)
+{
+	int rc;
+	*failed = 0;
+	if (ctx->user)
+		return ctx->user;
+	if (!ctx->db_path) {
+		*failed = 1;
+		im_fail(err, "no database path");
+		return NULL;
+	}
+	rc = udb_open(ctx->db_path, create, &ctx->user, err);
+	if (rc < 0)
+		*failed = 1;
+	return ctx->user;
+}

@@ -1,0 +1,159 @@
+/*
+ * output.c - human text and JSON lines through one writer.
+ */
+#include "output.h"
+
+#include <math.h>
+#include <stdarg.h>
+#include <string.h>
+
+void out_printf(out *o, const char *fmt, ...)
+{
+	va_list ap;
+	if (o->json)
+		return;
+	va_start(ap, fmt);
+	vfprintf(o->fp, fmt, ap);
+	va_end(ap);
+}
+
+void out_note(out *o, const char *fmt, ...)
+{
+	va_list ap;
+	if (o->json)
+		return;
+	va_start(ap, fmt);
+	vfprintf(o->fp, fmt, ap);
+	va_end(ap);
+	fputc('\n', o->fp);
+}
+
+void out_json_string(FILE *fp, const char *s)
+{
+	fputc('"', fp);
+	for (const unsigned char *p = (const unsigned char *)s; *p; p++) {
+		switch (*p) {
+		case '"': fputs("\\\"", fp); break;
+		case '\\': fputs("\\\\", fp); break;
+		case '\n': fputs("\\n", fp); break;
+		case '\r': fputs("\\r", fp); break;
+		case '\t': fputs("\\t", fp); break;
+		default:
+			if (*p < 0x20)
+				fprintf(fp, "\\u%04x", *p);
+			else
+				fputc(*p, fp);
+		}
+	}
+	fputc('"', fp);
+}
+
+void out_error(out *o, const char *file, int line, const char *msg)
+{
+	if (o->json) {
+		fputs("{\"error\":", o->fp);
+		out_json_string(o->fp, msg);
+		if (file) {
+			fputs(",\"file\":", o->fp);
+			out_json_string(o->fp, file);
+			fprintf(o->fp, ",\"line\":%d", line);
+		}
+		fputs("}\n", o->fp);
+		fflush(o->fp);
+		return;
+	}
+	fflush(o->fp);
+	if (file)
+		fprintf(o->errfp, "ionmix: %s:%d: %s\n", file, line, msg);
+	else
+		fprintf(o->errfp, "ionmix: %s\n", msg);
+	fflush(o->errfp);
+}
+
+/* Comma and key before a value at the current level. */
+static void sep(jw *w, const char *key)
+{
+	FILE *fp = w->o->fp;
+	if (w->count[w->depth]++)
+		fputc(',', fp);
+	if (key) {
+		out_json_string(fp, key);
+		fputc(':', fp);
+	}
+}
+
+void jw_begin(jw *w, out *o)
+{
+	memset(w, 0, sizeof *w);
+	w->o = o;
+	fputc('{', o->fp);
+}
+
+void jw_end(jw *w)
+{
+	while (w->depth > 0)
+		jw_close(w);
+	fputs("}\n", w->o->fp);
+	fflush(w->o->fp);
+}
+
+void jw_str(jw *w, const char *key, const char *val)
+{
+	sep(w, key);
+	if (val)
+		out_json_string(w->o->fp, val);
+	else
+		fputs("null", w->o->fp);
+}
+
+void jw_num(jw *w, const char *key, double val, int sig)
+{
+	sep(w, key);
+	if (!isfinite(val)) {
+		fputs("null", w->o->fp);
+		return;
+	}
+	if (val == 0)
+		val = 0; /* no "-0" */
+	fprintf(w->o->fp, "%.*g", sig, val);
+}
+
+void jw_int(jw *w, const char *key, long val)
+{
+	sep(w, key);
+	fprintf(w->o->fp, "%ld", val);
+}
+
+void jw_bool(jw *w, const char *key, int val)
+{
+	sep(w, key);
+	fputs(val ? "true" : "false", w->o->fp);
+}
+
+static void open_nested(jw *w, const char *key, int c)
+{
+	sep(w, key);
+	fputc(c, w->o->fp);
+	if (w->depth < 15)
+		w->depth++;
+	w->count[w->depth] = 0;
+	w->close[w->depth] = c == '{' ? '}' : ']';
+}
+
+void jw_obj(jw *w, const char *key)
+{
+	open_nested(w, key, '{');
+}
+
+void jw_arr(jw *w, const char *key)
+{
+	open_nested(w, key, '[');
+}
+
+void jw_close(jw *w)
+{
+	if (w->depth == 0)
+		return;
+	fputc(w->close[w->depth], w->o->fp);
+	w->depth--;
+}

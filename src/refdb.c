@@ -1,0 +1,390 @@
+/*
+ * refdb.c - load the embedded reference SQL into an in-memory SQLite
+ * database and copy ions, compounds, aliases and sources into arrays.
+ */
+#include "refdb.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <strings.h>
+
+#include "common.h"
+
+extern const char im_refdata_sql[];
+extern const size_t im_refdata_len;
+
+typedef struct alias {
+	char *alias;
+	const rd_compound *c;
+} alias;
+
+struct refdb {
+	sqlite3 *db;
+	rd_source *src;
+	int nsrc;
+	rd_ion *ion;
+	int nion;
+	rd_compound *cmp;
+	int ncmp;
+	alias *al;
+	int nal;
+	char **strings; /* every string the arrays point to */
+	int nstr, capstr;
+};
+
+static const char *keep(refdb *r, const unsigned char *s)
+{
+	if (!s)
+		return NULL;
+	if (r->nstr == r->capstr) {
+		r->capstr = r->capstr ? 2 * r->capstr : 256;
+		r->strings = im_xrealloc(r->strings, r->capstr * sizeof *r->strings);
+	}
+	return r->strings[r->nstr++] = im_xstrdup((const char *)s);
+}
+
+static double col_num(sqlite3_stmt *st, int i)
+{
+	return sqlite3_column_type(st, i) == SQLITE_NULL ? NAN
+							 : sqlite3_column_double(st, i);
+}
+
+static const rd_source *src_by_id(const refdb *r, const unsigned char *id)
+{
+	if (!id)
+		return NULL;
+	for (int i = 0; i < r->nsrc; i++)
+		if (strcmp(r->src[i].id, (const char *)id) == 0)
+			return &r->src[i];
+	return NULL;
+}
+
+static int count_rows(sqlite3 *db, const char *table)
+{
+	char sql[128];
+	sqlite3_stmt *st;
+	int n = -1;
+	snprintf(sql, sizeof sql, "SELECT count(*) FROM %s", table);
+	if (sqlite3_prepare_v2(db, sql, -1, &st, NULL) == SQLITE_OK &&
+	    sqlite3_step(st) == SQLITE_ROW)
+		n = sqlite3_column_int(st, 0);
+	sqlite3_finalize(st);
+	return n;
+}
+
+static int prep(refdb *r, const char *sql, sqlite3_stmt **st, char *err)
+{
+	if (sqlite3_prepare_v2(r->db, sql, -1, st, NULL) != SQLITE_OK)
+		return im_fail(err, "reference data: %s", sqlite3_errmsg(r->db));
+	return 0;
+}
+
+static int load_sources(refdb *r, char *err)
+{
+	sqlite3_stmt *st;
+	r->nsrc = count_rows(r->db, "sources");
+	r->src = im_xcalloc(r->nsrc, sizeof *r->src);
+	if (prep(r, "SELECT id, citation, common_practice, from_memory FROM sources"
+		    " ORDER BY id", &st, err))
+		return -1;
+	for (int i = 0; i < r->nsrc && sqlite3_step(st) == SQLITE_ROW; i++) {
+		r->src[i].id = keep(r, sqlite3_column_text(st, 0));
+		r->src[i].citation = keep(r, sqlite3_column_text(st, 1));
+		r->src[i].common_practice = sqlite3_column_int(st, 2);
+		r->src[i].from_memory = sqlite3_column_int(st, 3);
+	}
+	sqlite3_finalize(st);
+	return 0;
+}
+
+static int load_ions(refdb *r, char *err)
+{
+	sqlite3_stmt *st;
+	r->nion = count_rows(r->db, "ions");
+	r->ion = im_xcalloc(r->nion, sizeof *r->ion);
+	if (prep(r, "SELECT symbol, name, charge, lambda_S_cm2_eq, diffusion_1e9_m2_s,"
+		    " mobility_source, kielland_a_pm, size_source FROM ions"
+		    " ORDER BY symbol", &st, err))
+		return -1;
+	for (int i = 0; i < r->nion && sqlite3_step(st) == SQLITE_ROW; i++) {
+		rd_ion *x = &r->ion[i];
+		x->symbol = keep(r, sqlite3_column_text(st, 0));
+		x->name = keep(r, sqlite3_column_text(st, 1));
+		x->z = sqlite3_column_int(st, 2);
+		x->lambda_S_cm2_eq = col_num(st, 3);
+		x->D_1e9_m2_s = col_num(st, 4);
+		x->mobility_source = src_by_id(r, sqlite3_column_text(st, 5));
+		x->kielland_a_pm = col_num(st, 6);
+		x->size_source = src_by_id(r, sqlite3_column_text(st, 7));
+	}
+	sqlite3_finalize(st);
+	return 0;
+}
+
+static const rd_ion *ion_exact(const refdb *r, const char *sym)
+{
+	for (int i = 0; i < r->nion; i++)
+		if (strcmp(r->ion[i].symbol, sym) == 0)
+			return &r->ion[i];
+	return NULL;
+}
+
+static const rd_compound *cmp_exact(const refdb *r, const char *name)
+{
+	for (int i = 0; i < r->ncmp; i++)
+		if (strcmp(r->cmp[i].name, name) == 0)
+			return &r->cmp[i];
+	return NULL;
+}
+
+static int load_compounds(refdb *r, char *err)
+{
+	sqlite3_stmt *st;
+	r->ncmp = count_rows(r->db, "compounds");
+	r->cmp = im_xcalloc(r->ncmp, sizeof *r->cmp);
+	if (prep(r, "SELECT name, formula, fw_g_mol, fw_source, hydrate_of, kind,"
+		    " hazard, description FROM compounds ORDER BY name", &st, err))
+		return -1;
+	for (int i = 0; i < r->ncmp && sqlite3_step(st) == SQLITE_ROW; i++) {
+		rd_compound *c = &r->cmp[i];
+		c->name = keep(r, sqlite3_column_text(st, 0));
+		c->formula = keep(r, sqlite3_column_text(st, 1));
+		c->fw_g_mol = sqlite3_column_double(st, 2);
+		c->fw_source = src_by_id(r, sqlite3_column_text(st, 3));
+		c->hydrate_of = keep(r, sqlite3_column_text(st, 4));
+		c->kind = keep(r, sqlite3_column_text(st, 5));
+		c->hazard = keep(r, sqlite3_column_text(st, 6));
+		c->description = keep(r, sqlite3_column_text(st, 7));
+	}
+	sqlite3_finalize(st);
+
+	if (prep(r, "SELECT compound, species, count FROM compound_yields"
+		    " ORDER BY compound, species", &st, err))
+		return -1;
+	while (sqlite3_step(st) == SQLITE_ROW) {
+		rd_compound *c = (rd_compound *)cmp_exact(
+			r, (const char *)sqlite3_column_text(st, 0));
+		const rd_ion *ion = ion_exact(r, (const char *)sqlite3_column_text(st, 1));
+		if (!c || !ion)
+			continue; /* foreign keys make this unreachable */
+		rd_yield *y = im_xrealloc((void *)c->yields, (c->nyields + 1) * sizeof *y);
+		y[c->nyields].ion = ion;
+		y[c->nyields].count = sqlite3_column_double(st, 2);
+		c->yields = y;
+		c->nyields++;
+	}
+	sqlite3_finalize(st);
+
+	r->nal = count_rows(r->db, "compound_aliases");
+	r->al = im_xcalloc(r->nal, sizeof *r->al);
+	if (prep(r, "SELECT alias, compound FROM compound_aliases ORDER BY alias",
+		 &st, err))
+		return -1;
+	for (int i = 0; i < r->nal && sqlite3_step(st) == SQLITE_ROW; i++) {
+		r->al[i].alias = (char *)keep(r, sqlite3_column_text(st, 0));
+		r->al[i].c = cmp_exact(r, (const char *)sqlite3_column_text(st, 1));
+	}
+	sqlite3_finalize(st);
+	return 0;
+}
+
+int refdb_open(refdb **out, char *err)
+{
+	refdb *r = im_xcalloc(1, sizeof *r);
+	char *msg = NULL;
+	*out = NULL;
+	if (sqlite3_open_v2(":memory:", &r->db, SQLITE_OPEN_READWRITE, NULL) != SQLITE_OK) {
+		im_fail(err, "cannot open the in-memory reference database");
+		refdb_close(r);
+		return -1;
+	}
+	if (sqlite3_exec(r->db, im_refdata_sql, NULL, NULL, &msg) != SQLITE_OK) {
+		im_fail(err, "reference data does not load: %s", msg ? msg : "?");
+		sqlite3_free(msg);
+		refdb_close(r);
+		return -1;
+	}
+	if (load_sources(r, err) || load_ions(r, err) || load_compounds(r, err)) {
+		refdb_close(r);
+		return -1;
+	}
+	*out = r;
+	return 0;
+}
+
+void refdb_close(refdb *r)
+{
+	if (!r)
+		return;
+	for (int i = 0; i < r->ncmp; i++)
+		free((void *)r->cmp[i].yields);
+	for (int i = 0; i < r->nstr; i++)
+		free(r->strings[i]);
+	free(r->strings);
+	free(r->src);
+	free(r->ion);
+	free(r->cmp);
+	free(r->al);
+	sqlite3_close(r->db);
+	free(r);
+}
+
+sqlite3 *refdb_sqlite(const refdb *r)
+{
+	return r->db;
+}
+
+/* Copy name into buf with U+00B7 MIDDLE DOT read as '.'; 0 if too long. */
+static int normalise(const char *name, char *buf, size_t n)
+{
+	size_t j = 0;
+	for (const char *p = name; *p; p++) {
+		if (j + 1 >= n)
+			return 0;
+		if ((unsigned char)p[0] == 0xc2 && (unsigned char)p[1] == 0xb7) {
+			buf[j++] = '.';
+			p++;
+		} else {
+			buf[j++] = *p;
+		}
+	}
+	buf[j] = '\0';
+	return 1;
+}
+
+const rd_compound *refdb_compound(const refdb *r, const char *name)
+{
+	char buf[128];
+	if (!normalise(name, buf, sizeof buf))
+		return NULL;
+	for (int i = 0; i < r->ncmp; i++)
+		if (im_strcaseeq(r->cmp[i].name, buf))
+			return &r->cmp[i];
+	for (int i = 0; i < r->nal; i++)
+		if (im_strcaseeq(r->al[i].alias, buf))
+			return r->al[i].c;
+	return NULL;
+}
+
+/* Length of sym without its charge suffix ('Ca2+' -> 2, 'SO4^2-' -> 3). */
+static size_t base_len(const char *sym)
+{
+	size_t n = strlen(sym);
+	if (n == 0 || (sym[n - 1] != '+' && sym[n - 1] != '-'))
+		return n;
+	n--;
+	while (n > 0 && sym[n - 1] >= '0' && sym[n - 1] <= '9')
+		n--;
+	if (n > 0 && sym[n - 1] == '^')
+		n--;
+	return n;
+}
+
+const rd_ion *refdb_ion(const refdb *r, const char *sym)
+{
+	const rd_ion *hit = NULL;
+	size_t n = strlen(sym);
+	for (int i = 0; i < r->nion; i++)
+		if (im_strcaseeq(r->ion[i].symbol, sym))
+			return &r->ion[i];
+	for (int i = 0; i < r->nion; i++) {
+		const rd_ion *x = &r->ion[i];
+		size_t b = base_len(x->symbol);
+		char tmp[64];
+		if (x->z == 0 || b != n || b >= sizeof tmp)
+			continue;
+		memcpy(tmp, x->symbol, b);
+		tmp[b] = '\0';
+		if (im_strcaseeq(tmp, sym)) {
+			if (hit)
+				return NULL; /* ambiguous */
+			hit = x;
+		}
+	}
+	return hit;
+}
+
+static int lower(int c)
+{
+	return (c >= 'A' && c <= 'Z') ? c + 32 : c;
+}
+
+/* Edit distance, case-insensitive, capped at strings of 63 bytes. */
+static int distance(const char *a, const char *b)
+{
+	int la = (int)strlen(a), lb = (int)strlen(b), row[64];
+	if (la > 63)
+		la = 63;
+	if (lb > 63)
+		lb = 63;
+	for (int j = 0; j <= lb; j++)
+		row[j] = j;
+	for (int i = 1; i <= la; i++) {
+		int diag = row[0];
+		row[0] = i;
+		for (int j = 1; j <= lb; j++) {
+			int up = row[j];
+			int cost = lower((unsigned char)a[i - 1]) != lower((unsigned char)b[j - 1]);
+			int best = diag + cost;
+			if (row[j - 1] + 1 < best)
+				best = row[j - 1] + 1;
+			if (up + 1 < best)
+				best = up + 1;
+			row[j] = best;
+			diag = up;
+		}
+	}
+	return row[lb];
+}
+
+typedef struct cand {
+	int d;
+	const char *canon;
+} cand;
+
+static int cand_cmp(const void *a, const void *b)
+{
+	const cand *x = a, *y = b;
+	return x->d != y->d ? x->d - y->d : strcmp(x->canon, y->canon);
+}
+
+int refdb_suggest(const refdb *r, const char *name, const char **out, int max)
+{
+	int total = r->ncmp + r->nal, k = 0, nc = 0;
+	size_t len = strlen(name);
+	cand *c = im_xcalloc(total, sizeof *c);
+	for (int i = 0; i < total; i++) {
+		const char *s = i < r->ncmp ? r->cmp[i].name : r->al[i - r->ncmp].alias;
+		int d = distance(name, s);
+		if (len >= 2 && strncasecmp(s, name, len) == 0)
+			d = 1; /* a prefix counts as close */
+		if (d <= 2 + (int)len / 4) {
+			c[nc].d = d;
+			c[nc++].canon = i < r->ncmp ? s : r->al[i - r->ncmp].c->name;
+		}
+	}
+	qsort(c, nc, sizeof *c, cand_cmp);
+	for (int i = 0; i < nc && k < max; i++) {
+		int dup = 0;
+		for (int j = 0; j < k; j++)
+			dup |= strcmp(out[j], c[i].canon) == 0;
+		if (!dup)
+			out[k++] = c[i].canon;
+	}
+	free(c);
+	return k;
+}
+
+const rd_source *refdb_source(const refdb *r, const char *id)
+{
+	return src_by_id(r, (const unsigned char *)id);
+}
+
+int refdb_ncompounds(const refdb *r) { return r->ncmp; }
+const rd_compound *refdb_compound_at(const refdb *r, int i) { return &r->cmp[i]; }
+int refdb_nions(const refdb *r) { return r->nion; }
+const rd_ion *refdb_ion_at(const refdb *r, int i) { return &r->ion[i]; }
+int refdb_naliases(const refdb *r) { return r->nal; }
+const char *refdb_alias_at(const refdb *r, int i) { return r->al[i].alias; }

@@ -1,0 +1,192 @@
+/*
+ * shell.c - readline prompt, history and completion around cmd_exec.
+ */
+#include "shell.h"
+
+#include <errno.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+
+#include <readline/history.h>
+#include <readline/readline.h>
+
+#include "common.h"
+#include "userdb.h"
+
+static im_ctx *sh_ctx; /* readline's callbacks take no user pointer */
+
+char *shell_history_path(void)
+{
+	const char *xdg = getenv("XDG_STATE_HOME"), *home = getenv("HOME");
+	char buf[4096];
+	if (xdg && *xdg == '/')
+		snprintf(buf, sizeof buf, "%s/ionmix/history", xdg);
+	else if (home && *home)
+		snprintf(buf, sizeof buf, "%s/.local/state/ionmix/history", home);
+	else
+		return NULL;
+	return im_xstrdup(buf);
+}
+
+/* ---- completion ---- */
+
+static compl_kind want;     /* what the word being completed is */
+static char **saved_names;  /* saved solutions, fetched once per completion */
+static int nsaved;
+
+static const char *candidate(int i)
+{
+	im_ctx *c = sh_ctx;
+	int n;
+	switch (want) {
+	case COMPL_COMMAND: {
+		const cmd_def *t = cmd_table(&n);
+		return i < n ? t[i].name : NULL;
+	}
+	case COMPL_COMPOUND:
+		n = refdb_ncompounds(c->ref);
+		if (i < n)
+			return refdb_compound_at(c->ref, i)->name;
+		i -= n;
+		return i < refdb_naliases(c->ref) ? refdb_alias_at(c->ref, i) : NULL;
+	case COMPL_ION:
+		return i < refdb_nions(c->ref) ? refdb_ion_at(c->ref, i)->symbol : NULL;
+	case COMPL_SOLUTION:
+		if (i < c->ws.n)
+			return c->ws.sol[i]->name;
+		i -= c->ws.n;
+		return i < nsaved ? saved_names[i] : NULL;
+	case COMPL_SAVED:
+		return i < nsaved ? saved_names[i] : NULL;
+	default:
+		return NULL;
+	}
+}
+
+static char *generator(const char *text, int state)
+{
+	static int i;
+	static size_t len;
+	const char *s;
+	if (!state) {
+		i = 0;
+		len = strlen(text);
+	}
+	while ((s = candidate(i++)))
+		if (strncasecmp(s, text, len) == 0)
+			return im_xstrdup(s);
+	return NULL;
+}
+
+static void fetch_saved(void)
+{
+	char err[IM_ERRLEN];
+	int failed;
+	struct userdb *u = ctx_userdb(sh_ctx, 0, err, &failed);
+	for (int i = 0; i < nsaved; i++)
+		free(saved_names[i]);
+	free(saved_names);
+	saved_names = NULL;
+	nsaved = 0;
+	if (u) {
+		int n = udb_list(u, &saved_names, err);
+		nsaved = n > 0 ? n : 0;
+	}
+}
+
+static char **complete(const char *text, int start, int end)
+{
+	char *argv[CMD_ARGS_MAX], buf[CMD_LINE_MAX + 1], err[IM_ERRLEN];
+	int argc;
+	const cmd_def *d;
+	(void)end;
+	rl_attempted_completion_over = 1;
+	snprintf(buf, sizeof buf, "%.*s", start, rl_line_buffer);
+	{ /* complete within the last ';'-separated command */
+		char *semi = strrchr(buf, ';');
+		argc = cmd_split(semi ? semi + 1 : buf, argv, CMD_ARGS_MAX, err);
+	}
+	if (argc < 0)
+		return NULL;
+	if (argc == 0) {
+		want = COMPL_COMMAND;
+	} else {
+		d = cmd_lookup(argv[0]);
+		if (!d)
+			return NULL;
+		want = argc == 1 ? d->compl : d->compl_rest;
+	}
+	if (want == COMPL_NONE)
+		return NULL;
+	if (want == COMPL_FILE) {
+		rl_attempted_completion_over = 0;
+		return rl_completion_matches(text, rl_filename_completion_function);
+	}
+	if (want == COMPL_SOLUTION || want == COMPL_SAVED)
+		fetch_saved();
+	return rl_completion_matches(text, generator);
+}
+
+/* ---- the loop ---- */
+
+static void make_parent(const char *path)
+{
+	char buf[4096];
+	snprintf(buf, sizeof buf, "%s", path);
+	for (char *p = buf + 1; *p; p++)
+		if (*p == '/') {
+			*p = '\0';
+			mkdir(buf, 0700);
+			*p = '/';
+		}
+}
+
+int shell_run(im_ctx *ctx, const char *history_path)
+{
+	char *line, prompt[128], err[IM_ERRLEN];
+	sh_ctx = ctx;
+	rl_readline_name = "ionmix";
+	rl_attempted_completion_function = complete;
+	rl_basic_word_break_characters = " \t\n\"';";
+	using_history();
+	stifle_history(2000);
+	if (history_path)
+		read_history(history_path);
+	out_printf(ctx->out, "ionmix: type `help` for the commands, Ctrl-D to leave\n");
+	for (;;) {
+		solution *s = ws_current(&ctx->ws);
+		snprintf(prompt, sizeof prompt, "ionmix [%s, %.1f C]> ", s ? s->name : "no solution",
+			 ctx->temp_C);
+		line = readline(prompt);
+		if (!line)
+			break;
+		if (line[strspn(line, " \t")] != '\0') {
+			add_history(line);
+			if (history_path) {
+				make_parent(history_path);
+				if (append_history(1, history_path) != 0)
+					write_history(history_path);
+			}
+		}
+		if (strcmp(line, "quit") == 0 || strcmp(line, "exit") == 0) {
+			free(line);
+			break;
+		}
+		ctx->errfile[0] = '\0';
+		if (cmd_exec(ctx, line, err))
+			out_error(ctx->out, ctx->errfile[0] ? ctx->errfile : NULL, ctx->errline, err);
+		fflush(ctx->out->fp);
+		free(line);
+	}
+	if (history_path)
+		history_truncate_file(history_path, 2000);
+	for (int i = 0; i < nsaved; i++)
+		free(saved_names[i]);
+	free(saved_names);
+	saved_names = NULL;
+	nsaved = 0;
+	out_printf(ctx->out, "\n");
+	return 0;
+}

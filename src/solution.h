@@ -1,0 +1,90 @@
+/*
+ * solution.h - a solution (compounds and their amounts), the workspace of
+ * named solutions, and the species a solution yields with their activities.
+ *
+ * Data flow: compounds --sol_compute--> species totals --activity--> gamma,
+ * activity, ionic strength, osmolarity, net charge.  Nothing here prints.
+ */
+#ifndef IONMIX_SOLUTION_H
+#define IONMIX_SOLUTION_H
+
+#include "refdb.h"
+
+#define SOL_NAME_MAX 64
+
+typedef struct sol_item {
+	const rd_compound *c;
+	double mM;       /* final concentration in the solution, mmol/L */
+	double stock_mM; /* > 0: comes from a stock of this concentration */
+} sol_item;
+
+typedef struct solution {
+	char name[SOL_NAME_MAX];
+	sol_item *items; /* in the order they were added; owned */
+	int n, cap;
+} solution;
+
+/* Activity-coefficient model (see activity.h). */
+typedef enum { ACT_DAVIES = 0, ACT_DEBYE_HUCKEL = 1 } act_model;
+
+typedef struct sol_species {
+	const rd_ion *ion;
+	double mM;        /* total concentration, mmol/L */
+	double gamma;     /* activity coefficient (molar scale) */
+	double act_mM;    /* gamma * mM */
+	int dh_fallback;  /* 1: extended DH asked, no Kielland size: Davies used */
+} sol_species;
+
+typedef struct sol_state {
+	sol_species *sp;  /* charged ions first (by charge, then symbol), then neutrals; owned */
+	int n;
+	double t_C;
+	act_model model;
+	double ionic_strength_mM;
+	double osmolarity_mOsm_L;   /* ideal: sum of all particles */
+	double net_charge_mEq_L;    /* sum z c */
+	double cation_mEq_L;        /* sum over z>0 of z c, for judging balance */
+} sol_state;
+
+/* The workspace: named solutions, one current. */
+typedef struct workspace {
+	solution **sol;  /* owned */
+	int n, cap;
+	int current;     /* index, or -1 when there is none */
+} workspace;
+
+void sol_init(solution *s, const char *name);
+void sol_free(solution *s);
+/* Deep copy src into dst (dst must be uninitialised or freed). */
+void sol_copy(solution *dst, const solution *src, const char *name);
+sol_item *sol_find(solution *s, const rd_compound *c);
+/* Add mM to the compound (appending it when absent). */
+void sol_add(solution *s, const rd_compound *c, double mM);
+/* Set the amount (appending when absent). */
+void sol_set(solution *s, const rd_compound *c, double mM);
+/* Remove; returns -1 when the compound is not in the solution. */
+int sol_remove(solution *s, const rd_compound *c);
+int sol_equal(const solution *a, const solution *b);
+
+/* Species totals and activities at t_C.  The state owns its arrays;
+ * free with sol_state_free.  Fails (-1, err) only on bad temperature. */
+int sol_compute(const solution *s, double t_C, act_model model,
+		sol_state *st, char *err);
+void sol_state_free(sol_state *st);
+/* The species entry for ion, or NULL when the solution lacks it. */
+const sol_species *sol_state_find(const sol_state *st, const rd_ion *ion);
+
+void ws_init(workspace *w);
+void ws_free(workspace *w);
+solution *ws_find(workspace *w, const char *name);   /* case-sensitive */
+solution *ws_current(workspace *w);                  /* NULL if none */
+/* Create (empty) or return the existing one; makes it current. */
+solution *ws_open(workspace *w, const char *name);
+/* Insert a solution the workspace takes ownership of, replacing one of the
+ * same name. */
+void ws_put(workspace *w, solution *s);
+int ws_delete(workspace *w, const char *name);
+/* Deep copy of the whole workspace, for undoing a failed script line. */
+void ws_copy(workspace *dst, const workspace *src);
+
+#endif

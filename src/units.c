@@ -1,0 +1,174 @@
+/*
+ * units.c - strict number and amount parsing, unit-aware formatting.
+ */
+#include "units.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "common.h"
+
+/* Length of the leading part of s made of number characters. */
+static size_t number_span(const char *s)
+{
+	size_t i = 0;
+	if (s[i] == '+' || s[i] == '-')
+		i++;
+	while ((s[i] >= '0' && s[i] <= '9') || s[i] == '.')
+		i++;
+	if ((s[i] == 'e' || s[i] == 'E') && i > 0 &&
+	    ((s[i + 1] >= '0' && s[i + 1] <= '9') ||
+	     ((s[i + 1] == '+' || s[i + 1] == '-') && s[i + 2] >= '0' && s[i + 2] <= '9'))) {
+		i += 2;
+		while (s[i] >= '0' && s[i] <= '9')
+			i++;
+	}
+	return i;
+}
+
+int units_number(const char *s, double *v, char *err)
+{
+	char *end;
+	size_t n = number_span(s);
+	int digits = 0;
+	for (size_t i = 0; i < n; i++)
+		digits |= s[i] >= '0' && s[i] <= '9';
+	if (n == 0 || !digits || s[n] != '\0')
+		return im_fail(err, "'%.40s' is not a number", s);
+	*v = strtod(s, &end);
+	if (end != s + n || !isfinite(*v))
+		return im_fail(err, "'%.40s' is not a finite number", s);
+	return 0;
+}
+
+typedef struct unit_def {
+	const char *name;
+	double to_mM;   /* multiply by this (molar units) */
+	int per_mass;   /* 1: value is g/L times to_mM, needs a formula weight */
+} unit_def;
+
+/* Add a row to accept another unit; names are case-sensitive (mM vs MM). */
+static const unit_def units[] = {
+	{"M", 1000.0, 0},     {"mM", 1.0, 0},      {"uM", 1e-3, 0},
+	{"\xc2\xb5M", 1e-3, 0}, {"\xce\xbcM", 1e-3, 0}, {"nM", 1e-6, 0},
+	{"g/L", 1.0, 1},      {"mg/mL", 1.0, 1},   {"mg/L", 1e-3, 1},
+};
+
+static const unit_def *find_unit(const char *s)
+{
+	for (size_t i = 0; i < IM_COUNT(units); i++)
+		if (strcmp(units[i].name, s) == 0)
+			return &units[i];
+	return NULL;
+}
+
+int units_is_unit(const char *s)
+{
+	return find_unit(s) != NULL;
+}
+
+int units_amount_mM(const char *num, const char *unit, double fw_g_mol,
+		    double *mM, char *err)
+{
+	char buf[64];
+	double v;
+	const unit_def *u;
+	size_t n = number_span(num);
+	if (!unit && n > 0 && num[n] != '\0') { /* '140mM' */
+		if (n >= sizeof buf)
+			return im_fail(err, "'%.40s' is not an amount", num);
+		memcpy(buf, num, n);
+		buf[n] = '\0';
+		unit = num + n;
+		num = buf;
+	}
+	if (units_number(num, &v, err))
+		return -1;
+	u = find_unit(unit ? unit : "mM");
+	if (!u)
+		return im_fail(err, "unknown unit '%.20s' (use M, mM, uM, nM, g/L, mg/mL or mg/L)",
+			       unit);
+	if (v <= 0)
+		return im_fail(err, "amount %s %s: must be greater than zero", num,
+			       unit ? unit : "mM");
+	if (u->per_mass) {
+		if (!(fw_g_mol > 0))
+			return im_fail(err, "unit %s needs a formula weight", u->name);
+		v = v * u->to_mM / fw_g_mol * 1000.0; /* g/L / (g/mol) = mol/L */
+	} else {
+		v *= u->to_mM;
+	}
+	if (v > UNITS_MAX_mM)
+		return im_fail(err, "amount %s %s is beyond %g M, more than any solution holds",
+			       num, unit ? unit : "mM", UNITS_MAX_mM / 1000.0);
+	if (v < 1e-9)
+		return im_fail(err, "amount %s %s is below 1 fM, too small to mean anything",
+			       num, unit ? unit : "mM");
+	*mM = v;
+	return 0;
+}
+
+int units_volume_mL(const char *num, const char *unit, double *mL, char *err)
+{
+	double v, f = 1.0;
+	if (units_number(num, &v, err))
+		return -1;
+	if (!unit || strcmp(unit, "mL") == 0 || strcmp(unit, "ml") == 0)
+		f = 1.0;
+	else if (strcmp(unit, "L") == 0 || strcmp(unit, "l") == 0)
+		f = 1000.0;
+	else if (strcmp(unit, "uL") == 0 || strcmp(unit, "\xc2\xb5L") == 0)
+		f = 1e-3;
+	else
+		return im_fail(err, "unknown volume unit '%.20s' (use mL, L or uL)", unit);
+	v *= f;
+	if (v <= 0)
+		return im_fail(err, "volume %s must be greater than zero", num);
+	if (v > 100000.0)
+		return im_fail(err, "volume %s %s is over 100 L", num, unit ? unit : "mL");
+	*mL = v;
+	return 0;
+}
+
+void units_fmt_sig(char *buf, size_t n, double v, int sig)
+{
+	double a = fabs(v);
+	int dec;
+	if (v == 0 || !isfinite(v)) {
+		snprintf(buf, n, isfinite(v) ? "0" : "-");
+		return;
+	}
+	if (a >= 1e7 || a < 1e-4) {
+		snprintf(buf, n, "%.*g", sig, v);
+		return;
+	}
+	dec = sig - 1 - (int)floor(log10(a));
+	if (dec < 0)
+		dec = 0;
+	snprintf(buf, n, "%.*f", dec, v);
+	if (dec > 0) { /* strip trailing zeros, and a bare point */
+		char *p = buf + strlen(buf) - 1;
+		while (*p == '0')
+			*p-- = '\0';
+		if (*p == '.')
+			*p = '\0';
+	}
+}
+
+void units_fmt_conc(char *buf, size_t n, double mM, int utf8)
+{
+	char num[48];
+	const char *u = "mM";
+	double v = mM;
+	if (fabs(mM) < 1e-4 && mM != 0) {
+		v = mM * 1e6;
+		u = "nM";
+	} else if (fabs(mM) < 0.1 && mM != 0) {
+		v = mM * 1e3;
+		u = utf8 ? "\xc2\xb5M" : "uM";
+	}
+	units_fmt_sig(num, sizeof num, v, 4);
+	snprintf(buf, n, "%s %s", num, u);
+}

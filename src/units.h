@@ -1,0 +1,40 @@
+/*
+ * units.h - numbers and amounts as typed and printed.
+ *
+ * The program never sets LC_NUMERIC, so strtod and printf use a dot
+ * whatever the user's locale; these functions add strict validation.
+ */
+#ifndef IONMIX_UNITS_H
+#define IONMIX_UNITS_H
+
+#include <stddef.h>
+
+/* Largest amount ionmix accepts, mM (5 M: beyond it no model here holds). */
+#define UNITS_MAX_mM 5000.0
+
+/* Parse a plain decimal number ('140', '-70.5', '1e-3').  Rejects empty
+ * strings, trailing characters, hex, NaN and infinity.  0 or -1 + err. */
+int units_number(const char *s, double *v, char *err);
+
+/* Parse an amount: num is the number, unit may be NULL (then mM), or the
+ * number may carry its unit ('140mM', '100nM').  Units: M, mM, uM, µM, nM,
+ * g/L, mg/mL (both need fw_g_mol > 0), mg/L.  The result must be > 0 and
+ * at most UNITS_MAX_mM.  what names the thing for messages. */
+int units_amount_mM(const char *num, const char *unit, double fw_g_mol,
+		    double *mM, char *err);
+
+/* Is s a concentration unit word that units_amount_mM takes? */
+int units_is_unit(const char *s);
+
+/* Volume: num with optional unit mL (default), L, uL, µL.  > 0, <= 100 L. */
+int units_volume_mL(const char *num, const char *unit, double *mL, char *err);
+
+/* Format a concentration given in mM with a fitting unit (mM, uM or nM;
+ * µM when utf8), 4 significant digits: "140 mM", "98.2 nM". */
+void units_fmt_conc(char *buf, size_t n, double mM, int utf8);
+
+/* Format v with `sig` significant digits, no exponent for ordinary
+ * magnitudes (1e-4 to 1e7), trailing zeros after the point dropped. */
+void units_fmt_sig(char *buf, size_t n, double v, int sig);
+
+#endif
