@@ -1,0 +1,230 @@
+/* test_command.c - dispatch, argument checks, rollback on failure, scripts
+ * with FILE:LINE, export/run round trip, JSON shape of core results. */
+#include "testutil.h"
+
+#include <stdlib.h>
+#include <string.h>
+#include <unistd.h>
+
+#include "command.h"
+#include "common.h"
+
+static refdb *db;
+static im_ctx ctx;
+static out o;
+static char *buf;
+static size_t len;
+static char dir[64], dbfile[128];
+
+static int setup(void **state)
+{
+	char err[IM_ERRLEN];
+	(void)state;
+	snprintf(dir, sizeof dir, "/tmp/ionmix-cmd-XXXXXX");
+	if (!mkdtemp(dir) || refdb_open(&db, err))
+		return -1;
+	snprintf(dbfile, sizeof dbfile, "%s/user.db", dir);
+	return 0;
+}
+
+static int teardown(void **state)
+{
+	char cmd[128];
+	(void)state;
+	refdb_close(db);
+	snprintf(cmd, sizeof cmd, "rm -rf %s", dir);
+	return system(cmd) == 0 ? 0 : -1;
+}
+
+static int fresh(void **state)
+{
+	(void)state;
+	o.fp = open_memstream(&buf, &len);
+	o.errfp = stderr;
+	o.json = 0;
+	ctx_init(&ctx, db, &o);
+	ctx.db_path = dbfile;
+	return 0;
+}
+
+static int done(void **state)
+{
+	(void)state;
+	ctx_free(&ctx);
+	fclose(o.fp);
+	free(buf);
+	buf = NULL;
+	return 0;
+}
+
+static int run(const char *line, char *err)
+{
+	int rc = cmd_exec(&ctx, line, err);
+	fflush(o.fp);
+	return rc;
+}
+
+static void ok(const char *line)
+{
+	char err[IM_ERRLEN];
+	if (run(line, err))
+		fail_msg("'%s' failed: %s", line, err);
+}
+
+static void compose(void **state)
+{
+	(void)state;
+	ok("solution bath; add NaCl 140; add KCl 5 mM; add CaCl2.2H2O 2");
+	ok("add NaCl 10");
+	assert_close(sol_find(ws_current(&ctx.ws), refdb_compound(db, "NaCl"))->mM, 150, 0, 0);
+	ok("set NaCl 0.14 M");
+	assert_close(sol_find(ws_current(&ctx.ws), refdb_compound(db, "NaCl"))->mM, 140, 1e-12, 0);
+	ok("remove KCl");
+	assert_int_equal(ws_current(&ctx.ws)->n, 2);
+	ok("solution copy from bath");
+	assert_string_equal(ws_current(&ctx.ws)->name, "copy");
+	assert_int_equal(ws_current(&ctx.ws)->n, 2);
+	ok("temp 37");
+	assert_close(ctx.temp_C, 37, 0, 0);
+	ok("# a comment line");
+	ok("");
+	ok("show; show bath; nernst copy bath; nernst copy bath activities; weigh 250");
+	assert_non_null(strstr(buf, "ionic strength"));
+}
+
+/* Every bad command fails with a one-line message and leaves the
+ * workspace exactly as it was. */
+static void bad_input_leaves_workspace(void **state)
+{
+	static const char *bad[] = {
+		"add NaCll 10", "add NaCl -1", "add NaCl 0", "add NaCl nan", "add NaCl inf",
+		"add NaCl 1e9", "add NaCl 10 parsecs", "add NaCl", "add NaCl 1 mM extra",
+		"frobnicate", "show nosuch", "nernst bath nosuch", "remove glucose",
+		"temp -300", "temp hot", "solution bad/name", "solution x from nosuch",
+		"weigh 0", "weigh -5", "weigh 10 gallons", "stock NaCl 1", "stock glucose 1000",
+		"add \"NaCl 10", "activity magic", "load nosuch", "delete nosuch",
+		"run /nonexistent/file", "add Bogus 1; add NaCl 10", "info nothing",
+		"set NaCl 0", "add NaCl 5 M; add NaCl 1",
+	};
+	char err[IM_ERRLEN];
+	workspace before;
+	(void)state;
+	ok("solution bath; add NaCl 140; add KCl 5");
+	for (size_t i = 0; i < IM_COUNT(bad); i++) {
+		ws_copy(&before, &ctx.ws);
+		err[0] = '\0';
+		if (run(bad[i], err) == 0)
+			fail_msg("'%s' succeeded", bad[i]);
+		assert_true(strlen(err) > 0);
+		assert_null(strchr(err, '\n'));
+		assert_int_equal(before.n, ctx.ws.n);
+		for (int k = 0; k < before.n; k++)
+			if (!sol_equal(before.sol[k], ctx.ws.sol[k]))
+				fail_msg("'%s' changed the workspace", bad[i]);
+		assert_close(ctx.temp_C, 25, 0, 0);
+		ws_free(&before);
+	}
+	/* in "a; b" a failing b leaves a's change standing, as two lines would */
+	assert_int_equal(run("add NaCl 10; add Bogus 1", err), -1);
+	assert_close(sol_find(ws_current(&ctx.ws), refdb_compound(db, "NaCl"))->mM, 150, 0, 0);
+	/* messages name the offending token */
+	run("add NaCll 10", err);
+	assert_non_null(strstr(err, "NaCll"));
+	assert_non_null(strstr(err, "NaCl"));
+	run("add NaCl 10 parsecs", err);
+	assert_non_null(strstr(err, "parsecs"));
+	run("frobnicate", err);
+	assert_non_null(strstr(err, "frobnicate"));
+	run("shwo", err);
+	assert_non_null(strstr(err, "show"));
+}
+
+static void hostile_lines(void **state)
+{
+	char err[IM_ERRLEN], *longline = malloc(CMD_LINE_MAX + 100);
+	(void)state;
+	memset(longline, 'a', CMD_LINE_MAX + 99);
+	longline[CMD_LINE_MAX + 99] = '\0';
+	assert_int_equal(run(longline, err), -1);
+	assert_non_null(strstr(err, "longer"));
+	free(longline);
+	assert_int_equal(run("add \x01\x02 10", err), -1);
+	assert_non_null(strstr(err, "control byte"));
+	assert_int_equal(run("\xff\xfe\xfd", err), -1);
+}
+
+static void script_stops_at_bad_line(void **state)
+{
+	char p[256], err[IM_ERRLEN];
+	FILE *f;
+	(void)state;
+	snprintf(p, sizeof p, "%s/s.ionmix", dir);
+	f = fopen(p, "w");
+	fprintf(f, "solution bath\n# comment\nadd NaCl 140\nadd Nope 5\nadd KCl 5\n");
+	fclose(f);
+	char line[300];
+	snprintf(line, sizeof line, "run %s", p);
+	assert_int_equal(run(line, err), -1);
+	assert_string_equal(ctx.errfile, p);
+	assert_int_equal(ctx.errline, 4);
+	/* lines before the bad one stand; the one after never ran */
+	assert_non_null(ws_find(&ctx.ws, "bath"));
+	assert_int_equal(ws_find(&ctx.ws, "bath")->n, 1);
+}
+
+static void export_then_run(void **state)
+{
+	char p[256], line[300];
+	workspace before;
+	(void)state;
+	ok("solution pip; add K-gluconate 135; add KCl 5; add EGTA 1; add Na2ATP 4");
+	ok("stock Na2ATP 100");
+	snprintf(p, sizeof p, "%s/pip.ionmix", dir);
+	snprintf(line, sizeof line, "export pip %s", p);
+	ok(line);
+	ws_copy(&before, &ctx.ws);
+	ok("set KCl 50; add NaCl 3; solution other");
+	snprintf(line, sizeof line, "run %s", p);
+	ok(line);
+	assert_true(sol_equal(ws_find(&before, "pip"), ws_find(&ctx.ws, "pip")));
+	ws_free(&before);
+}
+
+static void save_load(void **state)
+{
+	workspace before;
+	(void)state;
+	ok("solution bath; add NaCl 140; add HEPES 10; save");
+	ws_copy(&before, &ctx.ws);
+	ok("set NaCl 1; load bath");
+	assert_true(sol_equal(ws_find(&before, "bath"), ws_find(&ctx.ws, "bath")));
+	ok("list; delete bath");
+	ws_free(&before);
+}
+
+static void json_show(void **state)
+{
+	(void)state;
+	o.json = 1;
+	ok("solution bath; add NaCl 140; add KCl 5; show");
+	assert_non_null(strstr(buf, "\"solution\":\"bath\""));
+	assert_non_null(strstr(buf, "\"ionic_strength_mM\":145"));
+	assert_non_null(strstr(buf, "\"osmolarity_mOsm_L\":290"));
+	assert_non_null(strstr(buf, "\"net_charge_mEq_L\":0"));
+	assert_non_null(strstr(buf, "{\"ion\":\"K+\",\"z\":1,\"mM\":5,"));
+	o.json = 0;
+}
+
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test_setup_teardown(compose, fresh, done),
+		cmocka_unit_test_setup_teardown(bad_input_leaves_workspace, fresh, done),
+		cmocka_unit_test_setup_teardown(hostile_lines, fresh, done),
+		cmocka_unit_test_setup_teardown(script_stops_at_bad_line, fresh, done),
+		cmocka_unit_test_setup_teardown(export_then_run, fresh, done),
+		cmocka_unit_test_setup_teardown(save_load, fresh, done),
+		cmocka_unit_test_setup_teardown(json_show, fresh, done),
+	};
+	return cmocka_run_group_tests(tests, setup, teardown);
+}

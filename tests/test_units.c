@@ -1,0 +1,100 @@
+/* test_units.c - number and amount parsing, formatting. */
+#include "testutil.h"
+
+#include <string.h>
+
+#include "common.h"
+#include "units.h"
+
+static void numbers(void **state)
+{
+	double v;
+	char err[IM_ERRLEN];
+	(void)state;
+	assert_int_equal(units_number("140", &v, err), 0);
+	assert_close(v, 140, 0, 0);
+	assert_int_equal(units_number("-70.5", &v, err), 0);
+	assert_close(v, -70.5, 0, 0);
+	assert_int_equal(units_number("1e-3", &v, err), 0);
+	assert_close(v, 1e-3, 1e-15, 0);
+	assert_int_equal(units_number(".5", &v, err), 0);
+	const char *bad[] = {"", "nan", "NaN", "inf", "-inf", "1e999", "0x10", "1,5", "12abc",
+			     "1e", "+", ".", "--1", "1 2", "infinity"};
+	for (size_t i = 0; i < IM_COUNT(bad); i++)
+		assert_int_equal(units_number(bad[i], &v, err), -1);
+	assert_non_null(strstr(err, "infinity"));
+}
+
+static void amounts(void **state)
+{
+	double mM;
+	char err[IM_ERRLEN];
+	(void)state;
+	assert_int_equal(units_amount_mM("140", NULL, 0, &mM, err), 0);
+	assert_close(mM, 140, 0, 0);
+	assert_int_equal(units_amount_mM("0.15", "M", 0, &mM, err), 0);
+	assert_close(mM, 150, 1e-12, 0);
+	assert_int_equal(units_amount_mM("100", "nM", 0, &mM, err), 0);
+	assert_close(mM, 1e-4, 1e-12, 0);
+	assert_int_equal(units_amount_mM("50", "uM", 0, &mM, err), 0);
+	assert_close(mM, 0.05, 1e-12, 0);
+	assert_int_equal(units_amount_mM("50", "\xc2\xb5M", 0, &mM, err), 0);
+	assert_close(mM, 0.05, 1e-12, 0);
+	assert_int_equal(units_amount_mM("100nM", NULL, 0, &mM, err), 0);
+	assert_close(mM, 1e-4, 1e-12, 0);
+	/* 9 g/L NaCl (58.44 g/mol) is 154.0 mM: 9/58.44*1000, by hand */
+	assert_int_equal(units_amount_mM("9", "g/L", 58.44, &mM, err), 0);
+	assert_close(mM, 154.004, 1e-5, 0);
+	assert_int_equal(units_amount_mM("9", "mg/mL", 58.44, &mM, err), 0);
+	assert_close(mM, 154.004, 1e-5, 0);
+	assert_int_equal(units_amount_mM("0", NULL, 0, &mM, err), -1);
+	assert_non_null(strstr(err, "greater than zero"));
+	assert_int_equal(units_amount_mM("-5", NULL, 0, &mM, err), -1);
+	assert_int_equal(units_amount_mM("6", "M", 0, &mM, err), -1);
+	assert_non_null(strstr(err, "beyond"));
+	assert_int_equal(units_amount_mM("5", "mm", 0, &mM, err), -1);
+	assert_non_null(strstr(err, "unknown unit 'mm'"));
+	assert_int_equal(units_amount_mM("5", "g/L", 0, &mM, err), -1);
+	assert_int_equal(units_amount_mM("nan", NULL, 0, &mM, err), -1);
+	assert_int_equal(units_amount_mM("1e-20", NULL, 0, &mM, err), -1);
+}
+
+static void volumes(void **state)
+{
+	double mL;
+	char err[IM_ERRLEN];
+	(void)state;
+	assert_int_equal(units_volume_mL("500", NULL, &mL, err), 0);
+	assert_close(mL, 500, 0, 0);
+	assert_int_equal(units_volume_mL("1", "L", &mL, err), 0);
+	assert_close(mL, 1000, 0, 0);
+	assert_int_equal(units_volume_mL("1", "gallon", &mL, err), -1);
+	assert_int_equal(units_volume_mL("0", NULL, &mL, err), -1);
+}
+
+static void formatting(void **state)
+{
+	char b[64];
+	(void)state;
+	units_fmt_conc(b, sizeof b, 140, 0);
+	assert_string_equal(b, "140 mM");
+	units_fmt_conc(b, sizeof b, 0.0982e-3, 0);
+	assert_string_equal(b, "98.2 nM");
+	units_fmt_conc(b, sizeof b, 0.05, 0);
+	assert_string_equal(b, "50 uM");
+	units_fmt_conc(b, sizeof b, 0.05, 1);
+	assert_string_equal(b, "50 \xc2\xb5M");
+	units_fmt_sig(b, sizeof b, 2.5, 4);
+	assert_string_equal(b, "2.5");
+	units_fmt_sig(b, sizeof b, 1234.5678, 4);
+	assert_string_equal(b, "1235");
+}
+
+int main(void)
+{
+	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(numbers), cmocka_unit_test(amounts),
+		cmocka_unit_test(volumes), cmocka_unit_test(formatting),
+	};
+	return cmocka_run_group_tests(tests, NULL, NULL);
+}
