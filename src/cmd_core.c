@@ -167,7 +167,7 @@ static void report_amount(im_ctx *ctx, const solution *s, const rd_compound *c,
 	}
 	out_printf(ctx->out, "%s: %s %s, now %s\n", s->name, verb, c->name, amt);
 	if (c->hazard)
-		out_printf(ctx->out, "caution: %s %s\n", c->name, c->hazard);
+		out_printf(ctx->out, "caution, %s: %s\n", c->name, c->hazard);
 }
 
 static int add_or_set(im_ctx *ctx, int argc, char **argv, char *err, int set)
@@ -522,6 +522,7 @@ int cmd_stock(im_ctx *ctx, int argc, char **argv, char *err)
 	solution *s;
 	sol_item *it;
 	double mM;
+	char buf[48];
 	if (core_solution(ctx, NULL, &s, err) || core_compound(ctx, argv[1], &c, err))
 		return -1;
 	it = sol_find(s, c);
@@ -538,7 +539,8 @@ int cmd_stock(im_ctx *ctx, int argc, char **argv, char *err)
 		return im_fail(err, "a stock of %s %s is not more concentrated than the %g mM "
 				    "wanted", argv[2], argc > 3 ? argv[3] : "mM", it->mM);
 	it->stock_mM = mM;
-	out_printf(ctx->out, "%s: %s from a %g mM stock\n", s->name, c->name, mM);
+	units_fmt_conc(buf, sizeof buf, mM, ctx->out->utf8);
+	out_printf(ctx->out, "%s: %s from a %s stock\n", s->name, c->name, buf);
 	return 0;
 }
 

@@ -162,7 +162,10 @@ void units_fmt_conc(char *buf, size_t n, double mM, int utf8)
 	char num[48];
 	const char *u = "mM";
 	double v = mM;
-	if (fabs(mM) < 1e-4 && mM != 0) {
+	if (fabs(mM) >= 1000) {
+		v = mM / 1000;
+		u = "M";
+	} else if (fabs(mM) < 1e-4 && mM != 0) {
 		v = mM * 1e6;
 		u = "nM";
 	} else if (fabs(mM) < 0.1 && mM != 0) {

@@ -29,7 +29,7 @@ int units_is_unit(const char *s);
 /* Volume: num with optional unit mL (default), L, uL, µL.  > 0, <= 100 L. */
 int units_volume_mL(const char *num, const char *unit, double *mL, char *err);
 
-/* Format a concentration given in mM with a fitting unit (mM, uM or nM;
+/* Format a concentration given in mM with a fitting unit (M, mM, uM or nM;
  * µM when utf8), 4 significant digits: "140 mM", "98.2 nM". */
 void units_fmt_conc(char *buf, size_t n, double mM, int utf8);
 
