@@ -14,6 +14,8 @@ PYTHON     ?= /usr/bin/python3
 BUILD      ?= build
 # SAN=1 builds with AddressSanitizer and UndefinedBehaviorSanitizer
 SAN        ?=
+# V=1 shows the full compiler command lines
+V          ?=
 
 # ---- project flags, added on top of the user's ----
 PKGS       := sqlite3 readline
@@ -29,6 +31,13 @@ IM_CFLAGS  += -fsanitize=address,undefined -fno-omit-frame-pointer -fno-sanitize
 IM_LDFLAGS := -fsanitize=address,undefined
 endif
 ALL_CFLAGS := $(IM_CFLAGS) $(CFLAGS)
+ifeq ($(V),1)
+Q          :=
+say        := @true
+else
+Q          := @
+say        := @printf '  %-6s %s\n'
+endif
 
 VERSION    := $(shell cat VERSION 2>/dev/null || echo 0.0.0)
 
@@ -79,33 +88,40 @@ bench: deps-test
 	@IONMIX=build/ionmix PYTHON=$(PYTHON) sh tests/bench.sh build
 
 $(BUILD)/ionmix: $(BUILD)/obj/main.o $(LIBOBJ)
-	$(CC) $(IM_LDFLAGS) $(LDFLAGS) -o $@ $^ $(IM_LIBS)
+	$(say) LINK $@
+	$(Q)$(CC) $(IM_LDFLAGS) $(LDFLAGS) -o $@ $^ $(IM_LIBS)
 
 $(BUILD)/libionmix.a: $(LIBOBJ)
-	rm -f $@
-	ar rcs $@ $^
+	$(say) AR $@
+	$(Q)rm -f $@
+	$(Q)ar rcs $@ $^
 
 $(BUILD)/obj/%.o: src/%.c $(BUILD)/gen/version.h | $(BUILD)/obj
-	$(CC) $(ALL_CFLAGS) -c -o $@ $<
+	$(say) CC $<
+	$(Q)$(CC) $(ALL_CFLAGS) -c -o $@ $<
 
 $(BUILD)/obj/refdata.o: $(BUILD)/gen/refdata.c | $(BUILD)/obj
-	$(CC) $(ALL_CFLAGS) -c -o $@ $<
+	$(say) CC $<
+	$(Q)$(CC) $(ALL_CFLAGS) -c -o $@ $<
 
 # The SQL text is embedded by a small host tool, so no xxd or ld tricks.
 $(BUILD)/gen/refdata.c: $(BUILD)/embed $(DATA_SQL) | $(BUILD)/gen
-	$(BUILD)/embed $(DATA_SQL) > $@.tmp && mv $@.tmp $@
+	$(say) EMBED "$(DATA_SQL)"
+	$(Q)$(BUILD)/embed $(DATA_SQL) > $@.tmp && mv $@.tmp $@
 
 $(BUILD)/embed: src/tools/embed.c | $(BUILD)/gen
-	$(CC) -std=c11 -Wall -Wextra -O1 -o $@ $<
+	$(say) CC $<
+	$(Q)$(CC) -std=c11 -Wall -Wextra -O1 -o $@ $<
 
 $(BUILD)/gen/version.h: VERSION | $(BUILD)/gen
-	printf '#define IONMIX_VERSION "%s"\n' "$(VERSION)" > $@.tmp && mv $@.tmp $@
+	$(Q)printf '#define IONMIX_VERSION "%s"\n' "$(VERSION)" > $@.tmp && mv $@.tmp $@
 
 $(BUILD)/tests/%: tests/%.c $(BUILD)/libionmix.a tests/testutil.h | $(BUILD)/tests
-	$(CC) $(ALL_CFLAGS) $(IM_LDFLAGS) $(LDFLAGS) -o $@ $< $(BUILD)/libionmix.a $(CMOCKA) $(IM_LIBS)
+	$(say) CC $<
+	$(Q)$(CC) $(ALL_CFLAGS) $(IM_LDFLAGS) $(LDFLAGS) -o $@ $< $(BUILD)/libionmix.a $(CMOCKA) $(IM_LIBS)
 
 $(BUILD)/obj $(BUILD)/gen $(BUILD)/tests:
-	mkdir -p $@
+	$(Q)mkdir -p $@
 
 install: $(BUILD)/ionmix
 	install -d $(DESTDIR)$(BINDIR) $(DESTDIR)$(MANDIR)/man1

@@ -74,9 +74,20 @@ static char *generator(const char *text, int state)
 		i = 0;
 		len = strlen(text);
 	}
-	while ((s = candidate(i++)))
-		if (strncasecmp(s, text, len) == 0)
+	while ((s = candidate(i++))) {
+		if (strncasecmp(s, text, len) != 0)
+			continue;
+		if (!strchr(s, ' '))
 			return im_xstrdup(s);
+		if (want == COMPL_COMPOUND && refdb_compound(sh_ctx->ref, s) &&
+		    strcmp(refdb_compound(sh_ctx->ref, s)->name, s) == 0) {
+			/* a canonical name with a space completes quoted; aliases
+			 * with spaces are left out (too many near-duplicates) */
+			char *q = im_xmalloc(strlen(s) + 3);
+			sprintf(q, "\"%s\"", s);
+			return q;
+		}
+	}
 	return NULL;
 }
 
