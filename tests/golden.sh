@@ -5,6 +5,7 @@
 # tests/golden/NAME.out.  UPDATE=1 rewrites the .out files instead.
 set -u
 bin=$1
+abs=$(cd "$(dirname "$bin")" && pwd)/$(basename "$bin")
 tmp=$(mktemp -d)
 trap 'rm -rf "$tmp"' EXIT
 pass=0
@@ -14,9 +15,11 @@ for cmd in tests/golden/*.cmd; do
 	exp=tests/golden/$name.out
 	flags=""
 	head -n 1 "$cmd" | grep -q '^#json' && flags="--json"
-	rm -f "$tmp/db"*
-	(cd tests/golden && LC_ALL=C HOME="$tmp" XDG_DATA_HOME="$tmp" \
-		"$OLDPWD/$bin" $flags --db "$tmp/db" "$name.cmd" >"$tmp/out" 2>&1
+	rm -rf "$tmp/work"
+	mkdir "$tmp/work"
+	cp "$cmd" "$tmp/work/"
+	(cd "$tmp/work" && LC_ALL=C HOME="$tmp/work" XDG_DATA_HOME="$tmp/work" \
+		"$abs" $flags --db user.db "$name.cmd" >"$tmp/out" 2>&1
 	 echo "exit $?" >>"$tmp/out")
 	if [ "${UPDATE:-0}" = 1 ]; then
 		cp "$tmp/out" "$exp"
