@@ -1,0 +1,27 @@
+/*
+ * cmd_correct.h - the shell command `correct`: subtract the liquid junction
+ * potential from recorded voltages, Vm = Vrecorded - LJP (LJP: the bath
+ * relative to the pipette solution, in mV).  A handler of type cmd_fn
+ * (command.h); it changes nothing in the workspace.  Synopses:
+ *   correct FILE [column N|NAME]... by MV|for PIPETTE BATH [to OUT] [skip-bad]
+ *   correct value MV [MV...] by MV|for PIPETTE BATH
+ * `by MV` gives the LJP; `for PIPETTE BATH` computes it from two solutions
+ * of the workspace with the Henderson equation (concentrations, at the
+ * `temp` temperature) and rounds it to 0.1 mV, the value then subtracted.
+ * Without `to OUT` the corrected data goes to the output stream and the
+ * summary to the error stream, so that the data stays clean; with it, OUT
+ * is written atomically with a side note OUT.ionmix.txt (see correct.h)
+ * and the summary is the command's result.  A file named `value` is
+ * reached as ./value.
+ */
+#ifndef IONMIX_CMD_CORRECT_H
+#define IONMIX_CMD_CORRECT_H
+
+#include "command.h"
+
+/* Decimals the LJP from `for PIPETTE BATH` is rounded to (0.1 mV). */
+#define CMD_CORRECT_HENDERSON_DECIMALS 1
+
+int cmd_correct(im_ctx *ctx, int argc, char **argv, char *err);
+
+#endif

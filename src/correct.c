@@ -1,0 +1,1390 @@
+/*
+ * correct.c - streaming LJP correction of voltage columns in CSV/TSV files.
+ *
+ * One pass over a fixed read buffer: unchanged bytes are written as spans
+ * straight from it (memcpy into a fixed write buffer), corrected numbers are
+ * formatted by hand from integer arithmetic.  A field that runs past the end
+ * of the buffer is rescanned after the buffer is refilled with that field at
+ * its start; CORR_FIELD_MAX bounds how much is kept.  The rules are in
+ * correct.h.
+ */
+#include "correct.h"
+
+#include <errno.h>
+#include <limits.h>
+#include <math.h>
+#include <stdint.h>
+#include <stdlib.h>
+#include <string.h>
+#include <sys/stat.h>
+#include <unistd.h>
+
+#include "common.h"
+
+#define RD_CHUNK (512 * 1024)                   /* at least this much per read */
+#define RD_CAP (RD_CHUNK + CORR_FIELD_MAX + 64) /* read buffer (+1 sentinel) */
+#define WR_CAP (512 * 1024)                     /* write buffer */
+#define NUM_OUT_MAX (CORR_DIGITS_MAX + 24)      /* one formatted number */
+#define COL_NUMBER_MAX 1000000                  /* largest column number taken */
+
+_Static_assert(RD_CAP > CORR_FIRST_MAX + 64, "first record must fit the buffer");
+_Static_assert(CORR_DIGITS_MAX >= 19, "fast path needs 18 digits");
+
+static const uint64_t pow10_u64[19] = {
+	1ULL, 10ULL, 100ULL, 1000ULL, 10000ULL, 100000ULL, 1000000ULL,
+	10000000ULL, 100000000ULL, 1000000000ULL, 10000000000ULL,
+	100000000000ULL, 1000000000000ULL, 10000000000000ULL,
+	100000000000000ULL, 1000000000000000ULL, 10000000000000000ULL,
+	100000000000000000ULL, 1000000000000000000ULL,
+};
+
+/* ---- numbers ---------------------------------------------------------- */
+
+/* A number as written in a cell. */
+typedef struct num {
+	const char *ns, *ne;  /* the number, blanks excluded */
+	const char *ip;       /* integer digits, ni of them */
+	const char *fp;       /* fraction digits, nf of them */
+	const char *ep, *epe; /* exponent text ("e-3"), kept verbatim; empty if none */
+	uint64_t val;         /* the ni + nf digits as an integer, when <= 18 */
+	int ni, nf, exp;
+	int neg, plus, dot;
+} num;
+
+/* The LJP prepared for one column: magnitude, sign, digit count, and the
+ * decimals it has in the column's unit (k0 = decimals - unit_exp). */
+typedef struct ljp_prep {
+	uint64_t mag;
+	int neg, ndig, k0;
+} ljp_prep;
+
+static int is_digit(int c)
+{
+	return c >= '0' && c <= '9';
+}
+
+/* Parse s[0..e) as [blanks] [+-] digits [. digits] [e [+-] digits] [blanks].
+ * Blanks: space, CR, and tab when tab_blank.  Returns 0 for a number, 1 for
+ * an empty or blank cell, -1 for anything else. */
+static int parse_num(const char *s, const char *e, int tab_blank, num *m)
+{
+	const char *p = s, *q = e;
+	while (p < q && (*p == ' ' || (*p == '\t' && tab_blank)))
+		p++;
+	while (q > p && (q[-1] == ' ' || q[-1] == '\r' || (q[-1] == '\t' && tab_blank)))
+		q--;
+	if (p == q)
+		return 1;
+	m->ns = p;
+	m->ne = q;
+	m->neg = m->plus = m->dot = 0;
+	if (*p == '-') {
+		m->neg = 1;
+		p++;
+	} else if (*p == '+') {
+		m->plus = 1;
+		p++;
+	}
+	uint64_t v = 0;
+	m->ip = p;
+	while (p < q && is_digit((unsigned char)*p))
+		v = v * 10 + (uint64_t)(*p++ - '0');
+	m->ni = (int)(p - m->ip);
+	m->fp = p;
+	m->nf = 0;
+	if (p < q && *p == '.') {
+		m->dot = 1;
+		m->fp = ++p;
+		while (p < q && is_digit((unsigned char)*p))
+			v = v * 10 + (uint64_t)(*p++ - '0');
+		m->nf = (int)(p - m->fp);
+	}
+	m->val = v;   /* wraps past 19 digits; used only up to 18 */
+	if (m->ni + m->nf == 0)
+		return -1;
+	m->ep = m->epe = p;
+	m->exp = 0;
+	if (p < q && (*p == 'e' || *p == 'E')) {
+		int sign = 1, ev = 0;
+		const char *d;
+		p++;
+		if (p < q && (*p == '+' || *p == '-'))
+			sign = *p++ == '-' ? -1 : 1;
+		d = p;
+		while (p < q && is_digit((unsigned char)*p)) {
+			if (p - d >= 5)
+				return -1;
+			ev = ev * 10 + (*p++ - '0');
+		}
+		if (p == d)
+			return -1;
+		m->exp = sign * ev;
+		m->epe = p;
+	}
+	return p == q ? 0 : -1;
+}
+
+static int ndigits_u64(uint64_t u)
+{
+	int n = 1;
+	while (u >= 10) {
+		u /= 10;
+		n++;
+	}
+	return n;
+}
+
+/* Print a result: sign, digits dg[0..nd) (no leading zeros; nd 0 for zero)
+ * with D decimals, in the style of the input m, then its exponent text. */
+static int emit(char *out, const char *dg, int nd, int D, int neg, const num *m)
+{
+	char *o = out;
+	if (neg)
+		*o++ = '-';
+	else if (m->plus)
+		*o++ = '+';
+	if (nd > D) {
+		memcpy(o, dg, (size_t)(nd - D));
+		o += nd - D;
+	} else if (m->ni > 0 || D == 0) {
+		*o++ = '0';
+	}
+	if (D > 0) {
+		*o++ = '.';
+		if (nd < D) {
+			memset(o, '0', (size_t)(D - nd));
+			o += D - nd;
+			memcpy(o, dg, (size_t)nd);
+			o += nd;
+		} else {
+			memcpy(o, dg + nd - D, (size_t)D);
+			o += D;
+		}
+	} else if (m->dot) {
+		*o++ = '.';
+	}
+	memcpy(o, m->ep, (size_t)(m->epe - m->ep));
+	o += m->epe - m->ep;
+	return (int)(o - out);
+}
+
+/* Little-endian decimal digits, for numbers past 18 digits. */
+typedef struct big {
+	unsigned char d[CORR_DIGITS_MAX + 2];
+	int n;
+} big;
+
+static int big_cmp(const big *a, const big *b)
+{
+	if (a->n != b->n)
+		return a->n < b->n ? -1 : 1;
+	for (int i = a->n - 1; i >= 0; i--)
+		if (a->d[i] != b->d[i])
+			return a->d[i] < b->d[i] ? -1 : 1;
+	return 0;
+}
+
+static void big_trim(big *a)
+{
+	while (a->n > 0 && a->d[a->n - 1] == 0)
+		a->n--;
+}
+
+/* r = a + b (magnitudes); r may be a. */
+static void big_add(big *r, const big *a, const big *b)
+{
+	int n = a->n > b->n ? a->n : b->n, carry = 0;
+	for (int i = 0; i < n; i++) {
+		int s = (i < a->n ? a->d[i] : 0) + (i < b->n ? b->d[i] : 0) + carry;
+		r->d[i] = (unsigned char)(s % 10);
+		carry = s / 10;
+	}
+	if (carry)
+		r->d[n++] = (unsigned char)carry;
+	r->n = n;
+	big_trim(r);
+}
+
+/* r = a - b, a >= b (magnitudes); r may be a. */
+static void big_sub(big *r, const big *a, const big *b)
+{
+	int borrow = 0;
+	for (int i = 0; i < a->n; i++) {
+		int s = a->d[i] - (i < b->n ? b->d[i] : 0) - borrow;
+		borrow = s < 0;
+		r->d[i] = (unsigned char)(s + (borrow ? 10 : 0));
+	}
+	r->n = a->n;
+	big_trim(r);
+}
+
+/* Fill a from the digit string s[0..n) followed by z zeros. */
+static void big_set(big *a, const char *s, int n, int z)
+{
+	int k = 0;
+	for (int i = 0; i < z; i++)
+		a->d[k++] = 0;
+	for (int i = n - 1; i >= 0; i--)
+		a->d[k++] = (unsigned char)(s[i] - '0');
+	a->n = k;
+	big_trim(a);
+}
+
+static void ljp_prepare(const corr_ljp *l, int unit_exp, ljp_prep *lp)
+{
+	lp->neg = l->scaled < 0;
+	lp->mag = (uint64_t)(lp->neg ? -l->scaled : l->scaled);
+	lp->ndig = ndigits_u64(lp->mag);
+	lp->k0 = l->decimals - unit_exp;
+}
+
+/* Print R (magnitude) with D decimals in the style of m, then m's exponent
+ * text; the digits are written in place from the right. */
+static int emit_u64(char *out, uint64_t R, int D, int neg, const num *m)
+{
+	int nd = R ? ndigits_u64(R) : 0;
+	int nint = nd > D ? nd - D : (m->ni > 0 || D == 0);
+	char *o = out, *t;
+	if (neg && R)
+		*o++ = '-';
+	else if (m->plus)
+		*o++ = '+';
+	t = o + nint + (D > 0 ? D + 1 : m->dot);
+	o = t;
+	if (D > 0) {
+		for (int i = 0; i < D; i++) {
+			*--t = (char)('0' + R % 10);
+			R /= 10;
+		}
+		*--t = '.';
+	} else if (m->dot) {
+		*--t = '.';
+	}
+	if (nd > D) {
+		while (R) {
+			*--t = (char)('0' + R % 10);
+			R /= 10;
+		}
+	} else if (nint) {
+		*--t = '0';
+	}
+	size_t el = (size_t)(m->epe - m->ep);
+	if (el) {
+		memcpy(o, m->ep, el);
+		o += el;
+	}
+	return (int)(o - out);
+}
+
+/* The corrected number for m (without blanks) at out, room NUM_OUT_MAX.
+ * Returns its length, or -1 when the aligned numbers need more than
+ * CORR_DIGITS_MAX digits. */
+static int fix_num(const num *m, const ljp_prep *lp, char *out)
+{
+	/* value = (digits / 10^nf) 10^exp; the LJP in the cell's unit and in
+	 * units of 10^exp is mag / 10^k */
+	int k = lp->k0 + m->exp;
+	int D = m->nf > k ? m->nf : k;
+	int za = D - m->nf, zb = D - k;
+	int na = m->ni + m->nf + za, nb = lp->ndig + zb;
+
+	if (na <= 18 && nb <= 18) {
+		uint64_t A = m->val * pow10_u64[za], B = lp->mag * pow10_u64[zb];
+		/* r = a - b with a = +-A, b = +-B */
+		if (m->neg == !lp->neg)         /* a and -b have one sign: add */
+			return emit_u64(out, A + B, D, m->neg, m);
+		if (A >= B)
+			return emit_u64(out, A - B, D, m->neg, m);
+		return emit_u64(out, B - A, D, !m->neg, m);
+	}
+	if (na > CORR_DIGITS_MAX || nb > CORR_DIGITS_MAX)
+		return -1;
+
+	big a, b;
+	char ls[24], tmp[CORR_DIGITS_MAX + 4];
+	int nl = snprintf(ls, sizeof ls, "%llu", (unsigned long long)lp->mag);
+	int neg;
+	char digs[CORR_DIGITS_MAX + 2];
+	memcpy(digs, m->ip, (size_t)m->ni);
+	memcpy(digs + m->ni, m->fp, (size_t)m->nf);
+	big_set(&a, digs, m->ni + m->nf, za);
+	big_set(&b, ls, nl, zb);
+	if (m->neg == !lp->neg) {
+		big_add(&a, &a, &b);
+		neg = m->neg;
+	} else if (big_cmp(&a, &b) >= 0) {
+		big_sub(&a, &a, &b);
+		neg = m->neg;
+	} else {
+		big_sub(&a, &b, &a);
+		neg = !m->neg;
+	}
+	for (int i = 0; i < a.n; i++)
+		tmp[i] = (char)('0' + a.d[a.n - 1 - i]);
+	return emit(out, tmp, a.n, D, neg && a.n > 0, m);
+}
+
+/* ---- the LJP and single values ---------------------------------------- */
+
+int corr_ljp_parse(const char *s, corr_ljp *l, char *err)
+{
+	num m;
+	size_t n = strlen(s);
+	if (n == 0)
+		return im_fail(err, "the LJP is empty; give it in mV, e.g. 14.2");
+	if (parse_num(s, s + n, 0, &m) != 0 || m.ns != s || m.ne != s + n)
+		return im_fail(err, "LJP '%.40s' is not a number (mV, e.g. 14.2)", s);
+	int dec = m.nf - m.exp, scale = 0;
+	if (dec < 0) {
+		scale = -dec;
+		dec = 0;
+	}
+	if (dec > CORR_LJP_DECIMALS_MAX)
+		return im_fail(err, "LJP '%.40s' has more than %d decimals", s,
+			       CORR_LJP_DECIMALS_MAX);
+	/* digits, then 10^scale, bounded by CORR_LJP_MAX_mV * 10^dec */
+	double limit = CORR_LJP_MAX_mV * (double)pow10_u64[dec];
+	uint64_t v = 0;
+	const char *digits[2] = {m.ip, m.fp};
+	int counts[2] = {m.ni, m.nf};
+	for (int part = 0; part < 2; part++)
+		for (int i = 0; i < counts[part]; i++) {
+			v = v * 10 + (uint64_t)(digits[part][i] - '0');
+			if ((double)v > limit)
+				goto range;
+		}
+	for (int i = 0; i < scale; i++) {
+		v *= 10;
+		if ((double)v > limit)
+			goto range;
+	}
+	l->scaled = m.neg ? -(long long)v : (long long)v;
+	l->decimals = dec;
+	return 0;
+range:
+	return im_fail(err, "LJP %.40s mV is out of range (|LJP| <= %g mV)", s,
+		       CORR_LJP_MAX_mV);
+}
+
+int corr_ljp_from_mV(double ljp_mV, int decimals, corr_ljp *l, char *err)
+{
+	if (!isfinite(ljp_mV))
+		return im_fail(err, "the LJP is not a finite number");
+	if (decimals < 0 || decimals > CORR_LJP_DECIMALS_MAX)
+		return im_fail(err, "LJP decimals must be 0 to %d", CORR_LJP_DECIMALS_MAX);
+	if (fabs(ljp_mV) > CORR_LJP_MAX_mV)
+		return im_fail(err, "LJP %.6g mV is out of range (|LJP| <= %g mV)",
+			       ljp_mV, CORR_LJP_MAX_mV);
+	l->scaled = llround(ljp_mV * (double)pow10_u64[decimals]);
+	l->decimals = decimals;
+	return 0;
+}
+
+double corr_ljp_mV(const corr_ljp *l)
+{
+	return (double)l->scaled / (double)pow10_u64[l->decimals];
+}
+
+void corr_ljp_format(const corr_ljp *l, char *buf, size_t n)
+{
+	unsigned long long u = (unsigned long long)(l->scaled < 0 ? -l->scaled : l->scaled);
+	unsigned long long p = pow10_u64[l->decimals];
+	if (l->decimals == 0)
+		snprintf(buf, n, "%s%llu", l->scaled < 0 ? "-" : "", u);
+	else
+		snprintf(buf, n, "%s%llu.%0*llu", l->scaled < 0 ? "-" : "", u / p,
+			 l->decimals, u % p);
+}
+
+int corr_value(double mv, double ljp_mV, double *out_mV, char *err)
+{
+	if (!isfinite(mv) || !isfinite(ljp_mV))
+		return im_fail(err, "non-finite input");
+	*out_mV = mv - ljp_mV;
+	return 0;
+}
+
+/* A printable preview of a cell for messages. */
+static void preview(char *dst, size_t n, const char *s, size_t len)
+{
+	size_t k = 0;
+	for (size_t i = 0; i < len && k + 4 < n; i++)
+		dst[k++] = ((unsigned char)s[i] < 0x20 || s[i] == 0x7f) ? '?' : s[i];
+	if (len > 0 && k + 4 >= n && k < len) {
+		dst[k++] = '.';
+		dst[k++] = '.';
+		dst[k++] = '.';
+	}
+	dst[k] = '\0';
+}
+
+/* Why the cell is not a number, for messages. */
+static void bad_cause(char *dst, size_t n, const char *s, size_t len)
+{
+	char pv[44];
+	int comma = 0, digit = 0;
+	for (size_t i = 0; i < len; i++) {
+		comma |= s[i] == ',';
+		digit |= is_digit((unsigned char)s[i]);
+	}
+	preview(pv, sizeof pv, s, len);
+	snprintf(dst, n, "'%s' is not a number%s", pv,
+		 comma && digit ? " (decimal comma? numbers are read with a dot)" : "");
+}
+
+int corr_cell(const char *s, size_t n, const corr_ljp *l, int unit_exp,
+	      char *buf, size_t bufsz, size_t *len, char *err)
+{
+	num m;
+	char nb[NUM_OUT_MAX];
+	int rc = parse_num(s, s + n, 1, &m), k;
+	if (rc == 1) {
+		if (n + 1 > bufsz)
+			return im_fail(err, "output buffer too small");
+		memcpy(buf, s, n);
+		buf[n] = '\0';
+		*len = n;
+		return 1;
+	}
+	if (rc < 0) {
+		if (err)
+			bad_cause(err, IM_ERRLEN, s, n);
+		return -1;
+	}
+	ljp_prep lp;
+	ljp_prepare(l, unit_exp, &lp);
+	k = fix_num(&m, &lp, nb);
+	if (k < 0)
+		return im_fail(err, "number with more than %d digits once aligned;"
+			       " cannot correct it exactly", CORR_DIGITS_MAX);
+	size_t pre = (size_t)(m.ns - s), post = (size_t)(s + n - m.ne);
+	if (pre + (size_t)k + post + 1 > bufsz)
+		return im_fail(err, "output buffer too small");
+	memcpy(buf, s, pre);
+	memcpy(buf + pre, nb, (size_t)k);
+	memcpy(buf + pre + k, m.ne, post);
+	*len = pre + (size_t)k + post;
+	buf[*len] = '\0';
+	return 0;
+}
+
+/* ---- voltage headers -------------------------------------------------- */
+
+/* Voltage unit tokens: add a row to accept another spelling. */
+static const struct {
+	const char *tok;
+	int unit_exp;   /* value in this unit = mV * 10^unit_exp */
+} vunits[] = {
+	{"mV", 0}, {"mv", 0}, {"V", -3}, {"v", -3}, {"uV", 3}, {"uv", 3},
+	{"\xc2\xb5V", 3}, {"\xce\xbcV", 3},
+};
+
+/* Names (lower-case, alphanumerics only) that mean a voltage without a unit. */
+static const char *const vnames[] = {
+	"v", "vm", "vmem", "vmembrane", "voltage", "potential",
+	"membranepotential", "e", "em", "vcmd", "vcommand", "vhold", "vholding",
+	"vp", "vpip", "vpipette",
+};
+
+static int is_blank(int c)
+{
+	return c == ' ' || c == '\t' || c == '\r' || c == '\n';
+}
+
+static void trim(const char **s, const char **e)
+{
+	while (*s < *e && is_blank((unsigned char)**s))
+		(*s)++;
+	while (*e > *s && is_blank((unsigned char)(*e)[-1]))
+		(*e)--;
+}
+
+/* 1 and the exponent when u[0..n) is a voltage unit token. */
+static int vunit(const char *u, size_t n, int *unit_exp)
+{
+	for (size_t i = 0; i < IM_COUNT(vunits); i++)
+		if (strlen(vunits[i].tok) == n && memcmp(vunits[i].tok, u, n) == 0) {
+			*unit_exp = vunits[i].unit_exp;
+			return 1;
+		}
+	return 0;
+}
+
+int corr_voltage_header(const char *h, size_t n, int *unit_exp, int *assumed)
+{
+	const char *s = h, *e = h + n, *us = NULL, *ue = NULL, *ne = e;
+	int ux = 0, dummy_x, dummy_a;
+	if (!unit_exp)
+		unit_exp = &dummy_x;
+	if (!assumed)
+		assumed = &dummy_a;
+	*unit_exp = 0;
+	*assumed = 1;
+	trim(&s, &e);
+	if (s == e)
+		return 0;
+	ne = e;
+	if (e[-1] == ')' || e[-1] == ']') {
+		char open = e[-1] == ')' ? '(' : '[';
+		const char *o = e - 1;
+		while (o > s && o[-1] != open)
+			o--;
+		if (o > s) {
+			us = o;
+			ue = e - 1;
+			ne = o - 1;
+		}
+	} else {
+		const char *sl = NULL, *sp = NULL;
+		for (const char *p = s; p < e; p++) {
+			if (*p == '/')
+				sl = p;
+			if (*p == '_' || *p == ' ')
+				sp = p;
+		}
+		if (sl) {
+			us = sl + 1;
+			ue = e;
+			ne = sl;
+		} else if (sp && vunit(sp + 1, (size_t)(e - sp - 1), &ux)) {
+			us = sp + 1;
+			ue = e;
+			ne = sp;
+		} else if (vunit(s, (size_t)(e - s), &ux) && ux != -3) {
+			us = s;
+			ue = e;
+			ne = s;
+		}
+	}
+	if (us) {
+		trim(&us, &ue);
+		if (!vunit(us, (size_t)(ue - us), &ux))
+			return 0;
+		*unit_exp = ux;
+		*assumed = 0;
+		return 1;
+	}
+	char low[CORR_NAME_MAX];
+	size_t k = 0;
+	for (const char *p = s; p < ne && k + 1 < sizeof low; p++) {
+		int c = (unsigned char)*p;
+		if (c >= 'A' && c <= 'Z')
+			low[k++] = (char)(c + 'a' - 'A');
+		else if ((c >= 'a' && c <= 'z') || is_digit(c))
+			low[k++] = (char)c;
+	}
+	low[k] = '\0';
+	for (size_t i = 0; i < IM_COUNT(vnames); i++)
+		if (strcmp(low, vnames[i]) == 0)
+			return 1;
+	return strstr(low, "voltage") != NULL || strstr(low, "potential") != NULL;
+}
+
+const char *corr_delim_name(char delim)
+{
+	switch (delim) {
+	case '\t': return "tab";
+	case ';': return "semicolon";
+	default: return "comma";
+	}
+}
+
+/* ---- the streaming engine --------------------------------------------- */
+
+typedef struct eng {
+	FILE *in, *out;
+	const char *name;
+	const corr_opts *o;
+	corr_result *r;
+	char *err;
+	char *buf;          /* RD_CAP + 1 bytes; buf[len] is a NUL sentinel */
+	size_t len;
+	int eof;
+	const char *span;   /* first byte of buf not yet written */
+	char *wb;           /* WR_CAP bytes */
+	size_t wl;
+	int werr;           /* errno of a failed write, 0 if none */
+	long line;          /* line of the current position */
+	char delim;
+	int tab_blank;
+	unsigned char stop_u[256]; /* unquoted field: delimiter, LF, NUL */
+	unsigned char stop_q[256]; /* quoted field: quote, NUL */
+	unsigned char *corr;       /* corr[c] = 1 + index in r->cols; c < maxcol */
+	int maxcol;                /* largest corrected column number */
+	ljp_prep prep[CORR_MAXCOLS]; /* the LJP for each of r->cols */
+} eng;
+
+static void w_flush(eng *e)
+{
+	if (e->wl && !e->werr && fwrite(e->wb, 1, e->wl, e->out) != e->wl)
+		e->werr = errno ? errno : EIO;
+	e->wl = 0;
+}
+
+static void w_put(eng *e, const char *p, size_t n)
+{
+	if (n > WR_CAP - e->wl) {
+		w_flush(e);
+		if (n >= WR_CAP) {
+			if (!e->werr && fwrite(p, 1, n, e->out) != n)
+				e->werr = errno ? errno : EIO;
+			return;
+		}
+	}
+	memcpy(e->wb + e->wl, p, n);
+	e->wl += n;
+}
+
+static int write_failed(eng *e)
+{
+	return im_fail(e->err, "cannot write the output: %s", strerror(e->werr));
+}
+
+/* Keep buf[keep..len) (moved to the start), write what came before it, and
+ * read more.  Returns 1 when bytes were added, 0 at end of file, -1 on a
+ * read error. */
+static int refill(eng *e, size_t keep)
+{
+	size_t n = e->len - keep, got;
+	w_put(e, e->span, (size_t)(e->buf + keep - e->span));
+	memmove(e->buf, e->buf + keep, n);
+	e->len = n;
+	e->span = e->buf;
+	if (e->eof) {
+		e->buf[e->len] = '\0';
+		return 0;
+	}
+	errno = 0;
+	got = fread(e->buf + n, 1, RD_CAP - n, e->in);
+	e->len += got;
+	e->buf[e->len] = '\0';
+	if (got < RD_CAP - n) {
+		if (ferror(e->in))
+			return im_fail(e->err, "%s: read error: %s", e->name,
+				       strerror(errno ? errno : EIO));
+		e->eof = 1;
+	}
+	return got > 0;
+}
+
+/* A scanned field. */
+typedef struct field {
+	const char *cs, *ce; /* content (inside the quotes when quoted) */
+	const char *q;       /* terminator: delimiter, LF, or end of data at EOF */
+	int quoted;
+	int nl;              /* newlines inside */
+} field;
+
+enum { SCAN_OK = 0, SCAN_MORE = 1, SCAN_ERR = -1 };
+
+static int field_error(eng *e, long line, int col, const char *what)
+{
+	return im_fail(e->err, "%s:%ld:%d: %s", e->name, line, col, what);
+}
+
+/* Scan the field starting at p (line `line`, 1-based column col). */
+static int scan(eng *e, const char *p, long line, int col, field *f)
+{
+	const char *end = e->buf + e->len, *q;
+	if (*p == '"') {
+		q = p + 1;
+		for (;;) {
+			while (!e->stop_q[(unsigned char)*q])
+				q++;
+			if (*q == '\0') {
+				if (q < end)
+					goto binary;
+				if (!e->eof)
+					goto more;
+				return field_error(e, line, col, "quoted field never closed"
+						   " (a missing closing quote?)");
+			}
+			if (q + 1 == end && !e->eof)
+				goto more;
+			if (q[1] != '"')
+				break;
+			q += 2;
+		}
+		f->cs = p + 1;
+		f->ce = q;
+		f->quoted = 1;
+		f->nl = 0;
+		for (const char *s = f->cs; (s = memchr(s, '\n', (size_t)(f->ce - s))); s++)
+			f->nl++;
+		q++;
+	} else {
+		q = p;
+		f->cs = p;
+		f->quoted = 0;
+		f->nl = 0;
+	}
+	while (!e->stop_u[(unsigned char)*q])
+		q++;
+	if (*q == '\0') {
+		if (q < end)
+			goto binary;
+		if (!e->eof)
+			goto more;
+	}
+	if (!f->quoted)
+		f->ce = q;
+	f->q = q;
+	if (q - p > CORR_FIELD_MAX)
+		goto toolong;
+	return SCAN_OK;
+more:
+	if (end - p > CORR_FIELD_MAX)
+		goto toolong;
+	return SCAN_MORE;
+toolong:
+	field_error(e, line, col, "field longer than 64 KiB (a missing closing quote?)");
+	return SCAN_ERR;
+binary:
+	return im_fail(e->err, "%s:%ld: binary file (NUL byte); expected CSV or TSV text",
+		       e->name, line);
+}
+
+/* Correct one cell in place in the output stream. */
+static int do_cell(eng *e, const field *f, long line, int col)
+{
+	num m;
+	const char *ce = f->ce;
+	int rc = parse_num(f->cs, ce, e->tab_blank, &m);
+	if (f->quoted && rc >= 0) {
+		/* only blanks may follow the closing quote */
+		for (const char *s = ce + 1; s < f->q; s++)
+			if (*s != ' ' && *s != '\r' && !(*s == '\t' && e->tab_blank)) {
+				rc = -1;
+				ce = f->q;
+				break;
+			}
+	}
+	if (rc == 0) {
+		w_put(e, e->span, (size_t)(m.ns - e->span));
+		e->span = m.ns;
+		if (WR_CAP - e->wl < NUM_OUT_MAX)
+			w_flush(e);
+		int k = fix_num(&m, &e->prep[e->corr[col - 1] - 1], e->wb + e->wl);
+		if (k >= 0) {
+			e->wl += (size_t)k;
+			e->span = m.ne;
+			e->r->corrected++;
+			return 0;
+		}
+		if (!e->o->skip_bad) {
+			char msg[IM_ERRLEN];
+			snprintf(msg, sizeof msg, "number with more than %d digits once aligned;"
+				 " cannot correct it exactly", CORR_DIGITS_MAX);
+			return field_error(e, line, col, msg);
+		}
+		e->r->bad++;
+		e->r->skipped++;
+		return 0;
+	}
+	if (rc == 1) {
+		e->r->skipped++;
+		return 0;
+	}
+	if (!e->o->skip_bad) {
+		char cause[160], msg[IM_ERRLEN];
+		bad_cause(cause, sizeof cause, f->cs, (size_t)(ce - f->cs));
+		snprintf(msg, sizeof msg, "%s (skip-bad copies such cells)", cause);
+		return field_error(e, line, col, msg);
+	}
+	e->r->bad++;
+	e->r->skipped++;
+	return 0;
+}
+
+/* The rows from p on. */
+static int run(eng *e, const char *p)
+{
+	for (;;) {
+		const char *end = e->buf + e->len;
+		if (p == end) {
+			if (e->eof)
+				return 0;
+			int rc = refill(e, (size_t)(p - e->buf));
+			if (rc < 0)
+				return -1;
+			p = e->buf;
+			if (rc == 0 && e->len == 0)
+				return 0;
+			continue;
+		}
+		long rec_line = e->line;
+		int col = 1;
+		for (;;) {
+			field f;
+			int rc = scan(e, p, e->line, col, &f);
+			if (rc == SCAN_MORE) {
+				rc = refill(e, (size_t)(p - e->buf));
+				if (rc < 0)
+					return -1;
+				p = e->buf;
+				end = e->buf + e->len;
+				continue;
+			}
+			if (rc == SCAN_ERR)
+				return -1;
+			int at_end = f.q == end || *f.q == '\n';
+			if (col == 1 && at_end && !f.quoted &&
+			    (f.q == p || (f.q == p + 1 && *p == '\r'))) {
+				e->r->blank++;
+			} else {
+				if (col <= e->maxcol && e->corr[col - 1] &&
+				    do_cell(e, &f, e->line, col) < 0)
+					return -1;
+				if (at_end) {
+					e->r->rows++;
+					if (col < e->maxcol) {
+						int missing = 0, first = 0;
+						for (int i = e->r->ncols - 1; i >= 0; i--)
+							if (e->r->cols[i].index > col) {
+								missing++;
+								first = e->r->cols[i].index;
+							}
+						if (!e->o->skip_bad)
+							return im_fail(e->err, "%s:%ld: row has %d field%s;"
+								       " column %d is missing (skip-bad copies such rows)",
+								       e->name, rec_line, col, col == 1 ? "" : "s",
+								       first);
+						e->r->ragged++;
+						e->r->bad += missing;
+						e->r->skipped += missing;
+					}
+				}
+			}
+			e->line += f.nl;
+			if (!at_end) {
+				p = f.q + 1;
+				col++;
+				continue;
+			}
+			if (f.q < end) {
+				p = f.q + 1;
+				e->line++;
+			} else {
+				p = f.q;
+			}
+			break;
+		}
+		if (e->werr)
+			return write_failed(e);
+	}
+}
+
+/* ---- the first record: delimiter, header, columns --------------------- */
+
+typedef struct hdr {
+	char **text;    /* each field's text: unquoted, blanks trimmed; owned */
+	const char **cs, **ce; /* raw content bounds in the buffer */
+	int n, cap;
+	const char *end; /* after the record's terminator */
+	int nl;          /* lines the record spans (newlines in it, terminator included) */
+} hdr;
+
+static void hdr_free(hdr *h)
+{
+	for (int i = 0; i < h->n; i++)
+		free(h->text[i]);
+	free(h->text);
+	free(h->cs);
+	free(h->ce);
+}
+
+static char pick_delim(const char *s, const char *end)
+{
+	long tab = 0, comma = 0, semi = 0;
+	int inq = 0;
+	for (const char *p = s; p < end; p++) {
+		if (*p == '"')
+			inq = !inq;
+		else if (inq)
+			continue;
+		else if (*p == '\n')
+			break;
+		else if (*p == '\t')
+			tab++;
+		else if (*p == ',')
+			comma++;
+		else if (*p == ';')
+			semi++;
+	}
+	if (tab >= comma && tab >= semi && tab > 0)
+		return '\t';
+	if (comma >= semi)
+		return ',';
+	return ';';
+}
+
+static int read_first(eng *e, const char *p, hdr *h)
+{
+	int col = 1;
+	memset(h, 0, sizeof *h);
+	for (;;) {
+		field f;
+		int rc = scan(e, p, e->line, col, &f);
+		if (rc == SCAN_MORE)
+			return im_fail(e->err, "%s:1: first record longer than %d KiB",
+				       e->name, CORR_FIRST_MAX / 1024);
+		if (rc == SCAN_ERR)
+			return -1;
+		if (f.q - e->buf > CORR_FIRST_MAX)
+			return im_fail(e->err, "%s:1: first record longer than %d KiB",
+				       e->name, CORR_FIRST_MAX / 1024);
+		if (h->n == h->cap) {
+			h->cap = h->cap ? 2 * h->cap : 16;
+			h->text = im_xrealloc(h->text, (size_t)h->cap * sizeof *h->text);
+			h->cs = im_xrealloc(h->cs, (size_t)h->cap * sizeof *h->cs);
+			h->ce = im_xrealloc(h->ce, (size_t)h->cap * sizeof *h->ce);
+		}
+		const char *s = f.cs, *t = f.ce;
+		trim(&s, &t);
+		char *txt = im_xmalloc((size_t)(t - s) + 1), *o = txt;
+		for (const char *c = s; c < t; c++) {
+			*o++ = *c;
+			if (f.quoted && *c == '"' && c + 1 < t && c[1] == '"')
+				c++;
+		}
+		*o = '\0';
+		h->text[h->n] = txt;
+		h->cs[h->n] = f.cs;
+		h->ce[h->n] = f.ce;
+		h->n++;
+		h->nl += f.nl;
+		if (f.q < e->buf + e->len && *f.q == e->delim) {
+			p = f.q + 1;
+			col++;
+			continue;
+		}
+		h->end = f.q < e->buf + e->len ? f.q + 1 : f.q;
+		h->nl += f.q < e->buf + e->len;
+		return 0;
+	}
+}
+
+/* "a, b, c" (cut to fit) into dst. */
+static void list_header(const hdr *h, char *dst, size_t n)
+{
+	size_t k = 0;
+	dst[0] = '\0';
+	for (int i = 0; i < h->n; i++) {
+		char pv[48];
+		preview(pv, sizeof pv, h->text[i], strlen(h->text[i]));
+		int w = snprintf(dst + k, n - k, "%s%s", i ? ", " : "", pv);
+		if (w < 0 || (size_t)w >= n - k) {
+			if (n > 4)
+				memcpy(dst + n - 4, "...", 4);
+			return;
+		}
+		k += (size_t)w;
+	}
+}
+
+static int all_digits(const char *s)
+{
+	if (!*s)
+		return 0;
+	for (; *s; s++)
+		if (!is_digit((unsigned char)*s))
+			return 0;
+	return 1;
+}
+
+static int add_col(corr_result *r, int index, char *err)
+{
+	for (int i = 0; i < r->ncols; i++)
+		if (r->cols[i].index == index)
+			return 0;
+	if (r->ncols == CORR_MAXCOLS)
+		return im_fail(err, "more than %d columns to correct", CORR_MAXCOLS);
+	memset(&r->cols[r->ncols], 0, sizeof r->cols[0]);
+	r->cols[r->ncols].index = index;
+	r->cols[r->ncols].unit_assumed = 1;
+	r->ncols++;
+	return 0;
+}
+
+static int cmp_col(const void *a, const void *b)
+{
+	const corr_column *x = a, *y = b;
+	return (x->index > y->index) - (x->index < y->index);
+}
+
+/* Choose the columns and decide about the header. */
+static int choose(eng *e, const hdr *h)
+{
+	corr_result *r = e->r;
+	const corr_opts *o = e->o;
+	char list[160];
+	int named = 0;
+	list_header(h, list, sizeof list);
+	if (o->ncolumns > 0) {
+		for (int i = 0; i < o->ncolumns; i++) {
+			const char *spec = o->columns[i];
+			int idx = -1;
+			if (all_digits(spec)) {
+				long v = strlen(spec) > 7 ? COL_NUMBER_MAX + 1 : strtol(spec, NULL, 10);
+				if (v < 1 || v > COL_NUMBER_MAX)
+					return im_fail(e->err, "column number %.20s is out of range"
+						       " (1 to %d)", spec, COL_NUMBER_MAX);
+				idx = (int)v;
+			} else {
+				for (int j = 0; j < h->n && idx < 0; j++)
+					if (strcmp(h->text[j], spec) == 0)
+						idx = j + 1;
+				for (int j = 0; j < h->n && idx < 0; j++)
+					if (im_strcaseeq(h->text[j], spec))
+						idx = j + 1;
+				if (idx < 0) {
+					char pv[48];
+					preview(pv, sizeof pv, spec, strlen(spec));
+					return im_fail(e->err, "%s: no column named '%s'; the first row"
+						       " has: %s", e->name, pv, list);
+				}
+				named = 1;
+			}
+			if (add_col(r, idx, e->err) < 0)
+				return -1;
+		}
+		/* a header: text in a chosen column of the first row, or, when the
+		 * row has none of them, text anywhere in it */
+		int present = 0;
+		r->header = named;
+		for (int i = 0; i < r->ncols && !r->header; i++) {
+			int c = r->cols[i].index - 1;
+			num m;
+			present |= c < h->n;
+			if (c < h->n && parse_num(h->cs[c], h->ce[c], e->tab_blank, &m) < 0)
+				r->header = 1;
+		}
+		for (int j = 0; j < h->n && !r->header && !present; j++) {
+			num m;
+			r->header = parse_num(h->cs[j], h->ce[j], e->tab_blank, &m) < 0;
+		}
+		if (r->header)
+			for (int i = 0; i < r->ncols; i++)
+				if (r->cols[i].index > h->n)
+					return im_fail(e->err, "%s: no column %d; the header has %d"
+						       " column%s: %s", e->name, r->cols[i].index,
+						       h->n, h->n == 1 ? "" : "s", list);
+	} else {
+		for (int j = 0; j < h->n; j++)
+			if (corr_voltage_header(h->text[j], strlen(h->text[j]), NULL, NULL) &&
+			    add_col(r, j + 1, e->err) < 0)
+				return -1;
+		if (r->ncols == 0) {
+			int text = 0;
+			for (int j = 0; j < h->n; j++) {
+				num m;
+				text |= parse_num(h->cs[j], h->ce[j], e->tab_blank, &m) < 0;
+			}
+			if (text)
+				return im_fail(e->err, "%s: no voltage column in the header (%s);"
+					       " give one with `column N|NAME`", e->name, list);
+			return im_fail(e->err, "%s: no header row to find a voltage column in;"
+				       " give one with `column N`", e->name);
+		}
+		r->header = 1;
+	}
+	qsort(r->cols, (size_t)r->ncols, sizeof r->cols[0], cmp_col);
+	for (int i = 0; i < r->ncols; i++) {
+		corr_column *c = &r->cols[i];
+		c->unit_exp = 0;
+		c->unit_assumed = 1;
+		c->name[0] = '\0';
+		if (r->header && c->index <= h->n) {
+			const char *t = h->text[c->index - 1];
+			snprintf(c->name, sizeof c->name, "%s", t);
+			int ux, assumed;
+			if (corr_voltage_header(t, strlen(t), &ux, &assumed) && !assumed) {
+				c->unit_exp = ux;
+				c->unit_assumed = 0;
+			}
+		}
+	}
+	return 0;
+}
+
+int corr_stream(FILE *in, const char *in_name, FILE *out, const corr_opts *o,
+		corr_result *r, char *err)
+{
+	eng e;
+	hdr h;
+	int rc = -1, bom;
+	size_t got;
+	const char *start;
+
+	memset(r, 0, sizeof *r);
+	r->ljp = o->ljp;
+	r->ljp_mV = corr_ljp_mV(&o->ljp);
+	r->delim = ',';
+	if (o->ljp.decimals < 0 || o->ljp.decimals > CORR_LJP_DECIMALS_MAX)
+		return im_fail(err, "bad LJP decimals %d", o->ljp.decimals);
+	if (o->ncolumns < 0 || (o->ncolumns > 0 && !o->columns))
+		return im_fail(err, "bad column list");
+	memset(&e, 0, sizeof e);
+	memset(&h, 0, sizeof h);
+	e.in = in;
+	e.out = out;
+	e.name = in_name ? in_name : "input";
+	e.o = o;
+	e.r = r;
+	e.err = err;
+	e.line = 1;
+	e.buf = im_xmalloc(RD_CAP + 1);
+	e.wb = im_xmalloc(WR_CAP);
+
+	errno = 0;
+	got = fread(e.buf, 1, RD_CAP, in);
+	e.len = got;
+	e.buf[got] = '\0';
+	if (got < RD_CAP) {
+		if (ferror(in)) {
+			im_fail(err, "%s: read error: %s", e.name, strerror(errno ? errno : EIO));
+			goto done;
+		}
+		e.eof = 1;
+	}
+	e.span = e.buf;
+	if (got == 0) {
+		im_fail(err, "%s: empty file", e.name);
+		goto done;
+	}
+	const char *nul = memchr(e.buf, '\0', got);
+	if (nul) {
+		long line = 1;
+		for (const char *s = e.buf; s < nul; s++)
+			line += *s == '\n';
+		im_fail(err, "%s:%ld: binary file (NUL byte); expected CSV or TSV text",
+			e.name, line);
+		goto done;
+	}
+	bom = got >= 3 && memcmp(e.buf, "\xef\xbb\xbf", 3) == 0;
+	start = e.buf + (bom ? 3 : 0);
+	if (*start == '\n' || (start[0] == '\r' && start[1] == '\n')) {
+		const char *s = start;
+		while (s < e.buf + got && is_blank((unsigned char)*s))
+			s++;
+		if (s == e.buf + got)
+			im_fail(err, "%s: empty file (blank lines only)", e.name);
+		else
+			im_fail(err, "%s:1: the first line is blank; expected a header"
+				" or a data row", e.name);
+		goto done;
+	}
+	e.delim = pick_delim(start, e.buf + got);
+	r->delim = e.delim;
+	e.tab_blank = e.delim != '\t';
+	e.stop_u[(unsigned char)e.delim] = 1;
+	e.stop_u['\n'] = 1;
+	e.stop_u[0] = 1;
+	e.stop_q['"'] = 1;
+	e.stop_q[0] = 1;
+
+	if (read_first(&e, start, &h) < 0 || choose(&e, &h) < 0)
+		goto done;
+	e.maxcol = r->cols[r->ncols - 1].index;
+	e.corr = im_xcalloc((size_t)e.maxcol, 1);
+	for (int i = 0; i < r->ncols; i++) {
+		e.corr[r->cols[i].index - 1] = (unsigned char)(i + 1);
+		ljp_prepare(&o->ljp, r->cols[i].unit_exp, &e.prep[i]);
+	}
+	if (r->header) {
+		e.line = 1 + h.nl;
+		start = h.end;
+	}
+	if (run(&e, start) < 0)
+		goto done;
+	w_put(&e, e.span, (size_t)(e.buf + e.len - e.span));
+	w_flush(&e);
+	if (e.werr) {
+		write_failed(&e);
+		goto done;
+	}
+	rc = 0;
+done:
+	hdr_free(&h);
+	free(e.corr);
+	free(e.buf);
+	free(e.wb);
+	return rc;
+}
+
+/* ---- files ------------------------------------------------------------ */
+
+size_t corr_note_format(const corr_result *r, const char *in_name,
+			const char *out_name, char *buf, size_t n)
+{
+	char ljp[32];
+	size_t k = 0;
+	corr_ljp_format(&r->ljp, ljp, sizeof ljp);
+#define PUT(...) do { \
+		int w_ = snprintf(k < n ? buf + k : NULL, k < n ? n - k : 0, __VA_ARGS__); \
+		if (w_ > 0) k += (size_t)w_; \
+	} while (0)
+	if (n == 0)
+		return 0;
+	buf[0] = '\0';
+	PUT("ionmix correct: the liquid junction potential was subtracted"
+	    " (Vm = Vrecorded - LJP)\n");
+	PUT("LJP: %s mV\n", ljp);
+	PUT("input: %s\n", in_name ? in_name : "-");
+	if (out_name)
+		PUT("output: %s\n", out_name);
+	PUT("columns:");
+	for (int i = 0; i < r->ncols; i++) {
+		const corr_column *c = &r->cols[i];
+		const char *unit = c->unit_exp == -3 ? "V" : c->unit_exp == 3 ? "uV" : "mV";
+		PUT("%s %d", i ? ";" : "", c->index);
+		if (c->name[0])
+			PUT(" \"%s\"", c->name);
+		PUT(" in %s%s", unit, c->unit_assumed ? " (assumed)" : "");
+	}
+	PUT("\n");
+	PUT("delimiter: %s; header row: %s\n", corr_delim_name(r->delim),
+	    r->header ? "yes" : "no");
+	PUT("rows: %ld; corrected: %ld; skipped: %ld (not a number or missing: %ld;"
+	    " ragged rows: %ld); blank lines: %ld\n", r->rows, r->corrected,
+	    r->skipped, r->bad, r->ragged, r->blank);
+#undef PUT
+	return k < n ? k : n - 1;
+}
+
+/* "DIR/.BASE.XXXXXX" for a temporary file beside path; caller frees. */
+static char *tmp_template(const char *path)
+{
+	const char *slash = strrchr(path, '/');
+	size_t dl = slash ? (size_t)(slash - path + 1) : 0;
+	const char *base = path + dl;
+	char *t = im_xmalloc(strlen(path) + 16);
+	memcpy(t, path, dl);
+	sprintf(t + dl, ".%s.XXXXXX", base);
+	return t;
+}
+
+/* Open a temporary file beside path, mode 0666 less the umask. */
+static FILE *tmp_open(const char *path, char **tmp, char *err)
+{
+	mode_t mask = umask(0);
+	umask(mask);
+	*tmp = tmp_template(path);
+	int fd = mkstemp(*tmp);
+	if (fd < 0) {
+		im_fail(err, "cannot create a file beside %s: %s", path, strerror(errno));
+		free(*tmp);
+		*tmp = NULL;
+		return NULL;
+	}
+	(void)fchmod(fd, 0666 & ~mask);
+	FILE *fp = fdopen(fd, "wb");
+	if (!fp) {
+		im_fail(err, "cannot open %s: %s", *tmp, strerror(errno));
+		close(fd);
+		unlink(*tmp);
+		free(*tmp);
+		*tmp = NULL;
+	}
+	return fp;
+}
+
+/* Flush, sync and close; 0 or -1 with err. */
+static int tmp_close(FILE *fp, const char *path, char *err)
+{
+	int bad = fflush(fp) != 0;
+	int e = errno;
+	if (!bad && fsync(fileno(fp)) != 0 && errno != EINVAL)
+		bad = 1, e = errno;
+	if (fclose(fp) != 0 && !bad)
+		bad = 1, e = errno;
+	return bad ? im_fail(err, "cannot write %s: %s", path, strerror(e)) : 0;
+}
+
+int corr_file(const char *in_path, const char *out_path, FILE *out_fp,
+	      const corr_opts *o, corr_result *r, char *err)
+{
+	struct stat si, so;
+	FILE *in, *fp = NULL, *nfp = NULL;
+	char *tmp = NULL, *ntmp = NULL, *note = NULL;
+	int rc = -1;
+
+	memset(r, 0, sizeof *r);
+	in = fopen(in_path, "rb");
+	if (!in)
+		return im_fail(err, "cannot open %s: %s", in_path, strerror(errno));
+	if (fstat(fileno(in), &si) == 0 && S_ISDIR(si.st_mode)) {
+		fclose(in);
+		return im_fail(err, "%s is a directory, not a CSV or TSV file", in_path);
+	}
+	if (!out_path) {
+		if (!out_fp) {
+			fclose(in);
+			return im_fail(err, "no output given");
+		}
+		rc = corr_stream(in, in_path, out_fp, o, r, err);
+		if (rc == 0 && fflush(out_fp) != 0)
+			rc = im_fail(err, "cannot write the output: %s", strerror(errno));
+		fclose(in);
+		return rc;
+	}
+	if (stat(out_path, &so) == 0) {
+		if (so.st_dev == si.st_dev && so.st_ino == si.st_ino) {
+			fclose(in);
+			return im_fail(err, "%s is the input file; write to another name",
+				       out_path);
+		}
+		if (S_ISDIR(so.st_mode)) {
+			fclose(in);
+			return im_fail(err, "%s is a directory; give a file name", out_path);
+		}
+	}
+	fp = tmp_open(out_path, &tmp, err);
+	if (!fp)
+		goto fail;
+	if (corr_stream(in, in_path, fp, o, r, err) < 0) {
+		fclose(fp);
+		goto fail;
+	}
+	if (tmp_close(fp, out_path, err) < 0)
+		goto fail;
+
+	note = im_xmalloc(strlen(out_path) + sizeof CORR_NOTE_SUFFIX);
+	sprintf(note, "%s%s", out_path, CORR_NOTE_SUFFIX);
+	nfp = tmp_open(note, &ntmp, err);
+	if (!nfp)
+		goto fail;
+	{
+		char text[2048];
+		size_t n = corr_note_format(r, in_path, out_path, text, sizeof text);
+		fwrite(text, 1, n, nfp);
+	}
+	if (tmp_close(nfp, note, err) < 0)
+		goto fail;
+	if (rename(tmp, out_path) != 0) {
+		im_fail(err, "cannot rename to %s: %s", out_path, strerror(errno));
+		goto fail;
+	}
+	free(tmp);
+	tmp = NULL;
+	if (rename(ntmp, note) != 0) {
+		im_fail(err, "%s written, but not its note %s: %s", out_path, note,
+			strerror(errno));
+		goto fail;
+	}
+	free(ntmp);
+	ntmp = NULL;
+	rc = 0;
+fail:
+	if (tmp) {
+		unlink(tmp);
+		free(tmp);
+	}
+	if (ntmp) {
+		unlink(ntmp);
+		free(ntmp);
+	}
+	free(note);
+	fclose(in);
+	return rc;
+}

@@ -1,0 +1,179 @@
+/*
+ * correct.h - streaming correction of recorded voltages for the liquid
+ * junction potential: Vm = Vrecorded - LJP, applied to one or more columns
+ * of a CSV or TSV file, every other byte copied unchanged.
+ *
+ * The rules, in one place (the command help and the tests follow them):
+ *
+ * Reading.  The delimiter is the one of tab, comma and semicolon that occurs
+ * most often outside quotes in the first record (ties: tab, then comma, then
+ * semicolon; none: comma).  Fields follow RFC 4180: a field that starts with
+ * a double quote is quoted, may hold delimiters, newlines and doubled quotes,
+ * and ends at the closing quote; a quote inside an unquoted field is an
+ * ordinary byte.  Records end at LF; a CR before it is part of the line end
+ * and is written back as read, so LF and CRLF files stay as they were.  A
+ * UTF-8 byte-order mark at the start is copied and ignored for matching.
+ * A field may be at most CORR_FIELD_MAX bytes (quotes included) and the
+ * first record at most CORR_FIRST_MAX bytes; longer ones stop with an error
+ * naming the line and column.  Memory is bounded (two fixed buffers), so
+ * files larger than memory work.  A NUL byte anywhere stops with "binary
+ * file".  Lines are counted physically (a quoted newline starts a new line);
+ * error positions are FILE:LINE:COLUMN with COLUMN the 1-based field number.
+ *
+ * Columns.  Given by 1-based number ("2") or by header name ("Vm (mV)",
+ * exact, then ASCII case-insensitive).  Without any, the columns whose
+ * header names a voltage are taken (corr_voltage_header); when there is
+ * none, the error asks for a column.  The first record is a header when a
+ * chosen column holds a non-empty cell there that is not a number (when it
+ * has none of the chosen columns: when any of its cells is not a number; a
+ * column given by name implies a header); a header is copied unchanged.
+ *
+ * Units.  The LJP is in mV.  A column whose header gives its unit as V or
+ * uV (µV) gets the LJP in that unit (LJP/1000 V, LJP*1000 uV); a column
+ * without a unit in its header is taken to be in mV (reported as assumed).
+ *
+ * Arithmetic.  Exact, in decimal: the cell's digits are read as an integer
+ * with d decimals, the LJP (an exact decimal with l decimals, see corr_ljp)
+ * is brought to the same unit, and the difference is printed with
+ * max(d, l) decimals, so no digit of either is lost and every corrected
+ * value equals input minus LJP to its last printed digit.  When l <= d the
+ * cell keeps its number of decimals, and correcting by +X then by -X gives
+ * back the original bytes for cells in plain form: optional '-', digits,
+ * optional '.' and digits.  Styles are kept where the result allows: "5."
+ * keeps its dot, ".5" has no leading zero while the integer part is 0, a
+ * leading '+' stays on results >= 0; leading zeros ("007") are dropped and
+ * "-0" is printed "0" - so those forms may not round-trip byte for byte
+ * (their values always do).  Scientific cells ("1.2e-3") keep their exponent text as
+ * written, and the mantissa absorbs the change: "-7.0e-2" (V) minus 14.2 mV
+ * is "-8.42e-2".  Numbers with more than CORR_DIGITS_MAX digits once
+ * aligned stop with an error rather than lose digits.
+ *
+ * Cells.  Blanks (space, and tab when it is not the delimiter) around a
+ * number, the quotes of a quoted cell and a CR are kept as they are.  An
+ * empty cell (or blanks only) is copied and counted as skipped.  A cell that
+ * is not a number stops with FILE:LINE:COLUMN and the cause, unless
+ * skip_bad, which copies it and counts it (skipped and bad).  A row with
+ * fewer fields than a corrected column stops with FILE:LINE, unless
+ * skip_bad: its missing cells count as skipped and bad, the row as ragged,
+ * the cells it has are corrected.  A line that is empty (or only a CR) is
+ * copied and counted as blank, not as a row.
+ *
+ * Record of what was done.  corr_file with an output path writes the data
+ * to a temporary file in the same directory and renames it at the end
+ * (nothing is left behind on error), and writes a side note OUT.ionmix.txt
+ * (see corr_note_format) so the CSV itself stays byte-for-byte pure.
+ *
+ * Nothing here prints except to the output stream it is given.
+ */
+#ifndef IONMIX_CORRECT_H
+#define IONMIX_CORRECT_H
+
+#include <stddef.h>
+#include <stdio.h>
+
+#define CORR_FIELD_MAX (64 * 1024)   /* bytes per field, quotes included */
+#define CORR_FIRST_MAX (256 * 1024)  /* bytes in the first record */
+#define CORR_MAXCOLS 64              /* columns corrected in one run */
+#define CORR_DIGITS_MAX 100          /* digits of a cell once aligned */
+#define CORR_LJP_MAX_mV 1000.0       /* |LJP| above this is refused */
+#define CORR_LJP_DECIMALS_MAX 9
+#define CORR_NAME_MAX 64             /* header text kept per column */
+#define CORR_NOTE_SUFFIX ".ionmix.txt"
+
+/* An LJP as an exact decimal: scaled / 10^decimals mV. */
+typedef struct corr_ljp {
+	long long scaled;
+	int decimals;   /* 0..CORR_LJP_DECIMALS_MAX */
+} corr_ljp;
+
+/* Parse an LJP in mV as typed ("14.2", "-3", "1.42e1").  The decimals are
+ * those written: "14.20" has 2, "1.42e1" has 1.  Rejects anything but a
+ * plain decimal (no NaN, inf, hex, blanks or trailing text), |LJP| above
+ * CORR_LJP_MAX_mV and more than CORR_LJP_DECIMALS_MAX decimals.  0 or -1. */
+int corr_ljp_parse(const char *s, corr_ljp *l, char *err);
+/* An LJP computed as a double, rounded half away from zero to `decimals`
+ * (0..CORR_LJP_DECIMALS_MAX).  Rejects non-finite and out-of-range values. */
+int corr_ljp_from_mV(double ljp_mV, int decimals, corr_ljp *l, char *err);
+double corr_ljp_mV(const corr_ljp *l);
+/* "14.2", "-0.25": the exact decimal, into buf of n bytes (32 suffice). */
+void corr_ljp_format(const corr_ljp *l, char *buf, size_t n);
+
+/* The trivial form, for one value: mv - ljp_mV into *out_mV.  Rejects
+ * non-finite inputs.  0 or -1. */
+int corr_value(double mv, double ljp_mV, double *out_mV, char *err);
+
+/* Correct one cell by the rules above.  s[0..n) is the cell's content (no
+ * quotes); unit_exp is the column's unit as a power of ten relative to mV
+ * (0 mV, -3 V, 3 uV).  Writes the new content (blanks kept) to buf of bufsz
+ * bytes (CORR_DIGITS_MAX + n + 8 always suffice), NUL-terminated, length
+ * in *len.  Returns 0 when corrected, 1 when the cell is empty or blank
+ * (buf then holds a copy), -1 with err when it is not a number or has too
+ * many digits. */
+int corr_cell(const char *s, size_t n, const corr_ljp *l, int unit_exp,
+	      char *buf, size_t bufsz, size_t *len, char *err);
+
+/* Does header text h[0..n) name a voltage?  Returns 1 when its unit is mV,
+ * V, uV, µV or μV (in "name (unit)", "name [unit]", "name/unit", "name_unit",
+ * "name unit", or the unit alone - but "V" alone is a name), or when it has no
+ * unit and its name, lower-cased with non-alphanumerics dropped, is one of
+ * v, vm, vmem, vmembrane, voltage, potential, membranepotential, e, em,
+ * vcmd, vcommand, vhold, vholding, vp, vpip, vpipette, or contains
+ * "voltage" or "potential".  A header with another unit ("I (pA)") is not
+ * a voltage.  *unit_exp gets the unit as above (0 when none), *assumed 1
+ * when no unit was given.  Either pointer may be NULL. */
+int corr_voltage_header(const char *h, size_t n, int *unit_exp, int *assumed);
+
+typedef struct corr_opts {
+	const char *const *columns; /* "2" or a header name; NULL/0: voltage headers */
+	int ncolumns;
+	corr_ljp ljp;               /* mV, subtracted */
+	int skip_bad;               /* 1: copy bad cells and ragged rows, count them */
+} corr_opts;
+
+typedef struct corr_column {
+	int index;                  /* 1-based field number */
+	char name[CORR_NAME_MAX];   /* header text ("" without a header), cut to fit */
+	int unit_exp;               /* 0 mV, -3 V, 3 uV */
+	int unit_assumed;           /* 1: no unit in the header, mV taken */
+} corr_column;
+
+typedef struct corr_result {
+	long rows;          /* data records; header and blank lines not counted */
+	long corrected;     /* cells rewritten */
+	long skipped;       /* cells copied unchanged: empty, plus bad */
+	long bad;           /* of those: not a number, or missing (skip_bad only) */
+	long ragged;        /* rows lacking a corrected column (skip_bad only) */
+	long blank;         /* empty lines copied */
+	double ljp_mV;
+	corr_ljp ljp;
+	char delim;         /* ',', '\t' or ';' */
+	int header;         /* 1: the first record is a header */
+	int ncols;
+	corr_column cols[CORR_MAXCOLS]; /* ascending by index */
+} corr_result;
+
+/* Stream in to out.  in_name names the input in messages.  On failure
+ * returns -1 with a one-line message; what was written to out by then is
+ * incomplete (corr_file never leaves such a file).  *r is filled as far as
+ * the run went.  Nothing is closed. */
+int corr_stream(FILE *in, const char *in_name, FILE *out, const corr_opts *o,
+		corr_result *r, char *err);
+
+/* Correct the file at in_path.  With out_path, write it atomically (a
+ * temporary file in the same directory, renamed at the end; removed on
+ * any error; mode 0666 less the umask) and the side note
+ * out_path CORR_NOTE_SUFFIX beside it; out_path naming the input itself is
+ * refused.  Without out_path, write to out_fp (flushed) and no note. */
+int corr_file(const char *in_path, const char *out_path, FILE *out_fp,
+	      const corr_opts *o, corr_result *r, char *err);
+
+/* The side note's text: what was subtracted, from which columns of which
+ * file, the sign convention, and the counts.  Several lines, each ending in
+ * '\n'; out_name may be NULL.  Returns the length (cut to n - 1). */
+size_t corr_note_format(const corr_result *r, const char *in_name,
+			const char *out_name, char *buf, size_t n);
+
+/* "comma", "tab", "semicolon". */
+const char *corr_delim_name(char delim);
+
+#endif
