@@ -12,6 +12,7 @@
 
 #include "cmd_core.h"
 #include "cmd_correct.h"
+#include "cmd_ghk.h"
 #include "common.h"
 #include "userdb.h"
 
@@ -39,6 +40,15 @@ static const cmd_def table[] = {
 	 0, 1, cmd_activity, COMPL_NONE, COMPL_NONE, 0},
 	{"nernst", "INSIDE OUTSIDE [activities]", "equilibrium potential of each ion, inside relative to outside",
 	 2, 3, cmd_nernst, COMPL_SOLUTION, COMPL_SOLUTION, 0},
+	{"erev", "INSIDE OUTSIDE ION=P [ION=P ...] [activities] [corrected]",
+	 "GHK reversal potential of the permeant ions between two solutions (P in cm/s or relative)",
+	 3, ANY, cmd_ghk_erev, COMPL_SOLUTION, COMPL_ION, 0},
+	{"ratio", "INSIDE OUTSIDE ION REF at MV [ION=P ...] | INSIDE OUTSIDE ION REF shift FROM_BATH TO_BATH by MV [ION=P ...]",
+	 "permeability ratio P(ION)/P(REF) from a measured reversal potential or its shift",
+	 6, ANY, cmd_ghk_ratio, COMPL_SOLUTION, COMPL_ION, 0},
+	{"iv", "INSIDE OUTSIDE ION=P [...] [from V1] [to V2] [step DV] [rect MV] [svg FILE] [csv FILE] [plain] [activities]",
+	 "GHK current-voltage curves, rectification and a plot (P in cm/s or relative)",
+	 3, ANY, cmd_ghk_iv, COMPL_SOLUTION, COMPL_ION, 0},
 	{"weigh", "VOLUME [mL|L]", "bench sheet: what to weigh or pipette for the current solution",
 	 1, 2, cmd_weigh, COMPL_NONE, COMPL_NONE, 0},
 	{"stock", "COMPOUND CONC [UNIT] | COMPOUND off", "take a compound from a stock solution on the bench sheet",
