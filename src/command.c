@@ -13,6 +13,7 @@
 #include "cmd_core.h"
 #include "cmd_correct.h"
 #include "cmd_ghk.h"
+#include "cmd_junction.h"
 #include "common.h"
 #include "userdb.h"
 
@@ -40,6 +41,12 @@ static const cmd_def table[] = {
 	 0, 1, cmd_activity, COMPL_NONE, COMPL_NONE, 0},
 	{"nernst", "INSIDE OUTSIDE [activities]", "equilibrium potential of each ion, inside relative to outside",
 	 2, 3, cmd_nernst, COMPL_SOLUTION, COMPL_SOLUTION, 0},
+	{"junction", "PIPETTE BATH [activities] [model henderson|planck|diffusion|all]",
+	 "liquid junction potential of a pipette | bath pair, its breakdown and corrections",
+	 2, 5, cmd_junction, COMPL_SOLUTION, COMPL_SOLUTION, 0},
+	{"exchange", "OLD NEW [pipette NAME] [ground agcl|bridge SALT CONC [UNIT]]",
+	 "offset a bath exchange brings with a bare Ag/AgCl or salt-bridge ground",
+	 2, 9, cmd_exchange, COMPL_SOLUTION, COMPL_SOLUTION, 0},
 	{"erev", "INSIDE OUTSIDE ION=P [ION=P ...] [activities] [corrected]",
 	 "GHK reversal potential of the permeant ions between two solutions (P in cm/s or relative)",
 	 3, ANY, cmd_ghk_erev, COMPL_SOLUTION, COMPL_ION, 0},
