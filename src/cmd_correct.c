@@ -3,6 +3,7 @@
  * (given, or Henderson from two solutions), call correct.c, report.
  */
 #include "cmd_correct.h"
+#include "cmd_junction.h"
 
 #include <math.h>
 #include <stdio.h>
@@ -25,16 +26,14 @@ typedef struct ljp_src {
 } ljp_src;
 
 /* The Henderson LJP of PIPETTE against BATH at the session temperature,
- * from total concentrations; mobilities from the limiting conductivity
- * (Nernst-Einstein), else from the measured 25 C diffusion coefficient. */
+ * from total concentrations, the same way `junction` computes it. */
 static int henderson(im_ctx *ctx, const char *pip, const char *bath, double *ljp_mV,
 		     char *err)
 {
 	solution *sp, *sb;
 	sol_state st[2];
-	jn_ion ions[JN_MAX_IONS];
-	const rd_ion *which[JN_MAX_IONS];
-	int n = 0, rc = -1;
+	char e2[IM_ERRLEN];
+	int rc;
 	if (core_solution(ctx, pip, &sp, err) || core_solution(ctx, bath, &sb, err))
 		return -1;
 	if (sol_compute(sp, ctx->temp_C, ctx->model, &st[0], err))
@@ -43,53 +42,9 @@ static int henderson(im_ctx *ctx, const char *pip, const char *bath, double *ljp
 		sol_state_free(&st[0]);
 		return -1;
 	}
-	for (int side = 0; side < 2; side++)
-		for (int j = 0; j < st[side].n; j++) {
-			const sol_species *s = &st[side].sp[j];
-			int k = 0;
-			if (s->ion->z == 0)
-				continue;
-			while (k < n && which[k] != s->ion)
-				k++;
-			if (k == n) {
-				if (n == JN_MAX_IONS) {
-					im_fail(err, "more than %d ions in %s and %s together",
-						JN_MAX_IONS, pip, bath);
-					goto done;
-				}
-				const rd_ion *ion = s->ion;
-				memset(&ions[n], 0, sizeof ions[n]);
-				which[n] = ion;
-				ions[n].symbol = ion->symbol;
-				ions[n].z = ion->z;
-				if (isfinite(ion->lambda_S_cm2_eq) && ion->lambda_S_cm2_eq > 0)
-					ions[n].D_m2_s = jn_D_from_lambda_m2_s(ion->lambda_S_cm2_eq,
-									       ion->z, ctx->temp_C);
-				else if (isfinite(ion->D_1e9_m2_s) && ion->D_1e9_m2_s > 0)
-					ions[n].D_m2_s = jn_D_at_T_m2_s(ion->D_1e9_m2_s * 1e-9,
-									ctx->temp_C);
-				else
-					ions[n].D_m2_s = NAN; /* jn_henderson_mV names the ion */
-				n++;
-			}
-			if (side == 0)
-				ions[k].pip_mM = s->mM;
-			else
-				ions[k].bath_mM = s->mM;
-		}
-	if (n == 0) {
-		im_fail(err, "no ions in %s or %s", pip, bath);
-		goto done;
-	}
-	{
-		char e2[IM_ERRLEN];
-		if (jn_henderson_mV(ions, n, ctx->temp_C, ljp_mV, e2) < 0) {
-			im_fail(err, "LJP of %s against %s: %s", pip, bath, e2);
-			goto done;
-		}
-	}
-	rc = 0;
-done:
+	rc = cmdj_henderson_mV(&st[0], &st[1], 0, ctx->temp_C, ljp_mV, e2);
+	if (rc)
+		im_fail(err, "LJP of %s against %s: %s", pip, bath, e2);
 	sol_state_free(&st[0]);
 	sol_state_free(&st[1]);
 	return rc;

@@ -4,6 +4,7 @@
  * through output.h (human text or one JSON object).
  */
 #include "cmd_ghk.h"
+#include "cmd_junction.h"
 
 #include <errno.h>
 #include <math.h>
@@ -194,42 +195,11 @@ static const char *basis(const opts *o)
 /* ---- the junction potential, for `corrected` ---- */
 
 /* Henderson LJP (bath relative to pipette) with the inside as pipette,
- * from total concentrations, mobilities as the `correct` command takes them
- * (cmd_correct.c): from the limiting conductivity (Nernst-Einstein at t_C),
- * else from the measured 25 C diffusion coefficient scaled to t_C. */
+ * from total concentrations, computed as `junction` computes it. */
 static int ljp(const side *pip, const side *bath, double t_C, double *ljp_mV,
 	       char *err)
 {
-	int cap = pip->st.n + bath->st.n, n = 0;
-	jn_ion *j = im_xcalloc((size_t)cap + 1, sizeof *j);
-	for (int s = 0; s < 2; s++) {
-		const sol_state *st = s ? &bath->st : &pip->st;
-		for (int k = 0; k < st->n; k++) {
-			const rd_ion *ion = st->sp[k].ion;
-			int i = 0;
-			if (ion->z == 0)
-				continue;
-			while (i < n && strcmp(j[i].symbol, ion->symbol) != 0)
-				i++;
-			if (i < n)
-				continue;
-			j[n].symbol = ion->symbol;
-			j[n].z = ion->z;
-			if (isfinite(ion->lambda_S_cm2_eq) && ion->lambda_S_cm2_eq > 0)
-				j[n].D_m2_s = jn_D_from_lambda_m2_s(ion->lambda_S_cm2_eq,
-								    ion->z, t_C);
-			else if (isfinite(ion->D_1e9_m2_s) && ion->D_1e9_m2_s > 0)
-				j[n].D_m2_s = jn_D_at_T_m2_s(ion->D_1e9_m2_s * 1e-9, t_C);
-			else
-				j[n].D_m2_s = NAN;  /* jn_henderson_mV names the ion */
-			j[n].pip_mM = conc(pip, ion, 0);
-			j[n].bath_mM = conc(bath, ion, 0);
-			n++;
-		}
-	}
-	int rc = jn_henderson_mV(j, n, t_C, ljp_mV, err);
-	free(j);
-	return rc;
+	return cmdj_henderson_mV(&pip->st, &bath->st, 0, t_C, ljp_mV, err);
 }
 
 /* ---- erev ---- */

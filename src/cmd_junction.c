@@ -96,7 +96,9 @@ typedef struct pair {
 	jn_ion *ions;       /* owned */
 	const rd_ion **ref; /* owned array; the ions are the refdb's */
 	double *D25;        /* diffusion coefficient at 25 C, m2/s; owned */
-	int n;
+	int *unknown;       /* 1: no mobility in the data, D25 is a bound; owned */
+	int n, nunknown;
+	double t_C;
 } pair;
 
 static void pair_free(pair *p)
@@ -104,7 +106,28 @@ static void pair_free(pair *p)
 	free(p->ions);
 	free(p->ref);
 	free(p->D25);
+	free(p->unknown);
 	memset(p, 0, sizeof *p);
+}
+
+/*
+ * Ions without a mobility in data/ (ATP, GTP, phosphocreatine and some
+ * organic ions): rather than refuse every pipette solution that holds a
+ * few mM of them, their mobility is bounded and the LJP reported with the
+ * range it implies.  Bounds: from UNKNOWN_D_LO (practically immobile) to
+ * the mobility of Na+ (1.334e-9 m2/s at 25 C), since these ions are
+ * larger than a hydrated Na+ and so slower (common practice).  The
+ * reported value uses the middle of that range.  Only when they carry at
+ * most UNKNOWN_MAX_FRAC of the charge on each side; more, and the range
+ * would say nothing, so the command stops and names the ion.
+ */
+#define UNKNOWN_D_LO 0.05e-9
+#define UNKNOWN_D_HI 1.334e-9
+#define UNKNOWN_MAX_FRAC 0.10
+
+static const char *ion_sym(const pair *p, int k)
+{
+	return p->ref[k]->symbol;
 }
 
 /* D at 25 C from the reference data: the conductivity (Nernst-Einstein)
@@ -126,10 +149,13 @@ static int build_pair(const sol_state *a, const sol_state *b, int act, double t_
 		      pair *p, char *err)
 {
 	int cap = a->n + b->n + 1;
+	double eq[2] = {0, 0}, equnk[2] = {0, 0};
 	memset(p, 0, sizeof *p);
+	p->t_C = t_C;
 	p->ions = im_xcalloc(cap, sizeof *p->ions);
 	p->ref = im_xcalloc(cap, sizeof *p->ref);
 	p->D25 = im_xcalloc(cap, sizeof *p->D25);
+	p->unknown = im_xcalloc(cap, sizeof *p->unknown);
 	for (int side = 0; side < 2; side++) {
 		const sol_state *st = side ? b : a;
 		for (int j = 0; j < st->n; j++) {
@@ -155,18 +181,35 @@ static int build_pair(const sol_state *a, const sol_state *b, int act, double t_
 	for (int k = 0; k < p->n; k++) {
 		const rd_ion *ion = p->ref[k];
 		double D25 = ion_D25(ion);
-		if (!(D25 > 0) && (p->ions[k].pip_mM > 0 || p->ions[k].bath_mM > 0)) {
-			im_fail(err,
-				"ion %s has no mobility in the reference data: add its "
-				"limiting conductivity (lambda_S_cm2_eq) or diffusion "
-				"coefficient (diffusion_1e9_m2_s) with its source row to "
-				"data/ions.sql",
-				ion->symbol);
-			pair_free(p);
-			return -1;
+		int unk = !(D25 > 0);
+		eq[0] += abs(ion->z) * p->ions[k].pip_mM;
+		eq[1] += abs(ion->z) * p->ions[k].bath_mM;
+		if (unk) {
+			equnk[0] += abs(ion->z) * p->ions[k].pip_mM;
+			equnk[1] += abs(ion->z) * p->ions[k].bath_mM;
+			D25 = 0.5 * (UNKNOWN_D_LO + UNKNOWN_D_HI);
+			p->unknown[k] = 1;
+			p->nunknown++;
 		}
 		p->D25[k] = D25;
 		p->ions[k].D_m2_s = jn_D_at_T_m2_s(D25, t_C);
+	}
+	for (int side = 0; side < 2 && p->nunknown; side++) {
+		if (equnk[side] <= UNKNOWN_MAX_FRAC * eq[side])
+			continue;
+		for (int k = 0; k < p->n; k++)
+			if (p->unknown[k]) {
+				im_fail(err,
+					"ion %s has no mobility in the reference data and carries "
+					"%.0f%% of the charge in the %s: add its limiting "
+					"conductivity (lambda_S_cm2_eq) or diffusion coefficient "
+					"(diffusion_1e9_m2_s) with its source row to data/ions.sql",
+					ion_sym(p, k), 100.0 * equnk[side] / eq[side],
+					side ? "bath" : "pipette");
+				break;
+			}
+		pair_free(p);
+		return -1;
 	}
 	if (p->n > JN_MAX_IONS) {
 		im_fail(err, "too many ions for one junction (%d; at most %d)", p->n,
@@ -177,6 +220,66 @@ static int build_pair(const sol_state *a, const sol_state *b, int act, double t_
 	return 0;
 }
 
+/* The Henderson LJP with every unknown mobility at its low and at its high
+ * bound (lo_mV and hi_mV may come out in either order: they are sorted). */
+static int unknown_range(const pair *p, double *lo_mV, double *hi_mV, char *err)
+{
+	jn_ion *x = im_xcalloc(p->n, sizeof *x);
+	double v[2];
+	int rc = 0;
+	for (int b = 0; b < 2 && rc == 0; b++) {
+		memcpy(x, p->ions, p->n * sizeof *x);
+		for (int k = 0; k < p->n; k++)
+			if (p->unknown[k])
+				x[k].D_m2_s = jn_D_at_T_m2_s(b ? UNKNOWN_D_HI : UNKNOWN_D_LO, p->t_C);
+		rc = jn_henderson_mV(x, p->n, p->t_C, &v[b], err);
+	}
+	free(x);
+	*lo_mV = fmin(v[0], v[1]);
+	*hi_mV = fmax(v[0], v[1]);
+	return rc;
+}
+
+static void unknown_list(const pair *p, char *buf, size_t n)
+{
+	size_t len = 0;
+	buf[0] = '\0';
+	for (int k = 0; k < p->n; k++)
+		if (p->unknown[k] && len < n)
+			len += snprintf(buf + len, n - len, "%s%s", len ? ", " : "", ion_sym(p, k));
+}
+
+static void unknown_caution(const pair *p, cautions *c)
+{
+	char list[120];
+	double lo, hi;
+	char e2[IM_ERRLEN];
+	if (!p->nunknown || unknown_range(p, &lo, &hi, e2))
+		return;
+	unknown_list(p, list, sizeof list);
+	caution(c,
+		"no mobility in the data for %s: bounded between 0.05e-9 m2/s and that "
+		"of Na+ (common practice), the Henderson LJP lies between %+.2f and "
+		"%+.2f mV; the middle of the range is used",
+		list, lo, hi);
+}
+
+int cmdj_henderson_mV(const sol_state *pip, const sol_state *bath, int act, double t_C,
+		      double *ljp_mV, char *err)
+{
+	pair p;
+	int rc;
+	if (build_pair(pip, bath, act, t_C, &p, err))
+		return -1;
+	if (p.n == 0) {
+		pair_free(&p);
+		return im_fail(err, "no ions on either side");
+	}
+	rc = jn_henderson_mV(p.ions, p.n, t_C, ljp_mV, err);
+	pair_free(&p);
+	return rc;
+}
+
 /* Ions whose mobility is a recalled or practice value get one caution. */
 static void mobility_caution(const pair *p, cautions *c)
 {
@@ -185,7 +288,7 @@ static void mobility_caution(const pair *p, cautions *c)
 	int any = 0;
 	for (int k = 0; k < p->n; k++) {
 		const rd_source *s = p->ref[k]->mobility_source;
-		if (!s || !(s->from_memory || s->common_practice))
+		if (!s || p->unknown[k] || !(s->from_memory || s->common_practice))
 			continue;
 		len += snprintf(list + len, len < sizeof list ? sizeof list - len : 0,
 				"%s%s", any ? ", " : "", p->ref[k]->symbol);
@@ -401,6 +504,7 @@ int cmd_junction(im_ctx *ctx, int argc, char **argv, char *err)
 	if (sb != sp)
 		neutral_caution(&st_b, sb->name, &cw);
 	mobility_caution(&p, &cw);
+	unknown_caution(&p, &cw);
 	same = 1;
 	for (int k = 0; k < p.n; k++)
 		if (p.ions[k].pip_mM != p.ions[k].bath_mM)
@@ -438,6 +542,18 @@ int cmd_junction(im_ctx *ctx, int argc, char **argv, char *err)
 		jw_str(&w, "from", act ? "activities" : "concentrations");
 		jw_str(&w, "model", r.asked == M_ALL ? "all" : model_name[mm]);
 		jw_num(&w, "ljp_mV", ljp, 6);
+		if (p.nunknown) {
+			double lo, hi;
+			char e2[IM_ERRLEN], list[120];
+			if (unknown_range(&p, &lo, &hi, e2) == 0) {
+				jw_arr(&w, "henderson_range_mV");
+				jw_num(&w, NULL, lo, 6);
+				jw_num(&w, NULL, hi, 6);
+				jw_close(&w);
+			}
+			unknown_list(&p, list, sizeof list);
+			jw_str(&w, "mobility_unknown", list);
+		}
 		jw_str(&w, "sign",
 		       "potential of the bath relative to the pipette solution");
 		jw_bool(&w, "identical", same);

@@ -10,6 +10,7 @@
 #define IONMIX_CMD_JUNCTION_H
 
 #include "command.h"
+#include "solution.h"
 
 /* junction PIPETTE BATH [activities] [model henderson|planck|diffusion|all] */
 int cmd_junction(im_ctx *ctx, int argc, char **argv, char *err);
@@ -17,5 +18,14 @@ int cmd_junction(im_ctx *ctx, int argc, char **argv, char *err);
 /* exchange OLD NEW [pipette NAME] [ground agcl | ground bridge SALT CONC [UNIT]]
  * ("bridge SALT CONC [UNIT]" and "agcl" alone are accepted too) */
 int cmd_exchange(im_ctx *ctx, int argc, char **argv, char *err);
+
+/* The Henderson LJP (bath relative to pipette, mV) of two computed
+ * solutions at t_C, from concentrations (act = 0) or activities: the one
+ * way every command turns solutions into a junction, so `correct for`,
+ * `erev corrected` and `junction` agree.  Ions without a mobility in the
+ * data are taken at the middle of a bounded range when they carry at most
+ * 10 % of the charge (see cmd_junction.c); otherwise -1 with err. */
+int cmdj_henderson_mV(const sol_state *pip, const sol_state *bath, int act, double t_C,
+		      double *ljp_mV, char *err);
 
 #endif

@@ -3,6 +3,7 @@
  * status: 0 when every command succeeded, 1 when one failed outside the
  * interactive shell, 2 for a usage error, 3 when out of memory.
  */
+#include <errno.h>
 #include <langinfo.h>
 #include <locale.h>
 #include <stdio.h>
@@ -59,8 +60,11 @@ int main(int argc, char **argv)
 {
 	out o = {stdout, stderr, 0, 0};
 	const char *db = NULL;
-	char **exprs = im_xcalloc(argc, sizeof *exprs), **files = im_xcalloc(argc, sizeof *files);
-	int nexpr = 0, nfile = 0, status = 0;
+	/* scripts and -e commands run in the order given: an action is a
+	 * file name, or an inline command marked by is_expr */
+	char **acts = im_xcalloc(argc, sizeof *acts);
+	int *is_expr = im_xcalloc(argc, sizeof *is_expr);
+	int nact = 0, status = 0;
 	char err[IM_ERRLEN];
 	refdb *ref;
 	im_ctx ctx;
@@ -94,15 +98,16 @@ int main(int argc, char **argv)
 		} else if (strcmp(a, "-e") == 0 || strcmp(a, "--execute") == 0) {
 			if (++i >= argc)
 				goto missing;
-			exprs[nexpr++] = argv[i];
+			is_expr[nact] = 1;
+			acts[nact++] = argv[i];
 		} else if (strcmp(a, "--") == 0) {
 			while (++i < argc)
-				files[nfile++] = argv[i];
+				acts[nact++] = argv[i];
 		} else if (a[0] == '-' && a[1] != '\0') {
 			fprintf(stderr, "ionmix: unknown option '%s'\nTry 'ionmix --help'.\n", a);
 			return 2;
 		} else {
-			files[nfile++] = argv[i];
+			acts[nact++] = argv[i];
 		}
 	}
 
@@ -114,26 +119,28 @@ int main(int argc, char **argv)
 	dbpath = db ? im_xstrdup(db) : udb_default_path();
 	ctx.db_path = dbpath;
 
-	for (int i = 0; i < nexpr && status == 0; i++) {
-		ctx.errfile[0] = '\0';
-		if (cmd_exec(&ctx, exprs[i], err)) {
-			out_error(&o, ctx.errfile[0] ? ctx.errfile : NULL, ctx.errline, err);
-			status = 1;
+	for (int i = 0; i < nact && status == 0; i++) {
+		FILE *fp;
+		if (is_expr[i]) {
+			ctx.errfile[0] = '\0';
+			if (cmd_exec(&ctx, acts[i], err)) {
+				out_error(&o, ctx.errfile[0] ? ctx.errfile : NULL, ctx.errline, err);
+				status = 1;
+			}
+			continue;
 		}
-	}
-	for (int i = 0; i < nfile && status == 0; i++) {
-		FILE *fp = strcmp(files[i], "-") == 0 ? stdin : fopen(files[i], "r");
+		fp = strcmp(acts[i], "-") == 0 ? stdin : fopen(acts[i], "r");
 		if (!fp) {
-			snprintf(err, sizeof err, "cannot open %s", files[i]);
+			snprintf(err, sizeof err, "cannot open %s: %s", acts[i], strerror(errno));
 			out_error(&o, NULL, 0, err);
 			status = 1;
 			break;
 		}
-		status = run_stream(&ctx, fp, files[i]);
+		status = run_stream(&ctx, fp, acts[i]);
 		if (fp != stdin)
 			fclose(fp);
 	}
-	if (nexpr == 0 && nfile == 0) {
+	if (nact == 0) {
 		if (isatty(STDIN_FILENO) && isatty(STDOUT_FILENO) && !o.json) {
 			hist = shell_history_path();
 			ctx.interactive = 1;
@@ -146,8 +153,8 @@ int main(int argc, char **argv)
 	ctx_free(&ctx);
 	refdb_close(ref);
 	free(dbpath);
-	free(exprs);
-	free(files);
+	free(acts);
+	free(is_expr);
 	return status;
 
 missing:
