@@ -17,7 +17,7 @@ for cmd in tests/golden/*.cmd; do
 	head -n 1 "$cmd" | grep -q '^#json' && flags="--json"
 	rm -rf "$tmp/work"
 	mkdir "$tmp/work"
-	cp "$cmd" "$tmp/work/"
+	cp "$cmd" recipes/*.ionmix "$tmp/work/"
 	(cd "$tmp/work" && LC_ALL=C HOME="$tmp/work" XDG_DATA_HOME="$tmp/work" \
 		"$abs" $flags --db user.db "$name.cmd" >"$tmp/out" 2>&1
 	 echo "exit $?" >>"$tmp/out")
