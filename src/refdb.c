@@ -99,6 +99,8 @@ static int load_sources(refdb *r, char *err)
 	return 0;
 }
 
+static void load_derived(refdb *r);
+
 static int load_ions(refdb *r, char *err)
 {
 	sqlite3_stmt *st;
@@ -120,7 +122,45 @@ static int load_ions(refdb *r, char *err)
 		x->size_source = src_by_id(r, sqlite3_column_text(st, 7));
 	}
 	sqlite3_finalize(st);
+	load_derived(r);
 	return 0;
+}
+
+/* Species the equilibria tables can produce (protonation states, metal
+ * complexes) that the ions table does not list: they join the ion array
+ * with their charge and no mobility or size, so that every species a
+ * solution holds after speciation is an rd_ion.  Nothing happens when the
+ * equilibria tables are absent. */
+static const char derived_sql[] =
+	"SELECT symbol, charge FROM eq_ligand_states"
+	" WHERE symbol NOT IN (SELECT symbol FROM ions)"
+	" UNION "
+	"SELECT c.symbol, m.charge * (CASE c.kind WHEN 'M2L' THEN 2 ELSE 1 END)"
+	" + l.base_charge * (CASE c.kind WHEN 'ML2' THEN 2 ELSE 1 END)"
+	" + (CASE c.kind WHEN 'MHL' THEN 1 ELSE 0 END)"
+	" FROM eq_complexes c JOIN eq_metals m ON m.symbol = c.metal"
+	" JOIN eq_ligands l ON l.name = c.ligand"
+	" WHERE c.symbol NOT IN (SELECT symbol FROM ions)"
+	" ORDER BY 1";
+
+static void load_derived(refdb *r)
+{
+	sqlite3_stmt *st;
+	if (sqlite3_prepare_v2(r->db, derived_sql, -1, &st, NULL) != SQLITE_OK) {
+		sqlite3_finalize(st);
+		return;
+	}
+	while (sqlite3_step(st) == SQLITE_ROW) {
+		rd_ion *x;
+		r->ion = im_xrealloc(r->ion, (r->nion + 1) * sizeof *r->ion);
+		x = &r->ion[r->nion++];
+		memset(x, 0, sizeof *x);
+		x->symbol = keep(r, sqlite3_column_text(st, 0));
+		x->name = "product of speciation (no mobility or size in the data)";
+		x->z = sqlite3_column_int(st, 1);
+		x->lambda_S_cm2_eq = x->D_1e9_m2_s = x->kielland_a_pm = NAN;
+	}
+	sqlite3_finalize(st);
 }
 
 static const rd_ion *ion_exact(const refdb *r, const char *sym)

@@ -1,0 +1,525 @@
+/*
+ * osmotic.c - Pitzer osmotic coefficients, molarity to molality, and the
+ * osmolality adjustment.  The model is stated in osmotic.h.
+ */
+#include "osmotic.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "activity.h"
+#include "common.h"
+
+#define SYMLEN         32
+#define COMPLEN        32
+#define MAX_PICKS      8
+#define PITZER_B       1.2    /* Pitzer's b, (kg/mol)^1/2 */
+#define A_PHI_25C      0.3915 /* Bradley & Pitzer 1979, from memory */
+#define ADJUST_MAX_mM  5000.0 /* largest amount osm_adjust will propose */
+#define ADJUST_TOL     1e-11  /* relative tolerance on the osmolality */
+#define ADJUST_MAXIT   300
+#define MIN_WATER_FRAC 0.05 /* 1 - sum c V below this: out of the model */
+
+typedef struct pz_row {
+	int cat, an; /* symbol indices */
+	char salt[SYMLEN];
+	char comp[COMPLEN];
+	int is_default;
+	double b0, b1, b2, a1, a2, cphi, m_max;
+	int zc, za;
+} pz_row;
+
+struct osm_data {
+	char (*sym)[SYMLEN]; /* every symbol named in the tables */
+	double *v0_L_mol;    /* partial molar volume, L/mol; NAN if none */
+	int nsym;
+	pz_row *pz;
+	int npz;
+	int *pair; /* nsym*nsym: active row or -1 */
+	char picks[MAX_PICKS][COMPLEN];
+	int npicks;
+};
+
+static int isdigit_ascii(int c)
+{
+	return c >= '0' && c <= '9';
+}
+
+static int sym_find(const osm_data *d, const char *s)
+{
+	for (int i = 0; i < d->nsym; i++)
+		if (strcmp(d->sym[i], s) == 0)
+			return i;
+	return -1;
+}
+
+static int sym_add(osm_data *d, const char *s, int *cap)
+{
+	int i = sym_find(d, s);
+	if (i >= 0)
+		return i;
+	if (d->nsym == *cap) {
+		*cap = *cap ? 2 * *cap : 32;
+		d->sym = im_xrealloc(d->sym, (size_t)*cap * sizeof *d->sym);
+		d->v0_L_mol =
+			im_xrealloc(d->v0_L_mol, (size_t)*cap * sizeof *d->v0_L_mol);
+	}
+	snprintf(d->sym[d->nsym], SYMLEN, "%s", s);
+	d->v0_L_mol[d->nsym] = NAN;
+	return d->nsym++;
+}
+
+/* Which row each pair uses: the latest pick that covers it, else the
+ * default row. */
+static void select_rows(osm_data *d)
+{
+	for (int i = 0; i < d->nsym * d->nsym; i++)
+		d->pair[i] = -1;
+	for (int r = 0; r < d->npz; r++) {
+		int k = d->pz[r].cat * d->nsym + d->pz[r].an;
+		if (d->pz[r].is_default && d->pair[k] < 0)
+			d->pair[k] = r;
+	}
+	for (int p = 0; p < d->npicks; p++)
+		for (int r = 0; r < d->npz; r++)
+			if (strcmp(d->pz[r].comp, d->picks[p]) == 0)
+				d->pair[d->pz[r].cat * d->nsym + d->pz[r].an] = r;
+}
+
+static const char *col_text(sqlite3_stmt *st, int i)
+{
+	const unsigned char *t = sqlite3_column_text(st, i);
+	return t ? (const char *)t : "";
+}
+
+int osm_load(sqlite3 *db, osm_data **out, char *err)
+{
+	*out = NULL;
+	if (!db)
+		return im_fail(err, "osmotic: no database");
+	osm_data *d = im_xcalloc(1, sizeof *d);
+	int cap = 0, pcap = 0;
+	sqlite3_stmt *st = NULL;
+	const char *q1 =
+		"SELECT cation, anion, salt, compilation, is_default, beta0, beta1, "
+		"beta2, alpha1, alpha2, c_phi, m_max_mol_kg FROM osm_pitzer ORDER BY "
+		"cation, anion, compilation";
+	if (sqlite3_prepare_v2(db, q1, -1, &st, NULL) != SQLITE_OK) {
+		im_fail(err, "osmotic: cannot read osm_pitzer: %s", sqlite3_errmsg(db));
+		goto fail;
+	}
+	int rc;
+	while ((rc = sqlite3_step(st)) == SQLITE_ROW) {
+		if (d->npz == pcap) {
+			pcap = pcap ? 2 * pcap : 32;
+			d->pz = im_xrealloc(d->pz, (size_t)pcap * sizeof *d->pz);
+		}
+		pz_row *p = &d->pz[d->npz];
+		memset(p, 0, sizeof *p);
+		p->cat = sym_add(d, col_text(st, 0), &cap);
+		p->an = sym_add(d, col_text(st, 1), &cap);
+		snprintf(p->salt, SYMLEN, "%s", col_text(st, 2));
+		snprintf(p->comp, COMPLEN, "%s", col_text(st, 3));
+		p->is_default = sqlite3_column_int(st, 4);
+		p->b0 = sqlite3_column_double(st, 5);
+		p->b1 = sqlite3_column_double(st, 6);
+		p->b2 = sqlite3_column_double(st, 7);
+		p->a1 = sqlite3_column_double(st, 8);
+		p->a2 = sqlite3_column_double(st, 9);
+		p->cphi = sqlite3_column_double(st, 10);
+		p->m_max = sqlite3_column_double(st, 11);
+		d->npz++;
+	}
+	sqlite3_finalize(st);
+	st = NULL;
+	if (rc != SQLITE_DONE) {
+		im_fail(err, "osmotic: reading osm_pitzer: %s", sqlite3_errmsg(db));
+		goto fail;
+	}
+	const char *q2 = "SELECT symbol, v0_cm3_mol FROM osm_molar_volumes";
+	if (sqlite3_prepare_v2(db, q2, -1, &st, NULL) != SQLITE_OK) {
+		im_fail(err, "osmotic: cannot read osm_molar_volumes: %s",
+			sqlite3_errmsg(db));
+		goto fail;
+	}
+	while ((rc = sqlite3_step(st)) == SQLITE_ROW) {
+		int i = sym_add(d, col_text(st, 0), &cap);
+		d->v0_L_mol[i] = sqlite3_column_double(st, 1) / 1000.0;
+	}
+	sqlite3_finalize(st);
+	st = NULL;
+	if (rc != SQLITE_DONE) {
+		im_fail(err, "osmotic: reading osm_molar_volumes: %s",
+			sqlite3_errmsg(db));
+		goto fail;
+	}
+	/* Charges follow from the symbols' signs; the loader checks that every
+	 * pair has exactly one default row. */
+	for (int r = 0; r < d->npz; r++) {
+		pz_row *p = &d->pz[r];
+		const char *c = d->sym[p->cat], *a = d->sym[p->an];
+		size_t lc = strlen(c), la = strlen(a);
+		if (lc < 2 || la < 2 || c[lc - 1] != '+' || a[la - 1] != '-') {
+			im_fail(err,
+				"osmotic: osm_pitzer %s: '%s' '%s' are not a cation and "
+				"an anion",
+				p->salt, c, a);
+			goto fail;
+		}
+		p->zc = isdigit_ascii(c[lc - 2]) ? c[lc - 2] - '0' : 1;
+		p->za = -(isdigit_ascii(a[la - 2]) ? a[la - 2] - '0' : 1);
+		if (!(p->m_max > 0) || !isfinite(p->b0 + p->b1 + p->b2 + p->cphi)) {
+			im_fail(err, "osmotic: osm_pitzer %s: bad parameters", p->salt);
+			goto fail;
+		}
+	}
+	d->pair = im_xmalloc((size_t)(d->nsym ? d->nsym * d->nsym : 1) * sizeof *d->pair);
+	select_rows(d);
+	for (int r = 0; r < d->npz; r++) {
+		int ndef = 0;
+		for (int s = 0; s < d->npz; s++)
+			if (d->pz[s].cat == d->pz[r].cat && d->pz[s].an == d->pz[r].an)
+				ndef += d->pz[s].is_default;
+		if (ndef != 1) {
+			im_fail(err,
+				"osmotic: osm_pitzer %s: %d default rows, need exactly 1",
+				d->pz[r].salt, ndef);
+			goto fail;
+		}
+	}
+	*out = d;
+	return 0;
+fail:
+	if (st)
+		sqlite3_finalize(st);
+	osm_data_free(d);
+	return -1;
+}
+
+void osm_data_free(osm_data *d)
+{
+	if (!d)
+		return;
+	free(d->sym);
+	free(d->v0_L_mol);
+	free(d->pz);
+	free(d->pair);
+	free(d);
+}
+
+int osm_use_compilation(osm_data *d, const char *name, char *err)
+{
+	if (!name || !*name)
+		return im_fail(err, "no compilation named");
+	if (im_strcaseeq(name, "default")) {
+		d->npicks = 0;
+		select_rows(d);
+		return 0;
+	}
+	const char *found = NULL;
+	for (int r = 0; r < d->npz && !found; r++)
+		if (im_strcaseeq(d->pz[r].comp, name))
+			found = d->pz[r].comp;
+	if (!found)
+		return im_fail(err, "no Pitzer parameters from a compilation named '%s'",
+			       name);
+	if (d->npicks == MAX_PICKS)
+		return im_fail(err, "too many compilations picked (at most %d)",
+			       MAX_PICKS);
+	snprintf(d->picks[d->npicks++], COMPLEN, "%s", found);
+	select_rows(d);
+	return 0;
+}
+
+double osm_a_phi(double t_C)
+{
+	return A_PHI_25C * act_dh_A(t_C) / act_dh_A(25.0);
+}
+
+static int check_input(const osm_species *sp, int n, double t_C, char *err)
+{
+	if (n < 0 || (n > 0 && !sp))
+		return im_fail(err, "osmolality: no species given");
+	if (!isfinite(t_C) || t_C < 0 || t_C > 100)
+		return im_fail(err, "osmolality: temperature %g C outside 0-100 C", t_C);
+	for (int i = 0; i < n; i++) {
+		if (!isfinite(sp[i].conc) || sp[i].conc < 0)
+			return im_fail(err,
+				       "osmolality: concentration of %s is %g, must be a "
+				       "finite number >= 0",
+				       sp[i].symbol ? sp[i].symbol : "?", sp[i].conc);
+		if (sp[i].z < -6 || sp[i].z > 6)
+			return im_fail(err, "osmolality: charge %d of %s out of range",
+				       sp[i].z, sp[i].symbol ? sp[i].symbol : "?");
+	}
+	return 0;
+}
+
+int osm_molal(const osm_data *d, const osm_species *sp, int n, double t_C, osm_result *r,
+	      char *err)
+{
+	memset(r, 0, sizeof *r);
+	if (!d)
+		return im_fail(err, "osmolality: no parameter data loaded");
+	if (check_input(sp, n, t_C, err))
+		return -1;
+	/* symbol indices, once */
+	int idx_buf[64], *idx = n <= 64 ? idx_buf : im_xmalloc((size_t)n * sizeof *idx);
+	double msum = 0, I = 0, Z = 0;
+	for (int i = 0; i < n; i++) {
+		double m = sp[i].conc / 1000.0;
+		idx[i] = sp[i].z && sp[i].symbol ? sym_find(d, sp[i].symbol) : -1;
+		msum += m;
+		I += 0.5 * m * sp[i].z * sp[i].z;
+		Z += m * abs(sp[i].z);
+	}
+	double sqI = sqrt(I), s = 0, prod_all = 0, prod_fb = 0;
+	for (int c = 0; c < n; c++) {
+		if (sp[c].z <= 0 || sp[c].conc <= 0)
+			continue;
+		for (int a = 0; a < n; a++) {
+			if (sp[a].z >= 0 || sp[a].conc <= 0)
+				continue;
+			double mm = sp[c].conc * sp[a].conc * 1e-6;
+			int row = idx[c] >= 0 && idx[a] >= 0
+					  ? d->pair[idx[c] * d->nsym + idx[a]]
+					  : -1;
+			prod_all += mm;
+			if (row < 0) {
+				prod_fb += mm;
+				r->n_fallback_pairs++;
+				continue;
+			}
+			const pz_row *p = &d->pz[row];
+			double B = p->b0 + p->b1 * exp(-p->a1 * sqI) +
+				   p->b2 * exp(-p->a2 * sqI);
+			double C = p->cphi / (2.0 * sqrt((double)abs(p->zc * p->za)));
+			s += mm * (B + Z * C);
+			int g = p->zc == -p->za ? p->zc : 1; /* 1-1, 2-2: one of each */
+			double nc = -p->za / g, na = p->zc / g;
+			double Imax = 0.5 * p->m_max *
+				      (nc * p->zc * p->zc + na * p->za * p->za);
+			if (I > Imax)
+				r->over_range = 1;
+		}
+	}
+	if (idx != idx_buf)
+		free(idx);
+	double f = -osm_a_phi(t_C) * I * sqI / (1.0 + PITZER_B * sqI);
+	r->phi = msum > 0 ? 1.0 + 2.0 / msum * (f + s) : 1.0;
+	r->molality_sum_mmol_kg = msum * 1000.0;
+	r->osmolality_mOsm_kg = r->phi * msum * 1000.0;
+	r->ionic_strength_mmol_kg = I * 1000.0;
+	r->fallback_frac = prod_all > 0 ? prod_fb / prod_all : 0.0;
+	if (!isfinite(r->osmolality_mOsm_kg) || r->phi <= 0)
+		return im_fail(err,
+			       "osmolality: outside the range of the Pitzer model (ionic "
+			       "strength %.3g mol/kg)",
+			       I);
+	return 0;
+}
+
+int osm_to_molal(const osm_data *d, const osm_species *sp, int n, double t_C,
+		 double *m_mmol_kg, double *water_kg_L, char *err)
+{
+	if (!d)
+		return im_fail(err, "osmolality: no parameter data loaded");
+	if (check_input(sp, n, t_C, err))
+		return -1;
+	double cv = 0;
+	for (int i = 0; i < n; i++) {
+		int k = sp[i].symbol ? sym_find(d, sp[i].symbol) : -1;
+		double v = k >= 0 ? d->v0_L_mol[k] : NAN;
+		if (isfinite(v))
+			cv += sp[i].conc / 1000.0 * v;
+	}
+	if (1.0 - cv < MIN_WATER_FRAC)
+		return im_fail(err,
+			       "osmolality: solution too concentrated for the molality "
+			       "conversion (solutes fill %.0f %% of the volume)",
+			       100 * cv);
+	double w = act_water_density_g_cm3(t_C) * (1.0 - cv);
+	for (int i = 0; i < n; i++)
+		m_mmol_kg[i] = sp[i].conc / w;
+	if (water_kg_L)
+		*water_kg_L = w;
+	return 0;
+}
+
+int osm_molar(const osm_data *d, const osm_species *sp, int n, double t_C, osm_result *r,
+	      char *err)
+{
+	memset(r, 0, sizeof *r);
+	double w, ideal = 0;
+	osm_species buf[64] = {{0}},
+		    *m = n <= 64 ? buf : im_xmalloc((size_t)n * sizeof *m);
+	double mb[64] = {0}, *mm = n <= 64 ? mb : im_xmalloc((size_t)n * sizeof *mm);
+	int rc = osm_to_molal(d, sp, n, t_C, mm, &w, err);
+	int nov = 0;
+	if (rc == 0) {
+		for (int i = 0; i < n; i++) {
+			m[i] = sp[i];
+			m[i].conc = mm[i];
+			ideal += sp[i].conc;
+			int k = sp[i].symbol ? sym_find(d, sp[i].symbol) : -1;
+			nov += !(k >= 0 && isfinite(d->v0_L_mol[k])) && sp[i].conc > 0;
+		}
+		rc = osm_molal(d, m, n, t_C, r, err);
+	}
+	if (m != buf)
+		free(m);
+	if (mm != mb)
+		free(mm);
+	if (rc)
+		return -1;
+	r->osmolarity_ideal_mOsm_L = ideal;
+	r->water_kg_L = w;
+	r->n_no_volume = nov;
+	return 0;
+}
+
+/* ---- osm_adjust ---- */
+
+typedef struct adj_ctx {
+	const osm_data *d;
+	const osm_species *sp;
+	int n;
+	const osm_species *add;
+	int nadd;
+	double t_C;
+	osm_species *tmp; /* n + nadd */
+	int dilute;
+} adj_ctx;
+
+/* Osmolality at parameter p: dilute: species scaled by p (0..1]; else
+ * p mM of the compound added. */
+static int adj_eval(adj_ctx *a, double p, double *osm, char *err)
+{
+	int k = 0;
+	for (int i = 0; i < a->n; i++) {
+		a->tmp[k] = a->sp[i];
+		if (a->dilute)
+			a->tmp[k].conc *= p;
+		k++;
+	}
+	for (int i = 0; !a->dilute && i < a->nadd; i++) {
+		a->tmp[k] = a->add[i];
+		a->tmp[k].conc = a->add[i].conc * p;
+		k++;
+	}
+	osm_result r;
+	if (osm_molar(a->d, a->tmp, k, a->t_C, &r, err))
+		return -1;
+	*osm = r.osmolality_mOsm_kg;
+	return 0;
+}
+
+/* Increasing function on [lo, hi] with f(lo) < target <= f(hi): Illinois
+ * false position with bisection whenever it stalls. */
+static int adj_root(adj_ctx *a, double lo, double flo, double hi, double fhi,
+		    double target, double *x, char *err)
+{
+	double glo = flo - target, ghi = fhi - target;
+	int side = 0;
+	for (int it = 0; it < ADJUST_MAXIT; it++) {
+		double m = (glo * hi - ghi * lo) / (glo - ghi);
+		if (!(m > lo && m < hi) || it % 8 == 7)
+			m = 0.5 * (lo + hi);
+		double fm;
+		if (adj_eval(a, m, &fm, err))
+			return -1;
+		double gm = fm - target;
+		if (fabs(gm) <= ADJUST_TOL * target || hi - lo <= 1e-15 * hi) {
+			*x = m;
+			return 0;
+		}
+		if (gm < 0) {
+			lo = m, glo = gm;
+			if (side == -1)
+				ghi *= 0.5;
+			side = -1;
+		} else {
+			hi = m, ghi = gm;
+			if (side == 1)
+				glo *= 0.5;
+			side = 1;
+		}
+	}
+	return im_fail(err, "osmolality adjustment did not converge");
+}
+
+int osm_adjust(const osm_data *d, const osm_species *sp, int n, double t_C,
+	       double target_mOsm_kg, const osm_species *add, int nadd,
+	       osm_adjust_result *r, char *err)
+{
+	memset(r, 0, sizeof *r);
+	if (!isfinite(target_mOsm_kg))
+		return im_fail(err, "osmolality target is not a number");
+	if (target_mOsm_kg < 0)
+		return im_fail(err, "osmolality target %g mOsm/kg is negative",
+			       target_mOsm_kg);
+	if (target_mOsm_kg == 0)
+		return im_fail(err, "osmolality target must be above 0 mOsm/kg");
+	if (nadd < 0 || (nadd > 0 && !add))
+		return im_fail(err, "osmolality adjustment: bad compound yields");
+	if (nadd > 0 && check_input(add, nadd, t_C, err))
+		return -1;
+	osm_result r0;
+	if (osm_molar(d, sp, n, t_C, &r0, err))
+		return -1;
+	r->before_mOsm_kg = r0.osmolality_mOsm_kg;
+	adj_ctx a = {d, sp, n, add, nadd, t_C, NULL, 0};
+	a.tmp = im_xmalloc((size_t)(n + nadd + 1) * sizeof *a.tmp);
+	double before = r0.osmolality_mOsm_kg, x = 0, fx;
+	int rc = 0;
+	if (fabs(before - target_mOsm_kg) <= ADJUST_TOL * target_mOsm_kg) {
+		r->after_mOsm_kg = before;
+	} else if (before > target_mOsm_kg) {
+		/* dilute: scale p = 1/f in (0, 1), osm(0) = 0 < target < osm(1) */
+		a.dilute = 1;
+		r->dilute = 1;
+		rc = adj_root(&a, 0.0, 0.0, 1.0, before, target_mOsm_kg, &x, err);
+		if (rc == 0) {
+			r->water_mL_per_L = (1.0 / x - 1.0) * 1000.0;
+			rc = adj_eval(&a, x, &fx, err);
+			r->after_mOsm_kg = fx;
+		}
+	} else {
+		double tot = 0;
+		for (int i = 0; i < nadd; i++)
+			tot += add[i].conc;
+		if (nadd == 0 || !(tot > 0)) {
+			rc = im_fail(err,
+				     "osmolality %.1f mOsm/kg is below the target %.1f: "
+				     "name a compound to add",
+				     before, target_mOsm_kg);
+		} else {
+			double hi = fmax(1.0, (target_mOsm_kg - before) / tot), fhi = 0;
+			while ((rc = adj_eval(&a, hi, &fhi, err)) == 0 &&
+			       fhi < target_mOsm_kg && hi < ADJUST_MAX_mM)
+				hi = fmin(2.0 * hi, ADJUST_MAX_mM);
+			if (rc == 0 && fhi < target_mOsm_kg)
+				rc = im_fail(err,
+					     "target %.1f mOsm/kg needs more than %.0f "
+					     "mM of the compound",
+					     target_mOsm_kg, ADJUST_MAX_mM);
+			else if (rc)
+				rc = im_fail(err,
+					     "target %.1f mOsm/kg is out of reach with "
+					     "this compound (%s)",
+					     target_mOsm_kg, "solution too concentrated");
+			if (rc == 0)
+				rc = adj_root(&a, 0.0, before, hi, fhi, target_mOsm_kg,
+					      &x, err);
+			if (rc == 0) {
+				r->add_mM = x;
+				rc = adj_eval(&a, x, &fx, err);
+				r->after_mOsm_kg = fx;
+			}
+		}
+	}
+	free(a.tmp);
+	return rc;
+}
