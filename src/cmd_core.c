@@ -236,9 +236,31 @@ static int unbalanced(const sol_state *st)
 	return fabs(st->net_charge_mEq_L) > (lim > 0.1 ? lim : 0.1);
 }
 
+/* The largest ions of the excess sign, for naming what lacks a counter-ion. */
+static void excess_ions(const sol_state *st, char *buf, size_t n)
+{
+	size_t len = 0;
+	int sign = st->net_charge_mEq_L > 0 ? 1 : -1, used[64] = {0};
+	buf[0] = '\0';
+	for (int k = 0; k < 3; k++) {
+		int best = -1;
+		for (int j = 0; j < st->n && j < 64; j++)
+			if (!used[j] && st->sp[j].ion->z * sign > 0 &&
+			    (best < 0 || st->sp[j].mM * abs(st->sp[j].ion->z) >
+						 st->sp[best].mM * abs(st->sp[best].ion->z)))
+				best = j;
+		if (best < 0)
+			break;
+		used[best] = 1;
+		len += snprintf(buf + len, len < n ? n - len : 0, "%s%s", k ? ", " : "",
+				st->sp[best].ion->symbol);
+	}
+}
+
 static void show_json(im_ctx *ctx, const solution *s, const sol_state *st)
 {
 	jw w;
+	const spec_result *r = st->chem;
 	jw_begin(&w, ctx->out);
 	jw_str(&w, "solution", s->name);
 	jw_num(&w, "temperature_C", st->t_C, 6);
@@ -248,6 +270,8 @@ static void show_json(im_ctx *ctx, const solution *s, const sol_state *st)
 		jw_obj(&w, NULL);
 		jw_str(&w, "compound", s->items[i].c->name);
 		jw_num(&w, "mM", s->items[i].mM, 10);
+		if (s->items[i].titrant)
+			jw_bool(&w, "titrant", 1);
 		jw_close(&w);
 	}
 	jw_close(&w);
@@ -279,18 +303,96 @@ static void show_json(im_ctx *ctx, const solution *s, const sol_state *st)
 	jw_num(&w, "osmolarity_mOsm_L", st->osmolarity_mOsm_L, 8);
 	jw_num(&w, "net_charge_mEq_L", st->net_charge_mEq_L, 6);
 	jw_bool(&w, "electroneutral", !unbalanced(st));
+	if (r) {
+		jw_num(&w, "pH", st->pH, 6);
+		jw_str(&w, "pH_from", s->co2_frac > 0 ? "co2" : "closed");
+		if (isfinite(s->ph_target))
+			jw_num(&w, "target_pH", s->ph_target, 6);
+		if (s->co2_frac > 0)
+			jw_num(&w, "co2_fraction", s->co2_frac, 6);
+		jw_obj(&w, "free");
+		for (int m = 0; m < r->nmetals; m++)
+			jw_num(&w, r->metals[m].symbol, r->metals[m].free_mM, 8);
+		jw_close(&w);
+		jw_arr(&w, "metals");
+		for (int m = 0; m < r->nmetals; m++) {
+			jw_obj(&w, NULL);
+			jw_str(&w, "metal", r->metals[m].symbol);
+			jw_num(&w, "total_mM", r->metals[m].total_mM, 8);
+			jw_num(&w, "free_mM", r->metals[m].free_mM, 8);
+			jw_num(&w, "bound_mM", r->metals[m].bound_mM, 8);
+			jw_close(&w);
+		}
+		jw_close(&w);
+		jw_num(&w, "osmolality_mOsm_kg", st->osmolality_mOsm_kg, 6);
+		jw_num(&w, "osmotic_coefficient", st->osmotic_coeff, 6);
+		jw_num(&w, "osmotic_fallback_fraction", st->osm_fallback_frac, 4);
+		jw_arr(&w, "warnings");
+		for (int i = 0; i < r->nwarn; i++)
+			jw_str(&w, NULL, r->warnings[i]);
+		jw_close(&w);
+	}
 	jw_end(&w);
+}
+
+/* Concentration column: adaptive unit, right-aligned in width 12. */
+static const char *conc_col(char *buf, size_t n, double mM, int utf8)
+{
+	char t[48];
+	int cont = 0;
+	units_fmt_conc(t, sizeof t, mM, utf8);
+	for (const char *p = t; *p; p++) /* UTF-8 continuation bytes take no column */
+		cont += ((unsigned char)*p & 0xc0) == 0x80;
+	snprintf(buf, n, "%*s", 12 + cont, t);
+	return buf;
+}
+
+/* Below this a species is not worth a line in `show` (1 pM). */
+#define SHOW_MIN_mM 1e-9
+
+static void show_chemistry(im_ctx *ctx, const solution *s, const sol_state *st)
+{
+	const spec_result *r = st->chem;
+	char b1[48], b2[48];
+	int utf8 = ctx->out->utf8;
+	if (s->co2_frac > 0)
+		out_printf(ctx->out, "  pH %25.2f   (equilibrated with %.3g %% CO2%s; an "
+				     "electrode reads it as -log a(H+))\n", st->pH,
+			   100 * s->co2_frac, s->co2_dry ? ", dry gas" : "");
+	else
+		out_printf(ctx->out, "  pH %25.2f   (from the protons present%s; as an "
+				     "electrode reads it: -log a(H+))\n", st->pH,
+			   isfinite(s->ph_target) ? ", titrated" : "");
+	for (int m = 0; m < r->nmetals; m++) {
+		if (!(r->metals[m].total_mM > 0))
+			continue;
+		units_fmt_conc(b1, sizeof b1, r->metals[m].free_mM, utf8);
+		units_fmt_conc(b2, sizeof b2, r->metals[m].total_mM, utf8);
+		out_printf(ctx->out, "  free %-8s %19s   (of %s total; %.1f %% bound)\n",
+			   r->metals[m].symbol, b1, b2,
+			   100 * r->metals[m].bound_mM / r->metals[m].total_mM);
+	}
+	if (isfinite(st->osmolality_mOsm_kg)) {
+		out_printf(ctx->out, "  osmolality (estimate) %9.0f mOsm/kg  (Pitzer; osmotic "
+				     "coefficient %.3f", st->osmolality_mOsm_kg, st->osmotic_coeff);
+		if (st->osm_fallback_frac > 0.05)
+			out_printf(ctx->out, "; %.0f %% of ion pairs lack parameters and count by "
+					     "Debye-Hueckel alone", 100 * st->osm_fallback_frac);
+		out_printf(ctx->out, ")\n");
+	}
+	for (int i = 0; i < r->nwarn; i++)
+		out_printf(ctx->out, "  note: %s\n", r->warnings[i]);
 }
 
 int cmd_show(im_ctx *ctx, int argc, char **argv, char *err)
 {
 	solution *s;
 	sol_state st;
-	char buf[64], t[16];
-	int neutral = 0;
+	char buf[64], t[16], c1[48], c2[48];
+	int neutral = 0, hidden = 0;
 	if (core_solution(ctx, argc > 1 ? argv[1] : NULL, &s, err))
 		return -1;
-	if (sol_compute(s, ctx->temp_C, ctx->model, &st, err))
+	if (sol_compute(s, ctx_env(ctx), &st, err))
 		return -1;
 	if (ctx->out->json) {
 		show_json(ctx, s, &st);
@@ -308,38 +410,53 @@ int cmd_show(im_ctx *ctx, int argc, char **argv, char *err)
 	out_printf(ctx->out, "  %-22s %12s\n", "compound", "amount");
 	for (int i = 0; i < s->n; i++) {
 		units_fmt_conc(buf, sizeof buf, s->items[i].mM, ctx->out->utf8);
-		out_printf(ctx->out, "  %-22s %12s%s\n", s->items[i].c->name, buf,
+		out_printf(ctx->out, "  %-22s %12s%s%s\n", s->items[i].c->name, buf,
+			   s->items[i].titrant ? "  (titrant)" : "",
 			   s->items[i].stock_mM > 0 ? "  (from stock)" : "");
 	}
-	out_printf(ctx->out, "\n  %-14s %3s %12s %8s %13s\n", "ion", "z", "mM", "gamma",
-		   "activity mM");
+	out_printf(ctx->out, "\n  %-14s %3s %12s %8s %12s\n", "ion", "z", "free", "gamma",
+		   "activity");
 	for (int j = 0; j < st.n; j++) {
 		const sol_species *x = &st.sp[j];
 		if (x->ion->z == 0) {
 			neutral++;
 			continue;
 		}
-		out_printf(ctx->out, "  %-14s %+3d %12.4f %8.4f %13.4f%s\n", x->ion->symbol,
-			   x->ion->z, x->mM, x->gamma, x->act_mM, x->dh_fallback ? "  (Davies: no size)" : "");
+		if (x->mM < SHOW_MIN_mM) {
+			hidden++;
+			continue;
+		}
+		out_printf(ctx->out, "  %-14s %+3d %s %8.4f %s%s\n", x->ion->symbol, x->ion->z,
+			   conc_col(c1, sizeof c1, x->mM, ctx->out->utf8), x->gamma,
+			   conc_col(c2, sizeof c2, x->act_mM, ctx->out->utf8),
+			   x->dh_fallback ? "  (Davies: no size)" : "");
 	}
 	if (neutral) {
-		out_printf(ctx->out, "\n  %-14s %16s\n", "neutral solute", "mM");
+		out_printf(ctx->out, "\n  %-14s %16s\n", "neutral solute", "");
 		for (int j = 0; j < st.n; j++)
-			if (st.sp[j].ion->z == 0)
-				out_printf(ctx->out, "  %-14s %16.4f\n", st.sp[j].ion->symbol,
-					   st.sp[j].mM);
+			if (st.sp[j].ion->z == 0 && st.sp[j].mM >= SHOW_MIN_mM)
+				out_printf(ctx->out, "  %-14s     %s\n", st.sp[j].ion->symbol,
+					   conc_col(c1, sizeof c1, st.sp[j].mM, ctx->out->utf8));
 	}
+	if (hidden)
+		out_printf(ctx->out, "  (%d species below 1 pM not listed)\n", hidden);
 	out_printf(ctx->out, "\n  ionic strength       %10.2f mM\n", st.ionic_strength_mM);
-	out_printf(ctx->out, "  osmolarity (ideal)   %10.1f mOsm/L   (sum of particles; an "
-			     "osmometer reads less)\n", st.osmolarity_mOsm_L);
+	out_printf(ctx->out, "  osmolarity (ideal)   %10.1f mOsm/L   (sum of particles)\n",
+		   st.osmolarity_mOsm_L);
+	if (st.chem)
+		show_chemistry(ctx, s, &st);
 	out_printf(ctx->out, "  net charge           %+10.2f mEq/L%s\n", st.net_charge_mEq_L,
 		   unbalanced(&st) ? "" : "   (electroneutral)");
-	if (unbalanced(&st))
+	if (unbalanced(&st)) {
+		char ions[128];
+		excess_ions(&st, ions, sizeof ions);
 		out_printf(ctx->out, "  warning: not electroneutral: %+.2f mEq/L of %s charge "
-				     "lacks a counter-ion\n", st.net_charge_mEq_L,
-			   st.net_charge_mEq_L > 0 ? "positive" : "negative");
-	out_printf(ctx->out, "  note: buffers and chelators are taken as added (no pH or "
-			     "binding yet); every salt dissociates fully\n");
+				     "(mostly %s) lacks counter-ions\n", st.net_charge_mEq_L,
+			   st.net_charge_mEq_L > 0 ? "positive" : "negative", ions);
+	}
+	if (!st.chem)
+		out_printf(ctx->out, "  note: buffers and chelators are taken as added (no pH or "
+				     "binding); every salt dissociates fully\n");
 	sol_state_free(&st);
 	return 0;
 }
@@ -368,9 +485,9 @@ int cmd_nernst(im_ctx *ctx, int argc, char **argv, char *err)
 	}
 	if (core_solution(ctx, argv[1], &in, err) || core_solution(ctx, argv[2], &outs, err))
 		return -1;
-	if (sol_compute(in, ctx->temp_C, ctx->model, &si, err))
+	if (sol_compute(in, ctx_env(ctx), &si, err))
 		return -1;
-	if (sol_compute(outs, ctx->temp_C, ctx->model, &so, err)) {
+	if (sol_compute(outs, ctx_env(ctx), &so, err)) {
 		sol_state_free(&si);
 		return -1;
 	}
@@ -380,7 +497,9 @@ int cmd_nernst(im_ctx *ctx, int argc, char **argv, char *err)
 		for (int j = 0; j < st->n; j++) {
 			const rd_ion *ion = st->sp[j].ion;
 			int k = 0;
-			if (ion->z == 0)
+			/* complexes and protonation states have no channel of their
+			 * own; OH- moves with H+, which is listed */
+			if (ion->z == 0 || ion->derived || strcmp(ion->symbol, "OH-") == 0)
 				continue;
 			while (k < n && rows[k].ion != ion)
 				k++;
@@ -473,6 +592,8 @@ int cmd_weigh(im_ctx *ctx, int argc, char **argv, char *err)
 			jw_num(&w, "mM", it->mM, 10);
 			jw_num(&w, "fw_g_mol", it->c->fw_g_mol, 8);
 			jw_num(&w, "grams", g, 6);
+			if (it->titrant)
+				jw_bool(&w, "titrant", 1);
 			if (it->stock_mM > 0) {
 				jw_num(&w, "stock_mM", it->stock_mM, 8);
 				jw_num(&w, "stock_mL", weigh_stock_mL(it->mM, it->stock_mM, mL), 6);
@@ -499,15 +620,18 @@ int cmd_weigh(im_ctx *ctx, int argc, char **argv, char *err)
 			weigh_fmt_volume(v, sizeof v,
 					 weigh_stock_mL(it->mM, it->stock_mM, mL), ctx->out->utf8);
 			units_fmt_conc(sc, sizeof sc, it->stock_mM, ctx->out->utf8);
-			out_printf(ctx->out, "  %-22s %12s %10.2f  %s of %s stock\n", it->c->name,
-				   conc, it->c->fw_g_mol, v, sc);
+			out_printf(ctx->out, "  %-22s %12s %10.2f  %s of %s stock%s\n", it->c->name,
+				   conc, it->c->fw_g_mol, v, sc,
+				   it->titrant ? " (titrant: start from this, finish with the pH "
+						 "meter)" : "");
 			continue;
 		}
 		total += g;
 		weigh_fmt_mass(m, sizeof m, g);
 		out_printf(ctx->out, "  %-22s %12s %10.2f  %s%s\n", it->c->name, conc,
 			   it->c->fw_g_mol, m,
-			   g < WEIGH_MIN_GOOD_g ? "  (under 10 mg: better from a stock)" : "");
+			   it->titrant ? "  (titrant: start from this, finish with the pH meter)"
+			   : g < WEIGH_MIN_GOOD_g ? "  (under 10 mg: better from a stock)" : "");
 	}
 	weigh_fmt_mass(m, sizeof m, total);
 	out_printf(ctx->out, "  %-22s %12s %10s  %s\n", "total to weigh", "", "", m);
@@ -653,13 +777,30 @@ static void write_recipe(FILE *fp, const solution *s)
 	strftime(stamp, sizeof stamp, "%Y-%m-%d", gmtime(&now));
 	fprintf(fp, "# ionmix recipe: %s\n# exported %s by ionmix %s; replay with "
 		    "`ionmix FILE` or `run FILE`\n", s->name, stamp, IONMIX_VERSION);
-	fprintf(fp, "solution %s\nclear\n", s->name);
+	fprintf(fp, "solution %s\nclear\ngas off\n", s->name);
 	for (int i = 0; i < s->n; i++) {
-		fprintf(fp, "set \"%s\" %.10g mM\n", s->items[i].c->name, s->items[i].mM);
-		if (s->items[i].stock_mM > 0)
-			fprintf(fp, "stock \"%s\" %.10g mM\n", s->items[i].c->name,
-				s->items[i].stock_mM);
+		const sol_item *it = &s->items[i];
+		if (it->titrant)
+			continue;
+		fprintf(fp, "set \"%s\" %.10g mM\n", it->c->name, it->mM);
+		if (it->stock_mM > 0)
+			fprintf(fp, "stock \"%s\" %.10g mM\n", it->c->name, it->stock_mM);
 	}
+	/* the titrant is computed again by `ph` when the recipe runs */
+	for (int i = 0; i < s->n; i++) {
+		const sol_item *it = &s->items[i];
+		if (!it->titrant)
+			continue;
+		fprintf(fp, "# %s: %.10g mM when exported\n", it->c->name, it->mM);
+		if (it->stock_mM > 0)
+			fprintf(fp, "ph %.10g with \"%s\" stock %.10g mM\n", s->ph_target,
+				it->c->name, it->stock_mM);
+		else
+			fprintf(fp, "ph %.10g with \"%s\"\n", s->ph_target, it->c->name);
+	}
+	if (s->co2_frac > 0)
+		fprintf(fp, "gas co2 %.10g%%%s pressure %.10g\n", 100 * s->co2_frac,
+			s->co2_dry ? " dry" : "", s->co2_p_atm);
 }
 
 /* Write a file through a temporary in the same directory and rename, so a
@@ -715,9 +856,9 @@ int core_run_stream(im_ctx *ctx, void *stream, const char *file, int *line_out,
 	char *line = NULL;
 	size_t cap = 0;
 	ssize_t len;
-	int lineno = 0, rc = 0;
+	int lineno = 0, rc = 0, e;
 	(void)file; /* the caller names the file in its message */
-	while ((len = getline(&line, &cap, fp)) >= 0) {
+	while (errno = 0, (len = getline(&line, &cap, fp)) >= 0) {
 		lineno++;
 		if (len > CMD_LINE_MAX) {
 			rc = im_fail(err, "line is longer than %d bytes", CMD_LINE_MAX);
@@ -732,6 +873,13 @@ int core_run_stream(im_ctx *ctx, void *stream, const char *file, int *line_out,
 			rc = -1;
 			break;
 		}
+	}
+	/* a directory opens but does not read (EISDIR); neither may pass for
+	 * an empty script */
+	e = errno;
+	if (rc == 0 && ferror(fp)) {
+		lineno++;
+		rc = im_fail(err, "cannot read it: %s", strerror(e ? e : EIO));
 	}
 	free(line);
 	*line_out = lineno;

@@ -36,9 +36,9 @@ static int henderson(im_ctx *ctx, const char *pip, const char *bath, double *ljp
 	int rc;
 	if (core_solution(ctx, pip, &sp, err) || core_solution(ctx, bath, &sb, err))
 		return -1;
-	if (sol_compute(sp, ctx->temp_C, ctx->model, &st[0], err))
+	if (sol_compute(sp, ctx_env(ctx), &st[0], err))
 		return -1;
-	if (sol_compute(sb, ctx->temp_C, ctx->model, &st[1], err)) {
+	if (sol_compute(sb, ctx_env(ctx), &st[1], err)) {
 		sol_state_free(&st[0]);
 		return -1;
 	}

@@ -157,7 +157,7 @@ static int side_open(im_ctx *ctx, const char *name, side *s, char *err)
 	s->sol = ws_find(&ctx->ws, name);
 	if (!s->sol)
 		return im_fail(err, "unknown solution '%.60s' (see `list`)", name);
-	if (sol_compute(s->sol, ctx->temp_C, ctx->model, &s->st, err))
+	if (sol_compute(s->sol, ctx_env(ctx), &s->st, err))
 		return -1;
 	s->have = 1;
 	return 0;

@@ -326,9 +326,9 @@ static void strong_caution(const pair *p, const double *share, const char *pip,
 static int states(im_ctx *ctx, const solution *a, const solution *b, sol_state *sa,
 		  sol_state *sb, char *err)
 {
-	if (sol_compute(a, ctx->temp_C, ctx->model, sa, err))
+	if (sol_compute(a, ctx_env(ctx), sa, err))
 		return -1;
-	if (sol_compute(b, ctx->temp_C, ctx->model, sb, err)) {
+	if (sol_compute(b, ctx_env(ctx), sb, err)) {
 		sol_state_free(sa);
 		return -1;
 	}
@@ -800,7 +800,7 @@ static int bridge_state(im_ctx *ctx, xargs *x, sol_state *st, char *err)
 	x->salt_c = c;
 	sol_init(&tmp, "bridge");
 	sol_add(&tmp, c, x->salt_mM);
-	rc = sol_compute(&tmp, ctx->temp_C, ctx->model, st, err);
+	rc = sol_compute(&tmp, ctx_env(ctx), st, err);
 	sol_free(&tmp);
 	if (rc)
 		return -1;
@@ -853,7 +853,7 @@ int cmd_exchange(im_ctx *ctx, int argc, char **argv, char *err)
 		goto done;
 	}
 	if (spp) {
-		if (sol_compute(spp, ctx->temp_C, ctx->model, &st_p, err))
+		if (sol_compute(spp, ctx_env(ctx), &st_p, err))
 			goto done;
 		have_p = 1;
 		if (need_ions(&st_p, spp->name, err) ||

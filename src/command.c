@@ -10,6 +10,7 @@
 #include <stdlib.h>
 #include <string.h>
 
+#include "cmd_chem.h"
 #include "cmd_core.h"
 #include "cmd_correct.h"
 #include "cmd_ghk.h"
@@ -35,6 +36,21 @@ static const cmd_def table[] = {
 	 0, 0, cmd_clear, COMPL_NONE, COMPL_NONE, 0},
 	{"show", "[NAME]", "ions, activities, ionic strength, osmolarity and charge",
 	 0, 1, cmd_show, COMPL_SOLUTION, COMPL_NONE, 0},
+	{"ph", "TARGET with TITRANT [stock CONC [UNIT]]",
+	 "titrate the current solution to a pH (KOH, NaOH, CsOH, NMDG, Tris, HCl ...)",
+	 3, 6, cmd_ph, COMPL_NONE, COMPL_COMPOUND, 0},
+	{"gas", "co2 PERCENT [dry] [pressure ATM] | off",
+	 "equilibrate the current solution with CO2 (bicarbonate baths)",
+	 1, 5, cmd_gas, COMPL_NONE, COMPL_NONE, 0},
+	{"free", "METAL AMOUNT [UNIT] [with COMPOUND]",
+	 "set the total of a metal source so that the free Ca2+ or Mg2+ is AMOUNT",
+	 2, 5, cmd_free, COMPL_ION, COMPL_COMPOUND, 0},
+	{"osmo", "TARGET [with COMPOUND]",
+	 "bring the current solution to TARGET mOsm/kg (default: with sucrose)",
+	 1, 3, cmd_osmo, COMPL_NONE, COMPL_COMPOUND, 0},
+	{"constants", "[NAME|default]",
+	 "list the compilations, a ligand's or metal's constants, or pick a compilation",
+	 0, 1, cmd_constants, COMPL_NONE, COMPL_NONE, 0},
 	{"temp", "[C]", "show or set the temperature in degrees C (default 25)",
 	 0, 1, cmd_temp, COMPL_NONE, COMPL_NONE, 0},
 	{"activity", "[davies|dh]", "activity-coefficient model (default davies)",
@@ -112,8 +128,17 @@ int cmd_split(char *buf, char **argv, int max, char *err)
 		while (*r && *r != ' ' && *r != '\t' && *r != '\n' && *r != '\r') {
 			if (*r == '"' || *r == '\'') {
 				char q = *r++;
-				while (*r && *r != q)
+				while (*r && *r != q) {
+					/* a word never holds a line break: messages
+					 * that echo it must stay one line */
+					if (*r == '\n' || *r == '\r') {
+						if (r[strspn(r, "\r\n")] == '\0')
+							break; /* open at the line's end */
+						return im_fail(err, "a %c-quoted word cannot "
+							       "hold a line break", q);
+					}
 					*w++ = *r++;
+				}
 				if (*r != q)
 					return im_fail(err, "unterminated %c quote", q);
 				r++;
@@ -241,8 +266,30 @@ void ctx_init(im_ctx *ctx, refdb *ref, out *o)
 	ws_init(&ctx->ws);
 }
 
+int ctx_load_chemistry(im_ctx *ctx, char *err)
+{
+	if (spec_load(refdb_sqlite(ctx->ref), &ctx->chem, err))
+		return -1;
+	if (osm_load(refdb_sqlite(ctx->ref), &ctx->osm, err)) {
+		spec_data_free(ctx->chem);
+		ctx->chem = NULL;
+		return -1;
+	}
+	return 0;
+}
+
+const sol_env *ctx_env(im_ctx *ctx)
+{
+	ctx->env = (sol_env){ctx->ref, ctx->chem, ctx->osm, ctx->temp_C, ctx->model};
+	return &ctx->env;
+}
+
 void ctx_free(im_ctx *ctx)
 {
+	spec_data_free(ctx->chem);
+	osm_data_free(ctx->osm);
+	ctx->chem = NULL;
+	ctx->osm = NULL;
 	ws_free(&ctx->ws);
 	udb_close(ctx->user);
 	ctx->user = NULL;

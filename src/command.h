@@ -14,6 +14,9 @@ struct userdb;
 
 typedef struct im_ctx {
 	refdb *ref;               /* reference data, owned by main */
+	spec_data *chem;          /* equilibria, owned by main; NULL: no speciation */
+	osm_data *osm;            /* Pitzer data, owned by main; NULL: no osmolality */
+	sol_env env;              /* filled by ctx_env() */
 	struct userdb *user;      /* user's database, opened lazily; may be NULL */
 	const char *db_path;      /* user db path (owned by main) */
 	workspace ws;
@@ -70,6 +73,12 @@ int cmd_split(char *buf, char **argv, int max, char *err);
 int cmd_exec(im_ctx *ctx, const char *line, char *err);
 
 void ctx_init(im_ctx *ctx, refdb *ref, out *o);
+/* Load the equilibria and Pitzer tables into ctx (owned by ctx, freed by
+ * ctx_free).  -1 with err when they do not load. */
+int ctx_load_chemistry(im_ctx *ctx, char *err);
+/* The environment sol_compute needs, from the context's temperature,
+ * activity model and chemistry data; points into ctx. */
+const sol_env *ctx_env(im_ctx *ctx);
 /* The user's database, opened on first use.  create = 1 creates the file;
  * create = 0 returns NULL (no error) when it does not exist yet. */
 struct userdb *ctx_userdb(im_ctx *ctx, int create, char *err, int *failed);

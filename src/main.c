@@ -116,6 +116,12 @@ int main(int argc, char **argv)
 		return 1;
 	}
 	ctx_init(&ctx, ref, &o);
+	if (ctx_load_chemistry(&ctx, err)) {
+		fprintf(stderr, "ionmix: equilibria data do not load: %s\n", err);
+		ctx_free(&ctx);
+		refdb_close(ref);
+		return 1;
+	}
 	dbpath = db ? im_xstrdup(db) : udb_default_path();
 	ctx.db_path = dbpath;
 

@@ -28,10 +28,48 @@ void out_note(out *o, const char *fmt, ...)
 	fputc('\n', o->fp);
 }
 
+/* Length of the valid UTF-8 sequence at p (2 to 4 bytes), or 0 when the
+ * bytes there are not one (stray continuation, overlong form, surrogate,
+ * beyond U+10FFFF, cut short). */
+static int utf8_len(const unsigned char *p)
+{
+	unsigned c = p[0], cp, min;
+	int need;
+	if (c >= 0xc2 && c <= 0xdf)
+		need = 1, min = 0x80, cp = c & 0x1f;
+	else if (c >= 0xe0 && c <= 0xef)
+		need = 2, min = 0x800, cp = c & 0x0f;
+	else if (c >= 0xf0 && c <= 0xf4)
+		need = 3, min = 0x10000, cp = c & 0x07;
+	else
+		return 0;
+	for (int i = 1; i <= need; i++) {
+		if ((p[i] & 0xc0) != 0x80) /* also stops at the terminating NUL */
+			return 0;
+		cp = cp << 6 | (p[i] & 0x3f);
+	}
+	if (cp < min || cp > 0x10ffff || (cp >= 0xd800 && cp <= 0xdfff))
+		return 0;
+	return need + 1;
+}
+
+/* JSON text must be UTF-8 (RFC 8259, section 8.1): bytes that are not,
+ * such as a name typed in another encoding and echoed in a message, are
+ * written as U+FFFD, the replacement character. */
 void out_json_string(FILE *fp, const char *s)
 {
 	fputc('"', fp);
 	for (const unsigned char *p = (const unsigned char *)s; *p; p++) {
+		if (*p >= 0x80) {
+			int k = utf8_len(p);
+			if (k == 0) {
+				fputs("\\ufffd", fp);
+				continue;
+			}
+			fwrite(p, 1, (size_t)k, fp);
+			p += k - 1;
+			continue;
+		}
 		switch (*p) {
 		case '"': fputs("\\\"", fp); break;
 		case '\\': fputs("\\\\", fp); break;

@@ -26,6 +26,7 @@ struct refdb {
 	int nsrc;
 	rd_ion *ion;
 	int nion;
+	int nion_sorted; /* the first ones, from the ions table, sorted by symbol */
 	rd_compound *cmp;
 	int ncmp;
 	alias *al;
@@ -122,6 +123,7 @@ static int load_ions(refdb *r, char *err)
 		x->size_source = src_by_id(r, sqlite3_column_text(st, 7));
 	}
 	sqlite3_finalize(st);
+	r->nion_sorted = r->nion;
 	load_derived(r);
 	return 0;
 }
@@ -159,8 +161,27 @@ static void load_derived(refdb *r)
 		x->name = "product of speciation (no mobility or size in the data)";
 		x->z = sqlite3_column_int(st, 1);
 		x->lambda_S_cm2_eq = x->D_1e9_m2_s = x->kielland_a_pm = NAN;
+		x->derived = 1;
 	}
 	sqlite3_finalize(st);
+}
+
+const rd_ion *refdb_ion_exact(const refdb *r, const char *sym)
+{
+	int lo = 0, hi = r->nion_sorted - 1;
+	while (lo <= hi) { /* the table's own ions are sorted by symbol */
+		int mid = (lo + hi) / 2, c = strcmp(r->ion[mid].symbol, sym);
+		if (c == 0)
+			return &r->ion[mid];
+		if (c < 0)
+			lo = mid + 1;
+		else
+			hi = mid - 1;
+	}
+	for (int i = r->nion_sorted; i < r->nion; i++)
+		if (strcmp(r->ion[i].symbol, sym) == 0)
+			return &r->ion[i];
+	return NULL;
 }
 
 static const rd_ion *ion_exact(const refdb *r, const char *sym)

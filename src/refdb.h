@@ -28,6 +28,8 @@ typedef struct rd_ion {
 	const rd_source *mobility_source; /* NULL when neither is known */
 	double kielland_a_pm;  /* Kielland ion size, pm; NAN if not tabulated */
 	const rd_source *size_source;
+	int derived;         /* 1: a product of speciation (complex, protonation
+			      * state) not in the ions table */
 } rd_ion;
 
 typedef struct rd_yield {
@@ -66,6 +68,9 @@ const rd_compound *refdb_compound(const refdb *db, const char *name);
  * ('K', 'Ca', 'Cl', 'HEPES') when that names exactly one charged ion.
  * NULL when unknown or ambiguous. */
 const rd_ion *refdb_ion(const refdb *db, const char *symbol);
+
+/* The ion whose symbol is exactly sym (case-sensitive), or NULL. */
+const rd_ion *refdb_ion_exact(const refdb *db, const char *sym);
 
 /* Up to max compound names closest to `name` (edit distance), best
  * first; returns how many were written.  Strings owned by the refdb. */

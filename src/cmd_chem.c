@@ -1,0 +1,581 @@
+/*
+ * cmd_chem.c - `ph`, `gas`, `free`, `osmo` and `constants`.
+ *
+ * Each changes the current solution only when it succeeds (cmd_exec rolls
+ * the workspace back on failure), and checks its result by computing the
+ * solution forward again with sol_compute, the same path `show` takes.
+ */
+#include "cmd_chem.h"
+
+#include <math.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "cmd_core.h"
+#include "common.h"
+#include "units.h"
+
+#define MAX_YIELD 16
+
+static int need_chem(im_ctx *ctx, char *err)
+{
+	if (!ctx->chem || !ctx->osm)
+		return im_fail(err, "the equilibria data are not loaded");
+	return 0;
+}
+
+/* A compound's yields as speciation inputs (count per formula unit). */
+static int yields_in(const rd_compound *c, spec_in *in)
+{
+	int n = 0;
+	for (int k = 0; k < c->nyields && n < MAX_YIELD; k++)
+		in[n++] = (spec_in){c->yields[k].ion->symbol, c->yields[k].ion->z,
+				    c->yields[k].count};
+	return n;
+}
+
+static void caution_of(im_ctx *ctx, const rd_compound *c)
+{
+	if (c->hazard)
+		out_printf(ctx->out, "caution, %s: %s\n", c->name, c->hazard);
+}
+
+/* Remove the titrant items of s; returns the compound they were, or NULL. */
+static const rd_compound *drop_titrant(solution *s, double *stock_mM)
+{
+	const rd_compound *c = NULL;
+	for (int i = s->n - 1; i >= 0; i--)
+		if (s->items[i].titrant) {
+			c = s->items[i].c;
+			*stock_mM = s->items[i].stock_mM;
+			sol_remove(s, c);
+		}
+	return c;
+}
+
+/* Titrate s (without its old titrant) to pH with titrant; add it as a
+ * titrant item.  *amount_mM gets what was added. */
+static int titrate(im_ctx *ctx, solution *s, double pH, const rd_compound *titrant,
+		   double stock_mM, double *amount_mM, char *err)
+{
+	spec_in in[SPEC_MAX_IN], tit[MAX_YIELD];
+	spec_cond cond;
+	spec_result *r;
+	int n, nt, rc;
+	double old_stock = 0;
+	drop_titrant(s, &old_stock);
+	if (sol_find(s, titrant))
+		return im_fail(err, "%s is already in %s as an ingredient; titrate with another "
+				    "compound or remove it", titrant->name, s->name);
+	if ((n = sol_spec_inputs(s, 1, in, SPEC_MAX_IN, err)) < 0)
+		return -1;
+	nt = yields_in(titrant, tit);
+	sol_spec_cond(s, ctx_env(ctx), &cond);
+	cond.mode = SPEC_PH_FIXED;
+	cond.pH = pH;
+	r = im_xmalloc(sizeof *r);
+	rc = spec_titrate(ctx->chem, in, n, &cond, tit, nt, amount_mM, r, err);
+	free(r);
+	if (rc)
+		return -1;
+	if (*amount_mM > 1e-9) {
+		sol_add(s, titrant, *amount_mM);
+		sol_find(s, titrant)->titrant = 1;
+		sol_find(s, titrant)->stock_mM = stock_mM > 0 ? stock_mM : old_stock;
+	}
+	s->ph_target = pH;
+	return 0;
+}
+
+/* The computed state of s, for checking a result forward. */
+static int forward(im_ctx *ctx, const solution *s, sol_state *st, char *err)
+{
+	return sol_compute(s, ctx_env(ctx), st, err);
+}
+
+int cmd_ph(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	solution *s;
+	const rd_compound *t;
+	double pH, amount = 0, stock = 0;
+	sol_state st;
+	char b[48];
+	if (need_chem(ctx, err) || core_solution(ctx, NULL, &s, err))
+		return -1;
+	if (argc != 4 && argc != 6 && argc != 7)
+		return im_fail(err, "usage: ph TARGET with TITRANT [stock CONC [UNIT]]");
+	if (units_number(argv[1], &pH, err))
+		return -1;
+	if (pH < 2 || pH > 12)
+		return im_fail(err, "target pH %s is outside 2 to 12", argv[1]);
+	if (strcmp(argv[2], "with") != 0)
+		return im_fail(err, "expected 'with', got '%.40s' (ph TARGET with TITRANT)", argv[2]);
+	if (core_compound(ctx, argv[3], &t, err))
+		return -1;
+	if (argc > 4) {
+		if (strcmp(argv[4], "stock") != 0)
+			return im_fail(err, "expected 'stock', got '%.40s'", argv[4]);
+		if (units_amount_mM(argv[5], argc > 6 ? argv[6] : NULL, t->fw_g_mol, &stock, err))
+			return -1;
+	}
+	if (s->co2_frac > 0)
+		return im_fail(err, "the pH of %s is set by its CO2 gas and bicarbonate: change "
+				    "those, or `gas off` first", s->name);
+	if (s->n == 0)
+		return im_fail(err, "%s is empty: nothing to titrate", s->name);
+	if (titrate(ctx, s, pH, t, stock, &amount, err))
+		return -1;
+	if (stock > 0 && stock <= amount)
+		return im_fail(err, "a stock of %s %s is weaker than the %g mM needed", argv[5],
+			       argc > 6 ? argv[6] : "mM", amount);
+	if (forward(ctx, s, &st, err))
+		return -1;
+	if (ctx->out->json) {
+		jw w;
+		jw_begin(&w, ctx->out);
+		jw_str(&w, "solution", s->name);
+		jw_num(&w, "temperature_C", ctx->temp_C, 6);
+		jw_num(&w, "target_pH", pH, 6);
+		jw_str(&w, "titrant", t->name);
+		jw_num(&w, "titrant_mM", amount, 8);
+		jw_num(&w, "pH", st.pH, 6);
+		if (t->hazard)
+			jw_str(&w, "caution", t->hazard);
+		jw_end(&w);
+	} else {
+		units_fmt_conc(b, sizeof b, amount, ctx->out->utf8);
+		out_printf(ctx->out, "%s: %s %s brings the pH to %.2f at %.1f C (computed pH "
+				     "%.3f)\n", s->name, b, t->name, pH, ctx->temp_C, st.pH);
+		out_printf(ctx->out, "  start from this amount and finish with a calibrated pH "
+				     "meter: the pH here is what an electrode reads, -log a(H+)\n");
+		caution_of(ctx, t);
+	}
+	sol_state_free(&st);
+	return 0;
+}
+
+int cmd_gas(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	solution *s;
+	sol_state st;
+	double pct, p = 1.0;
+	int dry = 0;
+	char num[32];
+	if (core_solution(ctx, NULL, &s, err))
+		return -1;
+	if (strcmp(argv[1], "off") == 0 && argc == 2) {
+		s->co2_frac = 0;
+		out_printf(ctx->out, "%s: no CO2 gas; the pH follows from the protons present\n",
+			   s->name);
+		return 0;
+	}
+	if (!im_strcaseeq(argv[1], "co2") || argc < 3)
+		return im_fail(err, "usage: gas co2 PERCENT [dry] [pressure ATM] | gas off");
+	if (need_chem(ctx, err))
+		return -1;
+	snprintf(num, sizeof num, "%s", argv[2]);
+	if (num[0] && num[strlen(num) - 1] == '%')
+		num[strlen(num) - 1] = '\0';
+	if (units_number(num, &pct, err))
+		return -1;
+	if (!(pct > 0 && pct <= 100))
+		return im_fail(err, "CO2 fraction %s %% must be above 0 and at most 100", num);
+	for (int i = 3; i < argc; i++) {
+		if (strcmp(argv[i], "dry") == 0) {
+			dry = 1;
+		} else if (strcmp(argv[i], "pressure") == 0 && i + 1 < argc) {
+			if (units_number(argv[++i], &p, err))
+				return -1;
+			if (!(p > 0.1 && p <= 5))
+				return im_fail(err, "gas pressure %s atm is outside 0.1 to 5 atm", argv[i]);
+		} else {
+			return im_fail(err, "unexpected '%.40s' (gas co2 PERCENT [dry] [pressure ATM])",
+				       argv[i]);
+		}
+	}
+	s->co2_frac = pct / 100.0;
+	s->co2_p_atm = p;
+	s->co2_dry = dry;
+	if (forward(ctx, s, &st, err))
+		return -1;
+	if (ctx->out->json) {
+		jw w;
+		jw_begin(&w, ctx->out);
+		jw_str(&w, "solution", s->name);
+		jw_num(&w, "co2_percent", pct, 6);
+		jw_num(&w, "pco2_atm", spec_pco2_atm(s->co2_frac, p, ctx->temp_C, !dry), 6);
+		jw_num(&w, "pH", st.pH, 6);
+		jw_end(&w);
+	} else {
+		out_printf(ctx->out, "%s: equilibrated with %g %% CO2 (%s, %g atm; pCO2 %.4f atm at "
+				     "%.1f C): pH %.2f\n", s->name, pct,
+			   dry ? "dry gas" : "humidified", p,
+			   spec_pco2_atm(s->co2_frac, p, ctx->temp_C, !dry), ctx->temp_C, st.pH);
+		out_printf(ctx->out, "  (Henderson-Hasselbalch with the CO2 solubility of Harned "
+				     "& Davis 1943; confirm with a calibrated pH meter)\n");
+		if (isfinite(s->ph_target))
+			out_printf(ctx->out, "  note: the titrant added by `ph` stays in; with the gas "
+					     "the pH no longer follows it\n");
+	}
+	sol_state_free(&st);
+	return 0;
+}
+
+/* Free concentration of metal in a computed state, mM (-1 if absent). */
+static double free_of(const sol_state *st, const char *metal)
+{
+	if (!st->chem)
+		return -1;
+	for (int m = 0; m < st->chem->nmetals; m++)
+		if (strcmp(st->chem->metals[m].symbol, metal) == 0)
+			return st->chem->metals[m].free_mM;
+	return -1;
+}
+
+int cmd_free(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	solution *s;
+	const rd_ion *metal;
+	const rd_compound *src = NULL;
+	double target, amount = 0, got;
+	const char *unit = NULL;
+	int i = 3, yields_metal = 0;
+	char name[64], b1[48], b2[48];
+	sol_state st;
+	if (need_chem(ctx, err) || core_solution(ctx, NULL, &s, err))
+		return -1;
+	metal = refdb_ion(ctx->ref, argv[1]);
+	if (!metal || metal->z != 2)
+		return im_fail(err, "'%.20s' is not a divalent metal ionmix binds (Ca, Mg, Ba, Sr, "
+				    "Zn)", argv[1]);
+	if (argc > 3 && units_is_unit(argv[3])) {
+		unit = argv[3];
+		i = 4;
+	}
+	if (units_amount_mM(argv[2], unit, 0, &target, err))
+		return -1;
+	if (i < argc) {
+		if (strcmp(argv[i], "with") != 0 || i + 2 != argc)
+			return im_fail(err, "usage: free METAL AMOUNT [UNIT] [with COMPOUND]");
+		if (core_compound(ctx, argv[i + 1], &src, err))
+			return -1;
+	} else {
+		size_t b = strcspn(metal->symbol, "0123456789+");
+		snprintf(name, sizeof name, "%.*sCl2", (int)b, metal->symbol);
+		if (core_compound(ctx, name, &src, err))
+			return -1;
+	}
+	for (int k = 0; k < src->nyields; k++)
+		yields_metal |= src->yields[k].ion == metal;
+	if (!yields_metal)
+		return im_fail(err, "%s yields no %s", src->name, metal->symbol);
+	if (s->co2_frac > 0 && isfinite(s->ph_target))
+		return im_fail(err, "%s has both a titrant and CO2 gas: remove one first", s->name);
+
+	/* the total of src that gives the target: solve with src taken out;
+	 * with a titrant, hold the target pH and titrate again, until both
+	 * settle (they couple only through the ionic strength and the protons
+	 * the metal frees from the chelators) */
+	sol_remove(s, src);
+	for (int iter = 0; iter < 12; iter++) {
+		spec_in in[SPEC_MAX_IN], sy[MAX_YIELD];
+		spec_cond cond;
+		spec_result *r = im_xmalloc(sizeof *r);
+		int n = sol_spec_inputs(s, 0, in, SPEC_MAX_IN, err), ns = yields_in(src, sy), rc;
+		double prev = amount;
+		if (n < 0) {
+			free(r);
+			return -1;
+		}
+		sol_spec_cond(s, ctx_env(ctx), &cond);
+		if (isfinite(s->ph_target) && s->co2_frac == 0) {
+			cond.mode = SPEC_PH_FIXED;
+			cond.pH = s->ph_target;
+		}
+		rc = spec_free_target(ctx->chem, in, n, &cond, metal->symbol, sy, ns, target,
+				      &amount, r, err);
+		free(r);
+		if (rc)
+			return -1;
+		sol_remove(s, src);
+		if (amount > 0)
+			sol_add(s, src, amount);
+		if (!isfinite(s->ph_target) || s->co2_frac > 0)
+			break;
+		{
+			const rd_compound *t = NULL;
+			double stock = 0, tm;
+			for (int k = 0; k < s->n; k++)
+				if (s->items[k].titrant) {
+					t = s->items[k].c;
+					stock = s->items[k].stock_mM;
+				}
+			if (!t)
+				break;
+			if (titrate(ctx, s, s->ph_target, t, stock, &tm, err))
+				return -1;
+		}
+		if (iter > 0 && fabs(amount - prev) <= 1e-12 * amount)
+			break;
+		sol_remove(s, src); /* solved again with the new titrant */
+	}
+	if (forward(ctx, s, &st, err))
+		return -1;
+	got = free_of(&st, metal->symbol);
+	if (ctx->out->json) {
+		jw w;
+		jw_begin(&w, ctx->out);
+		jw_str(&w, "solution", s->name);
+		jw_str(&w, "metal", metal->symbol);
+		jw_num(&w, "target_mM", target, 8);
+		jw_str(&w, "compound", src->name);
+		jw_num(&w, "added_mM", amount, 8);
+		jw_num(&w, "free_mM", got, 8);
+		jw_num(&w, "pH", st.pH, 6);
+		jw_end(&w);
+	} else {
+		units_fmt_conc(b1, sizeof b1, amount, ctx->out->utf8);
+		units_fmt_conc(b2, sizeof b2, got, ctx->out->utf8);
+		out_printf(ctx->out, "%s: %s %s in all gives free %s %s at pH %.2f, %.1f C\n",
+			   s->name, b1, src->name, metal->symbol, b2, st.pH, ctx->temp_C);
+		if (isfinite(s->ph_target) && s->co2_frac == 0)
+			out_printf(ctx->out, "  (the titrant was recomputed to hold pH %.2f)\n",
+				   s->ph_target);
+		for (int k = 0; st.chem && k < st.chem->nwarn; k++)
+			out_printf(ctx->out, "  note: %s\n", st.chem->warnings[k]);
+		caution_of(ctx, src);
+	}
+	sol_state_free(&st);
+	return 0;
+}
+
+/* Osmolality of s, mOsm/kg, computed forward. */
+static int osmolality(im_ctx *ctx, const solution *s, double *v, char *err)
+{
+	sol_state st;
+	if (forward(ctx, s, &st, err))
+		return -1;
+	*v = st.osmolality_mOsm_kg;
+	sol_state_free(&st);
+	if (!isfinite(*v))
+		return im_fail(err, "no osmolality estimate for %s", s->name);
+	return 0;
+}
+
+int cmd_osmo(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	solution *s;
+	const rd_compound *c = NULL;
+	double target, before, after, add = 0;
+	int dilute = 0;
+	double water = 0;
+	char b[48];
+	if (need_chem(ctx, err) || core_solution(ctx, NULL, &s, err))
+		return -1;
+	if (units_number(argv[1], &target, err))
+		return -1;
+	if (!(target > 0 && target <= 2000))
+		return im_fail(err, "osmolality target %s mOsm/kg must be above 0 and at most 2000",
+			       argv[1]);
+	if (argc == 4 && strcmp(argv[2], "with") == 0) {
+		if (core_compound(ctx, argv[3], &c, err))
+			return -1;
+	} else if (argc == 2) {
+		if (core_compound(ctx, "sucrose", &c, err))
+			return -1;
+	} else {
+		return im_fail(err, "usage: osmo TARGET [with COMPOUND]");
+	}
+	if (s->n == 0)
+		return im_fail(err, "%s is empty", s->name);
+	if (osmolality(ctx, s, &before, err))
+		return -1;
+	if (before > target) {
+		/* water per litre: osmolality scales as 1/(1 + w) at fixed
+		 * speciation (volumes additive) */
+		dilute = 1;
+		water = 1000.0 * (before / target - 1.0);
+		after = target;
+	} else {
+		sol_state st;
+		osm_species sp[SPEC_MAX_OUT], ad[MAX_YIELD];
+		osm_adjust_result r;
+		int n = 0, na = 0;
+		if (forward(ctx, s, &st, err))
+			return -1;
+		for (int j = 0; j < st.n && n < SPEC_MAX_OUT; j++)
+			sp[n++] = (osm_species){st.sp[j].ion->symbol, st.sp[j].ion->z, st.sp[j].mM};
+		for (int k = 0; k < c->nyields && na < MAX_YIELD; k++)
+			ad[na++] = (osm_species){c->yields[k].ion->symbol, c->yields[k].ion->z,
+						 c->yields[k].count};
+		if (osm_adjust(ctx->osm, sp, n, ctx->temp_C, target, ad, na, &r, err)) {
+			sol_state_free(&st);
+			return -1;
+		}
+		sol_state_free(&st);
+		add = r.add_mM;
+		/* polish against the full forward computation (the added
+		 * compound may react, and shifts the ionic strength): secant */
+		{
+			double a0 = 0, f0 = before - target, a1 = add, f1;
+			for (int it = 0; it < 20; it++) {
+				sol_set(s, c, a1 + (sol_find(s, c) ? 0 : 0));
+				sol_remove(s, c);
+				sol_add(s, c, a1);
+				if (osmolality(ctx, s, &after, err))
+					return -1;
+				f1 = after - target;
+				if (fabs(f1) < 1e-6 || f1 == f0)
+					break;
+				double a2 = a1 - f1 * (a1 - a0) / (f1 - f0);
+				a0 = a1;
+				f0 = f1;
+				a1 = a2 > 0 ? a2 : a1 / 2;
+			}
+			add = a1;
+		}
+	}
+	if (ctx->out->json) {
+		jw w;
+		jw_begin(&w, ctx->out);
+		jw_str(&w, "solution", s->name);
+		jw_num(&w, "target_mOsm_kg", target, 8);
+		jw_num(&w, "before_mOsm_kg", before, 8);
+		if (dilute) {
+			jw_num(&w, "dilute_mL_per_L", water, 6);
+		} else {
+			jw_str(&w, "compound", c->name);
+			jw_num(&w, "added_mM", add, 8);
+		}
+		jw_num(&w, "after_mOsm_kg", after, 8);
+		jw_end(&w);
+		return 0;
+	}
+	if (dilute) {
+		out_printf(ctx->out, "%s: %.0f mOsm/kg is above the target %.0f: add %.1f mL of "
+				     "water per litre (or make the main salt less concentrated)\n",
+			   s->name, before, target, water);
+	} else {
+		units_fmt_conc(b, sizeof b, add, ctx->out->utf8);
+		out_printf(ctx->out, "%s: added %s %s: %.0f -> %.1f mOsm/kg (Pitzer estimate)\n",
+			   s->name, b, c->name, before, after);
+	}
+	out_printf(ctx->out, "  hint: a pipette solution is usually made a little (about 5 to 15 "
+			     "mOsm/kg) below the bath (common practice); check with an osmometer\n");
+	return 0;
+}
+
+/* The compilation names in the tables, into names (up to max). */
+static int compilations(im_ctx *ctx, char names[][32], int max)
+{
+	sqlite3_stmt *st;
+	int n = 0;
+	if (sqlite3_prepare_v2(refdb_sqlite(ctx->ref),
+			       "SELECT compilation FROM eq_pka UNION SELECT compilation FROM "
+			       "eq_complexes UNION SELECT compilation FROM osm_pitzer ORDER BY 1",
+			       -1, &st, NULL) != SQLITE_OK) {
+		sqlite3_finalize(st);
+		return 0;
+	}
+	while (n < max && sqlite3_step(st) == SQLITE_ROW)
+		snprintf(names[n++], 32, "%s", (const char *)sqlite3_column_text(st, 0));
+	sqlite3_finalize(st);
+	return n;
+}
+
+#define MAX_CONST 160
+
+int cmd_constants(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	char comp[32][32];
+	int nc, picked = 0, n;
+	spec_const *rows;
+	if (need_chem(ctx, err))
+		return -1;
+	nc = compilations(ctx, comp, 32);
+	if (argc == 1) {
+		if (ctx->out->json) {
+			jw w;
+			jw_begin(&w, ctx->out);
+			jw_arr(&w, "compilations");
+			for (int i = 0; i < nc; i++)
+				jw_str(&w, NULL, comp[i]);
+			jw_end(&w);
+			return 0;
+		}
+		out_printf(ctx->out, "compilations of constants (pick one with `constants NAME`, "
+				     "`constants default` to go back):\n");
+		for (int i = 0; i < nc; i++)
+			out_printf(ctx->out, "  %s\n", comp[i]);
+		out_printf(ctx->out, "list the constants of a ligand or metal with `constants EGTA`, "
+				     "`constants Ca2+`\n");
+		return 0;
+	}
+	if (strcmp(argv[1], "default") == 0) {
+		spec_use_compilation(ctx->chem, "default", err);
+		osm_use_compilation(ctx->osm, "default", err);
+		out_printf(ctx->out, "constants: every default in use again\n");
+		return 0;
+	}
+	for (int i = 0; i < nc; i++)
+		if (strcmp(comp[i], argv[1]) == 0) {
+			char e1[IM_ERRLEN], e2[IM_ERRLEN];
+			int a = spec_use_compilation(ctx->chem, argv[1], e1) == 0;
+			int b = osm_use_compilation(ctx->osm, argv[1], e2) == 0;
+			if (!a && !b)
+				return im_fail(err, "%s", e1);
+			picked = 1;
+		}
+	rows = im_xcalloc(MAX_CONST, sizeof *rows);
+	n = spec_constants(ctx->chem, argv[1], rows, MAX_CONST, err);
+	if (n < 0 && !picked) {
+		free(rows);
+		return -1;
+	}
+	if (ctx->out->json) {
+		jw w;
+		jw_begin(&w, ctx->out);
+		jw_str(&w, "name", argv[1]);
+		jw_bool(&w, "picked", picked);
+		jw_arr(&w, "constants");
+		for (int i = 0; i < n; i++) {
+			const rd_source *src = refdb_source(ctx->ref, rows[i].source);
+			jw_obj(&w, NULL);
+			jw_str(&w, "species", rows[i].what);
+			jw_str(&w, "reaction", rows[i].reaction);
+			jw_str(&w, rows[i].is_pka ? "pKa" : "log_K", NULL);
+			jw_num(&w, "value", rows[i].value, 6);
+			jw_num(&w, "t_ref_C", rows[i].t_ref_C, 6);
+			jw_num(&w, "i_ref_M", rows[i].i_ref_M, 6);
+			jw_str(&w, "compilation", rows[i].compilation);
+			jw_bool(&w, "in_use", rows[i].in_use);
+			jw_str(&w, "source", src ? src->citation : rows[i].source);
+			jw_close(&w);
+		}
+		jw_end(&w);
+		free(rows);
+		return 0;
+	}
+	if (picked)
+		out_printf(ctx->out, "constants: using %s where it has a value (the others keep "
+				     "their defaults)\n", argv[1]);
+	out_printf(ctx->out, "  %-14s %-30s %8s %6s %6s %-16s %s\n", "species", "reaction",
+		   "value", "t C", "I M", "compilation", "in use");
+	for (int i = 0; i < n; i++)
+		out_printf(ctx->out, "  %-14s %-30s %5s %5.2f %6.1f %6.3f %-16s %s\n",
+			   rows[i].what, rows[i].reaction, rows[i].is_pka ? "pKa" : "logK",
+			   rows[i].value, rows[i].t_ref_C, rows[i].i_ref_M, rows[i].compilation,
+			   rows[i].in_use ? "*" : "");
+	for (int i = 0; i < n; i++) {
+		const rd_source *src = refdb_source(ctx->ref, rows[i].source);
+		int dup = 0;
+		for (int j = 0; j < i; j++)
+			dup |= strcmp(rows[j].source, rows[i].source) == 0;
+		if (!dup && src)
+			out_printf(ctx->out, "  [%s] %s%s\n", src->id, src->citation,
+				   src->from_memory ? " [from memory]" : "");
+	}
+	free(rows);
+	return 0;
+}
