@@ -15,6 +15,7 @@
 #include "cmd_correct.h"
 #include "cmd_ghk.h"
 #include "cmd_junction.h"
+#include "cmd_review.h"
 #include "common.h"
 #include "userdb.h"
 
@@ -72,6 +73,8 @@ static const cmd_def table[] = {
 	{"iv", "INSIDE OUTSIDE ION=P [...] [from V1] [to V2] [step DV] [rect MV] [svg FILE] [csv FILE] [plain] [activities]",
 	 "GHK current-voltage curves, rectification and a plot (P in cm/s or relative)",
 	 3, ANY, cmd_ghk_iv, COMPL_SOLUTION, COMPL_ION, 0},
+	{"review", "PIPETTE BATH", "the checks to run before mixing, each with a verdict and its number",
+	 2, 2, cmd_review, COMPL_SOLUTION, COMPL_SOLUTION, 0},
 	{"weigh", "VOLUME [mL|L]", "bench sheet: what to weigh or pipette for the current solution",
 	 1, 2, cmd_weigh, COMPL_NONE, COMPL_NONE, 0},
 	{"stock", "COMPOUND CONC [UNIT] | COMPOUND off", "take a compound from a stock solution on the bench sheet",
