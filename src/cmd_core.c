@@ -1038,11 +1038,11 @@ int cmd_help(im_ctx *ctx, int argc, char **argv, char *err)
 		const cmd_def *d = cmd_lookup(argv[1]);
 		if (!d)
 			return im_fail(err, "no command '%.40s' (type `help` for the list)", argv[1]);
-		out_printf(ctx->out, "%s %s\n  %s\n", d->name, d->synopsis, d->help);
+		out_printf(ctx->out, "usage: %s %s\n  %s\n", d->name, d->synopsis, d->help);
 		return 0;
 	}
-	out_printf(ctx->out, "commands (`help COMMAND` for one):\n");
+	out_printf(ctx->out, "commands (`help COMMAND` for its arguments):\n");
 	for (int i = 0; i < n; i++)
-		out_printf(ctx->out, "  %-10s %-44s %s\n", t[i].name, t[i].synopsis, t[i].help);
+		out_printf(ctx->out, "  %-10s %s\n", t[i].name, t[i].help);
 	return 0;
 }

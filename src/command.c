@@ -35,7 +35,7 @@ static const cmd_def table[] = {
 	 1, 1, cmd_remove, COMPL_COMPOUND, COMPL_NONE, 0},
 	{"clear", "", "empty the current solution",
 	 0, 0, cmd_clear, COMPL_NONE, COMPL_NONE, 0},
-	{"show", "[NAME]", "ions, activities, ionic strength, osmolarity and charge",
+	{"show", "[NAME]", "free ions and activities, ionic strength, pH, free Ca2+/Mg2+, osmolality, charge",
 	 0, 1, cmd_show, COMPL_SOLUTION, COMPL_NONE, 0},
 	{"ph", "TARGET with TITRANT [stock CONC [UNIT]]",
 	 "titrate the current solution to a pH (KOH, NaOH, CsOH, NMDG, Tris, HCl ...)",
