@@ -62,6 +62,8 @@ help:
 	@echo "make run        check dependencies, build, start the shell"
 	@echo "make check      check dependencies, run every test, plain and under ASan+UBSan"
 	@echo "make bench      run the benchmarks and print a table of figures and goals"
+	@echo "make fuzz       run each libFuzzer target for FUZZ_SECONDS (default 60)"
+	@echo "make check-valgrind  every test program and golden script under valgrind"
 	@echo "make install    install to \$$(DESTDIR)\$$(PREFIX) (PREFIX=$(PREFIX))"
 	@echo "make clean      remove $(BUILD)/"
 
@@ -78,6 +80,7 @@ run: deps
 check: deps-test
 	@$(MAKE) --no-print-directory test BUILD=build
 	@$(MAKE) --no-print-directory test BUILD=build/san SAN=1 CFLAGS="-O1 -g"
+	@$(MAKE) --no-print-directory fuzz-smoke
 
 test: $(BUILD)/ionmix $(TESTBIN)
 	@IONMIX=$(BUILD)/ionmix PYTHON=$(PYTHON) TESTBIN_DIR=$(BUILD)/tests \
@@ -104,14 +107,15 @@ $(BUILD)/obj/refdata.o: $(BUILD)/gen/refdata.c | $(BUILD)/obj
 	$(say) CC $<
 	$(Q)$(CC) $(ALL_CFLAGS) -c -o $@ $<
 
-# The SQL text is embedded by a small host tool, so no xxd or ld tricks.
+# A small host tool embeds the SQL text and the database it builds
+# (serialized), and fails the build when the SQL breaks a foreign key.
 $(BUILD)/gen/refdata.c: $(BUILD)/embed $(DATA_SQL) | $(BUILD)/gen
 	$(say) EMBED "$(DATA_SQL)"
 	$(Q)$(BUILD)/embed $(DATA_SQL) > $@.tmp && mv $@.tmp $@
 
 $(BUILD)/embed: src/tools/embed.c | $(BUILD)/gen
 	$(say) CC $<
-	$(Q)$(CC) -std=c11 -Wall -Wextra -O1 -o $@ $<
+	$(Q)$(CC) -std=c11 -Wall -Wextra -O1 $(PKG_CFLAGS) -o $@ $< $(PKG_LIBS)
 
 $(BUILD)/gen/version.h: VERSION | $(BUILD)/gen
 	$(Q)printf '#define IONMIX_VERSION "%s"\n' "$(VERSION)" > $@.tmp && mv $@.tmp $@
@@ -126,12 +130,78 @@ $(BUILD)/obj $(BUILD)/gen $(BUILD)/tests:
 install: $(BUILD)/ionmix
 	install -d $(DESTDIR)$(BINDIR) $(DESTDIR)$(MANDIR)/man1
 	install -m 755 $(BUILD)/ionmix $(DESTDIR)$(BINDIR)/ionmix
-	if [ -f doc/ionmix.1 ]; then install -m 644 doc/ionmix.1 $(DESTDIR)$(MANDIR)/man1/ionmix.1; fi
+	install -m 644 src/ionmix.1 $(DESTDIR)$(MANDIR)/man1/ionmix.1
 
 uninstall:
 	rm -f $(DESTDIR)$(BINDIR)/ionmix $(DESTDIR)$(MANDIR)/man1/ionmix.1
 
 clean:
 	rm -rf build
+
+# ---- fuzzing and valgrind (robustness) ----
+# `make fuzz` runs every libFuzzer target tests/fuzz/fuzz_*.c for
+# FUZZ_SECONDS each, `make fuzz-smoke` for FUZZ_SMOKE_SECONDS each (the
+# last step of `make check`); any crash, leak or sanitizer report fails,
+# and the input is kept in build/fuzz/artifacts/.  The library is rebuilt
+# with clang and coverage instrumentation in build/fuzz.
+# `make check-valgrind` runs every cmocka program and the golden scripts
+# under valgrind; any invalid access or definite/indirect leak fails.
+FUZZ_CC            ?= clang
+FUZZ_SECONDS       ?= 60
+FUZZ_SMOKE_SECONDS ?= 3
+FUZZ_BUILD         := build/fuzz
+FUZZ_SAN           := -fsanitize=address,undefined -fno-sanitize-recover=undefined \
+                      -fno-omit-frame-pointer
+FUZZ_NAMES         := $(patsubst tests/fuzz/%.c,%,$(wildcard tests/fuzz/fuzz_*.c))
+FUZZ_BIN           := $(addprefix $(FUZZ_BUILD)/bin/,$(FUZZ_NAMES))
+VALGRIND           ?= valgrind
+VALGRIND_FLAGS     := -q --error-exitcode=1 --leak-check=full \
+                      --errors-for-leak-kinds=definite,indirect
+
+.PHONY: fuzz fuzz-smoke fuzz-build fuzz-lib fuzz-bins check-valgrind
+
+fuzz-build:
+	@$(MAKE) --no-print-directory fuzz-lib BUILD=$(FUZZ_BUILD) SAN= \
+		CC=$(FUZZ_CC) CFLAGS="-O1 -g -fsanitize=fuzzer-no-link $(FUZZ_SAN)"
+	@$(MAKE) --no-print-directory fuzz-bins
+
+fuzz-lib: $(BUILD)/libionmix.a
+	@:
+
+fuzz-bins: $(FUZZ_BIN)
+	@:
+
+$(FUZZ_BUILD)/bin/%: tests/fuzz/%.c tests/fuzz/fuzzutil.h $(FUZZ_BUILD)/libionmix.a
+	$(say) FUZZ $<
+	$(Q)mkdir -p $(@D)
+	$(Q)$(FUZZ_CC) -std=c11 -D_POSIX_C_SOURCE=200809L -D_DEFAULT_SOURCE -Wall -Wextra \
+		-O1 -g -fsanitize=fuzzer $(FUZZ_SAN) -Isrc $(PKG_CFLAGS) -o $@ $< \
+		$(FUZZ_BUILD)/libionmix.a $(IM_LIBS)
+
+fuzz: fuzz-build
+	@sh tests/fuzz/run.sh $(FUZZ_BUILD) $(FUZZ_SECONDS) $(FUZZ_NAMES)
+
+fuzz-smoke: fuzz-build
+	@FUZZ_FRESH=1 sh tests/fuzz/run.sh $(FUZZ_BUILD) $(FUZZ_SMOKE_SECONDS) $(FUZZ_NAMES)
+
+check-valgrind: $(BUILD)/ionmix $(TESTBIN)
+	@mkdir -p $(BUILD)/tests/log; fail=0; \
+	for t in $(TESTBIN); do \
+		n=$$(basename $$t); \
+		if $(VALGRIND) $(VALGRIND_FLAGS) $$t >$(BUILD)/tests/log/valgrind-$$n.txt 2>&1; \
+		then echo "valgrind: $$n clean"; \
+		else echo "valgrind: $$n FAILED (log $(BUILD)/tests/log/valgrind-$$n.txt)"; fail=1; \
+			grep -vE '^==[0-9]+==' $(BUILD)/tests/log/valgrind-$$n.txt | grep -E 'ERROR|FAIL' | head -n 10; \
+			grep -A8 -E '^==[0-9]+== (Invalid|Conditional|Use of uninit|Syscall param|Mismatched|.*(definitely|indirectly) lost in)' \
+				$(BUILD)/tests/log/valgrind-$$n.txt | head -n 40; fi; \
+	done; \
+	printf '#!/bin/sh\nexec %s %s "%s" "$$@"\n' '$(VALGRIND)' '$(VALGRIND_FLAGS)' \
+		'$(CURDIR)/$(BUILD)/ionmix' >$(BUILD)/ionmix-valgrind; \
+	chmod +x $(BUILD)/ionmix-valgrind; \
+	if sh tests/golden.sh $(BUILD)/ionmix-valgrind >$(BUILD)/tests/log/valgrind-golden.txt 2>&1; \
+	then echo "valgrind: golden scripts clean ($$(tail -n 1 $(BUILD)/tests/log/valgrind-golden.txt))"; \
+	else echo "valgrind: golden scripts FAILED"; fail=1; \
+		head -n 60 $(BUILD)/tests/log/valgrind-golden.txt; fi; \
+	[ $$fail -eq 0 ] && echo "check-valgrind: clean" || { echo "check-valgrind: FAILED"; exit 1; }
 
 -include $(wildcard $(BUILD)/obj/*.d $(BUILD)/tests/*.d)

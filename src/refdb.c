@@ -12,8 +12,12 @@
 
 #include "common.h"
 
-extern const char im_refdata_sql[];
-extern const size_t im_refdata_len;
+/* build/gen/refdata.c (src/tools/embed.c): the SQL text of data/ and the
+ * database it builds, serialized */
+extern const unsigned char im_refdata_sql_text[];
+extern const size_t im_refdata_sql_text_len;
+extern const unsigned char im_refdata_image[];
+extern const size_t im_refdata_image_len;
 
 typedef struct alias {
 	char *alias;
@@ -251,19 +255,48 @@ static int load_compounds(refdb *r, char *err)
 	return 0;
 }
 
-int refdb_open(refdb **out, char *err)
+const char *refdb_sql_text(void)
 {
-	refdb *r = im_xcalloc(1, sizeof *r);
+	return (const char *)im_refdata_sql_text;
+}
+
+/* Fill r->db from the embedded image (sql == NULL) or from SQL text. */
+static int load_db(refdb *r, const char *sql, char *err)
+{
 	char *msg = NULL;
-	*out = NULL;
-	if (sqlite3_open_v2(":memory:", &r->db, SQLITE_OPEN_READWRITE, NULL) != SQLITE_OK) {
-		im_fail(err, "cannot open the in-memory reference database");
-		refdb_close(r);
-		return -1;
+	if (sqlite3_open_v2(":memory:", &r->db, SQLITE_OPEN_READWRITE, NULL) != SQLITE_OK)
+		return im_fail(err, "cannot open the in-memory reference database");
+	if (!sql) {
+		unsigned char *copy = sqlite3_malloc64(im_refdata_image_len);
+		if (!copy)
+			return im_fail(err, "out of memory for the reference database");
+		memcpy(copy, im_refdata_image, im_refdata_image_len);
+		if (sqlite3_deserialize(r->db, "main", copy, im_refdata_image_len,
+					im_refdata_image_len,
+					SQLITE_DESERIALIZE_FREEONCLOSE |
+						SQLITE_DESERIALIZE_RESIZEABLE) != SQLITE_OK)
+			return im_fail(err, "the embedded reference database does not load: %s",
+				       sqlite3_errmsg(r->db));
+		return 0;
 	}
-	if (sqlite3_exec(r->db, im_refdata_sql, NULL, NULL, &msg) != SQLITE_OK) {
+	if (sqlite3_exec(r->db, sql, NULL, NULL, &msg) != SQLITE_OK) {
 		im_fail(err, "reference data does not load: %s", msg ? msg : "?");
 		sqlite3_free(msg);
+		return -1;
+	}
+	return 0;
+}
+
+int refdb_open(refdb **out, char *err)
+{
+	return refdb_open_sql(out, NULL, err);
+}
+
+int refdb_open_sql(refdb **out, const char *sql, char *err)
+{
+	refdb *r = im_xcalloc(1, sizeof *r);
+	*out = NULL;
+	if (load_db(r, sql, err)) {
 		refdb_close(r);
 		return -1;
 	}

@@ -1,9 +1,11 @@
 /*
  * refdb.h - the reference database: ions, compounds, sources.
  *
- * The SQL text of the data/ files is embedded in the binary (build/gen/refdata.c)
- * and loaded into an in-memory SQLite database at start; the rows of the
- * ions and compounds tables are then copied into the arrays below, which
+ * The SQL text of the data/ files is embedded in the binary
+ * (build/gen/refdata.c), with the database it builds serialized at build
+ * time; at start that image is loaded into an in-memory SQLite database
+ * (a copy, where parsing the text would take milliseconds), and the rows
+ * of the ions and compounds tables are copied into the arrays below, which
  * live as long as the refdb.  Other modules with tables of their own
  * (equilibria, Pitzer parameters) query refdb_sqlite() at their own load.
  */
@@ -56,6 +58,11 @@ typedef struct refdb refdb;
  * in err and *out == NULL.  The caller owns the refdb (refdb_close). */
 int refdb_open(refdb **out, char *err);
 void refdb_close(refdb *db);
+/* The same from SQL text instead of the embedded image (sql NULL: the
+ * image); used by the test that the image and the text agree. */
+int refdb_open_sql(refdb **out, const char *sql, char *err);
+/* The embedded SQL text of data/, NUL-terminated. */
+const char *refdb_sql_text(void);
 
 /* The in-memory SQLite handle, owned by the refdb. */
 sqlite3 *refdb_sqlite(const refdb *db);

@@ -45,5 +45,6 @@ for py in tests/ref/*.py; do
 	fi
 done
 [ -n "$failed" ] && echo "failed:$failed"
-echo "check ($build): $pass passed, $fail failed"
+echo "check ($build)"
+echo "check: $pass passed, $fail failed"
 [ "$fail" -eq 0 ]

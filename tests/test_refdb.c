@@ -116,12 +116,41 @@ static void hazards(void **state)
 	assert_null(refdb_compound(db, "NaCl")->hazard);
 }
 
+/* The embedded image and the embedded SQL text build the same data. */
+static void image_matches_text(void **state)
+{
+	refdb *t;
+	char err[IM_ERRLEN];
+	(void)state;
+	assert_int_equal(refdb_open_sql(&t, refdb_sql_text(), err), 0);
+	assert_int_equal(refdb_ncompounds(t), refdb_ncompounds(db));
+	assert_int_equal(refdb_nions(t), refdb_nions(db));
+	assert_int_equal(refdb_naliases(t), refdb_naliases(db));
+	for (int i = 0; i < refdb_ncompounds(db); i++) {
+		const rd_compound *a = refdb_compound_at(db, i), *b = refdb_compound_at(t, i);
+		assert_string_equal(a->name, b->name);
+		assert_true(a->fw_g_mol == b->fw_g_mol);
+		assert_int_equal(a->nyields, b->nyields);
+	}
+	for (int i = 0; i < refdb_nions(db); i++) {
+		const rd_ion *a = refdb_ion_at(db, i), *b = refdb_ion_at(t, i);
+		assert_string_equal(a->symbol, b->symbol);
+		assert_int_equal(a->z, b->z);
+		assert_true(a->lambda_S_cm2_eq == b->lambda_S_cm2_eq ||
+			    (isnan(a->lambda_S_cm2_eq) && isnan(b->lambda_S_cm2_eq)));
+	}
+	refdb_close(t);
+	assert_int_equal(refdb_open_sql(&t, "CREATE TABLE broken(", err), -1);
+	assert_null(t);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(required_compounds), cmocka_unit_test(names_and_aliases),
 		cmocka_unit_test(ions), cmocka_unit_test(yields_neutral),
 		cmocka_unit_test(suggestions), cmocka_unit_test(hazards),
+		cmocka_unit_test(image_matches_text),
 	};
 	return cmocka_run_group_tests(tests, setup, teardown);
 }

@@ -19,6 +19,13 @@ if [ "$what" = test ]; then
 	[ -x "$py" ] && "$py" -c 'import scipy' 2>/dev/null || pkgs="$pkgs python3-scipy"
 	command -v mawk >/dev/null 2>&1 || pkgs="$pkgs mawk"
 	command -v xmllint >/dev/null 2>&1 || pkgs="$pkgs libxml2-utils"
+	# robustness: `make check-valgrind`, and the libFuzzer targets of
+	# `make fuzz-smoke` (clang with its fuzzer runtime)
+	command -v valgrind >/dev/null 2>&1 || pkgs="$pkgs valgrind"
+	command -v clang >/dev/null 2>&1 || pkgs="$pkgs clang"
+	command -v clang >/dev/null 2>&1 &&
+		ls "$(clang -print-resource-dir 2>/dev/null)"/lib/linux/libclang_rt.fuzzer-*.a \
+			>/dev/null 2>&1 || pkgs="$pkgs libclang-rt-14-dev"
 fi
 [ -z "$pkgs" ] && exit 0
 if [ "$(id -u)" = 0 ] && command -v apt-get >/dev/null 2>&1; then

@@ -1,0 +1,104 @@
+/*
+ * fuzz_correct.c - libFuzzer target for the streaming LJP correction of
+ * CSV/TSV files (corr_stream), read from memory (fmemopen) and written to
+ * memory (open_memstream).
+ *
+ * Input: the first byte picks one of eight option sets (columns by
+ * header, by number, several, none; LJP with 0, 1 or 3 decimals, negative;
+ * skip-bad on or off); the rest is the file.  Checks, besides the
+ * sanitizers: a failure has a one-line message; on success the counts add
+ * up (every chosen cell of every row is corrected or skipped, bad cells are
+ * among the skipped), and correcting the output back by the opposite LJP
+ * succeeds with the same counts.
+ */
+#include <stdint.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "common.h"
+#include "correct.h"
+
+#include "fuzzutil.h"
+
+int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size);
+
+typedef struct optset {
+	const char *cols[3];
+	int ncols;
+	const char *ljp;
+	const char *back;  /* the opposite LJP */
+	int skip_bad;
+} optset;
+
+static const optset sets[8] = {
+	{{NULL}, 0, "14.2", "-14.2", 0},
+	{{NULL}, 0, "-3", "3", 1},
+	{{"2"}, 1, "0.125", "-0.125", 0},
+	{{"Vm (mV)"}, 1, "14.2", "-14.2", 1},
+	{{"1", "3"}, 2, "7", "-7", 0},
+	{{"V", "2", "voltage"}, 3, "-0.5", "0.5", 1},
+	{{"3"}, 1, "999.999", "-999.999", 1},
+	{{"vm"}, 1, "0", "0", 0},
+};
+
+static FILE *open_input(const char *p, size_t n)
+{
+	return n ? fmemopen((void *)p, n, "rb") : fopen("/dev/null", "rb");
+}
+
+/* One pass; returns rc, with *out (malloc'd, caller frees) and its size. */
+static int pass(const char *in, size_t n, const optset *s, const char *ljp,
+		corr_result *r, char **out, size_t *outn, char *err)
+{
+	corr_opts o;
+	FILE *fin = open_input(in, n), *fout;
+	int rc;
+	FZ_CHECK(fin != NULL, "fmemopen");
+	*out = NULL;
+	*outn = 0;
+	fout = open_memstream(out, outn);
+	memset(&o, 0, sizeof o);
+	o.columns = s->ncols ? s->cols : NULL;
+	o.ncolumns = s->ncols;
+	o.skip_bad = s->skip_bad;
+	FZ_CHECK(corr_ljp_parse(ljp, &o.ljp, err) == 0, "LJP %s: %s", ljp, err);
+	memset(r, 0, sizeof *r);
+	err[0] = '\0';
+	rc = corr_stream(fin, "fuzz.csv", fout, &o, r, err);
+	fclose(fin);
+	fclose(fout);
+	return rc;
+}
+
+int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
+{
+	char err[IM_ERRLEN], *out = NULL, *back = NULL;
+	size_t outn, backn;
+	corr_result r, r2;
+	const optset *s;
+	int rc;
+	if (size == 0)
+		return 0;
+	s = &sets[data[0] & 7];
+	rc = pass((const char *)data + 1, size - 1, s, s->ljp, &r, &out, &outn, err);
+	FZ_CHECK(rc == 0 || rc == -1, "corr_stream returned %d", rc);
+	if (rc) {
+		fz_check_err(err, "corr_stream");
+	} else {
+		FZ_CHECK(r.rows >= 0 && r.corrected >= 0 && r.skipped >= r.bad && r.bad >= 0 &&
+			 r.ragged >= 0 && r.blank >= 0, "negative counts");
+		FZ_CHECK(r.ncols >= 1 && r.ncols <= CORR_MAXCOLS, "%d columns", r.ncols);
+		FZ_CHECK(r.corrected + r.skipped == r.rows * r.ncols,
+			 "%ld corrected + %ld skipped != %ld rows x %d columns", r.corrected,
+			 r.skipped, r.rows, r.ncols);
+		rc = pass(out, outn, s, s->back, &r2, &back, &backn, err);
+		FZ_CHECK(rc == 0, "correcting the output back failed: %s", err);
+		FZ_CHECK(r2.rows == r.rows && r2.corrected == r.corrected &&
+			 r2.skipped == r.skipped && r2.bad == r.bad && r2.ncols == r.ncols,
+			 "the way back counted differently");
+	}
+	free(out);
+	free(back);
+	return 0;
+}

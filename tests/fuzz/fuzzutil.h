@@ -1,0 +1,329 @@
+/*
+ * fuzzutil.h - helpers shared by the libFuzzer targets in tests/fuzz/:
+ * a scratch directory that is emptied after every input, confinement of
+ * file names to it, and the checks every target applies to what ionmix
+ * printed (one-line errors, no NaN or infinity, valid JSON lines).
+ *
+ * A failed check prints one line to stderr and aborts, which libFuzzer
+ * reports as a crash and saves the input as an artifact.
+ */
+#ifndef IONMIX_FUZZUTIL_H
+#define IONMIX_FUZZUTIL_H
+
+#include <dirent.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+#include <unistd.h>
+
+static char fz_dir[512];
+
+#define FZ_CHECK(cond, ...)                                                   \
+	do {                                                                  \
+		if (!(cond)) {                                                \
+			fprintf(stderr, "fuzz check failed: %s: ", #cond);    \
+			fprintf(stderr, __VA_ARGS__);                         \
+			fputc('\n', stderr);                                  \
+			abort();                                              \
+		}                                                             \
+	} while (0)
+
+/* Remove every entry of fz_dir (the programs under test create plain
+ * files only: the database, its -wal and -shm, exports, plots). */
+static inline void fz_empty_dir(void)
+{
+	DIR *d = opendir(fz_dir);
+	struct dirent *e;
+	char p[1024];
+	if (!d)
+		return;
+	while ((e = readdir(d)) != NULL) {
+		if (strcmp(e->d_name, ".") == 0 || strcmp(e->d_name, "..") == 0)
+			continue;
+		snprintf(p, sizeof p, "%s/%s", fz_dir, e->d_name);
+		unlink(p);
+	}
+	closedir(d);
+}
+
+static inline void fz_remove_dir(void)
+{
+	fz_empty_dir();
+	rmdir(fz_dir);
+}
+
+/* Make the scratch directory under $TMPDIR (or /tmp), removed at exit.
+ * Aborts when it cannot: a target without it would write elsewhere. */
+static inline const char *fz_scratch(const char *tag)
+{
+	const char *t = getenv("TMPDIR");
+	snprintf(fz_dir, sizeof fz_dir, "%s/ionmix-%s-XXXXXX", t && *t ? t : "/tmp", tag);
+	FZ_CHECK(mkdtemp(fz_dir) != NULL, "cannot make %s", fz_dir);
+	atexit(fz_remove_dir);
+	return fz_dir;
+}
+
+/* Fuzzed commands may name files (export, run, correct, iv svg/csv).
+ * Keep them inside the scratch directory, which is the working directory
+ * of the target: a '/' that starts a path, follows "." or "..", or
+ * follows a quote or blank becomes '_'.  A '/' after a letter or digit
+ * stays (units g/L, mg/mL; "a/b" only resolves when a is a directory,
+ * and the scratch directory never holds one). */
+static inline void fz_confine_paths(char *s, size_t n)
+{
+	for (size_t i = 0; i < n; i++) {
+		unsigned char prev = i ? (unsigned char)s[i - 1] : ' ';
+		int alnum = (prev >= 'a' && prev <= 'z') || (prev >= 'A' && prev <= 'Z') ||
+			    (prev >= '0' && prev <= '9');
+		if (s[i] == '/' && !alnum)
+			s[i] = '_';
+	}
+}
+
+/* An error message: non-empty, one line. */
+static inline void fz_check_err(const char *err, const char *what)
+{
+	FZ_CHECK(err[0] != '\0', "%s failed with an empty message", what);
+	FZ_CHECK(strchr(err, '\n') == NULL, "%s: message has a newline: %s", what, err);
+	FZ_CHECK(strlen(err) < 256, "%s: message too long", what);
+}
+
+static inline int fz_word(unsigned char c)
+{
+	return (c >= 'a' && c <= 'z') || (c >= 'A' && c <= 'Z') || (c >= '0' && c <= '9') ||
+	       c == '_';
+}
+
+static inline int fz_has_token(const char *s, size_t n, const char *tok)
+{
+	size_t k = strlen(tok);
+	for (size_t i = 0; i + k <= n; i++) {
+		size_t j = 0;
+		while (j < k && (s[i + j] | 0x20) == tok[j])
+			j++;
+		if (j == k && (i == 0 || !fz_word((unsigned char)s[i - 1])) &&
+		    (i + k == n || !fz_word((unsigned char)s[i + k])))
+			return 1;
+	}
+	return 0;
+}
+
+static inline int fz_contains_ci(const char *s, size_t n, const char *tok)
+{
+	size_t k = strlen(tok);
+	for (size_t i = 0; i + k <= n; i++) {
+		size_t j = 0;
+		while (j < k && (s[i + j] | 0x20) == tok[j])
+			j++;
+		if (j == k)
+			return 1;
+	}
+	return 0;
+}
+
+/* Human output holds no "nan" or "inf" token, unless the input itself
+ * holds those letters (names are echoed). */
+static inline void fz_check_finite_text(const char *out, size_t n, const char *in,
+					size_t in_n)
+{
+	if (fz_contains_ci(in, in_n, "nan") || fz_contains_ci(in, in_n, "inf"))
+		return;
+	FZ_CHECK(!fz_has_token(out, n, "nan"), "NaN printed: %.*s", (int)(n < 400 ? n : 400),
+		 out);
+	FZ_CHECK(!fz_has_token(out, n, "inf"), "infinity printed: %.*s",
+		 (int)(n < 400 ? n : 400), out);
+}
+
+/* ---- a strict JSON checker (RFC 8259, UTF-8) for one line ---- */
+
+typedef struct fz_json {
+	const unsigned char *p, *end;
+	int depth;
+} fz_json;
+
+static inline void fz_ws(fz_json *j)
+{
+	while (j->p < j->end && (*j->p == ' ' || *j->p == '\t'))
+		j->p++;
+}
+
+/* Length of the UTF-8 sequence at p (1..4), 0 when invalid. */
+static inline int fz_utf8(const unsigned char *p, const unsigned char *end)
+{
+	unsigned c = p[0], need, min, cp;
+	if (c < 0x80)
+		return 1;
+	if (c >= 0xc2 && c <= 0xdf) {
+		need = 1;
+		min = 0x80;
+		cp = c & 0x1f;
+	} else if (c >= 0xe0 && c <= 0xef) {
+		need = 2;
+		min = 0x800;
+		cp = c & 0x0f;
+	} else if (c >= 0xf0 && c <= 0xf4) {
+		need = 3;
+		min = 0x10000;
+		cp = c & 0x07;
+	} else {
+		return 0;
+	}
+	if (end - p <= (long)need)
+		return 0;
+	for (unsigned i = 1; i <= need; i++) {
+		if ((p[i] & 0xc0) != 0x80)
+			return 0;
+		cp = cp << 6 | (p[i] & 0x3f);
+	}
+	if (cp < min || cp > 0x10ffff || (cp >= 0xd800 && cp <= 0xdfff))
+		return 0;
+	return (int)need + 1;
+}
+
+static inline int fz_jvalue(fz_json *j);
+
+static inline int fz_jstring(fz_json *j)
+{
+	if (j->p >= j->end || *j->p != '"')
+		return 0;
+	j->p++;
+	while (j->p < j->end && *j->p != '"') {
+		if (*j->p < 0x20)
+			return 0;
+		if (*j->p == '\\') {
+			j->p++;
+			if (j->p >= j->end)
+				return 0;
+			if (*j->p == 'u') {
+				for (int i = 1; i <= 4; i++)
+					if (j->p + i >= j->end ||
+					    !strchr("0123456789abcdefABCDEF", j->p[i]) || !j->p[i])
+						return 0;
+				j->p += 5;
+			} else if (strchr("\"\\/bfnrt", *j->p) && *j->p) {
+				j->p++;
+			} else {
+				return 0;
+			}
+			continue;
+		}
+		int k = fz_utf8(j->p, j->end);
+		if (!k)
+			return 0;
+		j->p += k;
+	}
+	if (j->p >= j->end)
+		return 0;
+	j->p++;
+	return 1;
+}
+
+static inline int fz_jnumber(fz_json *j)
+{
+	const unsigned char *s = j->p;
+	if (j->p < j->end && *j->p == '-')
+		j->p++;
+	if (j->p < j->end && *j->p == '0') {
+		j->p++;
+	} else if (j->p < j->end && *j->p >= '1' && *j->p <= '9') {
+		while (j->p < j->end && *j->p >= '0' && *j->p <= '9')
+			j->p++;
+	} else {
+		return 0;
+	}
+	if (j->p < j->end && *j->p == '.') {
+		j->p++;
+		if (j->p >= j->end || *j->p < '0' || *j->p > '9')
+			return 0;
+		while (j->p < j->end && *j->p >= '0' && *j->p <= '9')
+			j->p++;
+	}
+	if (j->p < j->end && (*j->p == 'e' || *j->p == 'E')) {
+		j->p++;
+		if (j->p < j->end && (*j->p == '+' || *j->p == '-'))
+			j->p++;
+		if (j->p >= j->end || *j->p < '0' || *j->p > '9')
+			return 0;
+		while (j->p < j->end && *j->p >= '0' && *j->p <= '9')
+			j->p++;
+	}
+	return j->p > s;
+}
+
+static inline int fz_jword(fz_json *j, const char *w)
+{
+	size_t k = strlen(w);
+	if ((size_t)(j->end - j->p) < k || memcmp(j->p, w, k) != 0)
+		return 0;
+	j->p += k;
+	return 1;
+}
+
+static inline int fz_jcontainer(fz_json *j, int obj)
+{
+	int first = 1;
+	if (++j->depth > 64)
+		return 0;
+	j->p++;
+	for (;;) {
+		fz_ws(j);
+		if (j->p >= j->end)
+			return 0;
+		if (*j->p == (obj ? '}' : ']')) {
+			j->p++;
+			j->depth--;
+			return 1;
+		}
+		if (!first) {
+			if (*j->p != ',')
+				return 0;
+			j->p++;
+			fz_ws(j);
+		}
+		first = 0;
+		if (obj) {
+			if (!fz_jstring(j))
+				return 0;
+			fz_ws(j);
+			if (j->p >= j->end || *j->p != ':')
+				return 0;
+			j->p++;
+			fz_ws(j);
+		}
+		if (!fz_jvalue(j))
+			return 0;
+	}
+}
+
+static inline int fz_jvalue(fz_json *j)
+{
+	if (j->p >= j->end)
+		return 0;
+	switch (*j->p) {
+	case '{': return fz_jcontainer(j, 1);
+	case '[': return fz_jcontainer(j, 0);
+	case '"': return fz_jstring(j);
+	case 't': return fz_jword(j, "true");
+	case 'f': return fz_jword(j, "false");
+	case 'n': return fz_jword(j, "null");
+	default: return fz_jnumber(j);
+	}
+}
+
+/* Every line of buf[0..n) is one JSON object; the last line ends in '\n'. */
+static inline void fz_check_json_lines(const char *buf, size_t n)
+{
+	const char *p = buf, *end = buf + n;
+	FZ_CHECK(n == 0 || buf[n - 1] == '\n', "JSON output does not end in a newline");
+	while (p < end) {
+		const char *nl = memchr(p, '\n', (size_t)(end - p));
+		fz_json j = {(const unsigned char *)p, (const unsigned char *)nl, 0};
+		FZ_CHECK(nl && *p == '{', "JSON line is not an object: %.*s",
+			 (int)((nl ? nl : end) - p > 300 ? 300 : (nl ? nl : end) - p), p);
+		FZ_CHECK(fz_jvalue(&j) && j.p == j.end, "invalid JSON line: %.*s",
+			 (int)(nl - p > 300 ? 300 : nl - p), p);
+		p = nl + 1;
+	}
+}
+
+#endif

@@ -1,0 +1,52 @@
+#!/bin/sh
+# run.sh FUZZBUILD SECONDS NAME... - run each libFuzzer target
+# FUZZBUILD/bin/NAME for SECONDS, starting from the seeds in
+# tests/fuzz/corpus/NAME (read only) and the inputs it found before in
+# FUZZBUILD/corpus/NAME, where it adds what it finds.  FUZZ_FRESH=1 (the
+# smoke run) starts from the seeds alone, so that replaying a grown corpus
+# never outlasts SECONDS.  A crash, leak, timeout or sanitizer report
+# fails; the input is saved as FUZZBUILD/artifacts/NAME-*.  Prints one
+# line per target (runs, executions per second) and a closing line.
+set -u
+build=$1
+secs=$2
+shift 2
+root=$(pwd)
+case $build in /*) ;; *) build=$root/$build ;; esac
+# a tmpfs keeps saves (fsync) cheap; the targets clean up after themselves
+scratch=$build/tmp
+if [ -d /dev/shm ] && [ -w /dev/shm ]; then scratch=/dev/shm/ionmix-fuzz-$$; fi
+mkdir -p "$scratch" "$build/artifacts" "$build/log"
+fail=0
+for name in "$@"; do
+	bin=$build/bin/$name
+	seeds=$root/tests/fuzz/corpus/$name
+	work=$build/corpus/$name
+	[ "${FUZZ_FRESH:-0}" = 1 ] && work=$scratch/corpus-$name
+	log=$build/log/$name.txt
+	mkdir -p "$work"
+	case $name in
+	fuzz_units) maxlen=128 ;;
+	fuzz_correct) maxlen=8192 ;;
+	*) maxlen=6000 ;;
+	esac
+	TMPDIR=$scratch ASAN_OPTIONS=detect_leaks=1:allocator_may_return_null=0 \
+	UBSAN_OPTIONS=halt_on_error=1:print_stacktrace=1 \
+		"$bin" -max_total_time="$secs" -timeout=10 -rss_limit_mb=2048 \
+		-max_len=$maxlen -print_final_stats=1 \
+		-artifact_prefix="$build/artifacts/$name-" "$work" "$seeds" >"$log" 2>&1
+	rc=$?
+	runs=$(sed -n 's/^stat::number_of_executed_units: *//p' "$log" | tail -n 1)
+	eps=$(sed -n 's/^stat::average_exec_per_sec: *//p' "$log" | tail -n 1)
+	if [ "$rc" -eq 0 ]; then
+		echo "$name: ${runs:-?} runs in ${secs} s, ${eps:-?} exec/s, no crash"
+	else
+		fail=$((fail + 1))
+		echo "$name: FAILED (exit $rc); log $log:"
+		grep -aE 'ERROR|fuzz check failed|SUMMARY|runtime error|Test unit written' "$log" |
+			head -n 20
+	fi
+done
+rm -rf "$scratch"
+echo "fuzz: $(($# - fail)) passed, $fail failed"
+[ "$fail" -eq 0 ]
