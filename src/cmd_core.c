@@ -1000,8 +1000,12 @@ int cmd_info(im_ctx *ctx, int argc, char **argv, char *err)
 
 int cmd_compounds(im_ctx *ctx, int argc, char **argv, char *err)
 {
-	int n = refdb_ncompounds(ctx->ref);
-	(void)err;
+	int n = refdb_ncompounds(ctx->ref), any = argc < 2;
+	for (int i = 0; i < n && !any; i++)
+		any = im_strcaseeq(argv[1], refdb_compound_at(ctx->ref, i)->kind);
+	if (!any)
+		return im_fail(err, "no compounds of kind '%.30s' (kinds: salt, acid, base, buffer, "
+				    "chelator, sugar, organic-salt, nucleotide, drug)", argv[1]);
 	if (ctx->out->json) {
 		jw w;
 		jw_begin(&w, ctx->out);

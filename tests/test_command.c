@@ -177,6 +177,26 @@ static void script_stops_at_bad_line(void **state)
 	assert_int_equal(ws_find(&ctx.ws, "bath")->n, 1);
 }
 
+static void script_with_bom(void **state)
+{
+	char p[256], line[300];
+	FILE *f;
+	(void)state;
+	snprintf(p, sizeof p, "%s/bom.ionmix", dir);
+	f = fopen(p, "w");
+	fprintf(f, "\xef\xbb\xbfsolution bom\nadd NaCl 10\n");
+	fclose(f);
+	snprintf(line, sizeof line, "run %s", p);
+	ok(line);
+	assert_int_equal(ws_find(&ctx.ws, "bom")->n, 1);
+	ok("compounds salt");
+	{
+		char err[IM_ERRLEN];
+		assert_int_equal(cmd_exec(&ctx, "compounds bogus", err), -1);
+		assert_non_null(strstr(err, "bogus"));
+	}
+}
+
 static void export_then_run(void **state)
 {
 	char p[256], line[300];
@@ -231,6 +251,7 @@ int main(void)
 		cmocka_unit_test_setup_teardown(bad_input_leaves_workspace, fresh, done),
 		cmocka_unit_test_setup_teardown(hostile_lines, fresh, done),
 		cmocka_unit_test_setup_teardown(script_stops_at_bad_line, fresh, done),
+		cmocka_unit_test_setup_teardown(script_with_bom, fresh, done),
 		cmocka_unit_test_setup_teardown(export_then_run, fresh, done),
 		cmocka_unit_test_setup_teardown(save_load, fresh, done),
 		cmocka_unit_test_setup_teardown(json_show, fresh, done),
