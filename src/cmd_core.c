@@ -860,6 +860,11 @@ int core_run_stream(im_ctx *ctx, void *stream, const char *file, int *line_out,
 	(void)file; /* the caller names the file in its message */
 	while (errno = 0, (len = getline(&line, &cap, fp)) >= 0) {
 		lineno++;
+		if (lineno == 1 && len >= 3 && memcmp(line, "\xef\xbb\xbf", 3) == 0) {
+			/* a UTF-8 byte-order mark, as some editors write: not a command */
+			memmove(line, line + 3, len - 2);
+			len -= 3;
+		}
 		if (len > CMD_LINE_MAX) {
 			rc = im_fail(err, "line is longer than %d bytes", CMD_LINE_MAX);
 			break;
