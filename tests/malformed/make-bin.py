@@ -44,7 +44,9 @@ CASES = {
     "utf8-five-byte": b"\xf8\x88\x80\x80\x80",
     "utf8-latin1-micro": b"add NaCl 1 \xb5M",
     "utf8-stray-continuation": b"temp \x8030",
-    "utf8-bom-command": b"\xef\xbb\xbfshow",
+    # a byte-order mark starts a script harmlessly (it is skipped), but
+    # inside a line it is a stray character before the command
+    "utf8-bom-command": b"show \xef\xbb\xbfbath",
     "utf8-beyond-10ffff": b"info \xf4\x90\x80\x80",
     # NUL bytes (fed as a script line: a C string would end at the NUL)
     "nul-middle": b"add NaCl\x0010",
