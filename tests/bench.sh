@@ -18,6 +18,6 @@ for s in tests/bench_*.sh; do
 	IONMIX=${IONMIX:-$build/ionmix} sh "$s" >>"$out" || echo "bench|$s FAILED|-|-|-" >>"$out"
 done
 grep '^bench|' "$out" | awk -F'|' '
-	BEGIN { printf "%-58s %-16s %-14s %s\n", "what", "figure", "goal", "ratio";
-		printf "%-58s %-16s %-14s %s\n", "----", "------", "----", "-----" }
-	{ printf "%-58s %-16s %-14s %s\n", $2, $3, $4, $5 }'
+	BEGIN { printf "%-72s %-18s %-14s %s\n", "what", "figure", "goal", "ratio";
+		printf "%-72s %-18s %-14s %s\n", "----", "------", "----", "-----" }
+	{ printf "%-72s %-18s %-14s %s\n", $2, $3, $4, $5 }'
