@@ -12,6 +12,7 @@
  * the permeant ions present on both sides.
  */
 #include "ghk.h"
+#include "roots.h"
 
 #include <float.h>
 #include <math.h>
@@ -134,86 +135,6 @@ int ghk_nernst_mV(int z, double in_mM, double out_mM, double t_C, double *E_mV,
 	return 0;
 }
 
-/* ---- Brent's method (Brent 1973, Algorithms for Minimization without
- * Derivatives, ch. 4): inverse quadratic interpolation, secant or bisection
- * inside a bracket that always holds a sign change. ---- */
-
-typedef double (*root_fn)(double x, void *ctx);
-
-/* Needs f(a), f(b) of opposite sign (or one zero).  Stops when the bracket
- * is narrower than tol_abs + tol_rel |x| (plus rounding); -1 with err after
- * max_iter iterations or a non-finite f. */
-static int brent(root_fn f, void *ctx, double a, double b, double fa,
-		 double fb, double tol_abs, double tol_rel, int max_iter,
-		 double *root, char *err)
-{
-	if (fa == 0.0) {
-		*root = a;
-		return 0;
-	}
-	if (fb == 0.0) {
-		*root = b;
-		return 0;
-	}
-	if ((fa > 0) == (fb > 0))
-		return im_fail(err, "internal: root search without a sign change");
-	double c = b, fc = fb, d = b - a, e = d;
-	for (int it = 0; it < max_iter; it++) {
-		if ((fb > 0) == (fc > 0)) {
-			c = a;
-			fc = fa;
-			d = e = b - a;
-		}
-		if (fabs(fc) < fabs(fb)) {
-			a = b;
-			b = c;
-			c = a;
-			fa = fb;
-			fb = fc;
-			fc = fa;
-		}
-		double tol = 2.0 * DBL_EPSILON * fabs(b)
-			+ 0.5 * (tol_abs + tol_rel * fabs(b));
-		double xm = 0.5 * (c - b);
-		if (fabs(xm) <= tol || fb == 0.0) {
-			*root = b;
-			return 0;
-		}
-		if (fabs(e) >= tol && fabs(fa) > fabs(fb)) {
-			double s = fb / fa, p, q;
-			if (a == c) {
-				p = 2.0 * xm * s;
-				q = 1.0 - s;
-			} else {
-				double qq = fa / fc, r = fb / fc;
-				p = s * (2.0 * xm * qq * (qq - r) - (b - a) * (r - 1.0));
-				q = (qq - 1.0) * (r - 1.0) * (s - 1.0);
-			}
-			if (p > 0)
-				q = -q;
-			p = fabs(p);
-			double m1 = 3.0 * xm * q - fabs(tol * q), m2 = fabs(e * q);
-			if (2.0 * p < (m1 < m2 ? m1 : m2)) {
-				e = d;
-				d = p / q;
-			} else {
-				d = xm;
-				e = d;
-			}
-		} else {
-			d = xm;
-			e = d;
-		}
-		a = b;
-		fa = fb;
-		b += fabs(d) > tol ? d : (xm > 0 ? tol : -tol);
-		fb = f(b, ctx);
-		if (!isfinite(fb))
-			return im_fail(err, "root search met a non-finite value at %g", b);
-	}
-	return im_fail(err, "root search did not converge in %d iterations",
-		       max_iter);
-}
 
 /* ---- input checks ---- */
 
@@ -379,7 +300,7 @@ static int erev_root(const ghk_ion *ions, int n, double t_C, double *E_mV,
 			"permeabilities too extreme)");
 		goto out;
 	}
-	rc = brent(sum_current, &c, lo, hi, flo, fhi, GHK_TOL_ABS_MV, GHK_TOL_REL,
+	rc = roots_brent(sum_current, &c, lo, hi, flo, fhi, GHK_TOL_ABS_MV, GHK_TOL_REL,
 		   GHK_MAX_ITER, E_mV, err);
 out:
 	if (t != stack)
@@ -504,7 +425,7 @@ static int ratio_solve(ratio_ctx *r, const char *what, double *ratio, char *err)
 			       GHK_RATIO_MIN, GHK_RATIO_MAX, what, r->target_mV,
 			       fmin + r->target_mV, fmax + r->target_mV);
 	double y;
-	if (brent(ratio_fn, r, ya, yb, fa, fb, 1e-13, 0.0, GHK_MAX_ITER, &y, err))
+	if (roots_brent(ratio_fn, r, ya, yb, fa, fb, 1e-13, 0.0, GHK_MAX_ITER, &y, err))
 		return -1;
 	if (r->failed)
 		return im_fail(err, "%s", r->err);

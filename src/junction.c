@@ -4,6 +4,7 @@
  * (sign: bath relative to pipette, mV).
  */
 #include "junction.h"
+#include "roots.h"
 
 #include <float.h>
 #include <math.h>
@@ -248,66 +249,10 @@ static double planck_f(double y, const planck_eq *q)
 	       (q->V2 - xi * q->V1) * expm1_over(q->r + y);
 }
 
-/* Brent's method on [a, b] with f(a) f(b) < 0; 0 and *root, or -1 when
- * it has not converged to tol within maxit evaluations. */
-static int brent(const planck_eq *q, double a, double b, double fa, double fb, double tol,
-		 int maxit, double *root)
+/* planck_f in the shape roots_brent wants. */
+static double planck_root_fn(double y, void *q)
 {
-	double c = a, fc = fa, d = b - a, e = d;
-	for (int it = 0; it < maxit; it++) {
-		double tol1, xm;
-		if ((fb > 0 && fc > 0) || (fb < 0 && fc < 0)) {
-			c = a;
-			fc = fa;
-			d = e = b - a;
-		}
-		if (fabs(fc) < fabs(fb)) {
-			a = b;
-			b = c;
-			c = a;
-			fa = fb;
-			fb = fc;
-			fc = fa;
-		}
-		tol1 = 2.0 * DBL_EPSILON * fabs(b) + 0.5 * tol;
-		xm = 0.5 * (c - b);
-		if (fabs(xm) <= tol1 || fb == 0.0) {
-			*root = b;
-			return 0;
-		}
-		if (fabs(e) >= tol1 && fabs(fa) > fabs(fb)) {
-			/* inverse quadratic interpolation, or secant when a == c */
-			double p, qq, r, s = fb / fa;
-			if (a == c) {
-				p = 2.0 * xm * s;
-				qq = 1.0 - s;
-			} else {
-				qq = fa / fc;
-				r = fb / fc;
-				p = s * (2.0 * xm * qq * (qq - r) - (b - a) * (r - 1.0));
-				qq = (qq - 1.0) * (r - 1.0) * (s - 1.0);
-			}
-			if (p > 0)
-				qq = -qq;
-			p = fabs(p);
-			if (2.0 * p <
-			    fmin(3.0 * xm * qq - fabs(tol1 * qq), fabs(e * qq))) {
-				e = d;
-				d = p / qq;
-			} else {
-				d = xm; /* bisection */
-				e = d;
-			}
-		} else {
-			d = xm;
-			e = d;
-		}
-		a = b;
-		fa = fb;
-		b += fabs(d) > tol1 ? d : (xm > 0 ? tol1 : -tol1);
-		fb = planck_f(b, q);
-	}
-	return -1;
+	return planck_f(y, q);
 }
 
 int jn_planck_mV(const jn_ion *ions, int n, double t_C, double *ljp_mV, char *err)
@@ -316,7 +261,7 @@ int jn_planck_mV(const jn_ion *ions, int n, double t_C, double *ljp_mV, char *er
 	double lo, hi, flo, fhi, y;
 	static const char *side[2] = {"pipette", "bath"};
 	planck_eq q;
-	char b[24];
+	char b[24], e2[IM_ERRLEN];
 	if (check(ions, n, t_C, &dmax, err) < 0)
 		return -1;
 	for (int i = 0; i < n; i++) {
@@ -381,12 +326,9 @@ int jn_planck_mV(const jn_ion *ions, int n, double t_C, double *ljp_mV, char *er
 				       "Planck's equation: no sign change on the bracket "
 				       "[%g, %g] of ln xi",
 				       lo, hi);
-		else if (brent(&q, lo, hi, flo, fhi, JN_PLANCK_TOL, JN_PLANCK_MAXIT, &y) <
-			 0)
-			return im_fail(err,
-				       "Planck's equation: root finder did not converge "
-				       "in %d iterations",
-				       JN_PLANCK_MAXIT);
+		else if (roots_brent(planck_root_fn, &q, lo, hi, flo, fhi, JN_PLANCK_TOL, 0.0,
+				     JN_PLANCK_MAXIT, &y, e2) < 0)
+			return im_fail(err, "Planck's equation: %s", e2);
 	}
 	*ljp_mV = im_rt_f_mV(t_C) * y;
 	return 0;

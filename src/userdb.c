@@ -93,6 +93,42 @@ static int user_version(userdb *u, int *v)
 	return rc;
 }
 
+/* Create the tables of a new, empty database.  Two processes may both get
+ * here for the same new file: the write lock is taken first (BEGIN
+ * IMMEDIATE waits out the other through the busy timeout), and the schema
+ * version is read again under it, so the second finds the work done. */
+static int create_schema(userdb *u, char *err)
+{
+	char sql[sizeof schema_sql + 64];
+	int v = 0;
+	for (int tries = 0; tries < 50; tries++) {
+		int rc = sqlite3_exec(u->db, "PRAGMA journal_mode = WAL", NULL, NULL, NULL);
+		if (rc == SQLITE_OK)
+			break;
+		if (rc != SQLITE_BUSY && rc != SQLITE_LOCKED)
+			return fail_db(u, err, "creating the tables");
+		sqlite3_sleep(20);
+	}
+	if (sqlite3_exec(u->db, "BEGIN IMMEDIATE", NULL, NULL, NULL) != SQLITE_OK)
+		return fail_db(u, err, "creating the tables");
+	if (user_version(u, &v) != SQLITE_OK) {
+		fail_db(u, err, "creating the tables");
+		sqlite3_exec(u->db, "ROLLBACK", NULL, NULL, NULL);
+		return -1;
+	}
+	if (v != 0)
+		return sqlite3_exec(u->db, "COMMIT", NULL, NULL, NULL) == SQLITE_OK
+			       ? 0 : fail_db(u, err, "opening");
+	snprintf(sql, sizeof sql, "%s PRAGMA user_version = %d; COMMIT;", schema_sql,
+		 UDB_SCHEMA_VERSION);
+	if (sqlite3_exec(u->db, sql, NULL, NULL, NULL) != SQLITE_OK) {
+		fail_db(u, err, "creating the tables");
+		sqlite3_exec(u->db, "ROLLBACK", NULL, NULL, NULL);
+		return -1;
+	}
+	return 0;
+}
+
 int udb_open(const char *path, int create, userdb **out, char *err)
 {
 	userdb *u;
@@ -145,17 +181,9 @@ int udb_open(const char *path, int create, userdb **out, char *err)
 		udb_close(u);
 		return -1;
 	}
-	if (v == 0) {
-		char sql[sizeof schema_sql + 64];
-		snprintf(sql, sizeof sql, "BEGIN; %s PRAGMA user_version = %d; COMMIT;",
-			 schema_sql, UDB_SCHEMA_VERSION);
-		if (sqlite3_exec(u->db, "PRAGMA journal_mode = WAL", NULL, NULL, NULL) != SQLITE_OK ||
-		    sqlite3_exec(u->db, sql, NULL, NULL, NULL) != SQLITE_OK) {
-			fail_db(u, err, "creating the tables");
-			sqlite3_exec(u->db, "ROLLBACK", NULL, NULL, NULL);
-			udb_close(u);
-			return -1;
-		}
+	if (v == 0 && create_schema(u, err)) {
+		udb_close(u);
+		return -1;
 	}
 	sqlite3_exec(u->db, "PRAGMA foreign_keys = ON", NULL, NULL, NULL);
 	*out = u;
