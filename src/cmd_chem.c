@@ -140,6 +140,10 @@ int cmd_ph(im_ctx *ctx, int argc, char **argv, char *err)
 		jw_str(&w, "titrant", t->name);
 		jw_num(&w, "titrant_mM", amount, 8);
 		jw_num(&w, "pH", st.pH, 6);
+		if (stock > 0) {
+			jw_num(&w, "stock_mM", stock, 8);
+			jw_num(&w, "stock_mL_per_L", 1000.0 * amount / stock, 8);
+		}
 		if (t->hazard)
 			jw_str(&w, "caution", t->hazard);
 		jw_end(&w);
@@ -147,6 +151,13 @@ int cmd_ph(im_ctx *ctx, int argc, char **argv, char *err)
 		units_fmt_conc(b, sizeof b, amount, ctx->out->utf8);
 		out_printf(ctx->out, "%s: %s %s brings the pH to %.2f at %.1f C (computed pH "
 				     "%.3f)\n", s->name, b, t->name, pH, ctx->temp_C, st.pH);
+		if (stock > 0) {
+			char sb[48];
+			units_fmt_conc(sb, sizeof sb, stock, ctx->out->utf8);
+			out_printf(ctx->out, "  from the %s stock: %.3g mL per litre of final "
+					     "solution (`weigh` gives it for your volume)\n", sb,
+				   1000.0 * amount / stock);
+		}
 		out_printf(ctx->out, "  start from this amount and finish with a calibrated pH "
 				     "meter: the pH here is what an electrode reads, -log a(H+)\n");
 		caution_of(ctx, t);
