@@ -3,8 +3,7 @@
  * 12-compound pipette solution, in microseconds per solve; and 10,000
  * random solutions solved closed, titrated and speciated, counting failures
  * to converge.  Prints "bench|WHAT|FIGURE|GOAL|RATIO" lines for
- * tests/bench.sh.  Reads the SQL files of data/ (run from the repository
- * root, or set IONMIX_DATA_DIR). */
+ * tests/bench.sh.  The tables come from the embedded reference data. */
 #include <math.h>
 #include <sqlite3.h>
 #include <stdint.h>
@@ -15,6 +14,7 @@
 
 #include "common.h"
 #include "osmotic.h"
+#include "refdb.h"
 #include "speciation.h"
 
 static double now_s(void)
@@ -30,50 +30,6 @@ static int cmp_d(const void *a, const void *b)
 	return (x > y) - (x < y);
 }
 
-static char *slurp(const char *path)
-{
-	FILE *f = fopen(path, "rb");
-	if (!f)
-		return NULL;
-	fseek(f, 0, SEEK_END);
-	long n = ftell(f);
-	rewind(f);
-	char *buf = malloc((size_t)n + 1);
-	size_t got = fread(buf, 1, (size_t)n, f);
-	buf[got] = '\0';
-	fclose(f);
-	return buf;
-}
-
-static int load(sqlite3 **db, char *err)
-{
-	static const char *files[] = {"schema.sql", "sources.sql", "ions.sql",
-				      "compounds.sql", "equilibria.sql"};
-	const char *dir = getenv("IONMIX_DATA_DIR");
-	if (!dir)
-		dir = "data";
-	if (sqlite3_open(":memory:", db) != SQLITE_OK)
-		return im_fail(err, "cannot open sqlite");
-	sqlite3_exec(*db, "PRAGMA foreign_keys = ON", NULL, NULL, NULL);
-	for (size_t i = 0; i < IM_COUNT(files); i++) {
-		char p[512], *msg = NULL;
-		snprintf(p, sizeof p, "%s/%s", dir, files[i]);
-		char *sql = slurp(p);
-		if (!sql) {
-			if (i == 0 || i == IM_COUNT(files) - 1)
-				return im_fail(err, "cannot read %s", p);
-			continue;
-		}
-		int rc = sqlite3_exec(*db, sql, NULL, NULL, &msg);
-		free(sql);
-		if (rc != SQLITE_OK) {
-			im_fail(err, "%s: %s", p, msg);
-			sqlite3_free(msg);
-			return -1;
-		}
-	}
-	return 0;
-}
 
 /* A pipette solution of our own invention, as the species its 12 compounds
  * yield (compound_yields): K-gluconate 120, KCl 10, NaCl 4, MgCl2 2,
@@ -124,9 +80,11 @@ int main(void)
 {
 	char err[IM_ERRLEN];
 	sqlite3 *db;
+	refdb *ref;
 	spec_data *d;
 	osm_data *o;
-	if (load(&db, err) || spec_load(db, &d, err) || osm_load(db, &o, err)) {
+	if (refdb_open(&ref, err) || (db = refdb_sqlite(ref), spec_load(db, &d, err)) ||
+	    osm_load(db, &o, err)) {
 		fprintf(stderr, "bench_chemistry: %s\n", err);
 		return 1;
 	}
@@ -215,6 +173,6 @@ int main(void)
 	free(r);
 	spec_data_free(d);
 	osm_data_free(o);
-	sqlite3_close(db);
+	refdb_close(ref);
 	return fails ? 1 : 0;
 }

@@ -3,10 +3,8 @@
  * osmolality adjustment (osmotic.c) against published tables, common
  * practice and expected failures.
  *
- * The reference data are loaded from the SQL files of data/ with
- * sqlite3_exec (schema, sources, ions, compounds, equilibria; files of
- * other modules that do not exist yet are skipped).  The data directory
- * is $IONMIX_DATA_DIR, else data/ or ../data/.
+ * The tables come from the reference data embedded in the library
+ * (refdb_open), the same the program loads.
  */
 #include <sqlite3.h>
 #include <stdlib.h>
@@ -17,68 +15,19 @@
 #include "activity.h"
 #include "common.h"
 #include "osmotic.h"
+#include "refdb.h"
 
 static sqlite3 *db;
 static osm_data *O;
 
-static char *slurp(const char *path)
-{
-	FILE *f = fopen(path, "rb");
-	if (!f)
-		return NULL;
-	fseek(f, 0, SEEK_END);
-	long n = ftell(f);
-	rewind(f);
-	char *buf = malloc((size_t)n + 1);
-	size_t got = fread(buf, 1, (size_t)n, f);
-	buf[got] = '\0';
-	fclose(f);
-	return buf;
-}
+static refdb *ref;
 
+/* The tables come from the embedded reference data, as in the program. */
 static int setup_db(void **state)
 {
-	(void)state;
-	static const char *files[] = {"schema.sql", "sources.sql", "ions.sql",
-				      "compounds.sql", "equilibria.sql"};
-	const char *cand[] = {getenv("IONMIX_DATA_DIR"), "data", "../data"}, *dir = NULL;
-	for (size_t i = 0; i < IM_COUNT(cand) && !dir; i++) {
-		char p[512];
-		if (!cand[i])
-			continue;
-		snprintf(p, sizeof p, "%s/schema.sql", cand[i]);
-		FILE *f = fopen(p, "r");
-		if (f) {
-			fclose(f);
-			dir = cand[i];
-		}
-	}
-	if (!dir || sqlite3_open(":memory:", &db) != SQLITE_OK) {
-		fprintf(stderr, "test_osmotic: no data directory or database\n");
-		return -1;
-	}
-	sqlite3_exec(db, "PRAGMA foreign_keys = ON", NULL, NULL, NULL);
-	for (size_t i = 0; i < IM_COUNT(files); i++) {
-		char p[512], *msg = NULL;
-		snprintf(p, sizeof p, "%s/%s", dir, files[i]);
-		char *sql = slurp(p);
-		if (!sql) {
-			if (i == 0 || i == IM_COUNT(files) - 1) {
-				fprintf(stderr, "test_osmotic: cannot read %s\n", p);
-				return -1;
-			}
-			continue;
-		}
-		int rc = sqlite3_exec(db, sql, NULL, NULL, &msg);
-		free(sql);
-		if (rc != SQLITE_OK) {
-			fprintf(stderr, "test_osmotic: %s: %s\n", p, msg);
-			sqlite3_free(msg);
-			return -1;
-		}
-	}
 	char err[IM_ERRLEN];
-	if (osm_load(db, &O, err)) {
+	(void)state;
+	if (refdb_open(&ref, err) || (db = refdb_sqlite(ref), osm_load(db, &O, err))) {
 		fprintf(stderr, "test_osmotic: %s\n", err);
 		return -1;
 	}
@@ -89,7 +38,7 @@ static int teardown_db(void **state)
 {
 	(void)state;
 	osm_data_free(O);
-	sqlite3_close(db);
+	refdb_close(ref);
 	return 0;
 }
 

@@ -3,10 +3,8 @@
  * against hand-derived answers from published constants, common practice,
  * mass balance on random mixtures, and expected failures.
  *
- * The reference data are loaded from the SQL files of data/ with
- * sqlite3_exec, in the order the program uses (schema, sources, ions,
- * compounds, equilibria); files of other modules that do not exist yet are
- * skipped.  The data directory is $IONMIX_DATA_DIR, else data/ or ../data/.
+ * The tables come from the reference data embedded in the library
+ * (refdb_open), the same the program loads.
  */
 #include <sqlite3.h>
 #include <stdlib.h>
@@ -16,80 +14,22 @@
 
 #include "activity.h"
 #include "common.h"
+#include "refdb.h"
 #include "speciation.h"
 
 static sqlite3 *db;
 static spec_data *D;
 static osm_data *O;
 
-static char *slurp(const char *path)
-{
-	FILE *f = fopen(path, "rb");
-	if (!f)
-		return NULL;
-	fseek(f, 0, SEEK_END);
-	long n = ftell(f);
-	rewind(f);
-	char *buf = malloc((size_t)n + 1);
-	size_t got = fread(buf, 1, (size_t)n, f);
-	buf[got] = '\0';
-	fclose(f);
-	return buf;
-}
+static refdb *ref;
 
-static const char *data_dir(void)
-{
-	static const char *cand[] = {NULL, "data", "../data"};
-	char p[512];
-	cand[0] = getenv("IONMIX_DATA_DIR");
-	for (size_t i = 0; i < IM_COUNT(cand); i++) {
-		if (!cand[i])
-			continue;
-		snprintf(p, sizeof p, "%s/schema.sql", cand[i]);
-		FILE *f = fopen(p, "r");
-		if (f) {
-			fclose(f);
-			return cand[i];
-		}
-	}
-	return NULL;
-}
-
+/* The tables come from the embedded reference data, as in the program. */
 static int setup_db(void **state)
 {
-	(void)state;
-	static const char *files[] = {"schema.sql", "sources.sql", "ions.sql",
-				      "compounds.sql", "equilibria.sql"};
-	const char *dir = data_dir();
-	if (!dir) {
-		fprintf(stderr, "test_speciation: no data directory found\n");
-		return -1;
-	}
-	if (sqlite3_open(":memory:", &db) != SQLITE_OK)
-		return -1;
-	sqlite3_exec(db, "PRAGMA foreign_keys = ON", NULL, NULL, NULL);
-	for (size_t i = 0; i < IM_COUNT(files); i++) {
-		char p[512], *msg = NULL;
-		snprintf(p, sizeof p, "%s/%s", dir, files[i]);
-		char *sql = slurp(p);
-		int required = i == 0 || i == IM_COUNT(files) - 1;
-		if (!sql) {
-			if (required) {
-				fprintf(stderr, "test_speciation: cannot read %s\n", p);
-				return -1;
-			}
-			continue;
-		}
-		if (sqlite3_exec(db, sql, NULL, NULL, &msg) != SQLITE_OK) {
-			fprintf(stderr, "test_speciation: %s: %s\n", p, msg);
-			sqlite3_free(msg);
-			free(sql);
-			return -1;
-		}
-		free(sql);
-	}
 	char err[IM_ERRLEN];
-	if (spec_load(db, &D, err) || osm_load(db, &O, err)) {
+	(void)state;
+	if (refdb_open(&ref, err) || (db = refdb_sqlite(ref), spec_load(db, &D, err)) ||
+	    osm_load(db, &O, err)) {
 		fprintf(stderr, "test_speciation: %s\n", err);
 		return -1;
 	}
@@ -101,7 +41,7 @@ static int teardown_db(void **state)
 	(void)state;
 	spec_data_free(D);
 	osm_data_free(O);
-	sqlite3_close(db);
+	refdb_close(ref);
 	return 0;
 }
 
