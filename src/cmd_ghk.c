@@ -202,6 +202,22 @@ static int ljp(const side *pip, const side *bath, double t_C, double *ljp_mV,
 	return cmdj_henderson_mV(&pip->st, &bath->st, 0, t_C, ljp_mV, err);
 }
 
+/* The JSON keys erev and iv share: the pair, temperature, basis and the
+ * permeabilities given. */
+static void json_head(jw *w, im_ctx *ctx, const side *ins, const side *outs,
+		      const opts *o, const ghk_ion *x)
+{
+	jw_begin(w, ctx->out);
+	jw_str(w, "inside", ins->sol->name);
+	jw_str(w, "outside", outs->sol->name);
+	jw_num(w, "temperature_C", ctx->temp_C, 6);
+	jw_str(w, "from", basis(o));
+	jw_obj(w, "permeabilities");
+	for (int i = 0; i < o->np; i++)
+		jw_num(w, x[i].symbol, x[i].P, 10);
+	jw_close(w);
+}
+
 /* ---- erev ---- */
 
 int cmd_ghk_erev(im_ctx *ctx, int argc, char **argv, char *err)
@@ -237,15 +253,7 @@ int cmd_ghk_erev(im_ctx *ctx, int argc, char **argv, char *err)
 	}
 	if (ctx->out->json) {
 		jw w;
-		jw_begin(&w, ctx->out);
-		jw_str(&w, "inside", ins.sol->name);
-		jw_str(&w, "outside", outs.sol->name);
-		jw_num(&w, "temperature_C", ctx->temp_C, 6);
-		jw_str(&w, "from", basis(&o));
-		jw_obj(&w, "permeabilities");
-		for (int i = 0; i < o.np; i++)
-			jw_num(&w, x[i].symbol, x[i].P, 10);
-		jw_close(&w);
+		json_head(&w, ctx, &ins, &outs, &o, x);
 		jw_num(&w, "E_rev_mV", E, 8);
 		jw_obj(&w, "nernst_mV");
 		for (int i = 0; i < o.np; i++) {
@@ -672,15 +680,7 @@ int cmd_ghk_iv(im_ctx *ctx, int argc, char **argv, char *err)
 
 	if (ctx->out->json) {
 		jw w;
-		jw_begin(&w, ctx->out);
-		jw_str(&w, "inside", ins.sol->name);
-		jw_str(&w, "outside", outs.sol->name);
-		jw_num(&w, "temperature_C", ctx->temp_C, 6);
-		jw_str(&w, "from", basis(&o));
-		jw_obj(&w, "permeabilities");
-		for (int i = 0; i < o.np; i++)
-			jw_num(&w, x[i].symbol, x[i].P, 10);
-		jw_close(&w);
+		json_head(&w, ctx, &ins, &outs, &o, x);
 		jw_str(&w, "current_unit", o.absolute == 1 ? "A/cm2"
 			: "A/cm2 per cm/s of the relative P given");
 		jw_arr(&w, "points");
