@@ -267,14 +267,11 @@ static int load_db(refdb *r, const char *sql, char *err)
 	if (sqlite3_open_v2(":memory:", &r->db, SQLITE_OPEN_READWRITE, NULL) != SQLITE_OK)
 		return im_fail(err, "cannot open the in-memory reference database");
 	if (!sql) {
-		unsigned char *copy = sqlite3_malloc64(im_refdata_image_len);
-		if (!copy)
-			return im_fail(err, "out of memory for the reference database");
-		memcpy(copy, im_refdata_image, im_refdata_image_len);
-		if (sqlite3_deserialize(r->db, "main", copy, im_refdata_image_len,
-					im_refdata_image_len,
-					SQLITE_DESERIALIZE_FREEONCLOSE |
-						SQLITE_DESERIALIZE_RESIZEABLE) != SQLITE_OK)
+		/* read-only: SQLite reads the image where it lies in the binary,
+		 * with no copy (the reference data are never written) */
+		if (sqlite3_deserialize(r->db, "main", (unsigned char *)im_refdata_image,
+					im_refdata_image_len, im_refdata_image_len,
+					SQLITE_DESERIALIZE_READONLY) != SQLITE_OK)
 			return im_fail(err, "the embedded reference database does not load: %s",
 				       sqlite3_errmsg(r->db));
 		return 0;
