@@ -77,7 +77,8 @@ int main(int argc, char **argv)
 		const char *a = argv[i];
 		if (strcmp(a, "--help") == 0) {
 			usage(stdout);
-			return 0;
+			status = 0;
+			goto out;
 		} else if (strcmp(a, "--version") == 0) {
 			printf("ionmix %s\nCopyright (C) 2026 the ionmix developers\n"
 			       "License GPLv3+: GNU GPL version 3 or later "
@@ -85,7 +86,8 @@ int main(int argc, char **argv)
 			       "This is free software: you are free to change and redistribute it.\n"
 			       "There is NO WARRANTY, to the extent permitted by law.\n",
 			       IONMIX_VERSION);
-			return 0;
+			status = 0;
+			goto out;
 		} else if (strcmp(a, "--json") == 0) {
 			o.json = 1;
 		} else if (strcmp(a, "--db") == 0 || strncmp(a, "--db=", 5) == 0) {
@@ -105,7 +107,8 @@ int main(int argc, char **argv)
 				acts[nact++] = argv[i];
 		} else if (a[0] == '-' && a[1] != '\0') {
 			fprintf(stderr, "ionmix: unknown option '%s'\nTry 'ionmix --help'.\n", a);
-			return 2;
+			status = 2;
+			goto out;
 		} else {
 			acts[nact++] = argv[i];
 		}
@@ -113,14 +116,16 @@ int main(int argc, char **argv)
 
 	if (refdb_open(&ref, err)) {
 		fprintf(stderr, "ionmix: %s\n", err);
-		return 1;
+		status = 1;
+		goto out;
 	}
 	ctx_init(&ctx, ref, &o);
 	if (ctx_load_chemistry(&ctx, err)) {
 		fprintf(stderr, "ionmix: equilibria data do not load: %s\n", err);
 		ctx_free(&ctx);
 		refdb_close(ref);
-		return 1;
+		status = 1;
+		goto out;
 	}
 	dbpath = db ? im_xstrdup(db) : udb_default_path();
 	ctx.db_path = dbpath;
@@ -166,5 +171,9 @@ int main(int argc, char **argv)
 missing:
 	fprintf(stderr, "ionmix: option '%s' needs an argument\nTry 'ionmix --help'.\n",
 		argv[argc - 1]);
-	return 2;
+	status = 2;
+out: /* before the reference data are open */
+	free(acts);
+	free(is_expr);
+	return status;
 }

@@ -1,0 +1,77 @@
+"""check_invocation.py - options, modes and exit status of the binary, as
+the core issue and the GNU coding standards (--help, --version) describe
+them: 0 when every command succeeded, 1 when one failed, 2 for a usage
+error; standard input read as a script when it is not a terminal; JSON
+errors on standard output."""
+import json
+import os
+import subprocess
+import sys
+import tempfile
+
+binary = os.environ.get("IONMIX", "build/ionmix")
+tmp = tempfile.mkdtemp(prefix="ionmix-inv-")
+db = os.path.join(tmp, "sub", "user.db")
+passed = failed = 0
+
+
+def run(args, stdin=None):
+    env = dict(os.environ, LC_ALL="C", HOME=tmp, XDG_DATA_HOME=tmp)
+    env.pop("IONMIX_DB", None)
+    return subprocess.run([binary] + args, input=stdin, capture_output=True, text=True,
+                          env=env, timeout=60)
+
+
+def check(what, ok):
+    global passed, failed
+    if ok:
+        passed += 1
+    else:
+        failed += 1
+        print("failed: " + what)
+
+
+r = run(["--help"])
+check("--help exits 0 and starts with Usage", r.returncode == 0 and r.stdout.startswith("Usage: ionmix"))
+r = run(["--version"])
+check("--version exits 0, first line 'ionmix VERSION'",
+      r.returncode == 0 and r.stdout.splitlines()[0].startswith("ionmix ") and "GPL" in r.stdout)
+r = run(["--frobnicate"])
+check("unknown option exits 2 with one line and a hint",
+      r.returncode == 2 and "unknown option" in r.stderr and "--help" in r.stderr)
+r = run(["--db"])
+check("--db without its argument exits 2", r.returncode == 2)
+r = run(["--db", db, "-e", "solution a; add NaCl 140; show"])
+check("-e runs commands, exit 0", r.returncode == 0 and "ionic strength" in r.stdout)
+check("reading never creates the database", not os.path.exists(os.path.dirname(db)))
+r = run(["--db", db, "-e", "solution a", "-e", "add Nope 1", "-e", "show"])
+check("a failing -e stops there with exit 1",
+      r.returncode == 1 and "Nope" in r.stderr and "ionic strength" not in r.stdout)
+r = run(["--db", db], stdin="solution a\nadd NaCl 10\nshow\n")
+check("standard input (not a terminal) runs as a script, no prompt",
+      r.returncode == 0 and "ionmix [" not in r.stdout and "ionic strength" in r.stdout)
+r = run(["--db", db], stdin="solution a\nadd NaCl ten\nshow\n")
+check("a bad stdin line: exit 1, (stdin):2: in the message",
+      r.returncode == 1 and "(stdin):2:" in r.stderr)
+r = run(["--db", db, "--json", "-e", "solution a; add NaCl 140; show"])
+lines = [json.loads(x) for x in r.stdout.splitlines()]
+check("--json prints one object per line with the show keys",
+      r.returncode == 0 and all(k in lines[-1] for k in
+                                ("solution", "temperature_C", "ions", "ionic_strength_mM",
+                                 "osmolarity_mOsm_L", "net_charge_mEq_L", "pH", "free",
+                                 "osmolality_mOsm_kg", "osmotic_coefficient")))
+r = run(["--db", db, "--json", "-e", "add Nope 1"])
+check("--json errors go to standard output as {\"error\"}",
+      r.returncode == 1 and "error" in json.loads(r.stdout.splitlines()[-1]))
+r = run(["--db", db, os.path.join(tmp, "missing.ionmix")])
+check("a missing script exits 1", r.returncode == 1 and "cannot open" in r.stderr)
+r = run(["--db", db, "-e", "solution a; add NaCl 1; save"])
+check("save creates the database and its directory", r.returncode == 0 and os.path.exists(db))
+r = run(["--db", db, "-e", "load a; show"])
+check("a saved solution loads in a new process", r.returncode == 0 and "NaCl" in r.stdout)
+os.environ["IONMIX_DB"] = db
+r = subprocess.run([binary, "-e", "list"], capture_output=True, text=True,
+                   env=dict(os.environ, LC_ALL="C", HOME=tmp))
+check("IONMIX_DB names the database", r.returncode == 0 and "  a" in r.stdout)
+print("ref: check_invocation: %d passed, %d failed" % (passed, failed))
+sys.exit(1 if failed else 0)
