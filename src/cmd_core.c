@@ -445,7 +445,8 @@ int cmd_show(im_ctx *ctx, int argc, char **argv, char *err)
 		   st.osmolarity_mOsm_L);
 	if (st.chem)
 		show_chemistry(ctx, s, &st);
-	out_printf(ctx->out, "  net charge           %+10.2f mEq/L%s\n", st.net_charge_mEq_L,
+	out_printf(ctx->out, "  net charge           %+10.2f mEq/L%s\n",
+		   fabs(st.net_charge_mEq_L) < 5e-3 ? 0.0 : st.net_charge_mEq_L, /* no -0.00 */
 		   unbalanced(&st) ? "" : "   (electroneutral)");
 	if (unbalanced(&st)) {
 		char ions[128];
