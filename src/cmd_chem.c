@@ -429,11 +429,12 @@ int cmd_osmo(im_ctx *ctx, int argc, char **argv, char *err)
 		/* polish against the full forward computation (the added
 		 * compound may react, and shifts the ionic strength): secant */
 		{
+			/* a compound already in the solution keeps its amount; the
+			 * secant is on what is added to it */
+			double base = sol_find(s, c) ? sol_find(s, c)->mM : 0;
 			double a0 = 0, f0 = before - target, a1 = add, f1;
 			for (int it = 0; it < 20; it++) {
-				sol_set(s, c, a1 + (sol_find(s, c) ? 0 : 0));
-				sol_remove(s, c);
-				sol_add(s, c, a1);
+				sol_set(s, c, base + a1);
 				if (osmolality(ctx, s, &after, err))
 					return -1;
 				f1 = after - target;
