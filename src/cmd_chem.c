@@ -478,24 +478,6 @@ int cmd_osmo(im_ctx *ctx, int argc, char **argv, char *err)
 	return 0;
 }
 
-/* The compilation names in the tables, into names (up to max). */
-static int compilations(im_ctx *ctx, char names[][32], int max)
-{
-	sqlite3_stmt *st;
-	int n = 0;
-	if (sqlite3_prepare_v2(refdb_sqlite(ctx->ref),
-			       "SELECT compilation FROM eq_pka UNION SELECT compilation FROM "
-			       "eq_complexes UNION SELECT compilation FROM osm_pitzer ORDER BY 1",
-			       -1, &st, NULL) != SQLITE_OK) {
-		sqlite3_finalize(st);
-		return 0;
-	}
-	while (n < max && sqlite3_step(st) == SQLITE_ROW)
-		snprintf(names[n++], 32, "%s", (const char *)sqlite3_column_text(st, 0));
-	sqlite3_finalize(st);
-	return n;
-}
-
 #define MAX_CONST 160
 
 int cmd_constants(im_ctx *ctx, int argc, char **argv, char *err)
@@ -505,7 +487,7 @@ int cmd_constants(im_ctx *ctx, int argc, char **argv, char *err)
 	spec_const *rows;
 	if (need_chem(ctx, err))
 		return -1;
-	nc = compilations(ctx, comp, 32);
+	nc = spec_compilations(ctx->chem, ctx->osm, comp, 32);
 	if (argc == 1) {
 		if (ctx->out->json) {
 			jw w;
@@ -525,18 +507,15 @@ int cmd_constants(im_ctx *ctx, int argc, char **argv, char *err)
 		return 0;
 	}
 	if (strcmp(argv[1], "default") == 0) {
-		spec_use_compilation(ctx->chem, "default", err);
-		osm_use_compilation(ctx->osm, "default", err);
+		if (spec_pick_compilation(ctx->chem, ctx->osm, "default", err))
+			return -1;
 		out_printf(ctx->out, "constants: every default in use again\n");
 		return 0;
 	}
 	for (int i = 0; i < nc; i++)
 		if (strcmp(comp[i], argv[1]) == 0) {
-			char e1[IM_ERRLEN], e2[IM_ERRLEN];
-			int a = spec_use_compilation(ctx->chem, argv[1], e1) == 0;
-			int b = osm_use_compilation(ctx->osm, argv[1], e2) == 0;
-			if (!a && !b)
-				return im_fail(err, "%s", e1);
+			if (spec_pick_compilation(ctx->chem, ctx->osm, argv[1], err))
+				return -1;
 			picked = 1;
 		}
 	rows = im_xcalloc(MAX_CONST, sizeof *rows);

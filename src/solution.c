@@ -156,7 +156,6 @@ void sol_spec_cond(const solution *s, const sol_env *env, spec_cond *cond)
 {
 	memset(cond, 0, sizeof *cond);
 	cond->t_C = env->t_C;
-	cond->osm = env->osm;
 	cond->mode = SPEC_PH_CLOSED;
 	cond->pH = NAN;
 	if (s->co2_frac > 0) {
@@ -201,9 +200,18 @@ static int speciate(const solution *s, const sol_env *env, sol_state *st, char *
 	st->chem = r;
 	st->pH = r->pH;
 	if (env->osm) {
-		st->osmolality_mOsm_kg = r->osmolality_mOsm_kg;
-		st->osmotic_coeff = r->osmotic_coeff;
-		st->osm_fallback_frac = r->osm_fallback_frac;
+		/* osmolality of the free species (osmotic.c) */
+		osm_species *os = im_xmalloc((size_t)(r->n ? r->n : 1) * sizeof *os);
+		osm_result orr;
+		for (int i = 0; i < r->n; i++)
+			os[i] = (osm_species){r->sp[i].symbol, r->sp[i].z, r->sp[i].mM};
+		int rc = osm_molar(env->osm, os, r->n, env->t_C, &orr, err);
+		free(os);
+		if (rc)
+			return -1;
+		st->osmolality_mOsm_kg = orr.osmolality_mOsm_kg;
+		st->osmotic_coeff = orr.phi;
+		st->osm_fallback_frac = orr.fallback_frac;
 	}
 	return 0;
 }

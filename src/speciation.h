@@ -79,6 +79,16 @@ void spec_data_free(spec_data *d);
  * their defaults.  "default" drops every pick.  -1 when unknown. */
 int spec_use_compilation(spec_data *d, const char *name, char *err);
 
+/* The one compilation pick for the speciation and the Pitzer data at
+ * once (either may be NULL): both use `name` where they have it, or
+ * neither changes.  "default" drops every pick.  -1 with err when no
+ * table has the name or the pick is inconsistent. */
+int spec_pick_compilation(spec_data *d, osm_data *o, const char *name, char *err);
+
+/* The distinct compilation names of both data sets, sorted, into names
+ * (up to max, 32 bytes each); returns how many. */
+int spec_compilations(const spec_data *d, const osm_data *o, char (*names)[32], int max);
+
 /* One stored constant, for listing (`constants NAME`). */
 typedef struct spec_const {
 	char what[SPEC_SYMLEN]; /* species formed: 'HEPES', 'CaEGTA^2-' */
@@ -120,7 +130,6 @@ typedef struct spec_cond {
 	spec_ph_mode mode;
 	double pH;           /* SPEC_PH_FIXED, and the target of spec_titrate */
 	double pco2_atm;     /* SPEC_PH_CO2: partial pressure of CO2, atm */
-	const osm_data *osm; /* optional: when set, osmolality is computed too */
 	int fallback_only;   /* 1: skip Newton, use the fallback solver alone
 			      * (slow; for testing it); 0 normally */
 } spec_cond;
@@ -176,9 +185,6 @@ typedef struct spec_result {
 	double ionic_strength_mM;
 	double net_charge_mEq_L; /* sum z c over the result's species */
 	double co2_mM; /* CO2 mode: dissolved CO2; else what the solution holds */
-	/* osmolality, when cond.osm was given (else 0) */
-	double osmolality_mOsm_kg, osmotic_coeff, osmolarity_mOsm_L;
-	double osm_fallback_frac; /* see osm_result.fallback_frac */
 	int newton_iterations;
 	int used_fallback;       /* 1: the bracketed fallback solver was needed */
 	double max_rel_residual; /* worst balance closure reached */

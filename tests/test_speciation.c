@@ -190,6 +190,38 @@ static void test_hepes_good1966(void **state)
 	assert_int_equal(spec_use_compilation(D, "no-such-compilation", err), -1);
 }
 
+/* The one pick mechanism: every compilation of both tables picked in turn,
+ * more than eight times (a ninth pick used to fail), then a pick already
+ * made moves to the end and wins; `default` restores the defaults. */
+static void test_many_picks(void **state)
+{
+	(void)state;
+	char err[IM_ERRLEN], names[32][32];
+	int n = spec_compilations(D, O, names, 32);
+	assert_true(n >= 9);
+	for (int k = 0; k < 2; k++)
+		for (int i = 0; i < n; i++)
+			assert_int_equal(spec_pick_compilation(D, O, names[i], err), 0);
+	spec_in in[] = {{"HEPES", 0, 10}};
+	spec_cond c = {.t_C = 25, .mode = SPEC_PH_FIXED, .pH = 7.3};
+	spec_result r;
+	double x;
+	/* good-1966 picked last wins for HEPES: the amount of test_hepes_good1966 */
+	assert_int_equal(spec_pick_compilation(D, O, "good-1966", err), 0);
+	assert_int_equal(spec_titrate(D, in, 1, &c, KOH, 2, &x, &r, err), 0);
+	assert_close(x, 4.1467, 1e-3, 0);
+	/* goldberg-2002 picked again moves to the end and wins */
+	assert_int_equal(spec_pick_compilation(D, O, "goldberg-2002", err), 0);
+	double x2;
+	assert_int_equal(spec_titrate(D, in, 1, &c, KOH, 2, &x2, &r, err), 0);
+	assert_true(fabs(x2 - x) > 0.01);
+	assert_int_equal(spec_pick_compilation(D, O, "no-such", err), -1);
+	assert_int_equal(spec_pick_compilation(D, O, "default", err), 0);
+	double x3;
+	assert_int_equal(spec_titrate(D, in, 1, &c, KOH, 2, &x3, &r, err), 0);
+	assert_close(x3, x2, 1e-12, 0);
+}
+
 /* pH of 10 mM HEPES free acid as dissolved (closed system), 25 C: by hand
  * a(H+) = sqrt(Ka C) to 0.2 %, pH = (7.564 + 2)/2 = 4.782 (Goldberg et al.
  * 2002, from memory). */
@@ -677,11 +709,17 @@ static void test_result_with_osmolality(void **state)
 	(void)state;
 	char err[IM_ERRLEN];
 	spec_in in[] = {{"Na+", 1, 154}, {"Cl-", -1, 154}};
-	spec_cond c = {.t_C = 25, .mode = SPEC_PH_CLOSED, .osm = O};
+	spec_cond c = {.t_C = 25, .mode = SPEC_PH_CLOSED};
 	spec_result r;
 	assert_int_equal(spec_solve(D, in, 2, &c, &r, err), 0);
+	/* the osmolality of the result is osmotic.c's (as sol_compute does) */
+	osm_species os[SPEC_MAX_OUT];
+	osm_result orr;
+	for (int i = 0; i < r.n; i++)
+		os[i] = (osm_species){r.sp[i].symbol, r.sp[i].z, r.sp[i].mM};
+	assert_int_equal(osm_molar(O, os, r.n, 25, &orr, err), 0);
 	/* common practice: 0.9 % saline measures about 286 mOsm/kg */
-	assert_close(r.osmolality_mOsm_kg, 286, 0.02, 0);
+	assert_close(orr.osmolality_mOsm_kg, 286, 0.02, 0);
 	assert_close(r.pH, 7.0, 0, 0.01); /* neutral water at 25 C, pKw 13.995 */
 	assert_close(r.net_charge_mEq_L, 0, 0, 1e-9);
 }
@@ -716,6 +754,7 @@ int main(void)
 		cmocka_unit_test(test_tables),
 		cmocka_unit_test(test_hepes_koh),
 		cmocka_unit_test(test_hepes_good1966),
+		cmocka_unit_test(test_many_picks),
 		cmocka_unit_test(test_hepes_as_dissolved),
 		cmocka_unit_test(test_hepes_nmdg),
 		cmocka_unit_test(test_titration_failures),
