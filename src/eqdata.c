@@ -244,8 +244,8 @@ static int load_pka(sqlite3 *db, spec_data *d, char *err)
 	int rc, cap = 0;
 	if (prep(db,
 		 "SELECT ligand, n_h, compilation, is_default, pka, t_ref_C, i_ref_M, "
-		 "dh_kJ_mol, dpka_dt_per_K, fit_a_K, fit_b, fit_c_per_K, source FROM "
-		 "eq_pka ORDER BY ligand, compilation, n_h",
+		 "dh_kJ_mol, dpka_dt_per_K, fit_a_K, fit_b, fit_c_per_K, source, "
+		 "dcp_J_mol_K, dh_analogue FROM eq_pka ORDER BY ligand, compilation, n_h",
 		 &st, err))
 		return -1;
 	while ((rc = sqlite3_step(st)) == SQLITE_ROW) {
@@ -273,6 +273,11 @@ static int load_pka(sqlite3 *db, spec_data *d, char *err)
 		p->fb = col_real(st, 10);
 		p->fc = col_real(st, 11);
 		snprintf(p->source, EQD_SRCLEN, "%s", col_text(st, 12));
+		p->dcp = col_real(st, 13);
+		snprintf(p->analogue, EQD_SYMLEN, "%s", col_text(st, 14));
+		p->tsrc = isfinite(p->dh) || isfinite(p->dpdt) || isfinite(p->fa)
+				  ? EQD_T_ENTERED
+				  : p->analogue[0] ? EQD_T_ANALOGUE : EQD_T_NONE;
 		d->npka++;
 	}
 	if (done(db, st, rc, err))
@@ -328,8 +333,8 @@ static int load_metals_complexes(sqlite3 *db, spec_data *d, char *err)
 		return -1;
 	if (prep(db,
 		 "SELECT symbol, metal, ligand, kind, compilation, is_default, log_k, "
-		 "t_ref_C, i_ref_M, dh_kJ_mol, source FROM eq_complexes ORDER BY metal, "
-		 "ligand, compilation, kind",
+		 "t_ref_C, i_ref_M, dh_kJ_mol, source, dcp_J_mol_K, dh_analogue FROM "
+		 "eq_complexes ORDER BY metal, ligand, compilation, kind",
 		 &st, err))
 		return -1;
 	while ((rc = sqlite3_step(st)) == SQLITE_ROW) {
@@ -361,6 +366,10 @@ static int load_metals_complexes(sqlite3 *db, spec_data *d, char *err)
 		c->i_ref = sqlite3_column_double(st, 8);
 		c->dh = col_real(st, 9);
 		snprintf(c->source, EQD_SRCLEN, "%s", col_text(st, 10));
+		c->dcp = col_real(st, 11);
+		snprintf(c->analogue, EQD_SYMLEN, "%s", col_text(st, 12));
+		c->tsrc = isfinite(c->dh) ? EQD_T_ENTERED
+					  : c->analogue[0] ? EQD_T_ANALOGUE : EQD_T_NONE;
 		c->nm = c->kind == CX_M2L ? 2 : 1;
 		c->nl = c->kind == CX_ML2 ? 2 : 1;
 		c->nh = c->kind == CX_MHL ? 1 : 0;
@@ -441,6 +450,91 @@ static int load_fits(sqlite3 *db, spec_data *d, char *err)
 	return 0;
 }
 
+#define ANALOGUE_DEPTH 8 /* longest chain of analogues followed */
+
+/* The row of the step forming species sym with an enthalpy of its own (the
+ * default compilation's first), following analogue chains; -1 if none. */
+static int pka_analogue(const spec_data *d, const char *sym, int depth)
+{
+	int best = -1;
+	for (int r = 0; r < d->npka; r++) {
+		const pka_row *p = &d->pka[r];
+		if (strcmp(d->lig[p->lig].state[p->n_h], sym) != 0)
+			continue;
+		int t = r;
+		if (p->tsrc == EQD_T_ANALOGUE)
+			t = depth < ANALOGUE_DEPTH ? pka_analogue(d, p->analogue, depth + 1)
+						   : -1;
+		else if (!isfinite(p->dh))
+			t = -1;
+		if (t >= 0 && (best < 0 || p->is_default))
+			best = t;
+	}
+	return best;
+}
+
+static int cx_analogue(const spec_data *d, const char *sym, int depth)
+{
+	int best = -1;
+	for (int r = 0; r < d->ncx; r++) {
+		const cx_row *c = &d->cx[r];
+		if (strcmp(c->sym, sym) != 0)
+			continue;
+		int t = r;
+		if (c->tsrc == EQD_T_ANALOGUE)
+			t = depth < ANALOGUE_DEPTH ? cx_analogue(d, c->analogue, depth + 1) : -1;
+		else if (!isfinite(c->dh))
+			t = -1;
+		if (t >= 0 && (best < 0 || c->is_default))
+			best = t;
+	}
+	return best;
+}
+
+/* Take the enthalpies of the rows that name an analogue, and refuse a
+ * metal-binding ligand's constant without any temperature dependence. */
+static int resolve_enthalpies(spec_data *d, char *err)
+{
+	for (int r = 0; r < d->npka; r++) {
+		pka_row *p = &d->pka[r];
+		const lig_def *L = &d->lig[p->lig];
+		if (p->tsrc == EQD_T_ANALOGUE) {
+			int t = pka_analogue(d, p->analogue, 0);
+			if (t < 0)
+				return im_fail(err,
+					       "equilibrium data: %s (%s): the analogue '%s' "
+					       "is no step with an enthalpy",
+					       L->state[p->n_h], p->comp, p->analogue);
+			p->dh = d->pka[t].dh;
+			p->dcp = d->pka[t].dcp;
+		} else if (p->tsrc == EQD_T_NONE && L->binds) {
+			return im_fail(err,
+				       "equilibrium data: %s = %s + H+ (%s) has no enthalpy "
+				       "and no analogue: its temperature dependence is unknown",
+				       L->state[p->n_h], L->state[p->n_h - 1], p->comp);
+		}
+	}
+	for (int r = 0; r < d->ncx; r++) {
+		cx_row *c = &d->cx[r];
+		if (c->tsrc == EQD_T_ANALOGUE) {
+			int t = cx_analogue(d, c->analogue, 0);
+			if (t < 0)
+				return im_fail(err,
+					       "equilibrium data: %s (%s): the analogue '%s' "
+					       "is no complex with an enthalpy",
+					       c->sym, c->comp, c->analogue);
+			c->dh = d->cx[t].dh;
+			c->dcp = d->cx[t].dcp;
+		} else if (c->tsrc == EQD_T_NONE) {
+			return im_fail(err,
+				       "equilibrium data: %s (%s) has no enthalpy and no "
+				       "analogue: its temperature dependence is unknown",
+				       c->sym, c->comp);
+		}
+	}
+	return 0;
+}
+
 int eqd_load_spec(sqlite3 *db, spec_data **out, char *err)
 {
 	*out = NULL;
@@ -449,7 +543,7 @@ int eqd_load_spec(sqlite3 *db, spec_data **out, char *err)
 	spec_data *d = im_xcalloc(1, sizeof *d);
 	if (load_ligands(db, d, err) || load_pka(db, d, err) ||
 	    load_metals_complexes(db, d, err) || load_fits(db, d, err) ||
-	    eqd_select_spec(d, err)) {
+	    resolve_enthalpies(d, err) || eqd_select_spec(d, err)) {
 		eqd_free_spec(d);
 		return -1;
 	}

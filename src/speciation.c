@@ -63,6 +63,17 @@ int spec_constants(const spec_data *d, const char *name, spec_const *out, int ma
 /* ------------------------------------------------------------------ */
 /* constants at temperature (I = 0)                                     */
 
+/* ln K(T) - ln K(Tr) of a reaction with enthalpy dh_kJ_mol and heat
+ * capacity dcp_J_mol_K (NAN: none) by van 't Hoff:
+ *   -dH/R (1/T - 1/Tr) + dCp/R (ln(T/Tr) + Tr/T - 1) */
+static double lnk_shift(double dh_kJ_mol, double dcp_J_mol_K, double T, double Tr)
+{
+	double s = -dh_kJ_mol * 1000.0 / IM_GAS_J_MOL_K * (1.0 / T - 1.0 / Tr);
+	if (isfinite(dcp_J_mol_K))
+		s += dcp_J_mol_K / IM_GAS_J_MOL_K * (log(T / Tr) + Tr / T - 1.0);
+	return s;
+}
+
 /* thermodynamic pKa of a step at T, from its row */
 static double pka_at(const spec_data *d, const pka_row *p, double t_C, int *no_t)
 {
@@ -74,8 +85,7 @@ static double pka_at(const spec_data *d, const pka_row *p, double t_C, int *no_t
 	double D = za * za + 1 - zp * zp;
 	double pk0 = p->pka + act_dh_A(p->t_ref) * davies_F(p->i_ref) * D;
 	if (isfinite(p->dh))
-		return pk0 +
-		       p->dh * 1000.0 / (IM_GAS_J_MOL_K * LN10) * (1.0 / T - 1.0 / Tr);
+		return pk0 - lnk_shift(p->dh, p->dcp, T, Tr) / LN10;
 	if (isfinite(p->dpdt))
 		return pk0 + p->dpdt * (t_C - p->t_ref);
 	if (no_t && fabs(t_C - p->t_ref) > 0.5)
@@ -113,7 +123,7 @@ static double cx_logk0(const spec_data *d, const cx_row *c, double t_C, int *no_
 	double lk = c->logk + act_dh_A(c->t_ref) * davies_F(c->i_ref) * D;
 	double T = t_C + IM_ZERO_C_K, Tr = c->t_ref + IM_ZERO_C_K;
 	if (isfinite(c->dh))
-		lk -= c->dh * 1000.0 / (IM_GAS_J_MOL_K * LN10) * (1.0 / T - 1.0 / Tr);
+		lk += lnk_shift(c->dh, c->dcp, T, Tr) / LN10;
 	else if (no_t && fabs(t_C - c->t_ref) > 0.5)
 		*no_t = 1;
 	return lk;

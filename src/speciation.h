@@ -213,9 +213,9 @@ int spec_titrate(const spec_data *d, const spec_in *in, int n, const spec_cond *
  * CaCl2 = {Ca2+ 1, Cl- 2}) to add so that the free concentration of
  * `metal` ('Ca2+') is target_free_mM.  r holds the forward speciation with
  * that amount added.  Fails when the target is negative, below what the
- * solution already gives without the source, above what 1 mol/L of the
- * source gives, or when a metal-binding ligand in the solution has no
- * constant for that metal. */
+ * solution already gives without the source, or above what 1 mol/L of the
+ * source gives.  A metal-binding ligand without a constant for that metal
+ * is taken as not binding it (r->warnings says so). */
 int spec_free_target(const spec_data *d, const spec_in *in, int n, const spec_cond *cond,
 		     const char *metal, const spec_in *src, int ns, double target_free_mM,
 		     double *amount_mM, spec_result *r, char *err);

@@ -184,23 +184,8 @@ int spec_free_target(const spec_data *d, const spec_in *in, int n, const spec_co
 		rc = im_fail(err, "the source yields no %s", d->met[m].sym);
 		goto out;
 	}
-	for (int b = 0; b < w->nb; b++) {
-		if (w->btype[b] != B_LIGAND || !d->lig[w->bref[b]].binds ||
-		    !(w->T[DEST_BASE][b] + w->T[DEST_SRC][b] > 0))
-			continue;
-		int any = 0;
-		for (int c = 0; c < d->ncx; c++)
-			any |= d->cx[c].active && d->cx[c].metal == m &&
-			       d->cx[c].lig == w->bref[b];
-		if (!any) {
-			rc = im_fail(err,
-				     "%s binds metals but has no stability constant with "
-				     "%s: free %s cannot be set",
-				     d->lig[w->bref[b]].name, d->met[m].sym,
-				     d->met[m].sym);
-			goto out;
-		}
-	}
+	/* a metal-binding ligand without a constant for this metal is taken
+	 * as not binding it; the result's warnings say so */
 	if (target_free_mM == 0) {
 		if (w->T[DEST_BASE][bm] > 0) {
 			rc = im_fail(err,
