@@ -473,6 +473,45 @@ INSERT INTO eq_fits (name, fit_a_K, fit_b, fit_c_per_K, t_min_C, t_max_C, source
 ('co2-pk0',    -2385.73, 14.0184, -0.0152642,  0, 50, 'eq-harned-davis-1943');
 
 -- ---------------------------------------------------------------------
+-- The CO2/HCO3- system with the physiological constants.  In place of the
+-- thermodynamic CO2(aq) step of Harned & Davis (kept above, and its CO2
+-- solubility in eq_fits, for the record), the speciation uses the apparent
+-- (mixed) constant of plasma and bicarbonate salines,
+--   pK' = pH - log10([HCO3-]/[CO2]) =
+--         pk0 + pk_ph (ph_ref - pH) + (t_ref - t)(pk_t + pk_tph (ph_ref - pH)),
+-- with the pH terms evaluated within ph_min..ph_max (the range of the
+-- data; the pH is clamped into it), taken from the reference ionic
+-- strength i_ref_M to the solution's with the Davies coefficient of HCO3-;
+-- and the solubility S = s0 + s1 (t_ref_sol - t) + s2 (t_ref_sol - t)^2 in
+-- mmol/L per mmHg.  One row.
+CREATE TABLE eq_co2_apparent (
+    name            TEXT PRIMARY KEY,
+    pk0             REAL NOT NULL CHECK (pk0 BETWEEN 5.5 AND 7),
+    pk_ph           REAL NOT NULL,
+    pk_t_per_K      REAL NOT NULL,
+    pk_tph_per_K    REAL NOT NULL,
+    t_ref_C         REAL NOT NULL,
+    ph_ref          REAL NOT NULL,
+    ph_min          REAL NOT NULL,
+    ph_max          REAL NOT NULL,
+    i_ref_M         REAL NOT NULL CHECK (i_ref_M BETWEEN 0 AND 1),
+    pk_source       TEXT NOT NULL REFERENCES sources(id),
+    i_source        TEXT NOT NULL REFERENCES sources(id),
+    s0_mM_mmHg      REAL NOT NULL CHECK (s0_mM_mmHg > 0),
+    s1_per_K        REAL NOT NULL,
+    s2_per_K2       REAL NOT NULL,
+    t_ref_sol_C     REAL NOT NULL,
+    sol_source      TEXT NOT NULL REFERENCES sources(id),
+    t_min_C         REAL NOT NULL,
+    t_max_C         REAL NOT NULL
+);
+
+INSERT INTO eq_co2_apparent VALUES
+('physiological', 6.086, 0.042, 0.00472, 0.00139, 38, 7.4, 6.8, 7.8, 0.16,
+    'eq-severinghaus-1966', 'eq-plasma-ionic-strength',
+    0.0307, 0.00057, 0.00002, 37, 'eq-co2-solubility-plasma', 0, 50);
+
+-- ---------------------------------------------------------------------
 -- Pitzer single-salt parameters at 25 C, for the osmotic coefficient.
 --   B_phi = beta0 + beta1 exp(-alpha1 sqrt I) + beta2 exp(-alpha2 sqrt I)
 --   (alpha1 = 2, beta2 = 0 for salts with a univalent ion; alpha1 = 1.4,
@@ -493,6 +532,13 @@ CREATE TABLE osm_pitzer (
     c_phi           REAL NOT NULL,
     m_max_mol_kg    REAL NOT NULL CHECK (m_max_mol_kg > 0),
     source          TEXT NOT NULL REFERENCES sources(id),
+    -- 'published': a fit to the salt's own data; 'estimated': taken from
+    -- the analogue salt named in `analogue` (the osmolality range carries
+    -- +-50 % of such a salt's own term, see src/osmotic.h)
+    class           TEXT NOT NULL DEFAULT 'published'
+                        CHECK (class IN ('published', 'estimated')),
+    analogue        TEXT,
+    CHECK ((class = 'estimated') = (analogue IS NOT NULL)),
     PRIMARY KEY (cation, anion, compilation)
 );
 
@@ -526,12 +572,63 @@ INSERT INTO osm_pitzer (cation, anion, salt, compilation, is_default, beta0, bet
 ('K+',  'SO4^2-', 'K2SO4',  'pitzer-mayorga', 1, 0.04995, 0.7793, 0, 2, 12,  0,       0.7, 'eq-pitzer-mayorga-1973'),
 ('Li+', 'SO4^2-', 'Li2SO4', 'pitzer-mayorga', 1, 0.1363,  1.2705, 0, 2, 12, -0.00399, 3.0, 'eq-pitzer-mayorga-1973'),
 ('Mg2+', 'SO4^2-', 'MgSO4', 'pitzer-mayorga', 1, 0.2210, 3.343, -37.23, 1.4, 12, 0.025, 3.0, 'eq-pitzer-mayorga-1974');
+
+-- Organic salts of pipette solutions and baths.  No single-salt fits were
+-- recalled for them, so each takes the parameters of its closest analogue
+-- (class 'estimated', source eq-est-osm-analogue): the hydroxy- and amino-
+-- carboxylates (gluconate, aspartate, glutamate) those of the acetate of
+-- the same cation (Pitzer & Mayorga 1973, eq-pitzer-mayorga-acetate); the
+-- sulfonates (methanesulfonate, HEPES-) and the large organic cations
+-- (NMDG+, choline+, TEA+, Tris+) those of the chloride of the nearest alkali
+-- ion.  m_max is the analogue's.
+INSERT INTO osm_pitzer (cation, anion, salt, compilation, is_default, beta0, beta1,
+                        beta2, alpha1, alpha2, c_phi, m_max_mol_kg, source, class,
+                        analogue) VALUES
+('K+',  'gluconate-', 'K-gluconate',  'analogue-estimate', 1, 0.1587, 0.3251, 0, 2, 12, -0.00660, 3.5, 'eq-est-osm-analogue', 'estimated', 'KOAc'),
+('Na+', 'gluconate-', 'Na-gluconate', 'analogue-estimate', 1, 0.1426, 0.3237, 0, 2, 12, -0.00629, 3.5, 'eq-est-osm-analogue', 'estimated', 'NaOAc'),
+('K+',  'aspartate-', 'K-aspartate',  'analogue-estimate', 1, 0.1587, 0.3251, 0, 2, 12, -0.00660, 3.5, 'eq-est-osm-analogue', 'estimated', 'KOAc'),
+('K+',  'glutamate-', 'K-glutamate',  'analogue-estimate', 1, 0.1587, 0.3251, 0, 2, 12, -0.00660, 3.5, 'eq-est-osm-analogue', 'estimated', 'KOAc'),
+('Na+', 'glutamate-', 'Na-glutamate', 'analogue-estimate', 1, 0.1426, 0.3237, 0, 2, 12, -0.00629, 3.5, 'eq-est-osm-analogue', 'estimated', 'NaOAc'),
+('K+',  'methanesulfonate-', 'K-methanesulfonate',  'analogue-estimate', 1, 0.04835, 0.2122, 0, 2, 12, -0.00084, 4.8, 'eq-est-osm-analogue', 'estimated', 'KCl'),
+('Cs+', 'methanesulfonate-', 'Cs-methanesulfonate', 'analogue-estimate', 1, 0.0300,  0.0558, 0, 2, 12,  0.00038, 5.0, 'eq-est-osm-analogue', 'estimated', 'CsCl'),
+('Na+', 'methanesulfonate-', 'Na-methanesulfonate', 'analogue-estimate', 1, 0.0765,  0.2664, 0, 2, 12,  0.00127, 6.0, 'eq-est-osm-analogue', 'estimated', 'NaCl'),
+('K+',  'HEPES-', 'K-HEPES',  'analogue-estimate', 1, 0.04835, 0.2122, 0, 2, 12, -0.00084, 4.8, 'eq-est-osm-analogue', 'estimated', 'KCl'),
+('Na+', 'HEPES-', 'Na-HEPES', 'analogue-estimate', 1, 0.0765,  0.2664, 0, 2, 12,  0.00127, 6.0, 'eq-est-osm-analogue', 'estimated', 'NaCl'),
+('Cs+', 'HEPES-', 'Cs-HEPES', 'analogue-estimate', 1, 0.0300,  0.0558, 0, 2, 12,  0.00038, 5.0, 'eq-est-osm-analogue', 'estimated', 'CsCl'),
+('NMDG+',    'Cl-', 'NMDG-Cl',     'analogue-estimate', 1, 0.0765, 0.2664, 0, 2, 12, 0.00127, 6.0, 'eq-est-osm-analogue', 'estimated', 'NaCl'),
+('choline+', 'Cl-', 'choline-Cl',  'analogue-estimate', 1, 0.0765, 0.2664, 0, 2, 12, 0.00127, 6.0, 'eq-est-osm-analogue', 'estimated', 'NaCl'),
+('TEA+',     'Cl-', 'TEA-Cl',      'analogue-estimate', 1, 0.0765, 0.2664, 0, 2, 12, 0.00127, 6.0, 'eq-est-osm-analogue', 'estimated', 'NaCl'),
+('Tris+',    'Cl-', 'Tris-HCl',    'analogue-estimate', 1, 0.0765, 0.2664, 0, 2, 12, 0.00127, 6.0, 'eq-est-osm-analogue', 'estimated', 'NaCl');
 -- Not entered: the parameters of Kim & Frederick (1988) J Chem Eng Data
 -- 33:177-184 (a later evaluation of the same salts; its values were not
 -- recalled reliably); NaHCO3 of Peiper & Pitzer (1982) is represented by
--- the HMW (1984) row; salts of organic anions (gluconate, methanesulfonate,
--- the buffers) and of the complexes, which fall back to the Debye-Hueckel
--- term alone (see src/osmotic.h).
+-- the HMW (1984) row.  Pairs without a row (the complexes, the nucleotides,
+-- phosphocreatine) count by the Debye-Hueckel term alone, and the
+-- osmolality range allows for what a salt's own term would add (see
+-- src/osmotic.h).
+
+-- ---------------------------------------------------------------------
+-- Neutral solutes: their own non-ideality at 25 C.  A solute of molality
+-- m (mol/kg) adds lambda m^2 + mu m^3 to (phi - 1) times the sum of
+-- molalities (so alone, phi = 1 + lambda m + mu m^2); solute-ion and
+-- solute-solute cross terms are not modelled.  Solutes without a row count
+-- as ideal.
+CREATE TABLE osm_neutral (
+    symbol          TEXT PRIMARY KEY,
+    lambda_kg_mol   REAL NOT NULL,
+    mu_kg2_mol2     REAL NOT NULL,
+    m_max_mol_kg    REAL NOT NULL CHECK (m_max_mol_kg > 0),
+    class           TEXT NOT NULL CHECK (class IN ('published', 'estimated')),
+    source          TEXT NOT NULL REFERENCES sources(id),
+    note            TEXT
+);
+
+INSERT INTO osm_neutral (symbol, lambda_kg_mol, mu_kg2_mol2, m_max_mol_kg, class, source, note) VALUES
+('sucrose',  0.068, 0.020, 1.0, 'published', 'eq-robinson-stokes-1959',
+    'through phi = 1.039 at 0.5 and 1.088 at 1.0 mol/kg'),
+('glucose',  0.015, 0,     1.0, 'published', 'eq-robinson-stokes-1959',
+    'through phi = 1.015 at 1.0 mol/kg'),
+('mannitol', 0.015, 0,     1.0, 'estimated', 'eq-est-mannitol', 'as glucose');
 
 -- ---------------------------------------------------------------------
 -- Partial molar volumes at infinite dilution, 25 C, cm3/mol, for the

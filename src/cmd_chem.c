@@ -217,14 +217,20 @@ int cmd_gas(im_ctx *ctx, int argc, char **argv, char *err)
 		jw_num(&w, "co2_percent", pct, 6);
 		jw_num(&w, "pco2_atm", spec_pco2_atm(s->co2_frac, p, ctx->temp_C, !dry), 6);
 		jw_num(&w, "pH", st.pH, 6);
+		jw_num(&w, "co2_mM", st.chem ? st.chem->co2_mM : NAN, 6);
+		jw_num(&w, "pK_app", spec_co2_pk_app(ctx->chem, ctx->temp_C, st.pH,
+						     st.ionic_strength_mM), 6);
 		jw_end(&w);
 	} else {
 		out_printf(ctx->out, "%s: equilibrated with %g %% CO2 (%s, %g atm; pCO2 %.4f atm at "
 				     "%.1f C): pH %.2f\n", s->name, pct,
 			   dry ? "dry gas" : "humidified", p,
 			   spec_pco2_atm(s->co2_frac, p, ctx->temp_C, !dry), ctx->temp_C, st.pH);
-		out_printf(ctx->out, "  (Henderson-Hasselbalch with the CO2 solubility of Harned "
-				     "& Davis 1943; confirm with a calibrated pH meter)\n");
+		out_printf(ctx->out, "  (CO2 %.3f mM; apparent pK' %.3f at this temperature and ionic "
+				     "strength, Severinghaus 1966, CO2 solubility of Kelman 1967; "
+				     "confirm with a calibrated pH meter)\n",
+			   st.chem ? st.chem->co2_mM : NAN,
+			   spec_co2_pk_app(ctx->chem, ctx->temp_C, st.pH, st.ionic_strength_mM));
 		if (isfinite(s->ph_target))
 			out_printf(ctx->out, "  note: the titrant added by `ph` stays in; with the gas "
 					     "the pH no longer follows it\n");
@@ -374,11 +380,39 @@ static int osmolality(im_ctx *ctx, const solution *s, double *v, char *err)
 	return 0;
 }
 
+/* The range the osmotic data allow for s, mOsm/kg. */
+static int osmolality_range(im_ctx *ctx, const solution *s, double *lo, double *hi,
+			    char *err)
+{
+	sol_state st;
+	if (forward(ctx, s, &st, err))
+		return -1;
+	*lo = st.osmolality_lo_mOsm_kg;
+	*hi = st.osmolality_hi_mOsm_kg;
+	sol_state_free(&st);
+	return 0;
+}
+
+struct osmo_eval {
+	im_ctx *ctx;
+	solution *s;
+	const rd_compound *c;
+	double base_mM;
+};
+
+/* osm_target_solve's evaluation: the compound at base + add_mM, forward */
+static int osmo_eval_at(void *v, double add_mM, double *osm, char *err)
+{
+	struct osmo_eval *e = v;
+	sol_set(e->s, e->c, e->base_mM + add_mM);
+	return osmolality(e->ctx, e->s, osm, err);
+}
+
 int cmd_osmo(im_ctx *ctx, int argc, char **argv, char *err)
 {
 	solution *s;
 	const rd_compound *c = NULL;
-	double target, before, after, add = 0;
+	double target, before, after, add = 0, lo = NAN, hi = NAN;
 	int dilute = 0;
 	double water = 0;
 	char b[48];
@@ -427,26 +461,18 @@ int cmd_osmo(im_ctx *ctx, int argc, char **argv, char *err)
 		sol_state_free(&st);
 		add = r.add_mM;
 		/* polish against the full forward computation (the added
-		 * compound may react, and shifts the ionic strength): secant */
-		{
-			/* a compound already in the solution keeps its amount; the
-			 * secant is on what is added to it */
-			double base = sol_find(s, c) ? sol_find(s, c)->mM : 0;
-			double a0 = 0, f0 = before - target, a1 = add, f1;
-			for (int it = 0; it < 20; it++) {
-				sol_set(s, c, base + a1);
-				if (osmolality(ctx, s, &after, err))
-					return -1;
-				f1 = after - target;
-				if (fabs(f1) < 1e-6 || f1 == f0)
-					break;
-				double a2 = a1 - f1 * (a1 - a0) / (f1 - f0);
-				a0 = a1;
-				f0 = f1;
-				a1 = a2 > 0 ? a2 : a1 / 2;
-			}
-			add = a1;
-		}
+		 * compound may react, and shifts the ionic strength); a compound
+		 * already in the solution keeps its amount, the solve is on what
+		 * is added to it */
+		struct osmo_eval e = {ctx, s, c, sol_find(s, c) ? sol_find(s, c)->mM : 0};
+		if (osm_target_solve(osmo_eval_at, &e, target, before, add, &add, &after, err))
+			return -1;
+	}
+	if (osmolality_range(ctx, s, &lo, &hi, err))
+		return -1;
+	if (dilute) { /* the range of the diluted solution */
+		lo *= target / before;
+		hi *= target / before;
 	}
 	if (ctx->out->json) {
 		jw w;
@@ -461,6 +487,10 @@ int cmd_osmo(im_ctx *ctx, int argc, char **argv, char *err)
 			jw_num(&w, "added_mM", add, 8);
 		}
 		jw_num(&w, "after_mOsm_kg", after, 8);
+		jw_arr(&w, "osmolality_range_mOsm_kg");
+		jw_num(&w, NULL, lo, 6);
+		jw_num(&w, NULL, hi, 6);
+		jw_close(&w);
 		jw_end(&w);
 		return 0;
 	}
@@ -473,6 +503,9 @@ int cmd_osmo(im_ctx *ctx, int argc, char **argv, char *err)
 		out_printf(ctx->out, "%s: added %s %s: %.0f -> %.1f mOsm/kg (Pitzer estimate)\n",
 			   s->name, b, c->name, before, after);
 	}
+	if (lround(lo) != lround(hi))
+		out_printf(ctx->out, "  aimed at the central estimate; the osmotic data allow %.0f to "
+				     "%.0f mOsm/kg\n", lo, hi);
 	out_printf(ctx->out, "  hint: a pipette solution is usually made a little (about 5 to 15 "
 			     "mOsm/kg) below the bath (common practice); check with an osmometer\n");
 	return 0;

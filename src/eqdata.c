@@ -447,6 +447,38 @@ static int load_fits(sqlite3 *db, spec_data *d, char *err)
 	if (have != 3)
 		return im_fail(err, "speciation: eq_fits lacks %s",
 			       (have & 1) ? "co2-pk0" : "pKw");
+	if (prep(db,
+		 "SELECT pk0, pk_ph, pk_t_per_K, pk_tph_per_K, t_ref_C, ph_ref, ph_min, "
+		 "ph_max, i_ref_M, pk_source, s0_mM_mmHg, s1_per_K, s2_per_K2, t_ref_sol_C, "
+		 "sol_source, t_min_C, t_max_C FROM eq_co2_apparent",
+		 &st, err))
+		return -1;
+	have = 0;
+	while ((rc = sqlite3_step(st)) == SQLITE_ROW) {
+		co2_app *a = &d->co2;
+		a->pk0 = sqlite3_column_double(st, 0);
+		a->pk_ph = sqlite3_column_double(st, 1);
+		a->pk_t = sqlite3_column_double(st, 2);
+		a->pk_tph = sqlite3_column_double(st, 3);
+		a->t_ref = sqlite3_column_double(st, 4);
+		a->ph_ref = sqlite3_column_double(st, 5);
+		a->ph_min = sqlite3_column_double(st, 6);
+		a->ph_max = sqlite3_column_double(st, 7);
+		a->i_ref = sqlite3_column_double(st, 8);
+		snprintf(a->source, EQD_SRCLEN, "%s", col_text(st, 9));
+		a->s0 = sqlite3_column_double(st, 10);
+		a->s1 = sqlite3_column_double(st, 11);
+		a->s2 = sqlite3_column_double(st, 12);
+		a->t_ref_sol = sqlite3_column_double(st, 13);
+		snprintf(a->sol_source, EQD_SRCLEN, "%s", col_text(st, 14));
+		a->tmin = sqlite3_column_double(st, 15);
+		a->tmax = sqlite3_column_double(st, 16);
+		have++;
+	}
+	if (done(db, st, rc, err))
+		return -1;
+	if (have != 1)
+		return im_fail(err, "speciation: eq_co2_apparent needs exactly one row");
 	return 0;
 }
 
@@ -647,7 +679,7 @@ int eqd_load_osm(sqlite3 *db, osm_data **out, char *err)
 	sqlite3_stmt *st = NULL;
 	const char *q1 =
 		"SELECT cation, anion, salt, compilation, is_default, beta0, beta1, "
-		"beta2, alpha1, alpha2, c_phi, m_max_mol_kg FROM osm_pitzer ORDER BY "
+		"beta2, alpha1, alpha2, c_phi, m_max_mol_kg, class FROM osm_pitzer ORDER BY "
 		"cation, anion, compilation";
 	if (sqlite3_prepare_v2(db, q1, -1, &st, NULL) != SQLITE_OK) {
 		im_fail(err, "osmotic: cannot read osm_pitzer: %s", sqlite3_errmsg(db));
@@ -673,12 +705,40 @@ int eqd_load_osm(sqlite3 *db, osm_data **out, char *err)
 		p->a2 = sqlite3_column_double(st, 9);
 		p->cphi = sqlite3_column_double(st, 10);
 		p->m_max = sqlite3_column_double(st, 11);
+		p->cls = strcmp(col_text(st, 12), "estimated") == 0 ? EQD_OSM_ESTIMATED
+								   : EQD_OSM_PUBLISHED;
 		d->npz++;
 	}
 	sqlite3_finalize(st);
 	st = NULL;
 	if (rc != SQLITE_DONE) {
 		im_fail(err, "osmotic: reading osm_pitzer: %s", sqlite3_errmsg(db));
+		goto fail;
+	}
+	const char *q3 = "SELECT symbol, lambda_kg_mol, mu_kg2_mol2, m_max_mol_kg, class "
+			 "FROM osm_neutral ORDER BY symbol";
+	int ncap = 0;
+	if (sqlite3_prepare_v2(db, q3, -1, &st, NULL) != SQLITE_OK) {
+		im_fail(err, "osmotic: cannot read osm_neutral: %s", sqlite3_errmsg(db));
+		goto fail;
+	}
+	while ((rc = sqlite3_step(st)) == SQLITE_ROW) {
+		if (d->nnz == ncap) {
+			ncap = ncap ? 2 * ncap : 8;
+			d->nz = im_xrealloc(d->nz, (size_t)ncap * sizeof *d->nz);
+		}
+		nz_row *z = &d->nz[d->nnz++];
+		z->sym = sym_add(d, col_text(st, 0), &cap);
+		z->lambda = sqlite3_column_double(st, 1);
+		z->mu = sqlite3_column_double(st, 2);
+		z->m_max = sqlite3_column_double(st, 3);
+		z->cls = strcmp(col_text(st, 4), "estimated") == 0 ? EQD_OSM_ESTIMATED
+								  : EQD_OSM_PUBLISHED;
+	}
+	sqlite3_finalize(st);
+	st = NULL;
+	if (rc != SQLITE_DONE) {
+		im_fail(err, "osmotic: reading osm_neutral: %s", sqlite3_errmsg(db));
 		goto fail;
 	}
 	const char *q2 = "SELECT symbol, v0_cm3_mol FROM osm_molar_volumes";

@@ -106,15 +106,15 @@ typedef struct fit3 {
 
 /* The apparent constants of the CO2/HCO3- system in physiological saline:
  *   pK'(t, pH) = pk0 + pk_ph (pH_ref - pH) + (t_ref - t)(pk_t + pk_tph (pH_ref - pH))
- *   S(t) = s0 + s1 (t_ref - t) + s2 (t_ref - t)^2   (mM per mmHg)
+ *   S(t) = s0 + s1 (t_ref_sol - t) + s2 (t_ref_sol - t)^2   (mM per mmHg)
+ * (pH clamped into ph_min..ph_max)
  * valid for t_min..t_max; pK' is the mixed constant pH - log([HCO3-]/[CO2])
  * at the ionic strength i_ref_M. */
 typedef struct co2_app {
-	double pk0, pk_ph, pk_t, pk_tph, t_ref, ph_ref, i_ref;
-	double s0, s1, s2;
+	double pk0, pk_ph, pk_t, pk_tph, t_ref, ph_ref, ph_min, ph_max, i_ref;
+	double s0, s1, s2, t_ref_sol; /* S in mM per mmHg */
 	double tmin, tmax;
 	char source[EQD_SRCLEN], sol_source[EQD_SRCLEN];
-	int have;
 } co2_app;
 
 struct spec_data {

@@ -20,6 +20,9 @@
 #define ADJUST_TOL     1e-11  /* relative tolerance on the osmolality */
 #define ADJUST_MAXIT   300
 #define MIN_WATER_FRAC 0.05 /* 1 - sum c V below this: out of the model */
+#define EST_FRAC       0.5  /* an estimated term is uncertain by +-50 % */
+#define GENERIC_B0     0.05 /* a typical 1-1 salt's beta0, beta1 (between */
+#define GENERIC_B1     0.25 /* KCl and NaCl, Pitzer & Mayorga 1973): the range */
 
 /* The tables are read and picked in eqdata.c. */
 int osm_load(sqlite3 *db, osm_data **out, char *err)
@@ -88,6 +91,8 @@ int osm_molal(const osm_data *d, const osm_species *sp, int n, double t_C, osm_r
 		Z += m * abs(sp[i].z);
 	}
 	double sqI = sqrt(I), s = 0, prod_all = 0, prod_fb = 0;
+	double half_est = 0, up_none = 0; /* range, mol/kg (osmolality) */
+	double m_est = 0;                 /* particles with estimated terms */
 	for (int c = 0; c < n; c++) {
 		if (sp[c].z <= 0 || sp[c].conc <= 0)
 			continue;
@@ -102,6 +107,7 @@ int osm_molal(const osm_data *d, const osm_species *sp, int n, double t_C, osm_r
 			if (row < 0) {
 				prod_fb += mm;
 				r->n_fallback_pairs++;
+				up_none += 2.0 * mm * (GENERIC_B0 + GENERIC_B1 * exp(-2.0 * sqI));
 				continue;
 			}
 			const pz_row *p = &d->pz[row];
@@ -109,6 +115,8 @@ int osm_molal(const osm_data *d, const osm_species *sp, int n, double t_C, osm_r
 				   p->b2 * exp(-p->a2 * sqI);
 			double C = p->cphi / (2.0 * sqrt((double)abs(p->zc * p->za)));
 			s += mm * (B + Z * C);
+			if (p->cls == EQD_OSM_ESTIMATED)
+				half_est += EST_FRAC * fabs(2.0 * mm * (B + Z * C));
 			int g = p->zc == -p->za ? p->zc : 1; /* 1-1, 2-2: one of each */
 			double nc = -p->za / g, na = p->zc / g;
 			double Imax = 0.5 * p->m_max *
@@ -117,10 +125,49 @@ int osm_molal(const osm_data *d, const osm_species *sp, int n, double t_C, osm_r
 				r->over_range = 1;
 		}
 	}
+	/* neutral solutes' own terms; the shares of particles without
+	 * published data (estimated salts, pairs without rows) */
+	double neu = 0;
+	for (int i = 0; i < n; i++) {
+		double m = sp[i].conc / 1000.0;
+		if (sp[i].z == 0 && sp[i].symbol && m > 0) {
+			int k = eqd_osm_sym(d, sp[i].symbol);
+			for (int j = 0; k >= 0 && j < d->nnz; j++)
+				if (d->nz[j].sym == k) {
+					double t = d->nz[j].lambda * m * m + d->nz[j].mu * m * m * m;
+					neu += t;
+					if (d->nz[j].cls == EQD_OSM_ESTIMATED) {
+						half_est += EST_FRAC * fabs(t);
+						m_est += m;
+					}
+					if (m > d->nz[j].m_max)
+						r->over_range = 1;
+				}
+			continue;
+		}
+		if (sp[i].z == 0 || m <= 0)
+			continue;
+		/* an ion counts as estimated when a pair it forms with a
+		 * counter-ion present is estimated or missing */
+		int est = 0;
+		for (int j = 0; j < n && !est; j++) {
+			if (sp[j].z == 0 || (sp[j].z > 0) == (sp[i].z > 0) || !(sp[j].conc > 0))
+				continue;
+			int c = sp[i].z > 0 ? i : j, a = sp[i].z > 0 ? j : i;
+			int row = idx[c] >= 0 && idx[a] >= 0 ? d->pair[idx[c] * d->nsym + idx[a]]
+							     : -1;
+			est = row < 0 || d->pz[row].cls == EQD_OSM_ESTIMATED;
+		}
+		if (est)
+			m_est += m;
+	}
 	if (idx != idx_buf)
 		free(idx);
 	double f = -osm_a_phi(t_C) * I * sqI / (1.0 + PITZER_B * sqI);
-	r->phi = msum > 0 ? 1.0 + 2.0 / msum * (f + s) : 1.0;
+	r->phi = msum > 0 ? 1.0 + (2.0 * (f + s) + neu) / msum : 1.0;
+	r->osmolality_lo_mOsm_kg = (r->phi * msum - half_est) * 1000.0;
+	r->osmolality_hi_mOsm_kg = (r->phi * msum + half_est + up_none) * 1000.0;
+	r->estimated_frac = msum > 0 ? m_est / msum : 0.0;
 	r->molality_sum_mmol_kg = msum * 1000.0;
 	r->osmolality_mOsm_kg = r->phi * msum * 1000.0;
 	r->ionic_strength_mmol_kg = I * 1000.0;
@@ -334,4 +381,30 @@ int osm_adjust(const osm_data *d, const osm_species *sp, int n, double t_C,
 	}
 	free(a.tmp);
 	return rc;
+}
+
+int osm_target_solve(osm_eval_fn eval, void *ctx, double target_mOsm_kg,
+		     double f0_mOsm_kg, double guess_mM, double *add_mM,
+		     double *after_mOsm_kg, char *err)
+{
+	double a0 = 0, f0 = f0_mOsm_kg - target_mOsm_kg, a1 = guess_mM, f1, after = NAN;
+	if (!isfinite(target_mOsm_kg) || !isfinite(guess_mM) || guess_mM < 0)
+		return im_fail(err, "osmolality target solve: bad start");
+	for (int it = 0; it < 20; it++) {
+		if (eval(ctx, a1, &after, err))
+			return -1;
+		f1 = after - target_mOsm_kg;
+		if (fabs(f1) < 1e-6 || f1 == f0)
+			break;
+		double a2 = a1 - f1 * (a1 - a0) / (f1 - f0);
+		a0 = a1;
+		f0 = f1;
+		a1 = a2 > 0 ? a2 : a1 / 2;
+	}
+	/* the caller's state holds the last point evaluated: make it a1 */
+	if (a1 != a0 && !(fabs(after - target_mOsm_kg) < 1e-6) && eval(ctx, a1, &after, err))
+		return -1;
+	*add_mM = a1;
+	*after_mOsm_kg = after;
+	return 0;
 }

@@ -212,6 +212,9 @@ static int speciate(const solution *s, const sol_env *env, sol_state *st, char *
 		st->osmolality_mOsm_kg = orr.osmolality_mOsm_kg;
 		st->osmotic_coeff = orr.phi;
 		st->osm_fallback_frac = orr.fallback_frac;
+		st->osmolality_lo_mOsm_kg = orr.osmolality_lo_mOsm_kg;
+		st->osmolality_hi_mOsm_kg = orr.osmolality_hi_mOsm_kg;
+		st->osm_estimated_frac = orr.estimated_frac;
 	}
 	return 0;
 }
@@ -221,6 +224,7 @@ int sol_compute(const solution *s, const sol_env *env, sol_state *st, char *err)
 	double t_C = env->t_C;
 	memset(st, 0, sizeof *st);
 	st->pH = st->osmolality_mOsm_kg = st->osmotic_coeff = NAN;
+	st->osmolality_lo_mOsm_kg = st->osmolality_hi_mOsm_kg = NAN;
 	if (!isfinite(t_C) || t_C < 0 || t_C > 100)
 		return im_fail(err, "temperature %g C is outside 0 to 100 C", t_C);
 	st->t_C = t_C;

@@ -59,6 +59,8 @@ typedef struct work {
 	double t_C, A;
 	int mode;
 	double pH, co2_M;
+	int carb_s;     /* species index of CO2(aq) of the carbonate system, or -1 */
+	double carb_pH; /* pH the apparent pK' of CO2/HCO3- was evaluated at */
 	/* basis */
 	int nb, hb, co2b;
 	int btype[NB_MAX], bref[NB_MAX], bz[NB_MAX];

@@ -23,6 +23,8 @@
 #include "eqdata.h"
 #include "spec_work.h"
 
+#define MMHG_PER_ATM 760.0
+
 /* ------------------------------------------------------------------ */
 /* loading and picks (the tables themselves are eqdata.c's)             */
 
@@ -148,9 +150,27 @@ static double pkw_at(const spec_data *d, double t_C)
 
 double spec_co2_mM_per_atm(const spec_data *d, double t_C)
 {
-	double T = t_C + IM_ZERO_C_K;
-	double pk0 = d->k0.a / T + d->k0.b + d->k0.c * T; /* -log10 K0 */
-	return pow(10.0, -pk0) * act_water_density_g_cm3(t_C) * 1000.0;
+	const co2_app *a = &d->co2;
+	double dt = a->t_ref_sol - t_C;
+	return (a->s0 + a->s1 * dt + a->s2 * dt * dt) * MMHG_PER_ATM;
+}
+
+double spec_co2_pk_app(const spec_data *d, double t_C, double pH, double I_mM)
+{
+	const co2_app *a = &d->co2;
+	double p = pH < a->ph_min ? a->ph_min : pH > a->ph_max ? a->ph_max : pH;
+	double dp = a->ph_ref - p, dt = a->t_ref - t_C;
+	double pk = a->pk0 + a->pk_ph * dp + dt * (a->pk_t + a->pk_tph * dp);
+	double A = act_dh_A(t_C);
+	return pk + A * (davies_F(a->i_ref) - davies_F(I_mM / 1000.0));
+}
+
+/* thermodynamic pK of CO2(aq) = HCO3- + H+ that gives the apparent pK' of
+ * the physiological relation at pH: pK' + A F(I_ref) (Davies, z = 1) */
+static double carb_pk1_thermo(const spec_data *d, double t_C, double pH)
+{
+	return spec_co2_pk_app(d, t_C, pH, d->co2.i_ref * 1000.0) +
+	       act_dh_A(t_C) * davies_F(d->co2.i_ref);
 }
 
 double spec_water_vapour_kPa(double t_C)
@@ -220,6 +240,8 @@ static void work_init(work *w, const spec_data *d, double t_C)
 	w->bref[0] = -1;
 	w->co2b = -1;
 	w->fixed_metal = -1;
+	w->carb_s = -1;
+	w->carb_pH = 7.4;
 }
 
 /* Map one input species into the problem (dest: base, titrant, source). */
@@ -371,6 +393,12 @@ static int build_species(work *w, char *err)
 			if (add_species(w, SPEC_K_LIGAND, h, -1, 0, b, 1, h, L->zb + h,
 					lig_logbeta0(d, k, h, t, &no_t), err))
 				return -1;
+		if (L->carbonate && L->nsteps >= 2) {
+			/* CO2(aq): the physiological apparent constant (spec_co2_pk_app) */
+			w->carb_s = first + 2;
+			w->lb0[first + 2] = (lig_logbeta0(d, k, 1, t, &no_t) +
+					     carb_pk1_thermo(d, t, w->carb_pH)) * LN10;
+		}
 		if (b == w->co2b) {
 			int s2 = first + 2; /* H2L = CO2(aq) */
 			for (int s = first; s < w->ns; s++) {
@@ -811,6 +839,22 @@ int specw_run(work *w, int what, char *err)
 					       "metal source amount runs past %g mol/L",
 					       MAX_SOURCE_M);
 		}
+		if (w->carb_s >= 0) {
+			/* the apparent pK' of CO2/HCO3- depends on the pH it gives */
+			const co2_app *a = &w->d->co2;
+			double ph = w->mode == SPEC_PH_FIXED
+					    ? w->pH
+					    : -w->u[w->hb] / LN10 + w->A * davies_F(w->I);
+			ph = ph < a->ph_min ? a->ph_min : ph > a->ph_max ? a->ph_max : ph;
+			if (fabs(ph - w->carb_pH) > 1e-11) {
+				int k = w->bref[w->sl[w->carb_s]];
+				w->carb_pH = ph;
+				w->lb0[w->carb_s] = (lig_logbeta0(w->d, k, 1, w->t_C, NULL) +
+						     carb_pk1_thermo(w->d, w->t_C, ph)) *
+						    LN10;
+				x_done = 0;
+			}
+		}
 		double In = ionic_strength(w);
 		int i_done = fabs(In - I) <= 1e-15 + I_RTOL * I;
 		if (i_done && x_done)
@@ -1023,8 +1067,8 @@ int specw_check_cond(const spec_data *d, const spec_cond *c, int n, char *err)
 				       "at most 10",
 				       c->pco2_atm);
 		if (c->t_C < d->k0.tmin || c->t_C > d->k0.tmax)
-			return im_fail(err, "CO2 solubility known for %g-%g C only",
-				       d->k0.tmin, d->k0.tmax);
+			return im_fail(err, "CO2 constants known for %g-%g C only",
+				       d->co2.tmin, d->co2.tmax);
 	} else if (c->mode != SPEC_PH_CLOSED) {
 		return im_fail(err, "speciation: unknown pH mode");
 	}

@@ -237,8 +237,16 @@ double spec_water_vapour_kPa(double t_C);
  * (bubbled gas: pCO2 = frac (P - p_H2O)) or dry when 0 (pCO2 = frac P). */
 double spec_pco2_atm(double frac, double p_total_atm, double t_C, int humid);
 
-/* Solubility of CO2 in water (Harned & Davis 1943 fit in equilibria.sql),
- * mM per atm (mol/kg taken as mol/L times the density of water). */
+/* Solubility of CO2 in physiological saline, mM per atm: the plasma
+ * relation of table eq_co2_apparent (Kelman 1967 after Severinghaus;
+ * 0.0307 mM/mmHg at 37 C) times 760 mmHg/atm. */
 double spec_co2_mM_per_atm(const spec_data *d, double t_C);
+
+/* The apparent pK' = pH - log10([HCO3-]/[CO2]) of the CO2/HCO3- system at
+ * t_C, pH (clamped into the range of the data, 6.8-7.8) and ionic strength
+ * I_mM: the physiological relation of table eq_co2_apparent (Severinghaus
+ * 1966) at its reference ionic strength (0.16 M), moved to I_mM with the
+ * Davies coefficient of HCO3-.  6.09 at 37 C, pH 7.4, 160 mM. */
+double spec_co2_pk_app(const spec_data *d, double t_C, double pH, double I_mM);
 
 #endif
