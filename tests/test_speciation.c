@@ -414,7 +414,8 @@ static double total_of(const spec_in *in, int n, const char *owner, int want_h)
 
 /* A random mixture (seeded generator): each candidate present with
  * probability 0.35, log-uniform over four decades below its maximum; half
- * at a fixed pH 5.5-8.5, half closed with 0-40 mM KOH; 10-40 C. */
+ * at a fixed pH 5.5-8.5, half closed with 0-40 mM KOH; 4-40 C (the
+ * recording temperatures of issue 10, every constant moved by van 't Hoff). */
 static int random_mixture(spec_in *in, spec_cond *c, double *oh)
 {
 	int n = 0;
@@ -424,7 +425,7 @@ static int random_mixture(spec_in *in, spec_cond *c, double *oh)
 		double mM = CANDS[k].max_mM * pow(10.0, -4.0 * urand());
 		in[n++] = (spec_in){CANDS[k].sym, CANDS[k].z, mM};
 	}
-	*c = (spec_cond){.t_C = 10 + 30 * urand()};
+	*c = (spec_cond){.t_C = 4 + 36 * urand()};
 	*oh = 0;
 	if (urand() < 0.5) {
 		c->mode = SPEC_PH_FIXED;
