@@ -27,11 +27,21 @@
  * Model:
  *  - Concentration constants (mol/L) of data/equilibria.sql are taken to
  *    I = 0 with the Davies equation at their reference temperature,
- *    to the working temperature (van 't Hoff with the reaction enthalpy,
- *    linear d(pKa)/dT, or the stored fit; none where nothing is entered,
- *    with a warning), then to the working ionic strength with Davies
- *    (A from activity.h).  The ionic strength is that of the speciated
- *    solution, iterated to self-consistency.
+ *    to the working temperature (van 't Hoff with the reaction enthalpy
+ *    and, where entered, heat capacity; an estimated enthalpy taken from a
+ *    named analogue reaction; linear d(pKa)/dT; or the stored fit - every
+ *    metal-binding ligand has one of these, the loader refuses the tables
+ *    otherwise; a buffer without any is used unchanged, with a warning),
+ *    then to the working ionic strength with Davies (A from activity.h).
+ *    The ionic strength is that of the speciated solution, iterated to
+ *    self-consistency.
+ *  - CO2/HCO3-: the physiological apparent pK' (Severinghaus 1966) by
+ *    temperature and pH, moved from the plasma ionic strength with the
+ *    Davies coefficient of HCO3- (spec_co2_pk_app), and the CO2 solubility
+ *    of plasma (spec_co2_mM_per_atm); the pH it depends on is iterated
+ *    with the ionic strength.
+ *  - A metal-binding ligand without a constant for a metal present is
+ *    taken as not binding it, with a warning (never a refusal).
  *  - pH is what an electrode reads: -log10 a(H+), a(H+) = gamma_H [H+]
  *    with the Davies gamma.
  *  - Equilibria: free concentrations are the unknowns, solved as ln c by
@@ -42,6 +52,10 @@
  *    proton balances close to SPEC_TOL relative.
  *  - Not modelled: metal hydrolysis (MOH+), metal complexes of phosphate,
  *    carbonate and the Good buffers, ion pairs of the strong ions.
+ *
+ * Layout: the tables are read and picked in eqdata.c, the solver is
+ * speciation.c, titration and the free-metal inverse are titrate.c; the
+ * osmolality of a result is osmotic.c's (sol_compute calls it).
  *
  * Ownership: spec_data is owned by the caller of spec_load (free with
  * spec_data_free); results are plain structs with fixed arrays (nothing to
