@@ -572,6 +572,14 @@ int cmd_constants(im_ctx *ctx, int argc, char **argv, char *err)
 			jw_num(&w, "value", rows[i].value, 6);
 			jw_num(&w, "t_ref_C", rows[i].t_ref_C, 6);
 			jw_num(&w, "i_ref_M", rows[i].i_ref_M, 6);
+			jw_num(&w, "dH_kJ_mol", rows[i].dh_kJ_mol, 6);
+			jw_str(&w, "dH_analogue", rows[i].dh_analogue[0] ? rows[i].dh_analogue : NULL);
+			{
+				const rd_source *ds = rows[i].dh_source[0]
+							      ? refdb_source(ctx->ref, rows[i].dh_source)
+							      : NULL;
+				jw_str(&w, "dH_source", ds ? ds->citation : NULL);
+			}
 			jw_str(&w, "compilation", rows[i].compilation);
 			jw_bool(&w, "in_use", rows[i].in_use);
 			jw_str(&w, "source", src ? src->citation : rows[i].source);
@@ -584,18 +592,28 @@ int cmd_constants(im_ctx *ctx, int argc, char **argv, char *err)
 	if (picked)
 		out_printf(ctx->out, "constants: using %s where it has a value (the others keep "
 				     "their defaults)\n", argv[1]);
-	out_printf(ctx->out, "  %-14s %-30s %8s %6s %6s %-16s %s\n", "species", "reaction",
-		   "value", "t C", "I M", "compilation", "in use");
-	for (int i = 0; i < n; i++)
-		out_printf(ctx->out, "  %-14s %-30s %5s %5.2f %6.1f %6.3f %-16s %s\n",
-			   rows[i].what, rows[i].reaction, rows[i].is_pka ? "pKa" : "logK",
-			   rows[i].value, rows[i].t_ref_C, rows[i].i_ref_M, rows[i].compilation,
-			   rows[i].in_use ? "*" : "");
+	out_printf(ctx->out, "  %-14s %-30s %8s %6s %6s %-18s %-16s %s\n", "species", "reaction",
+		   "value", "t C", "I M", "dH kJ/mol", "compilation", "in use");
 	for (int i = 0; i < n; i++) {
-		const rd_source *src = refdb_source(ctx->ref, rows[i].source);
+		char dh[40] = "-";
+		if (isfinite(rows[i].dh_kJ_mol))
+			snprintf(dh, sizeof dh, "%+.1f%s%s", rows[i].dh_kJ_mol,
+				 rows[i].dh_analogue[0] ? " as " : "", rows[i].dh_analogue);
+		else if (isfinite(rows[i].dpka_dt_per_K))
+			snprintf(dh, sizeof dh, "dpKa/dT %+.4f", rows[i].dpka_dt_per_K);
+		out_printf(ctx->out, "  %-14s %-30s %5s %5.2f %6.1f %6.3f %-18s %-16s %s\n",
+			   rows[i].what, rows[i].reaction, rows[i].is_pka ? "pKa" : "logK",
+			   rows[i].value, rows[i].t_ref_C, rows[i].i_ref_M, dh,
+			   rows[i].compilation, rows[i].in_use ? "*" : "");
+	}
+	out_printf(ctx->out, "  (dH 'as X': estimated, taken from the analogous reaction X)\n");
+	/* every source once: the constants', then the enthalpies' */
+	for (int i = 0; i < 2 * n; i++) {
+		const char *key = i < n ? rows[i].source : rows[i - n].dh_source;
+		const rd_source *src = *key ? refdb_source(ctx->ref, key) : NULL;
 		int dup = 0;
 		for (int j = 0; j < i; j++)
-			dup |= strcmp(rows[j].source, rows[i].source) == 0;
+			dup |= strcmp(j < n ? rows[j].source : rows[j - n].dh_source, key) == 0;
 		if (!dup && src)
 			out_printf(ctx->out, "  [%s] %s%s\n", src->id, src->citation,
 				   src->from_memory ? " [from memory]" : "");

@@ -245,7 +245,8 @@ static int load_pka(sqlite3 *db, spec_data *d, char *err)
 	if (prep(db,
 		 "SELECT ligand, n_h, compilation, is_default, pka, t_ref_C, i_ref_M, "
 		 "dh_kJ_mol, dpka_dt_per_K, fit_a_K, fit_b, fit_c_per_K, source, "
-		 "dcp_J_mol_K, dh_analogue FROM eq_pka ORDER BY ligand, compilation, n_h",
+		 "dcp_J_mol_K, dh_analogue, dh_source FROM eq_pka ORDER BY ligand, "
+		 "compilation, n_h",
 		 &st, err))
 		return -1;
 	while ((rc = sqlite3_step(st)) == SQLITE_ROW) {
@@ -275,6 +276,7 @@ static int load_pka(sqlite3 *db, spec_data *d, char *err)
 		snprintf(p->source, EQD_SRCLEN, "%s", col_text(st, 12));
 		p->dcp = col_real(st, 13);
 		snprintf(p->analogue, EQD_SYMLEN, "%s", col_text(st, 14));
+		snprintf(p->dh_source, EQD_SRCLEN, "%s", col_text(st, 15));
 		p->tsrc = isfinite(p->dh) || isfinite(p->dpdt) || isfinite(p->fa)
 				  ? EQD_T_ENTERED
 				  : p->analogue[0] ? EQD_T_ANALOGUE : EQD_T_NONE;
@@ -333,7 +335,7 @@ static int load_metals_complexes(sqlite3 *db, spec_data *d, char *err)
 		return -1;
 	if (prep(db,
 		 "SELECT symbol, metal, ligand, kind, compilation, is_default, log_k, "
-		 "t_ref_C, i_ref_M, dh_kJ_mol, source, dcp_J_mol_K, dh_analogue FROM "
+		 "t_ref_C, i_ref_M, dh_kJ_mol, source, dcp_J_mol_K, dh_analogue, dh_source FROM "
 		 "eq_complexes ORDER BY metal, ligand, compilation, kind",
 		 &st, err))
 		return -1;
@@ -368,6 +370,7 @@ static int load_metals_complexes(sqlite3 *db, spec_data *d, char *err)
 		snprintf(c->source, EQD_SRCLEN, "%s", col_text(st, 10));
 		c->dcp = col_real(st, 11);
 		snprintf(c->analogue, EQD_SYMLEN, "%s", col_text(st, 12));
+		snprintf(c->dh_source, EQD_SRCLEN, "%s", col_text(st, 13));
 		c->tsrc = isfinite(c->dh) ? EQD_T_ENTERED
 					  : c->analogue[0] ? EQD_T_ANALOGUE : EQD_T_NONE;
 		c->nm = c->kind == CX_M2L ? 2 : 1;
@@ -935,6 +938,9 @@ int eqd_constants(const spec_data *d, const char *name, spec_const *out, int max
 		o->t_ref_C = p->t_ref;
 		o->i_ref_M = p->i_ref;
 		o->dh_kJ_mol = p->dh;
+		if (p->tsrc == EQD_T_ANALOGUE)
+			snprintf(o->dh_analogue, SPEC_SYMLEN, "%s", p->analogue);
+		snprintf(o->dh_source, sizeof o->dh_source, "%s", p->dh_source);
 		o->dpka_dt_per_K = p->dpdt;
 		o->has_fit = isfinite(p->fa);
 		snprintf(o->compilation, sizeof o->compilation, "%s", p->comp);
@@ -972,6 +978,9 @@ int eqd_constants(const spec_data *d, const char *name, spec_const *out, int max
 		o->t_ref_C = c->t_ref;
 		o->i_ref_M = c->i_ref;
 		o->dh_kJ_mol = c->dh;
+		if (c->tsrc == EQD_T_ANALOGUE)
+			snprintf(o->dh_analogue, SPEC_SYMLEN, "%s", c->analogue);
+		snprintf(o->dh_source, sizeof o->dh_source, "%s", c->dh_source);
 		o->dpka_dt_per_K = NAN;
 		snprintf(o->compilation, sizeof o->compilation, "%s", c->comp);
 		snprintf(o->source, sizeof o->source, "%s", c->source);

@@ -66,6 +66,7 @@ typedef struct pka_row {
 	eqd_tsrc tsrc;
 	char analogue[EQD_SYMLEN]; /* species formed by the analogue step */
 	char source[EQD_SRCLEN];
+	char dh_source[EQD_SRCLEN]; /* source of the enthalpy; "" when source */
 } pka_row;
 
 typedef struct lig_def {
@@ -89,6 +90,7 @@ typedef struct cx_row {
 	eqd_tsrc tsrc;
 	char analogue[EQD_SYMLEN]; /* complex the enthalpy is taken from */
 	char source[EQD_SRCLEN];
+	char dh_source[EQD_SRCLEN]; /* source of the enthalpy; "" when source */
 	int nm, nl, nh, z;
 	int ml_row; /* M2L, ML2: the ML row of the same compilation */
 	int active;

@@ -111,6 +111,9 @@ typedef struct spec_const {
 	double value;           /* pKa or log K at t_ref_C, i_ref_M */
 	double t_ref_C, i_ref_M;
 	double dh_kJ_mol;     /* reaction enthalpy; NAN when none entered */
+	char dh_analogue[SPEC_SYMLEN]; /* non-empty: dh_kJ_mol is an estimate
+					* taken from this analogous reaction */
+	char dh_source[40];            /* key into sources of the enthalpy; "" */
 	double dpka_dt_per_K; /* NAN when none */
 	int has_fit;          /* 1: temperature from a stored fit */
 	char compilation[32];
