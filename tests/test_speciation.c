@@ -650,6 +650,60 @@ static void test_inverse_forward(void **state)
 	check_inverse(buf, 6, &cc, "Ca2+", CACL2, 2, 2e-4);
 }
 
+/* Van 't Hoff with a heat capacity, on a made-up acid (a fixture in a
+ * private copy of the database, not data): pKa 7.000 at 25 C, I = 0, dH
+ * +20 kJ/mol, dCp -150 J/(mol K).  By hand at 37 C (T = 310.15 K, Tr =
+ * 298.15 K): ln Ka(T) - ln Ka(Tr) = -dH/R (1/T - 1/Tr) + dCp/R (ln(T/Tr) +
+ * Tr/T - 1), and with the electrode's pH and Davies for the base (z = -1),
+ * log([A-]/[HA]) = pH - pKa(T) + A F(I). */
+static void test_heat_capacity_fixture(void **state)
+{
+	(void)state;
+	char err[IM_ERRLEN], *msg = NULL;
+	sqlite3 *db2;
+	assert_int_equal(sqlite3_open(":memory:", &db2), SQLITE_OK);
+	sqlite3_backup *bk = sqlite3_backup_init(db2, "main", db, "main");
+	assert_non_null(bk);
+	sqlite3_backup_step(bk, -1);
+	sqlite3_backup_finish(bk);
+	const char *fixture =
+		"INSERT INTO sources (id, citation) VALUES ('test-fixture', 'made up for "
+		"test_speciation.c');"
+		"INSERT INTO eq_ligands VALUES ('TESTL', -1, 0, 'fixture');"
+		"INSERT INTO eq_ligand_states VALUES ('TESTL-', 'TESTL', 0, -1), "
+		"('HTESTL', 'TESTL', 1, 0);"
+		"INSERT INTO eq_pka (ligand, n_h, compilation, is_default, pka, t_ref_C, "
+		"i_ref_M, dh_kJ_mol, source, dcp_J_mol_K) VALUES ('TESTL', 1, 'fixture', 1, "
+		"7.0, 25, 0, 20.0, 'test-fixture', -150.0);";
+	if (sqlite3_exec(db2, fixture, NULL, NULL, &msg) != SQLITE_OK)
+		fail_msg("fixture: %s", msg);
+	spec_data *d2;
+	assert_int_equal(spec_load(db2, &d2, err), 0);
+	spec_in in[] = {{"HTESTL", 0, 1}, {"K+", 1, 100}, {"Cl-", -1, 100}};
+	spec_cond c = {.t_C = 37, .mode = SPEC_PH_FIXED, .pH = 7.0};
+	spec_result r;
+	assert_int_equal(spec_solve(d2, in, 3, &c, &r, err), 0);
+	double a = 0, ha = 0;
+	for (int i = 0; i < r.n; i++) {
+		if (strcmp(r.sp[i].symbol, "TESTL-") == 0)
+			a = r.sp[i].mM;
+		if (strcmp(r.sp[i].symbol, "HTESTL") == 0)
+			ha = r.sp[i].mM;
+	}
+	double R = 8.314462618, T = 310.15, Tr = 298.15;
+	double dlnk = -20000.0 / R * (1 / T - 1 / Tr) - 150.0 / R * (log(T / Tr) + Tr / T - 1);
+	double pka = 7.0 - dlnk / log(10.0);
+	double I = r.ionic_strength_mM / 1000.0, sI = sqrt(I);
+	double want = 7.0 - pka + act_dh_A(37) * (sI / (1 + sI) - 0.3 * I);
+	assert_close(log10(a / ha), want, 0, 1e-9);
+	/* the heat-capacity term is there: without it the ratio differs */
+	double no_cp = 7.0 - (7.0 + 20000.0 / (R * log(10.0)) * (1 / T - 1 / Tr)) +
+		       act_dh_A(37) * (sI / (1 + sI) - 0.3 * I);
+	assert_true(fabs(no_cp - want) > 1e-3);
+	spec_data_free(d2);
+	sqlite3_close(db2);
+}
+
 /* Inverse failures: above what 1 M of the source gives, below zero, a
  * chelator without constants for the metal (BAPTA-Zn2+ not entered), and
  * below what the solution already holds. */
@@ -817,6 +871,7 @@ int main(void)
 		cmocka_unit_test(test_mass_balance_random),
 		cmocka_unit_test(test_fallback_agrees),
 		cmocka_unit_test(test_m2l_ml2_fixture),
+		cmocka_unit_test(test_heat_capacity_fixture),
 		cmocka_unit_test(test_inverse_forward),
 		cmocka_unit_test(test_inverse_failures),
 		cmocka_unit_test(test_bicarbonate),
