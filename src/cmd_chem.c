@@ -217,14 +217,20 @@ int cmd_gas(im_ctx *ctx, int argc, char **argv, char *err)
 		jw_num(&w, "co2_percent", pct, 6);
 		jw_num(&w, "pco2_atm", spec_pco2_atm(s->co2_frac, p, ctx->temp_C, !dry), 6);
 		jw_num(&w, "pH", st.pH, 6);
+		jw_num(&w, "co2_mM", st.chem ? st.chem->co2_mM : NAN, 6);
+		jw_num(&w, "pK_app", spec_co2_pk_app(ctx->chem, ctx->temp_C, st.pH,
+						     st.ionic_strength_mM), 6);
 		jw_end(&w);
 	} else {
 		out_printf(ctx->out, "%s: equilibrated with %g %% CO2 (%s, %g atm; pCO2 %.4f atm at "
 				     "%.1f C): pH %.2f\n", s->name, pct,
 			   dry ? "dry gas" : "humidified", p,
 			   spec_pco2_atm(s->co2_frac, p, ctx->temp_C, !dry), ctx->temp_C, st.pH);
-		out_printf(ctx->out, "  (Henderson-Hasselbalch with the CO2 solubility of Harned "
-				     "& Davis 1943; confirm with a calibrated pH meter)\n");
+		out_printf(ctx->out, "  (CO2 %.3f mM; apparent pK' %.3f at this temperature and ionic "
+				     "strength, Severinghaus 1966, CO2 solubility of Kelman 1967; "
+				     "confirm with a calibrated pH meter)\n",
+			   st.chem ? st.chem->co2_mM : NAN,
+			   spec_co2_pk_app(ctx->chem, ctx->temp_C, st.pH, st.ionic_strength_mM));
 		if (isfinite(s->ph_target))
 			out_printf(ctx->out, "  note: the titrant added by `ph` stays in; with the gas "
 					     "the pH no longer follows it\n");
@@ -374,11 +380,39 @@ static int osmolality(im_ctx *ctx, const solution *s, double *v, char *err)
 	return 0;
 }
 
+/* The range the osmotic data allow for s, mOsm/kg. */
+static int osmolality_range(im_ctx *ctx, const solution *s, double *lo, double *hi,
+			    char *err)
+{
+	sol_state st;
+	if (forward(ctx, s, &st, err))
+		return -1;
+	*lo = st.osmolality_lo_mOsm_kg;
+	*hi = st.osmolality_hi_mOsm_kg;
+	sol_state_free(&st);
+	return 0;
+}
+
+struct osmo_eval {
+	im_ctx *ctx;
+	solution *s;
+	const rd_compound *c;
+	double base_mM;
+};
+
+/* osm_target_solve's evaluation: the compound at base + add_mM, forward */
+static int osmo_eval_at(void *v, double add_mM, double *osm, char *err)
+{
+	struct osmo_eval *e = v;
+	sol_set(e->s, e->c, e->base_mM + add_mM);
+	return osmolality(e->ctx, e->s, osm, err);
+}
+
 int cmd_osmo(im_ctx *ctx, int argc, char **argv, char *err)
 {
 	solution *s;
 	const rd_compound *c = NULL;
-	double target, before, after, add = 0;
+	double target, before, after, add = 0, lo = NAN, hi = NAN;
 	int dilute = 0;
 	double water = 0;
 	char b[48];
@@ -427,26 +461,18 @@ int cmd_osmo(im_ctx *ctx, int argc, char **argv, char *err)
 		sol_state_free(&st);
 		add = r.add_mM;
 		/* polish against the full forward computation (the added
-		 * compound may react, and shifts the ionic strength): secant */
-		{
-			/* a compound already in the solution keeps its amount; the
-			 * secant is on what is added to it */
-			double base = sol_find(s, c) ? sol_find(s, c)->mM : 0;
-			double a0 = 0, f0 = before - target, a1 = add, f1;
-			for (int it = 0; it < 20; it++) {
-				sol_set(s, c, base + a1);
-				if (osmolality(ctx, s, &after, err))
-					return -1;
-				f1 = after - target;
-				if (fabs(f1) < 1e-6 || f1 == f0)
-					break;
-				double a2 = a1 - f1 * (a1 - a0) / (f1 - f0);
-				a0 = a1;
-				f0 = f1;
-				a1 = a2 > 0 ? a2 : a1 / 2;
-			}
-			add = a1;
-		}
+		 * compound may react, and shifts the ionic strength); a compound
+		 * already in the solution keeps its amount, the solve is on what
+		 * is added to it */
+		struct osmo_eval e = {ctx, s, c, sol_find(s, c) ? sol_find(s, c)->mM : 0};
+		if (osm_target_solve(osmo_eval_at, &e, target, before, add, &add, &after, err))
+			return -1;
+	}
+	if (osmolality_range(ctx, s, &lo, &hi, err))
+		return -1;
+	if (dilute) { /* the range of the diluted solution */
+		lo *= target / before;
+		hi *= target / before;
 	}
 	if (ctx->out->json) {
 		jw w;
@@ -461,6 +487,10 @@ int cmd_osmo(im_ctx *ctx, int argc, char **argv, char *err)
 			jw_num(&w, "added_mM", add, 8);
 		}
 		jw_num(&w, "after_mOsm_kg", after, 8);
+		jw_arr(&w, "osmolality_range_mOsm_kg");
+		jw_num(&w, NULL, lo, 6);
+		jw_num(&w, NULL, hi, 6);
+		jw_close(&w);
 		jw_end(&w);
 		return 0;
 	}
@@ -473,27 +503,12 @@ int cmd_osmo(im_ctx *ctx, int argc, char **argv, char *err)
 		out_printf(ctx->out, "%s: added %s %s: %.0f -> %.1f mOsm/kg (Pitzer estimate)\n",
 			   s->name, b, c->name, before, after);
 	}
+	if (lround(lo) != lround(hi))
+		out_printf(ctx->out, "  aimed at the central estimate; the osmotic data allow %.0f to "
+				     "%.0f mOsm/kg\n", lo, hi);
 	out_printf(ctx->out, "  hint: a pipette solution is usually made a little (about 5 to 15 "
 			     "mOsm/kg) below the bath (common practice); check with an osmometer\n");
 	return 0;
-}
-
-/* The compilation names in the tables, into names (up to max). */
-static int compilations(im_ctx *ctx, char names[][32], int max)
-{
-	sqlite3_stmt *st;
-	int n = 0;
-	if (sqlite3_prepare_v2(refdb_sqlite(ctx->ref),
-			       "SELECT compilation FROM eq_pka UNION SELECT compilation FROM "
-			       "eq_complexes UNION SELECT compilation FROM osm_pitzer ORDER BY 1",
-			       -1, &st, NULL) != SQLITE_OK) {
-		sqlite3_finalize(st);
-		return 0;
-	}
-	while (n < max && sqlite3_step(st) == SQLITE_ROW)
-		snprintf(names[n++], 32, "%s", (const char *)sqlite3_column_text(st, 0));
-	sqlite3_finalize(st);
-	return n;
 }
 
 #define MAX_CONST 160
@@ -505,7 +520,7 @@ int cmd_constants(im_ctx *ctx, int argc, char **argv, char *err)
 	spec_const *rows;
 	if (need_chem(ctx, err))
 		return -1;
-	nc = compilations(ctx, comp, 32);
+	nc = spec_compilations(ctx->chem, ctx->osm, comp, 32);
 	if (argc == 1) {
 		if (ctx->out->json) {
 			jw w;
@@ -525,18 +540,15 @@ int cmd_constants(im_ctx *ctx, int argc, char **argv, char *err)
 		return 0;
 	}
 	if (strcmp(argv[1], "default") == 0) {
-		spec_use_compilation(ctx->chem, "default", err);
-		osm_use_compilation(ctx->osm, "default", err);
+		if (spec_pick_compilation(ctx->chem, ctx->osm, "default", err))
+			return -1;
 		out_printf(ctx->out, "constants: every default in use again\n");
 		return 0;
 	}
 	for (int i = 0; i < nc; i++)
 		if (strcmp(comp[i], argv[1]) == 0) {
-			char e1[IM_ERRLEN], e2[IM_ERRLEN];
-			int a = spec_use_compilation(ctx->chem, argv[1], e1) == 0;
-			int b = osm_use_compilation(ctx->osm, argv[1], e2) == 0;
-			if (!a && !b)
-				return im_fail(err, "%s", e1);
+			if (spec_pick_compilation(ctx->chem, ctx->osm, argv[1], err))
+				return -1;
 			picked = 1;
 		}
 	rows = im_xcalloc(MAX_CONST, sizeof *rows);
@@ -560,6 +572,14 @@ int cmd_constants(im_ctx *ctx, int argc, char **argv, char *err)
 			jw_num(&w, "value", rows[i].value, 6);
 			jw_num(&w, "t_ref_C", rows[i].t_ref_C, 6);
 			jw_num(&w, "i_ref_M", rows[i].i_ref_M, 6);
+			jw_num(&w, "dH_kJ_mol", rows[i].dh_kJ_mol, 6);
+			jw_str(&w, "dH_analogue", rows[i].dh_analogue[0] ? rows[i].dh_analogue : NULL);
+			{
+				const rd_source *ds = rows[i].dh_source[0]
+							      ? refdb_source(ctx->ref, rows[i].dh_source)
+							      : NULL;
+				jw_str(&w, "dH_source", ds ? ds->citation : NULL);
+			}
 			jw_str(&w, "compilation", rows[i].compilation);
 			jw_bool(&w, "in_use", rows[i].in_use);
 			jw_str(&w, "source", src ? src->citation : rows[i].source);
@@ -572,18 +592,28 @@ int cmd_constants(im_ctx *ctx, int argc, char **argv, char *err)
 	if (picked)
 		out_printf(ctx->out, "constants: using %s where it has a value (the others keep "
 				     "their defaults)\n", argv[1]);
-	out_printf(ctx->out, "  %-14s %-30s %8s %6s %6s %-16s %s\n", "species", "reaction",
-		   "value", "t C", "I M", "compilation", "in use");
-	for (int i = 0; i < n; i++)
-		out_printf(ctx->out, "  %-14s %-30s %5s %5.2f %6.1f %6.3f %-16s %s\n",
-			   rows[i].what, rows[i].reaction, rows[i].is_pka ? "pKa" : "logK",
-			   rows[i].value, rows[i].t_ref_C, rows[i].i_ref_M, rows[i].compilation,
-			   rows[i].in_use ? "*" : "");
+	out_printf(ctx->out, "  %-14s %-30s %8s %6s %6s %-18s %-16s %s\n", "species", "reaction",
+		   "value", "t C", "I M", "dH kJ/mol", "compilation", "in use");
 	for (int i = 0; i < n; i++) {
-		const rd_source *src = refdb_source(ctx->ref, rows[i].source);
+		char dh[40] = "-";
+		if (isfinite(rows[i].dh_kJ_mol))
+			snprintf(dh, sizeof dh, "%+.1f%s%s", rows[i].dh_kJ_mol,
+				 rows[i].dh_analogue[0] ? " as " : "", rows[i].dh_analogue);
+		else if (isfinite(rows[i].dpka_dt_per_K))
+			snprintf(dh, sizeof dh, "dpKa/dT %+.4f", rows[i].dpka_dt_per_K);
+		out_printf(ctx->out, "  %-14s %-30s %5s %5.2f %6.1f %6.3f %-18s %-16s %s\n",
+			   rows[i].what, rows[i].reaction, rows[i].is_pka ? "pKa" : "logK",
+			   rows[i].value, rows[i].t_ref_C, rows[i].i_ref_M, dh,
+			   rows[i].compilation, rows[i].in_use ? "*" : "");
+	}
+	out_printf(ctx->out, "  (dH 'as X': estimated, taken from the analogous reaction X)\n");
+	/* every source once: the constants', then the enthalpies' */
+	for (int i = 0; i < 2 * n; i++) {
+		const char *key = i < n ? rows[i].source : rows[i - n].dh_source;
+		const rd_source *src = *key ? refdb_source(ctx->ref, key) : NULL;
 		int dup = 0;
 		for (int j = 0; j < i; j++)
-			dup |= strcmp(rows[j].source, rows[i].source) == 0;
+			dup |= strcmp(j < n ? rows[j].source : rows[j - n].dh_source, key) == 0;
 		if (!dup && src)
 			out_printf(ctx->out, "  [%s] %s%s\n", src->id, src->citation,
 				   src->from_memory ? " [from memory]" : "");

@@ -325,6 +325,10 @@ static void show_json(im_ctx *ctx, const solution *s, const sol_state *st)
 		}
 		jw_close(&w);
 		jw_num(&w, "osmolality_mOsm_kg", st->osmolality_mOsm_kg, 6);
+		jw_arr(&w, "osmolality_range_mOsm_kg");
+		jw_num(&w, NULL, st->osmolality_lo_mOsm_kg, 6);
+		jw_num(&w, NULL, st->osmolality_hi_mOsm_kg, 6);
+		jw_close(&w);
 		jw_num(&w, "osmotic_coefficient", st->osmotic_coeff, 6);
 		jw_num(&w, "osmotic_fallback_fraction", st->osm_fallback_frac, 4);
 		jw_arr(&w, "warnings");
@@ -373,8 +377,12 @@ static void show_chemistry(im_ctx *ctx, const solution *s, const sol_state *st)
 			   100 * r->metals[m].bound_mM / r->metals[m].total_mM);
 	}
 	if (isfinite(st->osmolality_mOsm_kg)) {
-		out_printf(ctx->out, "  osmolality (estimate) %9.0f mOsm/kg  (Pitzer; osmotic "
-				     "coefficient %.3f", st->osmolality_mOsm_kg, st->osmotic_coeff);
+		out_printf(ctx->out, "  osmolality (estimate) %9.0f mOsm/kg", st->osmolality_mOsm_kg);
+		/* the range the osmotic data allow, when it shows at this precision */
+		if (lround(st->osmolality_lo_mOsm_kg) != lround(st->osmolality_hi_mOsm_kg))
+			out_printf(ctx->out, " (%.0f to %.0f)", st->osmolality_lo_mOsm_kg,
+				   st->osmolality_hi_mOsm_kg);
+		out_printf(ctx->out, "  (Pitzer; osmotic coefficient %.3f", st->osmotic_coeff);
 		if (st->osm_fallback_frac > 0.05)
 			out_printf(ctx->out, "; %.0f %% of ion pairs lack parameters and count by "
 					     "Debye-Hueckel alone", 100 * st->osm_fallback_frac);

@@ -403,12 +403,12 @@ int cmd_ghk_ratio(im_ctx *ctx, int argc, char **argv, char *err)
 	double E1 = 0, E2 = 0;
 	int have_E = 0;
 	x[0].P = q * x[1].P;
-	if (ghk_erev_mV(x, o.np, ctx->temp_C, &E1, NULL) == 0) {
+	if (ghk_erev_present_mV(x, o.np, ctx->temp_C, &E1, NULL) == 0) {
 		have_E = 1;
 		if (shift) {
 			for (int i = 0; i < o.np; i++)
 				x[i].out_mM = to_out[i];
-			have_E = ghk_erev_mV(x, o.np, ctx->temp_C, &E2, NULL) == 0;
+			have_E = ghk_erev_present_mV(x, o.np, ctx->temp_C, &E2, NULL) == 0;
 		}
 	}
 	if (ctx->out->json) {

@@ -75,10 +75,19 @@ int ghk_ratio(const ghk_ion *ions, int n, int ion_idx, int ref_idx,
  * the bath is changed: ions[i].out_mM is the bath before the change (the
  * "from" bath), to_out_mM[i] the bath after it (the "to" bath, n values, the
  * caller's array); the inside is ions[i].in_mM in both.  shift_mV =
- * E_rev(to) - E_rev(from).  Covers bi-ionic substitution and dilution. */
+ * E_rev(to) - E_rev(from).  Covers bi-ionic substitution and dilution in
+ * either direction: an ion absent from both sides of one state (the test
+ * ion before a full substitution, the ion it replaces after it) carries no
+ * current in that state, so only each state's reversal potential must
+ * exist.  err when a state has none (every permeant ion on one side, say
+ * which), or when the test ion is absent from every state. */
 int ghk_ratio_shift(const ghk_ion *ions, int n, const double *to_out_mM,
 		    int ion_idx, int ref_idx, double shift_mV, double t_C,
 		    double *ratio, char *err);
+
+/* ghk_erev_mV with the ions absent from both sides taken as impermeant
+ * (what a state of a substitution experiment holds). */
+int ghk_erev_present_mV(const ghk_ion *ions, int n, double t_C, double *E_mV, char *err);
 
 /* A current-voltage curve.  Arrays owned by the struct (ghk_iv_free). */
 typedef struct ghk_iv_curve {

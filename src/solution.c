@@ -156,7 +156,6 @@ void sol_spec_cond(const solution *s, const sol_env *env, spec_cond *cond)
 {
 	memset(cond, 0, sizeof *cond);
 	cond->t_C = env->t_C;
-	cond->osm = env->osm;
 	cond->mode = SPEC_PH_CLOSED;
 	cond->pH = NAN;
 	if (s->co2_frac > 0) {
@@ -201,9 +200,21 @@ static int speciate(const solution *s, const sol_env *env, sol_state *st, char *
 	st->chem = r;
 	st->pH = r->pH;
 	if (env->osm) {
-		st->osmolality_mOsm_kg = r->osmolality_mOsm_kg;
-		st->osmotic_coeff = r->osmotic_coeff;
-		st->osm_fallback_frac = r->osm_fallback_frac;
+		/* osmolality of the free species (osmotic.c) */
+		osm_species *os = im_xmalloc((size_t)(r->n ? r->n : 1) * sizeof *os);
+		osm_result orr;
+		for (int i = 0; i < r->n; i++)
+			os[i] = (osm_species){r->sp[i].symbol, r->sp[i].z, r->sp[i].mM};
+		int rc = osm_molar(env->osm, os, r->n, env->t_C, &orr, err);
+		free(os);
+		if (rc)
+			return -1;
+		st->osmolality_mOsm_kg = orr.osmolality_mOsm_kg;
+		st->osmotic_coeff = orr.phi;
+		st->osm_fallback_frac = orr.fallback_frac;
+		st->osmolality_lo_mOsm_kg = orr.osmolality_lo_mOsm_kg;
+		st->osmolality_hi_mOsm_kg = orr.osmolality_hi_mOsm_kg;
+		st->osm_estimated_frac = orr.estimated_frac;
 	}
 	return 0;
 }
@@ -213,6 +224,7 @@ int sol_compute(const solution *s, const sol_env *env, sol_state *st, char *err)
 	double t_C = env->t_C;
 	memset(st, 0, sizeof *st);
 	st->pH = st->osmolality_mOsm_kg = st->osmotic_coeff = NAN;
+	st->osmolality_lo_mOsm_kg = st->osmolality_hi_mOsm_kg = NAN;
 	if (!isfinite(t_C) || t_C < 0 || t_C > 100)
 		return im_fail(err, "temperature %g C is outside 0 to 100 C", t_C);
 	st->t_C = t_C;

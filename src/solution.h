@@ -57,6 +57,9 @@ typedef struct sol_state {
 	double osmolality_mOsm_kg;  /* Pitzer estimate; NAN without osm data */
 	double osmotic_coeff;       /* molal phi; NAN without osm data */
 	double osm_fallback_frac;   /* share of ion pairs without Pitzer parameters */
+	/* the range the osmotic data allow (osmotic.h); NAN without osm data */
+	double osmolality_lo_mOsm_kg, osmolality_hi_mOsm_kg;
+	double osm_estimated_frac;  /* share of particles with estimated terms */
 } sol_state;
 
 /* What sol_compute works with.  ref is needed to name the species that
