@@ -272,6 +272,25 @@ static int probe_file(const char *path, int *exists, char *err)
 	return 0;
 }
 
+/* May a file be created in the directory of path?  0, or -1 with err
+ * naming the file and the cause (SQLite would report a stale errno). */
+static int dir_writable(const char *path, char *err)
+{
+	char *d = im_xstrdup(path), *slash = strrchr(d, '/');
+	int rc = 0;
+	if (!slash)
+		strcpy(d, ".");
+	else if (slash == d)
+		slash[1] = '\0';
+	else
+		*slash = '\0';
+	if (access(d, W_OK | X_OK) != 0)
+		rc = im_fail(err, "the database %s cannot be created: %s; nothing was changed", path,
+			     strerror(errno));
+	free(d);
+	return rc;
+}
+
 /* Does path+suffix exist? */
 static int side_exists(const char *path, const char *suffix)
 {
@@ -315,7 +334,7 @@ int udb_open(const char *path, int create, userdb **out, char *err)
 	if (!exists) {
 		if (!create)
 			return 1;
-		if (mkdirs(path, err))
+		if (mkdirs(path, err) || dir_writable(path, err))
 			return -1;
 	}
 	flags = SQLITE_OPEN_READWRITE | (create ? SQLITE_OPEN_CREATE : 0);
