@@ -39,10 +39,6 @@ static const char schema_sql[] =
 	"  name TEXT PRIMARY KEY, formula TEXT NOT NULL, fw_g_mol REAL NOT NULL,"
 	"  yields TEXT NOT NULL, note TEXT);";
 
-/* Seconds a writer waits for another ionmix holding the lock, and after
- * how long an interactive user is told (the issue on reliability). */
-#define WAIT_MAX_S 30.0
-#define NOTICE_S 2.0
 /* Backoff between retries: doubles from 1 ms up to this, with jitter. */
 #define BACKOFF_MAX_MS 100
 
@@ -130,7 +126,24 @@ static const char *sys_cause(userdb *u, char *buf, size_t n)
 	if (!e && sqlite3_errcode(u->db) == SQLITE_READONLY && access(u->path, W_OK) != 0)
 		e = errno;
 	if (!e) {
+		/* SQLite kept no errno (a short write, say): name the step */
+		static const struct {
+			int code;
+			const char *what;
+		} steps[] = {
+			{SQLITE_IOERR_WRITE, "a write to it failed"},
+			{SQLITE_IOERR_FSYNC, "flushing it to disk failed"},
+			{SQLITE_IOERR_TRUNCATE, "truncating it failed"},
+			{SQLITE_IOERR_READ, "a read failed"},
+			{SQLITE_IOERR_SHORT_READ, "it ended early"},
+			{SQLITE_IOERR_SHMMAP, "mapping its -shm file failed"},
+			{SQLITE_IOERR_LOCK, "locking it failed"},
+		};
+		int x = sqlite3_extended_errcode(u->db);
 		buf[0] = '\0';
+		for (size_t i = 0; i < IM_COUNT(steps); i++)
+			if (steps[i].code == x)
+				snprintf(buf, n, ": %s", steps[i].what);
 		return buf;
 	}
 	snprintf(buf, n, ": %s", strerror(e));
@@ -351,8 +364,8 @@ int udb_open(const char *path, int create, userdb **out, char *err)
 	}
 	u = im_xcalloc(1, sizeof *u);
 	u->path = im_xstrdup(path);
-	u->wait_max_s = WAIT_MAX_S;
-	u->notice_s = NOTICE_S;
+	u->wait_max_s = UDB_WAIT_S;
+	u->notice_s = UDB_NOTICE_S;
 	u->seed = (unsigned)getpid() ^ (unsigned)(mono_s() * 1e6);
 	rc = sqlite3_open_v2(name ? name : path, &u->db, flags, NULL);
 	free(name);
@@ -395,6 +408,11 @@ int udb_open(const char *path, int create, userdb **out, char *err)
 			u->path);
 		udb_close(u);
 		return -1;
+	}
+	if (v == 0 && !create) { /* an empty file: nothing saved yet, and reading
+				  * writes nothing */
+		udb_close(u);
+		return 1;
 	}
 	if (v == 0 && create_schema(u, err)) {
 		udb_close(u);

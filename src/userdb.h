@@ -14,6 +14,10 @@
 #include "solution.h"
 
 #define UDB_SCHEMA_VERSION 1
+/* Seconds a statement waits for another process holding the database's
+ * lock, and after how long an interactive user is told so. */
+#define UDB_WAIT_S 30.0
+#define UDB_NOTICE_S 2.0
 
 typedef struct userdb userdb;
 
@@ -22,7 +26,9 @@ typedef struct userdb userdb;
  * create = 1: creates it and its directory.  Any other failure to reach,
  * read or lock an existing file (permission, symlink loop, a component
  * that is not a directory, corruption) returns -1 with err naming the
- * path and the cause.  A file opened only to read that this process may
+ * path and the cause.  An empty file is, for reading, no database yet
+ * (returns 1), and is given its tables only when create = 1.  A file
+ * opened only to read that this process may
  * not write, with no -wal/-shm beside it, is read as it stands so that
  * no empty -wal/-shm is left behind.  Returns 0 when open.  Caller owns
  * *out. */
@@ -65,9 +71,10 @@ int udb_default_path(char **out, char *err);
 int udb_nowhere(char *err);
 
 /* How long a statement waits for a lock another process holds (seconds;
- * 30 by default), and, when notice is not NULL, after how long (2 s by
- * default) to print there one line "waiting for the database (locked by
- * another ionmix)...".  Waits back off from 1 to 100 ms between tries. */
+ * UDB_WAIT_S by default), and, when notice is not NULL, after how long
+ * (UDB_NOTICE_S by default) to print there once "waiting for the
+ * database (locked by another ionmix)...".  Retries back off from 1 to
+ * 100 ms apart. */
 void udb_set_patience(userdb *u, double wait_s, double notice_s, FILE *notice);
 
 #endif

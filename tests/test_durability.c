@@ -737,6 +737,10 @@ static void full_disk_case(const char *sub, long limit_extra, int fill)
 	assert_null(strchr(rep.save_err, '\n'));
 	if (!strstr(rep.save_err, path))
 		fail_msg("%s: the message does not name the file: %s", sub, rep.save_err);
+	/* ... and the cause: the system's words, a failed write, or a full disk */
+	if (!strstr(rep.save_err, strerror(EFBIG)) && !strstr(rep.save_err, "write") &&
+	    !strstr(rep.save_err, "disk full"))
+		fail_msg("%s: the message does not say why: %s", sub, rep.save_err);
 	/* the export failed, in one line */
 	assert_int_equal(rep.export_rc, -1);
 	assert_non_null(strstr(rep.export_err, "cannot write"));

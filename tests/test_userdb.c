@@ -47,6 +47,14 @@ static void path(char *buf, const char *name)
 	snprintf(buf, 256, "%s/%s", dir, name);
 }
 
+static void write_file(const char *p, const char *bytes, size_t n)
+{
+	FILE *f = fopen(p, "wb");
+	assert_non_null(f);
+	fwrite(bytes, 1, n, f);
+	fclose(f);
+}
+
 static void round_trip(void **state)
 {
 	char p[256], err[IM_ERRLEN], **names;
@@ -75,14 +83,17 @@ static void round_trip(void **state)
 	assert_int_equal(udb_delete(u, "bath", err), -1);
 	udb_close(u);
 	sol_free(&s);
-}
-
-static void write_file(const char *p, const char *bytes, size_t n)
-{
-	FILE *f = fopen(p, "wb");
-	assert_non_null(f);
-	fwrite(bytes, 1, n, f);
-	fclose(f);
+	/* an empty file holds nothing yet; reading it writes nothing */
+	path(p, "empty.db");
+	write_file(p, "", 0);
+	assert_int_equal(udb_open(p, 0, &u, err), 1);
+	{
+		struct stat st;
+		assert_int_equal(stat(p, &st), 0);
+		assert_int_equal(st.st_size, 0);
+	}
+	assert_int_equal(udb_open(p, 1, &u, err), 0); /* saving gives it its tables */
+	udb_close(u);
 }
 
 static char *read_file(const char *p, size_t *n)
