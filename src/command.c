@@ -313,6 +313,6 @@ struct userdb *ctx_userdb(im_ctx *ctx, int create, char *err, int *failed)
 	if (rc < 0)
 		*failed = 1;
 	else if (ctx->user && ctx->interactive) /* after 2 s of waiting, say so */
-		udb_set_patience(ctx->user, UDB_WAIT_S, UDB_NOTICE_S, stderr);
+		udb_set_patience(ctx->user, UDB_WAIT_S, UDB_NOTICE_S, ctx->out->errfp);
 	return ctx->user;
 }
