@@ -372,6 +372,7 @@ static void edited_db(const char *p, const char *sql)
 	unlink(p);
 	assert_int_equal(sqlite3_open(p, &h), SQLITE_OK);
 	if (sqlite3_exec(h,
+			 "PRAGMA synchronous = OFF;" /* a scratch file: no need to wait for the disk */
 			 "CREATE TABLE solutions(name TEXT PRIMARY KEY, saved_at TEXT,"
 			 " ph_target REAL, co2_frac REAL, co2_p_atm REAL, co2_dry INTEGER);"
 			 "CREATE TABLE solution_items(solution TEXT, position INTEGER,"
