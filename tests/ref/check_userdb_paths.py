@@ -61,7 +61,8 @@ def run(args, cwd, env_extra=None, drop=(), as_nobody=False):
         def pre():
             os.setgid(NOBODY)
             os.setuid(NOBODY)
-    return subprocess.run([binary] + args, capture_output=True, text=True, cwd=cwd, env=env,
+    exe = nobody_binary if pre else binary
+    return subprocess.run([exe] + args, capture_output=True, text=True, cwd=cwd, env=env,
                           timeout=60, preexec_fn=pre)
 
 
@@ -82,6 +83,10 @@ def listing(d):
 SAVE = "solution bath; add NaCl 140; add KCl 5; save"
 root = tempfile.mkdtemp(prefix="ionmix-dbpaths-")
 os.chmod(root, 0o755)
+# the unprivileged user may not reach the build tree: give it a copy
+nobody_binary = os.path.join(root, "ionmix")
+shutil.copy2(binary, nobody_binary)
+os.chmod(nobody_binary, 0o755)
 
 # ---- refused at start (item 2) ----
 scratch = os.path.join(root, "scratch")
