@@ -11,6 +11,7 @@ Run from the repository root with /usr/bin/python3."""
 import os
 import pty
 import select
+import shutil
 import sqlite3
 import subprocess
 import sys
@@ -101,5 +102,6 @@ r = subprocess.run([binary, "--db", db, "-e", "list"], capture_output=True, text
                    env=env, timeout=60)
 check("all three saved", all("  %s\n" % n in r.stdout for n in ("first", "second", "third")),
       r.stdout)
+shutil.rmtree(tmp, ignore_errors=True)
 print("ref: check_userdb_wait: %d passed, %d failed" % (passed, failed))
 sys.exit(1 if failed else 0)
