@@ -306,11 +306,13 @@ struct userdb *ctx_userdb(im_ctx *ctx, int create, char *err, int *failed)
 		return ctx->user;
 	if (!ctx->db_path) {
 		*failed = 1;
-		im_fail(err, "no database path");
+		udb_nowhere(err);
 		return NULL;
 	}
 	rc = udb_open(ctx->db_path, create, &ctx->user, err);
 	if (rc < 0)
 		*failed = 1;
+	else if (ctx->user && ctx->interactive) /* after 2 s of waiting, say so */
+		udb_set_patience(ctx->user, UDB_WAIT_S, UDB_NOTICE_S, ctx->out->errfp);
 	return ctx->user;
 }

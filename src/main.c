@@ -68,7 +68,7 @@ int main(int argc, char **argv)
 	char err[IM_ERRLEN];
 	refdb *ref;
 	im_ctx ctx;
-	char *dbpath, *hist;
+	char *dbpath = NULL, *hist;
 
 	setlocale(LC_CTYPE, ""); /* for readline and UTF-8 output; never LC_NUMERIC */
 	o.utf8 = strcmp(nl_langinfo(CODESET), "UTF-8") == 0;
@@ -114,6 +114,14 @@ int main(int argc, char **argv)
 		}
 	}
 
+	/* a database that would save nowhere lasting is a usage error */
+	if (db ? udb_check_path(db, err) : udb_default_path(&dbpath, err)) {
+		fprintf(stderr, "ionmix: %s\n", err);
+		status = 2;
+		goto out;
+	}
+	if (db)
+		dbpath = im_xstrdup(db);
 	if (refdb_open(&ref, err)) {
 		fprintf(stderr, "ionmix: %s\n", err);
 		status = 1;
@@ -127,8 +135,7 @@ int main(int argc, char **argv)
 		status = 1;
 		goto out;
 	}
-	dbpath = db ? im_xstrdup(db) : udb_default_path();
-	ctx.db_path = dbpath;
+	ctx.db_path = dbpath; /* NULL: no usable place (udb_nowhere says why) */
 
 	for (int i = 0; i < nact && status == 0; i++) {
 		FILE *fp;
@@ -173,6 +180,7 @@ missing:
 		argv[argc - 1]);
 	status = 2;
 out: /* before the reference data are open */
+	free(dbpath);
 	free(acts);
 	free(is_expr);
 	return status;

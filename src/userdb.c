@@ -4,21 +4,19 @@
 #include "userdb.h"
 
 #include <errno.h>
+#include <fcntl.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 #include <sys/stat.h>
+#include <time.h>
 #include <unistd.h>
 
 #include <sqlite3.h>
 
 #include "common.h"
-
-struct userdb {
-	sqlite3 *db;
-	char *path;
-};
+#include "units.h"
 
 static const char schema_sql[] =
 	"CREATE TABLE IF NOT EXISTS solutions ("
@@ -41,44 +39,139 @@ static const char schema_sql[] =
 	"  name TEXT PRIMARY KEY, formula TEXT NOT NULL, fw_g_mol REAL NOT NULL,"
 	"  yields TEXT NOT NULL, note TEXT);";
 
+/* Backoff between retries: doubles from 1 ms up to this, with jitter. */
+#define BACKOFF_MAX_MS 100
+
+struct userdb {
+	sqlite3 *db;
+	char *path;
+	double wait_max_s;   /* total wait on a lock per statement, s */
+	double notice_s;     /* tell `notice` after this long, s */
+	FILE *notice;        /* NULL: wait silently */
+	double busy_t0;      /* monotonic time the current wait began, s */
+	int noticed;         /* the notice was given for the current wait */
+	unsigned seed;       /* jitter */
+};
+
+static double mono_s(void)
+{
+	struct timespec t;
+	clock_gettime(CLOCK_MONOTONIC, &t);
+	return (double)t.tv_sec + t.tv_nsec * 1e-9;
+}
+
+/* SQLite's busy handler: count is 0 at the first retry of a lock.  Sleep
+ * 1, 2, 4 ... BACKOFF_MAX_MS ms (each between half and all of that, at
+ * random, so that waiting writers do not retry in step) until the total
+ * reaches wait_max_s; then give up (SQLITE_BUSY reaches the caller). */
+static int on_busy(void *arg, int count)
+{
+	userdb *u = arg;
+	double now = mono_s(), left;
+	int ms;
+	if (count == 0) {
+		u->busy_t0 = now;
+		u->noticed = 0;
+	}
+	left = u->wait_max_s - (now - u->busy_t0);
+	if (left <= 0)
+		return 0;
+	if (u->notice && !u->noticed && now - u->busy_t0 >= u->notice_s) {
+		fprintf(u->notice, "waiting for the database (locked by another ionmix)...\n");
+		fflush(u->notice);
+		u->noticed = 1;
+	}
+	ms = count < 7 ? 1 << count : BACKOFF_MAX_MS;
+	if (ms > BACKOFF_MAX_MS)
+		ms = BACKOFF_MAX_MS;
+	ms = ms / 2 + (int)(rand_r(&u->seed) % (unsigned)(ms - ms / 2 + 1));
+	if (ms < 1)
+		ms = 1;
+	if (ms > left * 1000.0)
+		ms = (int)(left * 1000.0) + 1;
+	sqlite3_sleep(ms);
+	return 1;
+}
+
+void udb_set_patience(userdb *u, double wait_s, double notice_s, FILE *notice)
+{
+	u->wait_max_s = wait_s;
+	u->notice_s = notice_s;
+	u->notice = notice;
+}
+
+/* Create the missing directories above path (not its last component). */
 static int mkdirs(const char *path, char *err)
 {
-	char buf[4096];
-	size_t n = strlen(path);
-	if (n >= sizeof buf)
-		return im_fail(err, "database path too long");
-	memcpy(buf, path, n + 1);
+	char *buf = im_xstrdup(path);
 	for (char *p = buf + 1; *p; p++) {
 		if (*p != '/')
 			continue;
 		*p = '\0';
-		if (mkdir(buf, 0755) != 0 && errno != EEXIST)
-			return im_fail(err, "cannot create directory %s: %s", buf,
-				       strerror(errno));
+		if (mkdir(buf, 0755) != 0 && errno != EEXIST) {
+			im_fail(err, "cannot create directory %s: %s", buf, strerror(errno));
+			free(buf);
+			return -1;
+		}
 		*p = '/';
 	}
+	free(buf);
 	return 0;
+}
+
+/* " (Permission denied)" when SQLite saw a system error, else "". */
+static const char *sys_cause(userdb *u, char *buf, size_t n)
+{
+	int e = sqlite3_system_errno(u->db);
+	if (!e && sqlite3_errcode(u->db) == SQLITE_READONLY && access(u->path, W_OK) != 0)
+		e = errno;
+	if (!e) {
+		/* SQLite kept no errno (a short write, say): name the step */
+		static const struct {
+			int code;
+			const char *what;
+		} steps[] = {
+			{SQLITE_IOERR_WRITE, "a write to it failed"},
+			{SQLITE_IOERR_FSYNC, "flushing it to disk failed"},
+			{SQLITE_IOERR_TRUNCATE, "truncating it failed"},
+			{SQLITE_IOERR_READ, "a read failed"},
+			{SQLITE_IOERR_SHORT_READ, "it ended early"},
+			{SQLITE_IOERR_SHMMAP, "mapping its -shm file failed"},
+			{SQLITE_IOERR_LOCK, "locking it failed"},
+		};
+		int x = sqlite3_extended_errcode(u->db);
+		buf[0] = '\0';
+		for (size_t i = 0; i < IM_COUNT(steps); i++)
+			if (steps[i].code == x)
+				snprintf(buf, n, ": %s", steps[i].what);
+		return buf;
+	}
+	snprintf(buf, n, ": %s", strerror(e));
+	return buf;
 }
 
 static int fail_db(userdb *u, char *err, const char *what)
 {
 	int code = sqlite3_errcode(u->db);
+	char cause[128];
+	sys_cause(u, cause, sizeof cause);
 	if (code == SQLITE_NOTADB || code == SQLITE_CORRUPT)
 		return im_fail(err, "%s is not a readable ionmix database (%s); it was left untouched",
 			       u->path, sqlite3_errmsg(u->db));
 	if (code == SQLITE_FULL)
 		return im_fail(err, "%s: disk full while %s; nothing was changed", u->path, what);
-	if (code == SQLITE_IOERR) {
+	if (code == SQLITE_BUSY || code == SQLITE_LOCKED)
+		return im_fail(err, "%s is locked by another program (waited %.0f s) while %s; "
+				    "nothing was changed", u->path, u->wait_max_s, what);
+	if (code == SQLITE_IOERR)
 		/* say why when the system said: "File too large", "Disk quota
 		 * exceeded" */
-		int e = sqlite3_system_errno(u->db);
-		return im_fail(err, "%s: input/output error while %s%s%s%s; nothing was changed",
-			       u->path, what, e ? " (" : "", e ? strerror(e) : "", e ? ")" : "");
-	}
+		return im_fail(err, "%s: input/output error while %s%s; nothing was changed",
+			       u->path, what, cause);
 	if (code == SQLITE_READONLY || code == SQLITE_CANTOPEN || code == SQLITE_PERM)
-		return im_fail(err, "%s cannot be written (%s); nothing was changed", u->path,
-			       sqlite3_errmsg(u->db));
-	return im_fail(err, "%s: %s while %s", u->path, sqlite3_errmsg(u->db), what);
+		return im_fail(err, "%s cannot be written (%s%s); nothing was changed", u->path,
+			       sqlite3_errmsg(u->db), cause);
+	return im_fail(err, "%s: %s%s while %s", u->path, sqlite3_errmsg(u->db), cause, what);
 }
 
 static int user_version(userdb *u, int *v)
@@ -101,13 +194,16 @@ static int create_schema(userdb *u, char *err)
 {
 	char sql[sizeof schema_sql + 64];
 	int v = 0;
-	for (int tries = 0; tries < 50; tries++) {
+	/* switching the journal can report busy without calling the busy
+	 * handler: retry it here, as long as a writer would wait */
+	double t0 = mono_s();
+	for (int tries = 0;; tries++) {
 		int rc = sqlite3_exec(u->db, "PRAGMA journal_mode = WAL", NULL, NULL, NULL);
 		if (rc == SQLITE_OK)
 			break;
-		if (rc != SQLITE_BUSY && rc != SQLITE_LOCKED)
+		if ((rc != SQLITE_BUSY && rc != SQLITE_LOCKED) || mono_s() - t0 > u->wait_max_s)
 			return fail_db(u, err, "creating the tables");
-		sqlite3_sleep(20);
+		sqlite3_sleep(tries < 5 ? 1 << tries : 20);
 	}
 	if (sqlite3_exec(u->db, "BEGIN IMMEDIATE", NULL, NULL, NULL) != SQLITE_OK)
 		return fail_db(u, err, "creating the tables");
@@ -129,28 +225,160 @@ static int create_schema(userdb *u, char *err)
 	return 0;
 }
 
+/* What kind of file st is, for "is a directory, not a database file". */
+static const char *file_kind(const struct stat *st)
+{
+	if (S_ISDIR(st->st_mode))
+		return "a directory";
+	if (S_ISFIFO(st->st_mode))
+		return "a FIFO";
+	if (S_ISCHR(st->st_mode))
+		return "a character device";
+	if (S_ISBLK(st->st_mode))
+		return "a block device";
+	if (S_ISSOCK(st->st_mode))
+		return "a socket";
+	return "not a regular file";
+}
+
+int udb_check_path(const char *path, char *err)
+{
+	struct stat st;
+	size_t n = path ? strlen(path) : 0;
+	if (n == 0)
+		return im_fail(err, "the database path is empty: name a file (--db PATH)");
+	if (strcmp(path, ":memory:") == 0)
+		return im_fail(err, "database '%s' would live only in memory: name a file "
+				    "(--db PATH)", path);
+	if (strncmp(path, "file:", 5) == 0)
+		return im_fail(err, "database '%s' is a URI: name the file itself (--db PATH)",
+			       path);
+	if (path[n - 1] == '/')
+		return im_fail(err, "database path '%s' ends in '/': name a file "
+				    "(--db PATH)", path);
+	if (stat(path, &st) == 0 && !S_ISREG(st.st_mode))
+		return im_fail(err, "database %s is %s, not a database file", path,
+			       file_kind(&st));
+	return 0;
+}
+
+/* Can an existing file be used?  0 when it is a regular file we can read
+ * (*exists = 1) or when it is missing (*exists = 0); else -1 with the
+ * path and the system's cause. */
+static int probe_file(const char *path, int *exists, char *err)
+{
+	struct stat st;
+	int fd;
+	*exists = 0;
+	if (stat(path, &st) != 0) {
+		if (errno == ENOENT)
+			return 0;
+		return im_fail(err, "cannot reach the database %s: %s", path, strerror(errno));
+	}
+	if (!S_ISREG(st.st_mode))
+		return im_fail(err, "database %s is %s, not a database file", path,
+			       file_kind(&st));
+	if ((fd = open(path, O_RDONLY | O_NONBLOCK)) < 0)
+		return im_fail(err, "cannot read the database %s: %s", path, strerror(errno));
+	close(fd);
+	*exists = 1;
+	return 0;
+}
+
+/* May a file be created in the directory of path?  0, or -1 with err
+ * naming the file and the cause (SQLite would report a stale errno). */
+static int dir_writable(const char *path, char *err)
+{
+	char *d = im_xstrdup(path), *slash = strrchr(d, '/');
+	int rc = 0;
+	if (!slash)
+		strcpy(d, ".");
+	else if (slash == d)
+		slash[1] = '\0';
+	else
+		*slash = '\0';
+	if (access(d, W_OK | X_OK) != 0)
+		rc = im_fail(err, "the database %s cannot be created: %s; nothing was changed", path,
+			     strerror(errno));
+	free(d);
+	return rc;
+}
+
+/* Does path+suffix exist? */
+static int side_exists(const char *path, const char *suffix)
+{
+	size_t n = strlen(path), m = strlen(suffix);
+	char *p = im_xmalloc(n + m + 1);
+	struct stat st;
+	int r;
+	memcpy(p, path, n);
+	memcpy(p + n, suffix, m + 1);
+	r = lstat(p, &st) == 0;
+	free(p);
+	return r;
+}
+
+/* "file:PATH?immutable=1", with the characters a URI path reserves
+ * escaped.  Caller frees. */
+static char *immutable_uri(const char *path)
+{
+	size_t n = strlen(path);
+	char *u = im_xmalloc(3 * n + 32), *q = u;
+	q += sprintf(q, path[0] == '/' ? "file://" : "file:"); /* empty authority */
+	for (const char *p = path; *p; p++) {
+		if (*p == '%' || *p == '?' || *p == '#')
+			q += sprintf(q, "%%%02X", (unsigned char)*p);
+		else
+			*q++ = *p;
+	}
+	strcpy(q, "?immutable=1");
+	return u;
+}
+
 int udb_open(const char *path, int create, userdb **out, char *err)
 {
 	userdb *u;
-	int v = 0, tables = 0;
+	int v = 0, tables = 0, exists, flags, rc, werr = 0;
+	char *name = NULL;
 	sqlite3_stmt *st;
 	*out = NULL;
-	if (access(path, F_OK) != 0) {
+	if (udb_check_path(path, err) || probe_file(path, &exists, err))
+		return -1;
+	if (!exists) {
 		if (!create)
 			return 1;
-		if (mkdirs(path, err))
+		if (mkdirs(path, err) || dir_writable(path, err))
 			return -1;
+	}
+	flags = SQLITE_OPEN_READWRITE | (create ? SQLITE_OPEN_CREATE : 0);
+	/* A file only to be read, which we may not write, with no journal
+	 * beside it (wholly checkpointed): SQLite would create an empty -wal
+	 * and -shm next to it and could not remove them.  Read it as it is. */
+	if (exists && access(path, W_OK) != 0 && (werr = errno) != 0 &&
+	    !side_exists(path, "-wal") && !side_exists(path, "-shm")) {
+		if (create)
+			return im_fail(err, "the database %s cannot be written: %s; nothing was "
+					    "changed", path, strerror(werr));
+		name = immutable_uri(path);
+		flags = SQLITE_OPEN_READONLY | SQLITE_OPEN_URI;
 	}
 	u = im_xcalloc(1, sizeof *u);
 	u->path = im_xstrdup(path);
-	if (sqlite3_open_v2(path, &u->db,
-			    SQLITE_OPEN_READWRITE | (create ? SQLITE_OPEN_CREATE : 0),
-			    NULL) != SQLITE_OK) {
+	u->wait_max_s = UDB_WAIT_S;
+	u->notice_s = UDB_NOTICE_S;
+	u->seed = (unsigned)getpid() ^ (unsigned)(mono_s() * 1e6);
+	rc = sqlite3_open_v2(name ? name : path, &u->db, flags, NULL);
+	free(name);
+	if (rc != SQLITE_OK) {
+		if (!u->db) {
+			udb_close(u);
+			return im_fail(err, "%s: out of memory opening it", path);
+		}
 		fail_db(u, err, "opening");
 		udb_close(u);
 		return -1;
 	}
-	sqlite3_busy_timeout(u->db, 5000);
+	sqlite3_busy_handler(u->db, on_busy, u);
 	/* Reading the schema is the first touch of the file: a corrupted or
 	 * foreign file fails here, before anything is written. */
 	if (sqlite3_prepare_v2(u->db, "SELECT count(*) FROM sqlite_master", -1, &st,
@@ -180,6 +408,11 @@ int udb_open(const char *path, int create, userdb **out, char *err)
 			u->path);
 		udb_close(u);
 		return -1;
+	}
+	if (v == 0 && !create) { /* an empty file: nothing saved yet, and reading
+				  * writes nothing */
+		udb_close(u);
+		return 1;
 	}
 	if (v == 0 && create_schema(u, err)) {
 		udb_close(u);
@@ -254,45 +487,171 @@ done:
 	return ok ? 0 : -1;
 }
 
-int udb_load(userdb *u, const refdb *ref, const char *name, solution *out, char *err)
+/* ---- loading: a saved row is checked like typed input ---- */
+
+/* Bounds of typed input (cmd_core.c `add`/`stock`, cmd_chem.c `ph`/`gas`). */
+#define AMOUNT_MIN_mM 1e-9 /* 1 fM */
+#define PH_MIN 2.0
+#define PH_MAX 12.0
+#define PRESSURE_MIN_atm 0.1
+#define PRESSURE_MAX_atm 5.0
+
+/* Column i as a number: 0 with *v, or -1 with what it holds instead
+ * ("empty (NULL)", "text 'abc'", "a blob", "inf") in buf. */
+static int col_number(sqlite3_stmt *st, int i, double *v, char *buf, size_t n)
+{
+	switch (sqlite3_column_type(st, i)) {
+	case SQLITE_INTEGER:
+	case SQLITE_FLOAT:
+		*v = sqlite3_column_double(st, i);
+		if (isfinite(*v))
+			return 0;
+		snprintf(buf, n, "%g, not a finite number", *v);
+		return -1;
+	case SQLITE_NULL:
+		snprintf(buf, n, "empty (NULL)");
+		return -1;
+	case SQLITE_TEXT:
+		snprintf(buf, n, "text '%.24s', not a number", (const char *)sqlite3_column_text(st, i));
+		return -1;
+	default:
+		snprintf(buf, n, "a blob, not a number");
+		return -1;
+	}
+}
+
+/* Column i as a flag, 0 or 1. */
+static int col_flag(sqlite3_stmt *st, int i, int *v, char *buf, size_t n)
+{
+	double d;
+	if (col_number(st, i, &d, buf, n))
+		return -1;
+	if (d != 0 && d != 1) {
+		snprintf(buf, n, "%g, not 0 or 1", d);
+		return -1;
+	}
+	*v = (int)d;
+	return 0;
+}
+
+/* The solutions row of name, checked; 1 when there is none. */
+static int load_head(userdb *u, const char *name, solution *out, char *err)
 {
 	sqlite3_stmt *st;
-	int found = 0, rc;
-	sol_init(out, name);
+	char why[96];
+	const char *col = NULL;
+	double v;
+	int rc;
 	if (sqlite3_prepare_v2(u->db, "SELECT ph_target, co2_frac, co2_p_atm, co2_dry FROM"
 			       " solutions WHERE name = ?1", -1, &st, NULL) != SQLITE_OK)
 		return fail_db(u, err, "loading");
 	sqlite3_bind_text(st, 1, name, -1, SQLITE_STATIC);
-	if (sqlite3_step(st) == SQLITE_ROW) {
-		found = 1;
-		if (sqlite3_column_type(st, 0) != SQLITE_NULL)
-			out->ph_target = sqlite3_column_double(st, 0);
-		out->co2_frac = sqlite3_column_double(st, 1);
-		out->co2_p_atm = sqlite3_column_double(st, 2);
-		out->co2_dry = sqlite3_column_int(st, 3);
+	rc = sqlite3_step(st);
+	if (rc != SQLITE_ROW) {
+		sqlite3_finalize(st);
+		if (rc == SQLITE_DONE)
+			return 1;
+		return fail_db(u, err, "loading");
 	}
+	if (sqlite3_column_type(st, 0) != SQLITE_NULL) {
+		if (col_number(st, 0, &v, why, sizeof why))
+			col = "target pH";
+		else if (v < PH_MIN || v > PH_MAX)
+			snprintf(why, sizeof why, "%g, outside %g to %g", v, PH_MIN, PH_MAX),
+				col = "target pH";
+		else
+			out->ph_target = v;
+	}
+	if (!col) {
+		if (col_number(st, 1, &v, why, sizeof why))
+			col = "CO2 fraction";
+		else if (v < 0 || v > 1)
+			snprintf(why, sizeof why, "%g, outside 0 to 1", v), col = "CO2 fraction";
+		else
+			out->co2_frac = v;
+	}
+	if (!col) {
+		if (col_number(st, 2, &v, why, sizeof why))
+			col = "gas pressure";
+		else if (v <= PRESSURE_MIN_atm || v > PRESSURE_MAX_atm)
+			snprintf(why, sizeof why, "%g atm, outside %g to %g atm", v,
+				 PRESSURE_MIN_atm, PRESSURE_MAX_atm), col = "gas pressure";
+		else
+			out->co2_p_atm = v;
+	}
+	if (!col && col_flag(st, 3, &out->co2_dry, why, sizeof why))
+		col = "dry-gas flag";
 	sqlite3_finalize(st);
-	if (!found)
-		return im_fail(err, "no saved solution named '%s' (see `list`)", name);
+	if (col)
+		return im_fail(err, "%s: saved solution '%s': %s is %s; nothing was loaded (was "
+				    "the file edited?)", u->path, name, col, why);
+	return 0;
+}
+
+/* One solution_items row into out, checked: 0, or -1 with err. */
+static int load_item(userdb *u, const refdb *ref, sqlite3_stmt *st, solution *out,
+		     char *err)
+{
+	const char *cname = (const char *)sqlite3_column_text(st, 0), *col = NULL;
+	const rd_compound *c;
+	char why[96];
+	double mM = 0, stock = 0;
+	int titrant = 0;
+	if (!cname || !*cname)
+		return im_fail(err, "%s: saved solution '%s' has a compound without a name; "
+				    "nothing was loaded (was the file edited?)", u->path, out->name);
+	if (!(c = refdb_compound(ref, cname)))
+		return im_fail(err, "%s: saved solution '%s' uses '%.40s', which this ionmix does "
+				    "not know; nothing was loaded", u->path, out->name, cname);
+	if (sol_find(out, c))
+		return im_fail(err, "%s: saved solution '%s' lists %s twice; nothing was loaded "
+				    "(was the file edited?)", u->path, out->name, c->name);
+	if (col_number(st, 1, &mM, why, sizeof why))
+		col = "amount";
+	else if (mM < AMOUNT_MIN_mM || mM > UNITS_MAX_mM)
+		snprintf(why, sizeof why, "%g mM, outside 1 fM to %g M", mM, UNITS_MAX_mM / 1000),
+			col = "amount";
+	else if (col_number(st, 2, &stock, why, sizeof why))
+		col = "stock";
+	else if (stock != 0 && (stock < AMOUNT_MIN_mM || stock > UNITS_MAX_mM))
+		snprintf(why, sizeof why, "%g mM, neither 0 (weighed) nor 1 fM to %g M", stock,
+			 UNITS_MAX_mM / 1000), col = "stock";
+	else if (col_flag(st, 3, &titrant, why, sizeof why))
+		col = "titrant flag";
+	if (col)
+		return im_fail(err, "%s: saved solution '%s', %s: %s is %s; nothing was loaded "
+				    "(was the file edited?)", u->path, out->name, c->name, col, why);
+	sol_set(out, c, mM);
+	sol_find(out, c)->stock_mM = stock;
+	sol_find(out, c)->titrant = titrant;
+	return 0;
+}
+
+int udb_load(userdb *u, const refdb *ref, const char *name, solution *out, char *err)
+{
+	sqlite3_stmt *st;
+	int rc;
+	sol_init(out, name);
+	rc = load_head(u, name, out, err);
+	if (rc == 1)
+		rc = im_fail(err, "no saved solution named '%s' (see `list`)", name);
+	if (rc) {
+		sol_free(out);
+		return -1;
+	}
 	if (sqlite3_prepare_v2(u->db,
 			       "SELECT compound, mM, stock_mM, titrant FROM solution_items"
-			       " WHERE solution = ?1 ORDER BY position", -1, &st, NULL) != SQLITE_OK)
+			       " WHERE solution = ?1 ORDER BY position", -1, &st, NULL) != SQLITE_OK) {
+		sol_free(out);
 		return fail_db(u, err, "loading");
+	}
 	sqlite3_bind_text(st, 1, name, -1, SQLITE_STATIC);
-	while ((rc = sqlite3_step(st)) == SQLITE_ROW) {
-		const char *cname = (const char *)sqlite3_column_text(st, 0);
-		const rd_compound *c = refdb_compound(ref, cname);
-		if (!c) {
-			im_fail(err, "saved solution '%s' uses '%s', which this ionmix does not know",
-				name, cname);
+	while ((rc = sqlite3_step(st)) == SQLITE_ROW)
+		if (load_item(u, ref, st, out, err)) {
 			sqlite3_finalize(st);
 			sol_free(out);
 			return -1;
 		}
-		sol_set(out, c, sqlite3_column_double(st, 1));
-		sol_find(out, c)->stock_mM = sqlite3_column_double(st, 2);
-		sol_find(out, c)->titrant = sqlite3_column_int(st, 3);
-	}
 	sqlite3_finalize(st);
 	if (rc != SQLITE_DONE) {
 		sol_free(out);
@@ -304,7 +663,7 @@ int udb_load(userdb *u, const refdb *ref, const char *name, solution *out, char 
 int udb_list(userdb *u, char ***names, char *err)
 {
 	sqlite3_stmt *st;
-	int n = 0, cap = 8, rc;
+	int n = 0, cap = 8, rc, unnamed = 0;
 	*names = NULL;
 	if (sqlite3_prepare_v2(u->db, "SELECT name FROM solutions ORDER BY name", -1, &st,
 			       NULL) != SQLITE_OK)
@@ -313,14 +672,22 @@ int udb_list(userdb *u, char ***names, char *err)
 	while ((rc = sqlite3_step(st)) == SQLITE_ROW) {
 		if (n == cap)
 			*names = im_xrealloc(*names, (cap *= 2) * sizeof **names);
-		(*names)[n++] = im_xstrdup((const char *)sqlite3_column_text(st, 0));
+		const char *name = (const char *)sqlite3_column_text(st, 0);
+		if (!name) { /* a hand-edited row: name is not NOT NULL */
+			unnamed = 1;
+			break;
+		}
+		(*names)[n++] = im_xstrdup(name);
 	}
 	sqlite3_finalize(st);
-	if (rc != SQLITE_DONE) {
+	if (unnamed || rc != SQLITE_DONE) {
 		for (int i = 0; i < n; i++)
 			free((*names)[i]);
 		free(*names);
 		*names = NULL;
+		if (unnamed)
+			return im_fail(err, "%s: a saved solution has no name (NULL); the file was "
+					    "edited by hand", u->path);
 		return fail_db(u, err, "listing");
 	}
 	return n;
@@ -357,17 +724,71 @@ int udb_delete(userdb *u, const char *name, char *err)
 	return 0;
 }
 
-char *udb_default_path(void)
+/* ---- where the database lives ---- */
+
+/* Is p an absolute path to an existing directory? */
+static int is_dir(const char *p)
+{
+	struct stat st;
+	return p && p[0] == '/' && stat(p, &st) == 0 && S_ISDIR(st.st_mode);
+}
+
+/* malloc'd a + b */
+static char *concat(const char *a, const char *b)
+{
+	size_t n = strlen(a), m = strlen(b);
+	char *r = im_xmalloc(n + m + 1);
+	memcpy(r, a, n);
+	memcpy(r + n, b, m + 1);
+	return r;
+}
+
+/* XDG_DATA_HOME is usable when absolute and its parent directory exists
+ * (the XDG base directory specification ignores a relative value; at
+ * most XDG_DATA_HOME itself and ionmix/ below it are created). */
+static int xdg_usable(const char *xdg)
+{
+	char *parent, *slash;
+	int ok;
+	if (!xdg || xdg[0] != '/')
+		return 0;
+	parent = im_xstrdup(xdg);
+	while ((slash = strrchr(parent, '/')) && slash[1] == '\0' && slash != parent)
+		*slash = '\0'; /* "/data/" -> "/data" */
+	slash = strrchr(parent, '/');
+	if (slash == parent)
+		slash[1] = '\0';
+	else
+		*slash = '\0';
+	ok = is_dir(parent);
+	free(parent);
+	return ok;
+}
+
+int udb_nowhere(char *err)
+{
+	const char *home = getenv("HOME");
+	const char *why = !home ? "HOME is not set"
+			  : !*home ? "HOME is empty"
+			  : home[0] != '/' ? "HOME is not an absolute path"
+			  : "HOME is not an existing directory";
+	return im_fail(err, "no place for the database: %s and XDG_DATA_HOME gives none; choose "
+			    "a file with --db PATH or the IONMIX_DB environment variable", why);
+}
+
+int udb_default_path(char **out, char *err)
 {
 	const char *env = getenv("IONMIX_DB"), *xdg = getenv("XDG_DATA_HOME"),
 		   *home = getenv("HOME");
-	char buf[4096];
-	if (env && *env)
-		return im_xstrdup(env);
-	if (xdg && *xdg == '/')
-		snprintf(buf, sizeof buf, "%s/ionmix/ionmix.db", xdg);
-	else
-		snprintf(buf, sizeof buf, "%s/.local/share/ionmix/ionmix.db",
-			 home && *home ? home : ".");
-	return im_xstrdup(buf);
+	*out = NULL;
+	if (env && *env) {
+		if (udb_check_path(env, err))
+			return -1;
+		*out = im_xstrdup(env);
+	} else if (xdg_usable(xdg)) {
+		*out = concat(xdg, "/ionmix/ionmix.db");
+	} else if (is_dir(home)) {
+		*out = concat(home, "/.local/share/ionmix/ionmix.db");
+	}
+	return 0;
 }
