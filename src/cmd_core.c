@@ -18,6 +18,7 @@
 #include "userdb.h"
 #include "version.h"
 #include "weigh.h"
+#include "cmd_correct.h"
 
 /* ---- shared helpers ---- */
 
@@ -721,8 +722,8 @@ int cmd_list(im_ctx *ctx, int argc, char **argv, char *err)
 	char **names = NULL;
 	int n = 0, failed = 0;
 	userdb *u;
-	(void)argc;
-	(void)argv;
+	if (argc > 1)
+		return cmd_correct_list_nwb(ctx, argv[1], err);
 	u = ctx_userdb(ctx, 0, err, &failed);
 	if (failed)
 		return -1;
