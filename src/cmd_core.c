@@ -583,7 +583,10 @@ static void weigh_text(im_ctx *ctx, const bs_sheet *b)
 	char v[32], conc[32];
 	int utf8 = ctx->out->utf8;
 	weigh_fmt_volume(v, sizeof v, b->volume_mL, utf8);
-	out_printf(ctx->out, "bench sheet: %s, %s final volume, %.1f C\n", b->name, v, b->t_rec_C);
+	out_printf(ctx->out, "bench sheet: %s, %s final volume, %.1f C", b->name, v, b->t_rec_C);
+	if (isfinite(b->t_prep_C))
+		out_printf(ctx->out, " (made at %.1f C)", b->t_prep_C);
+	out_printf(ctx->out, "\n");
 	out_printf(ctx->out, "  %-4s %-22s %12s %10s  %s\n", "step", "compound", "final",
 		   "FW g/mol", "weigh or pipette");
 	for (int s = 0; s < b->nsteps; s++) {
@@ -692,6 +695,9 @@ int cmd_weigh(im_ctx *ctx, int argc, char **argv, char *err)
 		jw_begin(&w, ctx->out);
 		jw_str(&w, "solution", s->name);
 		jw_num(&w, "volume_mL", mL, 10);
+		jw_num(&w, "temperature_C", ctx->temp_C, 6);
+		if (isfinite(prep_C))
+			jw_num(&w, "preparation_temperature_C", prep_C, 6);
 		jw_arr(&w, "items");
 		for (int k = 0; k < b.n; k++) {
 			const bs_line *l = &b.lines[k];
