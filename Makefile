@@ -18,7 +18,10 @@ SAN        ?=
 V          ?=
 
 # ---- project flags, added on top of the user's ----
-PKGS       := sqlite3 readline
+# HDF5 (NWB recordings): Debian's pkg-config name is hdf5 (an alternative
+# for hdf5-serial); take whichever pkg-config finds
+HDF5_PC    := $(firstword $(foreach p,hdf5 hdf5-serial,$(shell $(PKG_CONFIG) --exists $(p) 2>/dev/null && echo $(p))))
+PKGS       := sqlite3 readline $(HDF5_PC)
 PKG_CFLAGS := $(shell $(PKG_CONFIG) --cflags $(PKGS) 2>/dev/null)
 PKG_LIBS   := $(shell $(PKG_CONFIG) --libs $(PKGS) 2>/dev/null)
 CMOCKA     := $(shell $(PKG_CONFIG) --cflags --libs cmocka 2>/dev/null)

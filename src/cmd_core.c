@@ -18,6 +18,9 @@
 #include "userdb.h"
 #include "version.h"
 #include "weigh.h"
+#include "benchsheet.h"
+#include "fileio.h"
+#include "cmd_correct.h"
 
 /* ---- shared helpers ---- */
 
@@ -577,75 +580,176 @@ int cmd_nernst(im_ctx *ctx, int argc, char **argv, char *err)
 
 /* ---- bench sheet ---- */
 
+static int weigh_word(const char *w)
+{
+	return strcmp(w, "html") == 0 || strcmp(w, "csv") == 0 || strcmp(w, "prep") == 0;
+}
+
+/* The sheet as terminal text: the order of work with its lines. */
+static void weigh_text(im_ctx *ctx, const bs_sheet *b)
+{
+	char v[32], conc[32];
+	int utf8 = ctx->out->utf8;
+	weigh_fmt_volume(v, sizeof v, b->volume_mL, utf8);
+	out_printf(ctx->out, "bench sheet: %s, %s final volume, %.1f C", b->name, v, b->t_rec_C);
+	if (isfinite(b->t_prep_C))
+		out_printf(ctx->out, " (made at %.1f C)", b->t_prep_C);
+	out_printf(ctx->out, "\n");
+	out_printf(ctx->out, "  %-4s %-22s %12s %10s  %s\n", "step", "compound", "final",
+		   "FW g/mol", "weigh or pipette");
+	for (int s = 0; s < b->nsteps; s++) {
+		out_printf(ctx->out, "  %2d. %s\n", s + 1, b->steps[s]);
+		for (int i = 0; i < b->n; i++) {
+			const bs_line *l = &b->lines[i];
+			if (l->step != s)
+				continue;
+			units_fmt_conc(conc, sizeof conc, l->mM, utf8);
+			weigh_fmt_volume(v, sizeof v, l->stock_mL, utf8);
+			out_printf(ctx->out, "       %-22s %12s %10.2f  ", l->c->name, conc,
+				   l->c->fw_g_mol);
+			switch (l->how) {
+			case BS_WEIGH:
+				out_printf(ctx->out, "%s%s\n", l->amount, l->grams < WEIGH_MIN_GOOD_g ?
+					   "  (under 10 mg: better from a stock)" : "");
+				break;
+			case BS_STOCK:
+				out_printf(ctx->out, "%s of %s stock\n", v, l->stock);
+				break;
+			case BS_TITRANT_STOCK:
+				out_printf(ctx->out, "%s of %s stock to start (titrant: %.3g mmol;"
+					   " finish with the pH meter)\n", v, l->stock, l->mmol);
+				break;
+			case BS_TITRANT_SUGGEST:
+				out_printf(ctx->out, "%.3g mmol: %s of a %s stock, suggested (titrant;"
+					   " finish with the pH meter)\n", l->mmol, v, l->stock);
+				break;
+			}
+		}
+	}
+	out_printf(ctx->out, "  checks:\n");
+	for (int i = 0; i < b->nchecks; i++)
+		out_printf(ctx->out, "       %s\n", b->checks[i]);
+}
+
 int cmd_weigh(im_ctx *ctx, int argc, char **argv, char *err)
 {
 	solution *s;
-	double mL, total = 0;
-	char m[32], v[32], conc[32];
-	if (core_solution(ctx, NULL, &s, err) ||
-	    units_volume_mL(argv[1], argc > 2 ? argv[2] : NULL, &mL, err))
+	double mL, total = 0, prep_C = NAN;
+	const char *html = NULL, *csv = NULL;
+	int i = 2;
+	if (core_solution(ctx, NULL, &s, err))
 		return -1;
+	const char *unit = argc > 2 && !weigh_word(argv[2]) ? argv[i++] : NULL;
+	if (units_volume_mL(argv[1], unit, &mL, err))
+		return -1;
+	for (; i < argc; i++) {
+		const char *w = argv[i];
+		if (i + 1 >= argc || !weigh_word(w))
+			return im_fail(err, weigh_word(w) ? "`%s` needs a %s" :
+				       "unexpected '%.40s'; expected html FILE, csv FILE or prep C", w,
+				       strcmp(w, "prep") == 0 ? "temperature in C" : "file name");
+		const char *val = argv[++i];
+		if (strcmp(w, "html") == 0) {
+			if (html)
+				return im_fail(err, "`html` given twice");
+			html = val;
+		} else if (strcmp(w, "csv") == 0) {
+			if (csv)
+				return im_fail(err, "`csv` given twice");
+			csv = val;
+		} else {
+			if (isfinite(prep_C))
+				return im_fail(err, "`prep` given twice");
+			if (units_number(val, &prep_C, err))
+				return -1;
+			if (prep_C < 0 || prep_C > 60)
+				return im_fail(err, "preparation temperature %s C is outside 0 to 60", val);
+		}
+	}
 	if (s->n == 0)
 		return im_fail(err, "%s is empty: nothing to weigh", s->name);
+	sol_state st;
+	char e2[IM_ERRLEN], date[16];
+	int have_st = sol_compute(s, ctx_env(ctx), &st, e2) == 0;
+	bs_sheet b;
+	bs_today(date, sizeof date);
+	if (bs_build(s, have_st ? &st : NULL, ctx->ref, mL, ctx->temp_C, prep_C, date, &b, err)) {
+		if (have_st)
+			sol_state_free(&st);
+		return -1;
+	}
+	if (have_st)
+		sol_state_free(&st);
+	if (html || csv) {
+		fio_batch fb;
+		FILE *fp;
+		fio_batch_init(&fb);
+		if (html && fio_batch_open(&fb, html, &fp, err) == 0)
+			bs_write_html(fp, &b, IONMIX_VERSION);
+		if ((!html || fb.n == 1) && csv && fio_batch_open(&fb, csv, &fp, err) == 0)
+			bs_write_csv(fp, &b);
+		if (fb.n != (html != NULL) + (csv != NULL)) {
+			fio_batch_abort(&fb);
+			bs_free(&b);
+			return -1;
+		}
+		if (fio_batch_commit(&fb, err)) {
+			bs_free(&b);
+			return -1;
+		}
+	}
 	if (ctx->out->json) {
 		jw w;
 		jw_begin(&w, ctx->out);
 		jw_str(&w, "solution", s->name);
 		jw_num(&w, "volume_mL", mL, 10);
+		jw_num(&w, "temperature_C", ctx->temp_C, 6);
+		if (isfinite(prep_C))
+			jw_num(&w, "preparation_temperature_C", prep_C, 6);
 		jw_arr(&w, "items");
-		for (int i = 0; i < s->n; i++) {
-			const sol_item *it = &s->items[i];
-			double g = weigh_grams(it->mM, it->c->fw_g_mol, mL);
+		for (int k = 0; k < b.n; k++) {
+			const bs_line *l = &b.lines[k];
+			int titrant = l->how == BS_TITRANT_STOCK || l->how == BS_TITRANT_SUGGEST;
 			jw_obj(&w, NULL);
-			jw_str(&w, "compound", it->c->name);
-			jw_num(&w, "mM", it->mM, 10);
-			jw_num(&w, "fw_g_mol", it->c->fw_g_mol, 8);
-			jw_num(&w, "grams", g, 6);
-			if (it->titrant)
+			jw_str(&w, "compound", l->c->name);
+			jw_num(&w, "mM", l->mM, 10);
+			jw_num(&w, "fw_g_mol", l->c->fw_g_mol, 8);
+			jw_num(&w, "grams", l->grams, 6);
+			jw_str(&w, "action", l->how == BS_WEIGH ? "weigh" : titrant ? "titrate" : "pipette");
+			jw_str(&w, "amount", l->amount);
+			jw_int(&w, "step", l->step + 1);
+			if (titrant) {
 				jw_bool(&w, "titrant", 1);
-			if (it->stock_mM > 0) {
-				jw_num(&w, "stock_mM", it->stock_mM, 8);
-				jw_num(&w, "stock_mL", weigh_stock_mL(it->mM, it->stock_mM, mL), 6);
+				jw_num(&w, "mmol", l->mmol, 6);
+			}
+			if (l->how == BS_TITRANT_SUGGEST) {
+				jw_num(&w, "suggested_stock_mM", l->stock_mM, 8);
+				jw_num(&w, "suggested_stock_mL", l->stock_mL, 6);
+			} else if (l->how != BS_WEIGH) {
+				jw_num(&w, "stock_mM", l->stock_mM, 8);
+				jw_num(&w, "stock_mL", l->stock_mL, 6);
 			} else {
-				total += g;
+				total += l->grams;
 			}
 			jw_close(&w);
 		}
 		jw_close(&w);
 		jw_num(&w, "total_grams", total, 6);
+		jw_arr(&w, "steps");
+		for (int k = 0; k < b.nsteps; k++)
+			jw_str(&w, NULL, b.steps[k]);
+		jw_close(&w);
+		jw_str(&w, "html", html);
+		jw_str(&w, "csv", csv);
 		jw_end(&w);
-		return 0;
+	} else {
+		weigh_text(ctx, &b);
+		if (html)
+			out_printf(ctx->out, "printable sheet (A4 or Letter) written to %s\n", html);
+		if (csv)
+			out_printf(ctx->out, "table written to %s\n", csv);
 	}
-	weigh_fmt_volume(v, sizeof v, mL, ctx->out->utf8);
-	out_printf(ctx->out, "bench sheet: %s, %s final volume\n", s->name, v);
-	out_printf(ctx->out, "  %-22s %12s %10s  %s\n", "compound", "final", "FW g/mol",
-		   "weigh or pipette");
-	for (int i = 0; i < s->n; i++) {
-		const sol_item *it = &s->items[i];
-		double g = weigh_grams(it->mM, it->c->fw_g_mol, mL);
-		units_fmt_conc(conc, sizeof conc, it->mM, ctx->out->utf8);
-		if (it->stock_mM > 0) {
-			char sc[32];
-			weigh_fmt_volume(v, sizeof v,
-					 weigh_stock_mL(it->mM, it->stock_mM, mL), ctx->out->utf8);
-			units_fmt_conc(sc, sizeof sc, it->stock_mM, ctx->out->utf8);
-			out_printf(ctx->out, "  %-22s %12s %10.2f  %s of %s stock%s\n", it->c->name,
-				   conc, it->c->fw_g_mol, v, sc,
-				   it->titrant ? " (titrant: start from this, finish with the pH "
-						 "meter)" : "");
-			continue;
-		}
-		total += g;
-		weigh_fmt_mass(m, sizeof m, g);
-		out_printf(ctx->out, "  %-22s %12s %10.2f  %s%s\n", it->c->name, conc,
-			   it->c->fw_g_mol, m,
-			   it->titrant ? "  (titrant: start from this, finish with the pH meter)"
-			   : g < WEIGH_MIN_GOOD_g ? "  (under 10 mg: better from a stock)" : "");
-	}
-	weigh_fmt_mass(m, sizeof m, total);
-	out_printf(ctx->out, "  %-22s %12s %10s  %s\n", "total to weigh", "", "", m);
-	out_printf(ctx->out, "  dissolve in about 80%% of the volume, adjust the pH, then make up "
-			     "to volume\n");
+	bs_free(&b);
 	return 0;
 }
 
@@ -729,8 +833,8 @@ int cmd_list(im_ctx *ctx, int argc, char **argv, char *err)
 	char **names = NULL;
 	int n = 0, failed = 0;
 	userdb *u;
-	(void)argc;
-	(void)argv;
+	if (argc > 1)
+		return cmd_correct_list_nwb(ctx, argv[1], err);
 	u = ctx_userdb(ctx, 0, err, &failed);
 	if (failed)
 		return -1;

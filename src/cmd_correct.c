@@ -13,7 +13,12 @@
 #include "cmd_core.h"
 #include "common.h"
 #include "correct.h"
+#include "fileio.h"
+#include "version.h"
 #include "junction.h"
+#include "nwb.h"
+
+#include <time.h>
 
 #define CONVENTION "Vm = Vrecorded - LJP"
 
@@ -232,6 +237,192 @@ static void report(out *o, const ljp_src *src, double t_C, const char *in,
 				 " taken as mV", r->cols[i].index);
 }
 
+/* ---- NWB recordings: the logic is in nwb.c ---- */
+
+/* The date of a record, ISO 8601 UTC; SOURCE_DATE_EPOCH (the reproducible-
+ * builds convention) fixes it for tests. */
+static void utc_now(char *buf, size_t n)
+{
+	time_t t = time(NULL);
+	const char *e = getenv("SOURCE_DATE_EPOCH");
+	if (e && *e) {
+		char *end;
+		long long v = strtoll(e, &end, 10);
+		if (*end == '\0' && v >= 0)
+			t = (time_t)v;
+	}
+	struct tm tm;
+	gmtime_r(&t, &tm);
+	strftime(buf, n, "%Y-%m-%dT%H:%M:%SZ", &tm);
+}
+
+static int is_nwb_word(const char *w)
+{
+	return strcmp(w, "for") == 0 || strcmp(w, "by") == 0 || strcmp(w, "to") == 0 ||
+	       strcmp(w, "again") == 0 || strcmp(w, "series") == 0;
+}
+
+/* correct FILE.nwb by MV|for PIPETTE BATH [series NAME...] [to OUT.nwb] [again] */
+static int correct_nwb(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	const char *by = NULL, *pip = NULL, *bath = NULL, *to = NULL;
+	const char **names = im_xcalloc((size_t)argc, sizeof *names);
+	int nn = 0, again = 0, rc = -1;
+	ljp_src src;
+	for (int i = 2; i < argc; i++) {
+		const char *w = argv[i];
+		int more = argc - 1 - i;
+		if (strcmp(w, "series") == 0) {
+			int k = 0;
+			while (i + 1 < argc && !is_nwb_word(argv[i + 1])) {
+				names[nn++] = argv[++i];
+				k++;
+			}
+			if (k == 0) {
+				im_fail(err, "`series` needs one or more series names");
+				goto out;
+			}
+		} else if (strcmp(w, "by") == 0 && more >= 1 && !by) {
+			by = argv[++i];
+		} else if (strcmp(w, "for") == 0 && more >= 2 && !pip) {
+			pip = argv[++i];
+			bath = argv[++i];
+		} else if (strcmp(w, "to") == 0 && more >= 1 && !to) {
+			to = argv[++i];
+		} else if (strcmp(w, "again") == 0) {
+			again = 1;
+		} else if (is_nwb_word(w)) {
+			im_fail(err, "`%s` given twice or without its %s", w,
+				strcmp(w, "for") == 0 ? "PIPETTE BATH" : strcmp(w, "to") == 0 ?
+				"file name" : "value");
+			goto out;
+		} else {
+			im_fail(err, "unexpected '%.40s'; expected by, for, series, to or again", w);
+			goto out;
+		}
+	}
+	if (get_ljp(ctx, by, pip, bath, &src, err) < 0)
+		goto out;
+	char ljp_text[32], date[32];
+	corr_ljp_format(&src.ljp, ljp_text, sizeof ljp_text);
+	utc_now(date, sizeof date);
+	nwb_record rec = {
+		.ljp_text = ljp_text,
+		.ljp_mV = corr_ljp_mV(&src.ljp),
+		.pipette = src.henderson ? pip : NULL,
+		.bath = src.henderson ? bath : NULL,
+		.has_temp = src.henderson,
+		.t_C = ctx->temp_C,
+		.model = src.henderson ? "Henderson equation from concentrations, rounded to"
+					 " 0.1 mV" : "given by the user",
+		.version = IONMIX_VERSION,
+		.date = date,
+	};
+	nwb_result r;
+	if (nwb_correct(argv[1], to, names, nn, again, &rec, &r, err))
+		goto out;
+	const char *dest = to ? to : argv[1];
+	if (ctx->out->json) {
+		jw w;
+		jw_begin(&w, ctx->out);
+		jw_str(&w, "input", argv[1]);
+		jw_str(&w, "output", dest);
+		jw_bool(&w, "in_place", to == NULL || fio_same_file(argv[1], to));
+		json_ljp(&w, &src, ctx->temp_C);
+		jw_str(&w, "date", date);
+		jw_arr(&w, "series");
+		for (int i = 0; i < r.n; i++) {
+			jw_obj(&w, NULL);
+			jw_str(&w, "name", r.c[i].name);
+			jw_str(&w, "path", r.c[i].path);
+			jw_str(&w, "unit", r.c[i].unit);
+			jw_num(&w, "old_offset", r.c[i].old_offset, 12);
+			jw_num(&w, "new_offset", r.c[i].new_offset, 12);
+			jw_num(&w, "offset_change", r.c[i].delta, 12);
+			jw_bool(&w, "corrected_before", r.c[i].again);
+			jw_close(&w);
+		}
+		jw_close(&w);
+		jw_end(&w);
+	} else {
+		say_ljp(ctx->out, &src, ctx->temp_C);
+		out_printf(ctx->out, "%s -> %s: offset changed in %d series, data untouched\n",
+			   argv[1], dest, r.n);
+		out_printf(ctx->out, "sign: %s (value = data * conversion + offset)\n", CONVENTION);
+		for (int i = 0; i < r.n; i++)
+			out_printf(ctx->out, "  %-24s offset %.6g -> %.6g %s%s\n", r.c[i].name,
+				   r.c[i].old_offset, r.c[i].new_offset, r.c[i].unit,
+				   r.c[i].again ? " (corrected before: again)" : "");
+		out_printf(ctx->out, "what was done is recorded in each series' comments\n");
+	}
+	nwb_result_free(&r);
+	rc = 0;
+out:
+	free(names);
+	return rc;
+}
+
+int cmd_correct_list_nwb(im_ctx *ctx, const char *path, char *err)
+{
+	nwb_file f;
+	if (nwb_read(path, &f, err))
+		return -1;
+	if (ctx->out->json) {
+		jw w;
+		jw_begin(&w, ctx->out);
+		jw_str(&w, "file", path);
+		jw_str(&w, "nwb_version", f.version);
+		jw_arr(&w, "series");
+		for (int i = 0; i < f.n; i++) {
+			const nwb_series *s = &f.s[i];
+			jw_obj(&w, NULL);
+			jw_str(&w, "name", s->name);
+			jw_str(&w, "path", s->path);
+			jw_str(&w, "neurodata_type", s->type);
+			jw_str(&w, "holds", nwb_kind_what(s->kind));
+			jw_bool(&w, "correctable", nwb_kind_is_potential(s->kind) && s->has_offset);
+			jw_str(&w, "unit", s->unit);
+			jw_num(&w, "conversion", s->conversion, 12);
+			if (s->has_offset)
+				jw_num(&w, "offset", s->offset, 12);
+			else
+				jw_str(&w, "offset", NULL);
+			jw_int(&w, "corrections", s->corrections);
+			if (s->corrections)
+				jw_num(&w, "last_ljp_mV", s->last_ljp_mV, 8);
+			jw_str(&w, "comments", s->comments);
+			jw_close(&w);
+		}
+		jw_close(&w);
+		jw_end(&w);
+	} else {
+		out_printf(ctx->out, "%s: NWB %s, %d patch-clamp series\n", path, f.version, f.n);
+		if (f.n)
+			out_printf(ctx->out, "  %-22s %-27s %-8s %11s %11s  %s\n", "series", "type",
+				   "unit", "conversion", "offset", "LJP correction");
+		for (int i = 0; i < f.n; i++) {
+			const nwb_series *s = &f.s[i];
+			char off[32], corr[64];
+			if (s->has_offset)
+				snprintf(off, sizeof off, "%.6g", s->offset);
+			else
+				snprintf(off, sizeof off, "none");
+			if (!nwb_kind_is_potential(s->kind))
+				snprintf(corr, sizeof corr, "- (%s)", nwb_kind_what(s->kind));
+			else if (s->corrections == 0)
+				snprintf(corr, sizeof corr, s->has_offset ? "none" :
+					 "none (no offset: NWB before 2.5)");
+			else
+				snprintf(corr, sizeof corr, "%+.4g mV%s", s->last_ljp_mV,
+					 s->corrections > 1 ? " (the last of several)" : "");
+			out_printf(ctx->out, "  %-22s %-27s %-8s %11.6g %11s  %s\n", s->name, s->type,
+				   s->unit[0] ? s->unit : "?", s->conversion, off, corr);
+		}
+	}
+	nwb_file_free(&f);
+	return 0;
+}
+
 int cmd_correct(im_ctx *ctx, int argc, char **argv, char *err)
 {
 	const char *by = NULL, *pip = NULL, *bath = NULL, *to = NULL;
@@ -246,6 +437,8 @@ int cmd_correct(im_ctx *ctx, int argc, char **argv, char *err)
 			       " BATH [to OUT] [skip-bad], or correct value MV... by MV");
 	if (strcmp(argv[1], "value") == 0)
 		return correct_values(ctx, argc, argv, err);
+	if (nwb_is_nwb(argv[1]))
+		return correct_nwb(ctx, argc, argv, err);
 	for (int i = 2; i < argc; i++) {
 		const char *w = argv[i];
 		int more = argc - 1 - i;

@@ -5,6 +5,7 @@
  * (command.h); it changes nothing in the workspace.  Synopses:
  *   correct FILE [column N|NAME]... by MV|for PIPETTE BATH [to OUT] [skip-bad]
  *   correct value MV [MV...] by MV|for PIPETTE BATH
+ *   correct FILE.nwb by MV|for PIPETTE BATH [series NAME...] [to OUT.nwb] [again]
  * `by MV` gives the LJP; `for PIPETTE BATH` computes it from two solutions
  * of the workspace with the Henderson equation (concentrations, at the
  * `temp` temperature) and rounds it to 0.1 mV, the value then subtracted.
@@ -12,7 +13,9 @@
  * summary to the error stream, so that the data stays clean; with it, OUT
  * is written atomically with a side note OUT.ionmix.txt (see correct.h)
  * and the summary is the command's result.  A file named `value` is
- * reached as ./value.
+ * reached as ./value.  A file ending in .nwb (or starting with the HDF5
+ * signature) is an NWB recording: its membrane and command potential
+ * series get their offset changed, the data untouched (nwb.h).
  */
 #ifndef IONMIX_CMD_CORRECT_H
 #define IONMIX_CMD_CORRECT_H
@@ -23,5 +26,9 @@
 #define CMD_CORRECT_HENDERSON_DECIMALS 1
 
 int cmd_correct(im_ctx *ctx, int argc, char **argv, char *err);
+
+/* `list FILE.nwb`: the patch-clamp series of an NWB file with their
+ * units, offsets and any LJP correction already recorded.  0 or -1. */
+int cmd_correct_list_nwb(im_ctx *ctx, const char *path, char *err);
 
 #endif

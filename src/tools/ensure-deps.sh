@@ -11,12 +11,15 @@ command -v make >/dev/null 2>&1 || pkgs="$pkgs make"
 have() { command -v pkg-config >/dev/null 2>&1 && pkg-config --exists "$1"; }
 have sqlite3 || pkgs="$pkgs libsqlite3-dev"
 have readline || pkgs="$pkgs libreadline-dev"
+have hdf5 || have hdf5-serial || pkgs="$pkgs libhdf5-dev"
 if [ "$what" = test ]; then
 	have cmocka || pkgs="$pkgs libcmocka-dev"
 	py=/usr/bin/python3
 	[ -x "$py" ] || pkgs="$pkgs python3"
 	[ -x "$py" ] && "$py" -c 'import periodictable' 2>/dev/null || pkgs="$pkgs python3-periodictable"
 	[ -x "$py" ] && "$py" -c 'import scipy' 2>/dev/null || pkgs="$pkgs python3-scipy"
+	[ -x "$py" ] && "$py" -c 'import h5py' 2>/dev/null || pkgs="$pkgs python3-h5py"
+	command -v pdftotext >/dev/null 2>&1 || pkgs="$pkgs poppler-utils"
 	command -v mawk >/dev/null 2>&1 || pkgs="$pkgs mawk"
 	command -v xmllint >/dev/null 2>&1 || pkgs="$pkgs libxml2-utils"
 	# robustness: `make check-valgrind`, and the libFuzzer targets of
