@@ -20,11 +20,15 @@ int cmd_junction(im_ctx *ctx, int argc, char **argv, char *err);
 int cmd_exchange(im_ctx *ctx, int argc, char **argv, char *err);
 
 /* The Henderson LJP (bath relative to pipette, mV) of two computed
- * solutions at t_C, from concentrations (act = 0) or activities: the one
- * way every command turns solutions into a junction, so `correct for`,
- * `erev corrected` and `junction` agree.  Ions without a mobility in the
- * data are taken at the middle of a bounded range when they carry at most
- * 10 % of the charge (see cmd_junction.c); otherwise -1 with err. */
+ * solutions at t_C, from concentrations (act = 0) or activities, with its
+ * interval from the mobility uncertainties (lo_mV, hi_mV may be NULL):
+ * the one way every command turns solutions into a junction (through
+ * ljp.c), so `correct for`, `erev corrected`, `review` and `junction`
+ * agree.  Never refuses for want of a mobility (estimated ones widen the
+ * interval); -1 with err for a side without ions or bad input. */
+int cmdj_ljp(const sol_state *pip, const sol_state *bath, int act, double t_C, double *ljp_mV,
+	     double *lo_mV, double *hi_mV, char *err);
+/* The same without the interval. */
 int cmdj_henderson_mV(const sol_state *pip, const sol_state *bath, int act, double t_C,
 		      double *ljp_mV, char *err);
 
