@@ -532,6 +532,7 @@ int jn_planck_mV(const jn_ion *ions, int n, double t_C, double *ljp_mV, char *er
 {
 	pl_sys q;
 	double dmax, cs = 0, J[JN_MAX_IONS], rtf, psi = 0, prev, hend, best = -1;
+	double tot[2] = {0, 0};
 	int N;
 	if (check(ions, n, t_C, &dmax, err) < 0)
 		return -1;
@@ -554,12 +555,22 @@ int jn_planck_mV(const jn_ion *ions, int n, double t_C, double *ljp_mV, char *er
 		q.cb[k] = x->bath_mM / cs;
 		q.rho_p += q.z[k] * q.cp[k];
 		q.rho_b += q.z[k] * q.cb[k];
+		tot[0] += abs(x->z) * q.cp[k];
+		tot[1] += abs(x->z) * q.cb[k];
 		/* the ion left to electroneutrality: the most present on both sides */
 		if (fmin(q.cp[k], q.cb[k]) * abs(x->z) > best) {
 			best = fmin(q.cp[k], q.cb[k]) * abs(x->z);
 			q.e = k;
 		}
 		q.n++;
+	}
+	for (int k = 0; k < 2; k++) {
+		double net = k ? q.rho_b : q.rho_p;
+		if (fabs(net) > JN_PLANCK_NEUTRAL_REL * 0.5 * tot[k])
+			return im_fail(err,
+				       "Planck's model needs electroneutral solutions: the %s "
+				       "side has a net charge of %+.3g mEq/L",
+				       k ? "bath" : "pipette", net * cs);
 	}
 	rtf = im_rt_f_mV(t_C);
 	if (jn_henderson_mV(ions, n, t_C, &hend, err))

@@ -128,9 +128,10 @@ int jn_planck_classic_mV(const jn_ion *ions, int n, double t_C, double *ljp_mV,
  * (details in junction.c); the step count is doubled until two results
  * agree to 1e-8 mV.  For monovalent ions it is the problem whose exact
  * solution is jn_planck_classic_mV; for a single salt it gives the exact
- * single-salt result.  A slight net charge of a side is carried as a
- * linear background charge.
- * Errors: those of jn_henderson_mV; no convergence (named). */
+ * single-salt result.  A slight net charge of a side (up to
+ * JN_PLANCK_NEUTRAL_REL) is carried as a linear background charge.
+ * Errors: those of jn_henderson_mV; a side further from electroneutral;
+ * no convergence (named). */
 int jn_planck_mV(const jn_ion *ions, int n, double t_C, double *ljp_mV, char *err);
 
 /* ---- shared checks (for diffusion.c) ---- */
