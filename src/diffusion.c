@@ -54,7 +54,7 @@
 
 void df_defaults(df_opts *o)
 {
-	o->grid_points = 101;
+	o->grid_points = 51;
 	o->max_grid_points = 3201;
 	o->tol_mV = 0.005;
 	o->max_newton = 40;
