@@ -299,7 +299,7 @@ static void json_junction(im_ctx *ctx, const char *pn, const char *bn, int act,
 	jw_obj(&w, "models");
 	for (int m = 0; m < LJP_NMODELS; m++)
 		if (r->model[m].asked && r->model[m].ok)
-			jw_num(&w, model_name[m], r->model[m].ljp_mV, 6);
+			jw_num(&w, model_name[m], r->model[m].ljp_mV, 9);
 	jw_close(&w);
 	if (r->models_ok < r->models_asked) {
 		jw_obj(&w, "not_applicable");
@@ -328,9 +328,9 @@ static void json_junction(im_ctx *ctx, const char *pn, const char *bn, int act,
 		jw_obj(&w, NULL);
 		jw_str(&w, "ion", s->x.symbol);
 		jw_int(&w, "z", s->x.z);
-		jw_num(&w, "D_1e9_m2_s", s->x.D_m2_s * 1e9, 5);
-		jw_num(&w, "pipette_mM", s->x.pip_mM, 8);
-		jw_num(&w, "bath_mM", s->x.bath_mM, 8);
+		jw_num(&w, "D_1e9_m2_s", s->x.D_m2_s * 1e9, 10);
+		jw_num(&w, "pipette_mM", s->x.pip_mM, 10);
+		jw_num(&w, "bath_mM", s->x.bath_mM, 10);
 		jw_num(&w, "share_mV", s->share_mV, 5);
 		jw_str(&w, "mobility_class", ljp_class_name(s->mob.cls));
 		jw_num(&w, "mobility_rel_unc", s->mob.rel_unc, 3);

@@ -509,6 +509,101 @@ static void test_diffusion_refinement(void **st)
 	assert_close(d1, d2, 0, 3 * r1.grid_err_mV + 1e-6);
 }
 
+/* ---- Planck for any valence ----
+ * The numerical model (shooting, junction.c) against Planck's closed form
+ * for 1:1 electrolytes (Planck 1890; the equation as given in junction.h),
+ * to 1e-6 mV on mixtures of several concentrations. */
+static void test_planck_numeric_vs_classic(void **st)
+{
+	(void)st;
+	char err[IM_ERRLEN];
+	jn_ion m1[] = {{"H+", 1, D(L_H, 1), 100, 0},
+		       {"K+", 1, D(L_K, 1), 0, 10},
+		       {"Cl-", -1, D(L_CL, -1), 100, 10}};
+	jn_ion m2[] = {{"Na+", 1, D(L_NA, 1), 140, 10},
+		       {"K+", 1, D(L_K, 1), 5, 130},
+		       {"Cl-", -1, D(L_CL, -1), 135, 20},
+		       {"NO3-", -1, D(L_NO3, -1), 10, 120}};
+	jn_ion m3[] = {{"K+", 1, D(L_K, 1), 150, 5},
+		       {"gluconate-", -1, REL_GLUCONATE * D(L_K, 1), 140, 0},
+		       {"Cl-", -1, D(L_CL, -1), 10, 150},
+		       {"Na+", 1, D(L_NA, 1), 0, 145}};
+	jn_ion *all[] = {m1, m2, m3};
+	int n[] = {3, 4, 4};
+	for (int i = 0; i < 3; i++) {
+		double p, c;
+		assert_int_equal(jn_planck_mV(all[i], n[i], 25, &p, err), 0);
+		assert_int_equal(jn_planck_classic_mV(all[i], n[i], 25, &c, err), 0);
+		assert_close(p, c, 0, 1e-6);
+	}
+}
+
+/* Single-salt concentration junctions of any valence: all three models
+ * agree within 0.01 mV with the exact result
+ *   E = -(D+ - D-) / (z+ D+ - z- D-) (RT/F) ln(c_bath / c_pip)
+ * (it follows from zero current and electroneutrality alone, so every
+ * model that keeps both is exact: the CaCl2 derivation above, for any
+ * z+ and z-).  Mobilities: crc-lambda (from memory); SO4 2- 80.0. */
+static void test_single_salt_any_valence(void **st)
+{
+	(void)st;
+	char err[IM_ERRLEN];
+	double dmg = D(L_MG, 2), dso4 = D(80.0, -2), dna = D(L_NA, 1), dcl = D(L_CL, -1);
+	struct {
+		jn_ion x[2];
+		double dp, dm;
+		int zp, zm;
+		double ratio; /* c_bath / c_pip */
+	} c[] = {
+		{{{"Mg2+", 2, 0, 50, 5}, {"SO4^2-", -2, 0, 50, 5}}, 0, 0, 2, -2, 0.1},
+		{{{"Na+", 1, 0, 20, 200}, {"SO4^2-", -2, 0, 10, 100}}, 0, 0, 1, -2, 10},
+		{{{"Mg2+", 2, 0, 100, 1}, {"Cl-", -1, 0, 200, 2}}, 0, 0, 2, -1, 0.01},
+		{{{"Na+", 1, 0, 150, 15}, {"Cl-", -1, 0, 150, 15}}, 0, 0, 1, -1, 0.1},
+	};
+	c[0].x[0].D_m2_s = c[0].dp = dmg;
+	c[0].x[1].D_m2_s = c[0].dm = dso4;
+	c[1].x[0].D_m2_s = c[1].dp = dna;
+	c[1].x[1].D_m2_s = c[1].dm = dso4;
+	c[2].x[0].D_m2_s = c[2].dp = dmg;
+	c[2].x[1].D_m2_s = c[2].dm = dcl;
+	c[3].x[0].D_m2_s = c[3].dp = dna;
+	c[3].x[1].D_m2_s = c[3].dm = dcl;
+	for (size_t i = 0; i < IM_COUNT(c); i++) {
+		double exact = -(c[i].dp - c[i].dm) / (c[i].zp * c[i].dp - c[i].zm * c[i].dm) *
+			       rtf25() * log(c[i].ratio);
+		double h, p, d;
+		assert_int_equal(jn_henderson_mV(c[i].x, 2, 25, &h, err), 0);
+		assert_int_equal(jn_planck_mV(c[i].x, 2, 25, &p, err), 0);
+		assert_int_equal(df_ljp_mV(c[i].x, 2, 25, NULL, NULL, &d, err), 0);
+		assert_close(h, exact, 0, 0.01);
+		assert_close(p, exact, 0, 0.01);
+		assert_close(d, exact, 0, 0.01);
+		/* Planck's model and Henderson are exact to rounding here */
+		assert_close(p, exact, 0, 1e-6);
+	}
+}
+
+/* A bath with Ca2+ and Mg2+ no longer drops Planck's model: a NaCl |
+ * CaCl2 bi-ionic junction is computed, differs from Henderson, and
+ * reverses sign exactly when the sides are swapped. */
+static void test_planck_divalent(void **st)
+{
+	(void)st;
+	char err[IM_ERRLEN];
+	double p1, p2, h;
+	jn_ion a[] = {{"Na+", 1, D(L_NA, 1), 150, 0},
+		      {"Ca2+", 2, D(L_CA, 2), 0, 100},
+		      {"Cl-", -1, D(L_CL, -1), 150, 200}};
+	jn_ion b[] = {{"Na+", 1, D(L_NA, 1), 0, 150},
+		      {"Ca2+", 2, D(L_CA, 2), 100, 0},
+		      {"Cl-", -1, D(L_CL, -1), 200, 150}};
+	assert_int_equal(jn_planck_mV(a, 3, 25, &p1, err), 0);
+	assert_int_equal(jn_planck_mV(b, 3, 25, &p2, err), 0);
+	assert_int_equal(jn_henderson_mV(a, 3, 25, &h, err), 0);
+	assert_close(p1, -p2, 0, 1e-7);
+	assert_true(p1 > 0 && fabs(p1 - h) < 2.0);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -525,6 +620,9 @@ int main(void)
 		cmocka_unit_test(test_temperature),
 		cmocka_unit_test(test_failures),
 		cmocka_unit_test(test_diffusion_refinement),
+		cmocka_unit_test(test_planck_numeric_vs_classic),
+		cmocka_unit_test(test_single_salt_any_valence),
+		cmocka_unit_test(test_planck_divalent),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
