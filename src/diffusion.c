@@ -46,9 +46,21 @@
 #define DF_ZETA_MAX 12.0
 #define DF_ZETA_CAP 40.0
 #define DF_STRETCH 2.5
-#define DF_NEWTON_TOL 1e-11  /* largest correction, scaled concentration */
+/* Newton has converged when a full step moved no scaled concentration by
+ * more than DF_NEWTON_TOL, or by less than DF_NEWTON_TOL_RES while the
+ * largest residual after it is below DF_RES_TOL: convergence being
+ * quadratic, the iterate is then exact to about 1e-12. */
+#define DF_NEWTON_TOL 1e-10
+#define DF_NEWTON_TOL_RES 1e-5
+#define DF_RES_TOL 1e-9
 #define DF_MIN_DLAMBDA (1.0 / 4096)
 #define DF_SIGNIFICANT 1e-3  /* ions below this share of the charge do not set D_ref */
+/* Trace species (H+ and OH- near neutral pH, minor protonation states and
+ * complexes) whose share of the conductance is below this on both sides
+ * are left out of the solve: such a share moves the LJP by about that
+ * fraction of RT/F times a logarithm of order one, below 1e-4 mV, far
+ * under the tolerance; it halves the work on a full internal. */
+#define DF_TRACE_COND 1e-6
 /* Largest block storage, doubles (about 100 MB). */
 #define DF_MAX_DOUBLES 12500000.0
 
@@ -422,7 +434,8 @@ static int newton(sys *s, int maxit, int *its, double *res)
 		if (!isfinite(r1))
 			return -1;
 		memcpy(s->c, s->trial, tot * sizeof *s->c);
-		if (dmax < DF_NEWTON_TOL && a == 1.0) {
+		if (a == 1.0 &&
+		    (dmax < DF_NEWTON_TOL || (dmax < DF_NEWTON_TOL_RES && r1 < DF_RES_TOL))) {
 			*res = r1;
 			return 0;
 		}
@@ -538,7 +551,7 @@ int df_ljp_mV(const jn_ion *ions, int n, double t_C, const df_opts *opts, df_rep
 	df_opts o;
 	df_report r;
 	sys s;
-	double dref = 0, dmax = 0, cs = 0, E, Ec = NAN, rtf;
+	double dref = 0, dmax = 0, cs = 0, E, Ec = NAN, rtf, Kp = 0, Kb = 0;
 	int rc = -1;
 	if (opts)
 		o = *opts;
@@ -556,12 +569,22 @@ int df_ljp_mV(const jn_ion *ions, int n, double t_C, const df_opts *opts, df_rep
 	memset(&s, 0, sizeof s);
 	memset(&r, 0, sizeof r);
 	for (int i = 0; i < n; i++)
-		if (ions[i].z != 0 && (ions[i].pip_mM > 0 || ions[i].bath_mM > 0))
+		if (ions[i].z != 0 && (ions[i].pip_mM > 0 || ions[i].bath_mM > 0)) {
+			double zz = (double)ions[i].z * ions[i].z;
 			cs = fmax(cs, abs(ions[i].z) * fmax(ions[i].pip_mM, ions[i].bath_mM));
+			Kp += zz * ions[i].D_m2_s * ions[i].pip_mM;
+			Kb += zz * ions[i].D_m2_s * ions[i].bath_mM;
+		}
 	for (int i = 0; i < n; i++) {
 		const jn_ion *x = &ions[i];
+		double zz = (double)x->z * x->z;
 		if (x->z == 0 || !(x->pip_mM > 0 || x->bath_mM > 0))
 			continue;
+		if (zz * x->D_m2_s * x->pip_mM < DF_TRACE_COND * Kp &&
+		    zz * x->D_m2_s * x->bath_mM < DF_TRACE_COND * Kb) {
+			r.trace_species++;
+			continue;
+		}
 		s.z[s.n] = x->z;
 		s.d[s.n] = x->D_m2_s;
 		s.cp[s.n] = x->pip_mM / cs;

@@ -39,6 +39,8 @@ typedef struct df_report {
 	double coarse_ljp_mV;  /* result on the grid before the final one */
 	double grid_err_mV;    /* estimated discretization error, |fine - coarse| / 3 */
 	double residual;       /* largest scaled residual at the end */
+	int trace_species;     /* species left out: below 1e-6 of the conductance
+				* on both sides (see diffusion.c) */
 } df_report;
 
 void df_defaults(df_opts *o);
