@@ -93,8 +93,17 @@ static double python_us(void)
 	p = popen(cmd, "r");
 	if (!p)
 		return -1;
-	if (fscanf(p, "%lf us/call", &us) != 1)
-		us = -1;
+	/* read to the end before closing, so the script never writes into a
+	 * closed pipe */
+	{
+		char line[256];
+		int got = 0;
+		while (fgets(line, sizeof line, p))
+			if (!got && sscanf(line, "%lf us/call", &us) == 1)
+				got = 1;
+		if (!got)
+			us = -1;
+	}
 	if (pclose(p) != 0)
 		return -1;
 	return us;
