@@ -288,6 +288,18 @@ static void json_junction(im_ctx *ctx, const char *pn, const char *bn, int act,
 	jw_int(&w, "from_memory", r->count[RD_MOB_MEMORY]);
 	jw_int(&w, "estimated", r->count[RD_MOB_ESTIMATED]);
 	jw_close(&w);
+	/* species with no mobility and no size in the data (bounded widely),
+	 * and those whose mobility is estimated: whole lists */
+	jw_arr(&w, "mobility_unknown");
+	for (int k = 0; k < r->n; k++)
+		if (r->sp[k].mob.how == LJP_NO_SIZE)
+			jw_str(&w, NULL, r->sp[k].ion->symbol);
+	jw_close(&w);
+	jw_arr(&w, "mobility_estimated");
+	for (int k = 0; k < r->n; k++)
+		if (r->sp[k].mob.cls == RD_MOB_ESTIMATED)
+			jw_str(&w, NULL, r->sp[k].ion->symbol);
+	jw_close(&w);
 	if (r->driver >= 0) {
 		jw_obj(&w, "range_driver");
 		jw_str(&w, "ion", r->sp[r->driver].ion->symbol);
