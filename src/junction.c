@@ -348,18 +348,21 @@ int jn_check(const jn_ion *ions, int n, double t_C, char *err)
  * J_i = -d_i (c_i' + z_i c_i psi'), zero current sum z_i J_i = 0 and
  * electroneutrality sum z_i c_i = rho(x), rho linear between the net
  * charges of the two sides (0 for balanced solutions).  Differentiating
- * electroneutrality gives psi' = -(sum z_i J_i / d_i + rho') / sum z_i^2 c_i,
- * so for given fluxes the profile is an initial-value problem from the
- * pipette end.  Shooting: Newton's method on the fluxes (Jacobian by
- * forward differences, steps halved until the residual falls) so that
- * c_i(1) meets the bath for every ion but one (which electroneutrality
- * then fixes) and the current is zero.  The ODE is integrated by the
- * classical Runge-Kutta method on PL_STEPS0 steps, and again on twice as
- * many from the converged fluxes until two results differ by less than
+ * electroneutrality gives psi' = -(sum z_i J_i / d_i + rho') / K with
+ * K = sum z_i^2 c_i, so for given fluxes the profile is an initial-value
+ * problem from the pipette end.  Where a side is dilute, psi' grows as
+ * 1/K; so the ODE is integrated in t with dx/dt = S K / K(0), in which
+ * psi is linear and the profiles smooth, and the length S that brings x
+ * to 1 is one more unknown.  Shooting: Newton's method on (J, S)
+ * (Jacobian by forward differences, steps halved until the residual
+ * falls) so that c_i(1) meets the bath for every ion but one (which
+ * electroneutrality then fixes), the current is zero and x ends at 1.
+ * The classical Runge-Kutta method on PL_STEPS0 steps, then on twice as
+ * many from the converged unknowns until two results differ by less than
  * PL_TOL_mV (fourth order: the error is below a fifteenth of that).
  */
-#define PL_STEPS0 200
-#define PL_STEPS_MAX 51200
+#define PL_STEPS0 100
+#define PL_STEPS_MAX 25600
 #define PL_TOL_mV 1e-8
 #define PL_RES_TOL 1e-13
 #define PL_MAXIT 60
@@ -367,76 +370,80 @@ int jn_check(const jn_ion *ions, int n, double t_C, char *err)
 typedef struct pl_sys {
 	int n, e;
 	double z[JN_MAX_IONS], d[JN_MAX_IONS], cp[JN_MAX_IONS], cb[JN_MAX_IONS];
-	double rho_p, rho_b;
+	double rho_p, rho_b, K0;
 } pl_sys;
 
-/* dc/dx and dpsi/dx at c (position x enters only through rho'). */
-static int pl_rhs(const pl_sys *q, const double *J, const double *c, double *dc,
-		  double *dpsi)
+/* d/dt of y = (c_0 .. c_n-1, x, psi) for the unknowns P = (J, S). */
+static int pl_rhs(const pl_sys *q, const double *P, const double *y, double *dy)
 {
-	double num = q->rho_b - q->rho_p, K = 0, p;
-	for (int i = 0; i < q->n; i++) {
-		num += q->z[i] * J[i] / q->d[i];
-		K += q->z[i] * q->z[i] * c[i];
+	int n = q->n;
+	double num = q->rho_b - q->rho_p, K = 0, p, g;
+	for (int i = 0; i < n; i++) {
+		num += q->z[i] * P[i] / q->d[i];
+		K += q->z[i] * q->z[i] * y[i];
 	}
 	if (!(K > 0) || !isfinite(K))
 		return -1;
 	p = -num / K;
-	for (int i = 0; i < q->n; i++)
-		dc[i] = -J[i] / q->d[i] - q->z[i] * c[i] * p;
-	*dpsi = p;
+	g = P[n] * K / q->K0;
+	for (int i = 0; i < n; i++)
+		dy[i] = g * (-P[i] / q->d[i] - q->z[i] * y[i] * p);
+	dy[n] = g;
+	dy[n + 1] = g * p;
 	return 0;
 }
 
-/* Integrate from x = 0 to 1 in N RK4 steps: c(1) in c1, psi(1) - psi(0) in
- * *psi.  -1 when the conductance vanishes on the way. */
-static int pl_shoot(const pl_sys *q, const double *J, int N, double *c1, double *psi)
+/* Integrate t from 0 to 1 in N RK4 steps; the end state in y1.  -1 when
+ * the conductance vanishes on the way. */
+static int pl_shoot(const pl_sys *q, const double *P, int N, double *y1)
 {
-	int n = q->n;
-	double c[JN_MAX_IONS], t[JN_MAX_IONS], k1[JN_MAX_IONS], k2[JN_MAX_IONS],
-		k3[JN_MAX_IONS], k4[JN_MAX_IONS], p1, p2, p3, p4, h = 1.0 / N, ps = 0;
-	memcpy(c, q->cp, n * sizeof *c);
+	int m = q->n + 2;
+	double y[JN_MAX_IONS + 2], t[JN_MAX_IONS + 2], k1[JN_MAX_IONS + 2],
+		k2[JN_MAX_IONS + 2], k3[JN_MAX_IONS + 2], k4[JN_MAX_IONS + 2], h = 1.0 / N;
+	memcpy(y, q->cp, q->n * sizeof *y);
+	y[q->n] = y[q->n + 1] = 0.0;
 	for (int s = 0; s < N; s++) {
-		if (pl_rhs(q, J, c, k1, &p1))
+		if (pl_rhs(q, P, y, k1))
 			return -1;
-		for (int i = 0; i < n; i++)
-			t[i] = c[i] + 0.5 * h * k1[i];
-		if (pl_rhs(q, J, t, k2, &p2))
+		for (int i = 0; i < m; i++)
+			t[i] = y[i] + 0.5 * h * k1[i];
+		if (pl_rhs(q, P, t, k2))
 			return -1;
-		for (int i = 0; i < n; i++)
-			t[i] = c[i] + 0.5 * h * k2[i];
-		if (pl_rhs(q, J, t, k3, &p3))
+		for (int i = 0; i < m; i++)
+			t[i] = y[i] + 0.5 * h * k2[i];
+		if (pl_rhs(q, P, t, k3))
 			return -1;
-		for (int i = 0; i < n; i++)
-			t[i] = c[i] + h * k3[i];
-		if (pl_rhs(q, J, t, k4, &p4))
+		for (int i = 0; i < m; i++)
+			t[i] = y[i] + h * k3[i];
+		if (pl_rhs(q, P, t, k4))
 			return -1;
-		for (int i = 0; i < n; i++)
-			c[i] += h / 6.0 * (k1[i] + 2 * k2[i] + 2 * k3[i] + k4[i]);
-		ps += h / 6.0 * (p1 + 2 * p2 + 2 * p3 + p4);
+		for (int i = 0; i < m; i++)
+			y[i] += h / 6.0 * (k1[i] + 2 * k2[i] + 2 * k3[i] + k4[i]);
 	}
-	memcpy(c1, c, n * sizeof *c);
-	*psi = ps;
+	memcpy(y1, y, m * sizeof *y);
 	return 0;
 }
 
-/* Residual of the shooting problem; its max norm in *nrm. */
-static int pl_res(const pl_sys *q, const double *J, int N, double *r, double *nrm,
+/* Residual of the shooting problem (n + 1 entries); its max norm in *nrm
+ * and psi(1) - psi(0) in *psi. */
+static int pl_res(const pl_sys *q, const double *P, int N, double *r, double *nrm,
 		  double *psi)
 {
-	double c1[JN_MAX_IONS], cur = 0, m = 0;
-	int k = 0;
-	if (pl_shoot(q, J, N, c1, psi))
+	double y1[JN_MAX_IONS + 2], cur = 0, m = 0;
+	int k = 0, n = q->n;
+	if (!(P[n] > 0) || pl_shoot(q, P, N, y1))
 		return -1;
-	for (int i = 0; i < q->n; i++) {
-		cur += q->z[i] * J[i];
+	for (int i = 0; i < n; i++) {
+		cur += q->z[i] * P[i];
 		if (i != q->e)
-			r[k++] = c1[i] - q->cb[i];
+			r[k++] = y1[i] - q->cb[i];
 	}
-	r[k] = cur;
-	for (int i = 0; i < q->n; i++)
+	r[k++] = cur;
+	r[k] = y1[n] - 1.0;
+	for (int i = 0; i <= n; i++)
 		m = fmax(m, fabs(r[i]));
 	*nrm = m;
+	*psi = y1[n + 1];
 	return 0;
 }
 
@@ -476,14 +483,15 @@ static int pl_solve(double *a, double *b, int n)
 	return 0;
 }
 
-/* Newton on the fluxes J (in place) with N steps; psi at the solution. */
-static int pl_newton(const pl_sys *q, double *J, int N, double *psi)
+/* Newton on the unknowns P = (J, S) (in place) with N steps; psi at the
+ * solution. */
+static int pl_newton(const pl_sys *q, double *P, int N, double *psi)
 {
-	int n = q->n;
-	double r[JN_MAX_IONS], rt[JN_MAX_IONS], Jt[JN_MAX_IONS], nrm, nt, pt;
-	double *A = im_xmalloc(sizeof(double) * n * n);
+	int m = q->n + 1;
+	double r[JN_MAX_IONS + 1], rt[JN_MAX_IONS + 1], Pt[JN_MAX_IONS + 1], nrm, nt, pt;
+	double *A = im_xmalloc(sizeof(double) * m * m);
 	int rc = -1;
-	if (pl_res(q, J, N, r, &nrm, psi))
+	if (pl_res(q, P, N, r, &nrm, psi))
 		goto out;
 	for (int it = 0; it < PL_MAXIT; it++) {
 		double a = 1.0, jmax = 0;
@@ -491,34 +499,39 @@ static int pl_newton(const pl_sys *q, double *J, int N, double *psi)
 			rc = 0;
 			goto out;
 		}
-		for (int j = 0; j < n; j++)
-			jmax = fmax(jmax, fabs(J[j]));
-		for (int j = 0; j < n; j++) {
-			double h = 1e-7 * fmax(fabs(J[j]), 1e-3 * fmax(jmax, 1e-12));
-			memcpy(Jt, J, n * sizeof *J);
-			Jt[j] += h;
-			if (pl_res(q, Jt, N, rt, &nt, &pt))
+		for (int j = 0; j < m - 1; j++)
+			jmax = fmax(jmax, fabs(P[j]));
+		for (int j = 0; j < m; j++) {
+			double h = j < m - 1 ? 1e-7 * fmax(fabs(P[j]), 1e-3 * fmax(jmax, 1e-12))
+					     : 1e-7 * P[j];
+			memcpy(Pt, P, m * sizeof *P);
+			Pt[j] += h;
+			if (pl_res(q, Pt, N, rt, &nt, &pt))
 				goto out;
-			for (int i = 0; i < n; i++)
-				A[i * n + j] = (rt[i] - r[i]) / h;
+			for (int i = 0; i < m; i++)
+				A[i * m + j] = (rt[i] - r[i]) / h;
 		}
-		for (int i = 0; i < n; i++)
+		for (int i = 0; i < m; i++)
 			rt[i] = -r[i];
-		if (pl_solve(A, rt, n))
+		if (pl_solve(A, rt, m))
 			goto out;
+		nt = INFINITY;
 		for (int cut = 0; cut < 30; cut++, a *= 0.5) {
-			for (int j = 0; j < n; j++)
-				Jt[j] = J[j] + a * rt[j];
-			if (pl_res(q, Jt, N, r, &nt, &pt) == 0 && nt < nrm)
+			double rr[JN_MAX_IONS + 1];
+			for (int j = 0; j < m; j++)
+				Pt[j] = P[j] + a * rt[j];
+			if (pl_res(q, Pt, N, rr, &nt, &pt) == 0 && nt < nrm) {
+				memcpy(r, rr, m * sizeof *r);
 				break;
+			}
+			nt = INFINITY;
 		}
 		if (!(nt < nrm)) {
 			/* no decrease: converged to rounding, or stuck */
 			rc = nrm < 1e3 * PL_RES_TOL ? 0 : -1;
-			pl_res(q, J, N, r, &nrm, psi);
 			goto out;
 		}
-		memcpy(J, Jt, n * sizeof *J);
+		memcpy(P, Pt, m * sizeof *P);
 		nrm = nt;
 		*psi = pt;
 	}
@@ -531,7 +544,8 @@ out:
 int jn_planck_mV(const jn_ion *ions, int n, double t_C, double *ljp_mV, char *err)
 {
 	pl_sys q;
-	double dmax, cs = 0, J[JN_MAX_IONS], rtf, psi = 0, prev, hend, best = -1;
+	double dmax, cs = 0, P[JN_MAX_IONS + 1], rtf, psi = 0, prev, hend, best = -1, Kb = 0,
+							       ratio;
 	double tot[2] = {0, 0};
 	int N;
 	if (check(ions, n, t_C, &dmax, err) < 0)
@@ -555,6 +569,8 @@ int jn_planck_mV(const jn_ion *ions, int n, double t_C, double *ljp_mV, char *er
 		q.cb[k] = x->bath_mM / cs;
 		q.rho_p += q.z[k] * q.cp[k];
 		q.rho_b += q.z[k] * q.cb[k];
+		q.K0 += q.z[k] * q.z[k] * q.cp[k];
+		Kb += q.z[k] * q.z[k] * q.cb[k];
 		tot[0] += abs(x->z) * q.cp[k];
 		tot[1] += abs(x->z) * q.cb[k];
 		/* the ion left to electroneutrality: the most present on both sides */
@@ -575,12 +591,15 @@ int jn_planck_mV(const jn_ion *ions, int n, double t_C, double *ljp_mV, char *er
 	rtf = im_rt_f_mV(t_C);
 	if (jn_henderson_mV(ions, n, t_C, &hend, err))
 		return -1;
-	/* start: linear profiles with Henderson's potential drop */
+	/* start: linear profiles with Henderson's potential drop; S for a
+	 * conductance linear in x */
 	for (int i = 0; i < q.n; i++)
-		J[i] = -q.d[i] * (q.cb[i] - q.cp[i] +
+		P[i] = -q.d[i] * (q.cb[i] - q.cp[i] +
 				  q.z[i] * 0.5 * (q.cp[i] + q.cb[i]) * hend / rtf);
+	ratio = Kb / q.K0;
+	P[q.n] = fabs(ratio - 1.0) < 1e-9 ? 1.0 : log(ratio) / (ratio - 1.0);
 	N = PL_STEPS0;
-	if (pl_newton(&q, J, N, &psi))
+	if (pl_newton(&q, P, N, &psi))
 		return im_fail(err, "Planck: the shooting method did not converge");
 	for (;;) {
 		prev = psi;
@@ -588,7 +607,7 @@ int jn_planck_mV(const jn_ion *ions, int n, double t_C, double *ljp_mV, char *er
 		if (N > PL_STEPS_MAX)
 			return im_fail(err, "Planck: no agreement between step sizes "
 					    "within %d steps", PL_STEPS_MAX);
-		if (pl_newton(&q, J, N, &psi))
+		if (pl_newton(&q, P, N, &psi))
 			return im_fail(err, "Planck: the shooting method did not converge "
 					    "on %d steps", N);
 		if (fabs(psi - prev) * rtf < PL_TOL_mV)

@@ -559,6 +559,8 @@ static void test_single_salt_any_valence(void **st)
 		{{{"Na+", 1, 0, 20, 200}, {"SO4^2-", -2, 0, 10, 100}}, 0, 0, 1, -2, 10},
 		{{{"Mg2+", 2, 0, 100, 1}, {"Cl-", -1, 0, 200, 2}}, 0, 0, 2, -1, 0.01},
 		{{{"Na+", 1, 0, 150, 15}, {"Cl-", -1, 0, 150, 15}}, 0, 0, 1, -1, 0.1},
+		/* a ratio of 1e4 (the steep end of the Planck layer) */
+		{{{"Na+", 1, 0, 1000, 0.1}, {"Cl-", -1, 0, 1000, 0.1}}, 0, 0, 1, -1, 1e-4},
 	};
 	c[0].x[0].D_m2_s = c[0].dp = dmg;
 	c[0].x[1].D_m2_s = c[0].dm = dso4;
@@ -568,6 +570,8 @@ static void test_single_salt_any_valence(void **st)
 	c[2].x[1].D_m2_s = c[2].dm = dcl;
 	c[3].x[0].D_m2_s = c[3].dp = dna;
 	c[3].x[1].D_m2_s = c[3].dm = dcl;
+	c[4].x[0].D_m2_s = c[4].dp = dna;
+	c[4].x[1].D_m2_s = c[4].dm = dcl;
 	for (size_t i = 0; i < IM_COUNT(c); i++) {
 		double exact = -(c[i].dp - c[i].dm) / (c[i].zp * c[i].dp - c[i].zm * c[i].dm) *
 			       rtf25() * log(c[i].ratio);
