@@ -3,8 +3,9 @@
  * of a pipette | bath pair, with its breakdown and the corrections it
  * implies) and `exchange` (the offset a bath exchange brings with a bare
  * Ag/AgCl or a salt-bridge ground).  Each follows cmd_fn in command.h.
- * The physics is in junction.h and electrode.h; these only parse, look
- * up and print.
+ * The junction itself (species, mobilities, models, interval, breakdown)
+ * is ljp.h's result; the physics is in junction.h, diffusion.h and
+ * electrode.h; these only parse, look up and print.
  */
 #ifndef IONMIX_CMD_JUNCTION_H
 #define IONMIX_CMD_JUNCTION_H

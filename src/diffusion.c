@@ -37,7 +37,6 @@
 #include "diffusion.h"
 
 #include <math.h>
-#include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
 
@@ -428,9 +427,6 @@ static int newton(sys *s, int maxit, int *its, double *res)
 			if (dmax * a < DF_NEWTON_TOL)
 				break;
 		}
-#ifdef DF_DEBUG
-		fprintf(stderr, "it %d r0 %g r1 %g dmax %g a %g\n", it, r0, r1, dmax, a);
-#endif
 		if (!isfinite(r1))
 			return -1;
 		memcpy(s->c, s->trial, tot * sizeof *s->c);

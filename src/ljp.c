@@ -316,8 +316,9 @@ static void neutral_caution(ljp_result *r, const sol_state *st, const char *name
 	add_caution(r, sb_take(&b));
 }
 
-/* A strong base or acid counted as free OH- or H+ (see cmd_junction.c's
- * history): its high mobility moves the LJP; say by how much. */
+/* A strong base or acid counted as free OH- or H+ (the species model
+ * without a buffer to take it up): its high mobility moves the LJP; say
+ * by how much. */
 static void strong_caution(ljp_result *r, const char *pip, const char *bath)
 {
 	for (int k = 0; k < r->n; k++) {
