@@ -151,3 +151,18 @@ INSERT INTO sources (id, citation, common_practice, from_memory) VALUES
     'Estimated: mannitol taken as non-ideal as glucose (a hexitol against a '
     || 'hexose), uncertain by +-50 % of the term',
     0, 0);
+
+INSERT INTO sources (id, citation, common_practice, from_memory) VALUES
+-- ---- issue 9 (junction potentials): estimated mobilities ----
+('est-stokes-mass',
+    'Estimated (ionmix, issue 9): Stokes-Einstein relation D = kT / (6 pi eta r) '
+    || '(Einstein A. (1905) Ann Phys 17:549-560), water at 25 C (eta = 0.8900 '
+    || 'mPa s), with r the radius of a sphere of the molar volume M / rho_eff, '
+    || 'rho_eff = 1.82 g/cm3 fitted by least squares in log D to the nine organic '
+    || 'ions of data/ions.sql with a tabulated mobility (acetate, TEA, NMDG, '
+    || 'choline, Tris, gluconate, methanesulfonate, aspartate, HEPES): RMS error '
+    || '18 %, largest 36 % (aspartate); lambda = |z| F^2 D / (R T).  Charge is '
+    || 'ignored (no hydration term), so multivalent estimates are less certain. '
+    || 'Used for ions without a published mobility and for every complex or '
+    || 'protonation state from its molar mass (sum of its parts).',
+    0, 0);

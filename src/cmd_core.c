@@ -13,6 +13,7 @@
 #include <unistd.h>
 
 #include "common.h"
+#include "ljp.h"
 #include "nernst.h"
 #include "units.h"
 #include "userdb.h"
@@ -1084,6 +1085,15 @@ int cmd_info(im_ctx *ctx, int argc, char **argv, char *err)
 			jw_num(&w, "kielland_a_pm", ion->kielland_a_pm, 6);
 			source_json(&w, "mobility_source", ion->mobility_source);
 			source_json(&w, "size_source", ion->size_source);
+			if (ion->z != 0) {
+				/* the mobility junctions use (ljp.c), with its class */
+				ljp_mobility m;
+				ljp_mobility_of(ctx->ref, ion, &m);
+				jw_num(&w, "junction_D25_1e9_m2_s", m.D25_m2_s * 1e9, 6);
+				jw_str(&w, "mobility_class", ljp_class_name(m.cls));
+				jw_num(&w, "mobility_rel_unc", m.rel_unc, 3);
+				jw_num(&w, "mass_g_mol", ion->mass_g_mol, 6);
+			}
 		}
 		jw_end(&w);
 		return 0;
@@ -1110,6 +1120,18 @@ int cmd_info(im_ctx *ctx, int argc, char **argv, char *err)
 		out_printf(ctx->out, "  diffusion coefficient %.3f x 1e-9 m2/s at 25 C\n",
 			   ion->D_1e9_m2_s);
 	print_source(ctx, "mobility", ion->mobility_source);
+	if (ion->z != 0) {
+		/* the mobility junctions use (ljp.c), with its class */
+		ljp_mobility m;
+		ljp_mobility_of(ctx->ref, ion, &m);
+		out_printf(ctx->out,
+			   "  junctions use D = %.3g x 1e-9 m2/s at 25 C, %s, within %.0f %%%s\n",
+			   m.D25_m2_s * 1e9, ljp_class_name(m.cls), 100.0 * m.rel_unc,
+			   m.how == LJP_FROM_MASS ? " (Stokes-Einstein from the molar mass of its parts)"
+			   : m.how == LJP_NO_SIZE ? " (no size known: a wide bound)" : "");
+		if (m.how == LJP_FROM_MASS)
+			print_source(ctx, "mobility", m.source);
+	}
 	if (isfinite(ion->kielland_a_pm))
 		out_printf(ctx->out, "  Kielland ion size %.0f pm\n", ion->kielland_a_pm);
 	print_source(ctx, "ion size", ion->size_source);

@@ -28,12 +28,13 @@ typedef struct ljp_src {
 	int henderson;         /* 1: computed from two solutions */
 	const char *pip, *bath;
 	double henderson_mV;   /* the unrounded Henderson value */
+	double lo_mV, hi_mV;   /* its interval from the mobility uncertainties */
 } ljp_src;
 
 /* The Henderson LJP of PIPETTE against BATH at the session temperature,
  * from total concentrations, the same way `junction` computes it. */
 static int henderson(im_ctx *ctx, const char *pip, const char *bath, double *ljp_mV,
-		     char *err)
+		     double *lo_mV, double *hi_mV, char *err)
 {
 	solution *sp, *sb;
 	sol_state st[2];
@@ -47,7 +48,7 @@ static int henderson(im_ctx *ctx, const char *pip, const char *bath, double *ljp
 		sol_state_free(&st[0]);
 		return -1;
 	}
-	rc = cmdj_henderson_mV(&st[0], &st[1], 0, ctx->temp_C, ljp_mV, e2);
+	rc = cmdj_ljp(&st[0], &st[1], 0, ctx->temp_C, ljp_mV, lo_mV, hi_mV, e2);
 	if (rc)
 		im_fail(err, "LJP of %s against %s: %s", pip, bath, e2);
 	sol_state_free(&st[0]);
@@ -69,7 +70,7 @@ static int get_ljp(im_ctx *ctx, const char *by, const char *pip, const char *bat
 	src->henderson = 1;
 	src->pip = pip;
 	src->bath = bath;
-	if (henderson(ctx, pip, bath, &src->henderson_mV, err) < 0)
+	if (henderson(ctx, pip, bath, &src->henderson_mV, &src->lo_mV, &src->hi_mV, err) < 0)
 		return -1;
 	return corr_ljp_from_mV(src->henderson_mV, CMD_CORRECT_HENDERSON_DECIMALS,
 				&src->ljp, err);
@@ -83,7 +84,8 @@ static void say_ljp(out *o, const ljp_src *s, double t_C)
 	if (s->henderson)
 		out_printf(o, "LJP %s mV from the Henderson equation (pipette solution %s,"
 			   " bath solution %s, %.1f C, concentrations): %.3f mV, rounded to"
-			   " 0.1 mV\n", l, s->pip, s->bath, t_C, s->henderson_mV);
+			   " 0.1 mV (%.1f to %.1f mV with the mobility uncertainties)\n", l,
+			   s->pip, s->bath, t_C, s->henderson_mV, s->lo_mV, s->hi_mV);
 	else
 		out_printf(o, "LJP %s mV, as given\n", l);
 }
@@ -97,6 +99,10 @@ static void json_ljp(jw *w, const ljp_src *s, double t_C)
 		jw_str(w, "bath", s->bath);
 		jw_num(w, "temperature_C", t_C, 6);
 		jw_num(w, "henderson_ljp_mV", s->henderson_mV, 6);
+		jw_arr(w, "ljp_range_mV");
+		jw_num(w, NULL, s->lo_mV, 6);
+		jw_num(w, NULL, s->hi_mV, 6);
+		jw_close(w);
 	}
 	jw_str(w, "convention", CONVENTION);
 }

@@ -197,9 +197,9 @@ static const char *basis(const opts *o)
 /* Henderson LJP (bath relative to pipette) with the inside as pipette,
  * from total concentrations, computed as `junction` computes it. */
 static int ljp(const side *pip, const side *bath, double t_C, double *ljp_mV,
-	       char *err)
+	       double *lo_mV, double *hi_mV, char *err)
 {
-	return cmdj_henderson_mV(&pip->st, &bath->st, 0, t_C, ljp_mV, err);
+	return cmdj_ljp(&pip->st, &bath->st, 0, t_C, ljp_mV, lo_mV, hi_mV, err);
 }
 
 /* The JSON keys erev and iv share: the pair, temperature, basis and the
@@ -225,7 +225,7 @@ int cmd_ghk_erev(im_ctx *ctx, int argc, char **argv, char *err)
 	opts o;
 	side ins, outs;
 	ghk_ion x[MAX_PERM];
-	double E, L = 0;
+	double E, L = 0, Llo = 0, Lhi = 0;
 	int rc = -1, have_ljp = 0;
 	char why[IM_ERRLEN] = "";
 	memset(&o, 0, sizeof o);
@@ -245,7 +245,7 @@ int cmd_ghk_erev(im_ctx *ctx, int argc, char **argv, char *err)
 		goto done;
 	if (o.corrected) {
 		char e2[IM_ERRLEN];
-		if (ljp(&ins, &outs, ctx->temp_C, &L, e2) == 0)
+		if (ljp(&ins, &outs, ctx->temp_C, &L, &Llo, &Lhi, e2) == 0)
 			have_ljp = 1;
 		else
 			snprintf(why, sizeof why, "no liquid junction potential: %.200s",
@@ -268,6 +268,10 @@ int cmd_ghk_erev(im_ctx *ctx, int argc, char **argv, char *err)
 		if (o.corrected) {
 			if (have_ljp) {
 				jw_num(&w, "ljp_mV", L, 6);
+				jw_arr(&w, "ljp_range_mV");
+				jw_num(&w, NULL, Llo, 6);
+				jw_num(&w, NULL, Lhi, 6);
+				jw_close(&w);
 				jw_num(&w, "E_rev_uncorrected_mV", E + L, 8);
 			} else {
 				jw_str(&w, "ljp_mV", NULL);
@@ -303,8 +307,8 @@ int cmd_ghk_erev(im_ctx *ctx, int argc, char **argv, char *err)
 				out_printf(ctx->out, "  reads %+.2f mV before junction-potential "
 					   "correction (whole-cell, pipette = %s):\n"
 					   "    E_rev + LJP, Henderson LJP %+.2f mV from concentrations "
-					   "(bath relative to pipette)\n", E + L,
-					   ins.sol->name, L);
+					   "(bath relative to pipette;\n    %.1f to %.1f mV with the "
+					   "mobility uncertainties)\n", E + L, ins.sol->name, L, Llo, Lhi);
 			else
 				out_printf(ctx->out, "  uncorrected value not available: %s\n",
 					   why);

@@ -14,6 +14,7 @@
 #include "common.h"
 #include "electrode.h"
 #include "junction.h"
+#include "ljp.h"
 #include "output.h"
 #include "refdb.h"
 #include "solution.h"
@@ -22,13 +23,10 @@
 #define BRIDGE_MAX_mM 5000.0
 /* Net charge above this fraction of the cations earns a caution. */
 #define NEUTRAL_CAUTION_REL 0.02
-#define MAX_CAUTIONS 8
-#define CAUTION_LEN 240
 
-enum { M_HENDERSON = 1, M_PLANCK = 2, M_DIFFUSION = 4, M_ALL = 7 };
-
+/* Cautions of `exchange`, each a whole malloc'd line (nothing is cut). */
 typedef struct cautions {
-	char msg[MAX_CAUTIONS][CAUTION_LEN];
+	char **msg;
 	int n;
 } cautions;
 
@@ -38,11 +36,28 @@ static void caution(cautions *c, const char *fmt, ...)
 static void caution(cautions *c, const char *fmt, ...)
 {
 	va_list ap;
-	if (c->n >= MAX_CAUTIONS)
-		return;
+	int k;
+	char *m;
 	va_start(ap, fmt);
-	vsnprintf(c->msg[c->n++], CAUTION_LEN, fmt, ap);
+	k = vsnprintf(NULL, 0, fmt, ap);
 	va_end(ap);
+	if (k < 0)
+		return;
+	m = im_xmalloc((size_t)k + 1);
+	va_start(ap, fmt);
+	vsnprintf(m, (size_t)k + 1, fmt, ap);
+	va_end(ap);
+	c->msg = im_xrealloc(c->msg, (c->n + 1) * sizeof *c->msg);
+	c->msg[c->n++] = m;
+}
+
+static void cautions_free(cautions *c)
+{
+	for (int i = 0; i < c->n; i++)
+		free(c->msg[i]);
+	free(c->msg);
+	c->msg = NULL;
+	c->n = 0;
 }
 
 static void print_cautions(im_ctx *ctx, const cautions *c)
@@ -81,246 +96,62 @@ static int need_ions(const sol_state *st, const char *name, char *err)
 		       name);
 }
 
-static void neutral_caution(const sol_state *st, const char *name, cautions *c)
-{
-	double net = st->net_charge_mEq_L, cat = st->cation_mEq_L;
-	if (cat > 0 && fabs(net) > NEUTRAL_CAUTION_REL * cat)
-		caution(c,
-			"solution %s is not electroneutral (net charge %+.3g mEq/L): the "
-			"junction models assume balanced solutions",
-			name, net);
-}
-
-/* A pair of sides as jn_ion rows, with the reference ion of each row. */
+/* A pair of sides as jn_ion rows (Henderson only), for `exchange`. */
 typedef struct pair {
-	jn_ion *ions;       /* owned */
-	const rd_ion **ref; /* owned array; the ions are the refdb's */
-	double *D25;        /* diffusion coefficient at 25 C, m2/s; owned */
-	int *unknown;       /* 1: no mobility in the data, D25 is a bound; owned */
-	int n, nunknown;
-	double t_C;
+	ljp_result r;
+	jn_ion *ions; /* owned */
+	int n;
 } pair;
 
 static void pair_free(pair *p)
 {
+	ljp_free(&p->r);
 	free(p->ions);
-	free(p->ref);
-	free(p->D25);
-	free(p->unknown);
 	memset(p, 0, sizeof *p);
 }
 
-/*
- * Ions without a mobility in data/ (ATP, GTP, phosphocreatine and some
- * organic ions): rather than refuse every pipette solution that holds a
- * few mM of them, their mobility is bounded and the LJP reported with the
- * range it implies.  Bounds: from UNKNOWN_D_LO (practically immobile) to
- * the mobility of Na+ (1.334e-9 m2/s at 25 C), since these ions are
- * larger than a hydrated Na+ and so slower (common practice).  The
- * reported value uses the middle of that range.  Only when they carry at
- * most UNKNOWN_MAX_FRAC of the charge on each side; more, and the range
- * would say nothing, so the command stops and names the ion.
- */
-#define UNKNOWN_D_LO 0.05e-9
-#define UNKNOWN_D_HI 1.334e-9
-#define UNKNOWN_MAX_FRAC 0.10
-
-static const char *ion_sym(const pair *p, int k)
-{
-	return p->ref[k]->symbol;
-}
-
-/* D at 25 C from the reference data: the conductivity (Nernst-Einstein)
- * when known, since the Henderson equation wants electrical mobilities;
- * else the measured diffusion coefficient; NAN when neither. */
-static double ion_D25(const rd_ion *ion)
-{
-	if (isfinite(ion->lambda_S_cm2_eq) && ion->lambda_S_cm2_eq > 0)
-		return jn_D_from_lambda_m2_s(ion->lambda_S_cm2_eq, ion->z, 25.0);
-	if (isfinite(ion->D_1e9_m2_s) && ion->D_1e9_m2_s > 0)
-		return ion->D_1e9_m2_s * 1e-9;
-	return NAN;
-}
-
-/* Charged ions of a (pip_mM) and b (bath_mM), concentrations or
- * activities, mobilities scaled to t_C.  -1 with err when an ion present
- * has no mobility. */
-static int build_pair(const sol_state *a, const sol_state *b, int act, double t_C,
+static int build_pair(im_ctx *ctx, const sol_state *a, const sol_state *b, double t_C,
 		      pair *p, char *err)
 {
-	int cap = a->n + b->n + 1;
-	double eq[2] = {0, 0}, equnk[2] = {0, 0};
 	memset(p, 0, sizeof *p);
-	p->t_C = t_C;
-	p->ions = im_xcalloc(cap, sizeof *p->ions);
-	p->ref = im_xcalloc(cap, sizeof *p->ref);
-	p->D25 = im_xcalloc(cap, sizeof *p->D25);
-	p->unknown = im_xcalloc(cap, sizeof *p->unknown);
-	for (int side = 0; side < 2; side++) {
-		const sol_state *st = side ? b : a;
-		for (int j = 0; j < st->n; j++) {
-			const sol_species *sp = &st->sp[j];
-			double v = act ? sp->act_mM : sp->mM;
-			int k = 0;
-			if (sp->ion->z == 0)
-				continue;
-			while (k < p->n && p->ref[k] != sp->ion)
-				k++;
-			if (k == p->n) {
-				p->ref[p->n] = sp->ion;
-				p->ions[p->n].symbol = sp->ion->symbol;
-				p->ions[p->n].z = sp->ion->z;
-				p->n++;
-			}
-			if (side)
-				p->ions[k].bath_mM += v;
-			else
-				p->ions[k].pip_mM += v;
-		}
-	}
-	for (int k = 0; k < p->n; k++) {
-		const rd_ion *ion = p->ref[k];
-		double D25 = ion_D25(ion);
-		int unk = !(D25 > 0);
-		eq[0] += abs(ion->z) * p->ions[k].pip_mM;
-		eq[1] += abs(ion->z) * p->ions[k].bath_mM;
-		if (unk) {
-			equnk[0] += abs(ion->z) * p->ions[k].pip_mM;
-			equnk[1] += abs(ion->z) * p->ions[k].bath_mM;
-			D25 = 0.5 * (UNKNOWN_D_LO + UNKNOWN_D_HI);
-			p->unknown[k] = 1;
-			p->nunknown++;
-		}
-		p->D25[k] = D25;
-		p->ions[k].D_m2_s = jn_D_at_T_m2_s(D25, t_C);
-	}
-	for (int side = 0; side < 2 && p->nunknown; side++) {
-		if (equnk[side] <= UNKNOWN_MAX_FRAC * eq[side])
-			continue;
-		for (int k = 0; k < p->n; k++)
-			if (p->unknown[k]) {
-				im_fail(err,
-					"ion %s has no mobility in the reference data and carries "
-					"%.0f%% of the charge in the %s: add its limiting "
-					"conductivity (lambda_S_cm2_eq) or diffusion coefficient "
-					"(diffusion_1e9_m2_s) with its source row to data/ions.sql",
-					ion_sym(p, k), 100.0 * equnk[side] / eq[side],
-					side ? "bath" : "pipette");
-				break;
-			}
-		pair_free(p);
+	if (ljp_compute(ctx->ref, a, b, 0, t_C, LJP_BIT(LJP_HENDERSON), NULL, NULL, &p->r,
+			err))
 		return -1;
-	}
-	if (p->n > JN_MAX_IONS) {
-		im_fail(err, "too many ions for one junction (%d; at most %d)", p->n,
-			JN_MAX_IONS);
-		pair_free(p);
-		return -1;
-	}
+	p->n = p->r.n;
+	p->ions = im_xcalloc(p->n ? p->n : 1, sizeof *p->ions);
+	for (int k = 0; k < p->n; k++)
+		p->ions[k] = p->r.sp[k].x;
 	return 0;
 }
 
-/* The Henderson LJP with every unknown mobility at its low and at its high
- * bound (lo_mV and hi_mV may come out in either order: they are sorted). */
-static int unknown_range(const pair *p, double *lo_mV, double *hi_mV, char *err)
+/* The mobility cautions of a pair (those that name ions). */
+static void mobility_caution(const pair *p, cautions *c)
 {
-	jn_ion *x = im_xcalloc(p->n, sizeof *x);
-	double v[2];
-	int rc = 0;
-	for (int b = 0; b < 2 && rc == 0; b++) {
-		memcpy(x, p->ions, p->n * sizeof *x);
-		for (int k = 0; k < p->n; k++)
-			if (p->unknown[k])
-				x[k].D_m2_s = jn_D_at_T_m2_s(b ? UNKNOWN_D_HI : UNKNOWN_D_LO, p->t_C);
-		rc = jn_henderson_mV(x, p->n, p->t_C, &v[b], err);
-	}
-	free(x);
-	*lo_mV = fmin(v[0], v[1]);
-	*hi_mV = fmax(v[0], v[1]);
-	return rc;
+	for (int i = 0; i < p->r.ncaution; i++)
+		if (strncmp(p->r.caution[i], "mobilit", 7) == 0 ||
+		    strncmp(p->r.caution[i], "no mobility", 11) == 0)
+			caution(c, "%s", p->r.caution[i]);
 }
 
-static void unknown_list(const pair *p, char *buf, size_t n)
+int cmdj_ljp(const sol_state *pip, const sol_state *bath, int act, double t_C, double *ljp_mV,
+	     double *lo_mV, double *hi_mV, char *err)
 {
-	size_t len = 0;
-	buf[0] = '\0';
-	for (int k = 0; k < p->n; k++)
-		if (p->unknown[k] && len < n)
-			len += snprintf(buf + len, n - len, "%s%s", len ? ", " : "", ion_sym(p, k));
-}
-
-static void unknown_caution(const pair *p, cautions *c)
-{
-	char list[120];
-	double lo, hi;
-	char e2[IM_ERRLEN];
-	if (!p->nunknown || unknown_range(p, &lo, &hi, e2))
-		return;
-	unknown_list(p, list, sizeof list);
-	caution(c,
-		"no mobility in the data for %s: bounded between 0.05e-9 m2/s and that "
-		"of Na+ (common practice), the Henderson LJP lies between %+.2f and "
-		"%+.2f mV; the middle of the range is used",
-		list, lo, hi);
+	ljp_result r;
+	if (ljp_compute(NULL, pip, bath, act, t_C, LJP_BIT(LJP_HENDERSON), NULL, NULL, &r, err))
+		return -1;
+	*ljp_mV = r.ljp_mV;
+	if (lo_mV)
+		*lo_mV = r.lo_mV;
+	if (hi_mV)
+		*hi_mV = r.hi_mV;
+	ljp_free(&r);
+	return 0;
 }
 
 int cmdj_henderson_mV(const sol_state *pip, const sol_state *bath, int act, double t_C,
 		      double *ljp_mV, char *err)
 {
-	pair p;
-	int rc;
-	if (build_pair(pip, bath, act, t_C, &p, err))
-		return -1;
-	if (p.n == 0) {
-		pair_free(&p);
-		return im_fail(err, "no ions on either side");
-	}
-	rc = jn_henderson_mV(p.ions, p.n, t_C, ljp_mV, err);
-	pair_free(&p);
-	return rc;
-}
-
-/* Ions whose mobility is a recalled or practice value get one caution. */
-static void mobility_caution(const pair *p, cautions *c)
-{
-	char list[160] = "";
-	size_t len = 0;
-	int any = 0;
-	for (int k = 0; k < p->n; k++) {
-		const rd_source *s = p->ref[k]->mobility_source;
-		if (!s || p->unknown[k] || !(s->from_memory || s->common_practice))
-			continue;
-		len += snprintf(list + len, len < sizeof list ? sizeof list - len : 0,
-				"%s%s", any ? ", " : "", p->ref[k]->symbol);
-		any = 1;
-		if (len >= sizeof list)
-			break;
-	}
-	if (any)
-		caution(c,
-			"mobility recalled from memory or common practice, not looked "
-			"up: %s (see `info ION`)",
-			list);
-}
-
-/* The species model counts a strong base or acid (KOH, HCl) as free OH- or
- * H+, without its reaction with the buffer; in a physiological solution
- * that much free OH- or H+ is not real, and its high mobility moves the
- * LJP.  Say so, with the ion's share. */
-static void strong_caution(const pair *p, const double *share, const char *pip,
-			   const char *bath, cautions *c)
-{
-	for (int k = 0; k < p->n; k++) {
-		const jn_ion *x = &p->ions[k];
-		int oh = strcmp(x->symbol, "OH-") == 0, h = strcmp(x->symbol, "H+") == 0;
-		double m = fmax(x->pip_mM, x->bath_mM);
-		if ((oh || h) && m > 1.0 && fabs(share[k]) >= 0.01)
-			caution(c,
-				"%s at %.3g mM in %s is taken as free; if a buffer takes "
-				"it up, the LJP changes by about %+.2f mV (minus its share)",
-				x->symbol, m, x->pip_mM >= x->bath_mM ? pip : bath,
-				0.0 - share[k]);
-	}
+	return cmdj_ljp(pip, bath, act, t_C, ljp_mV, NULL, NULL, err);
 }
 
 static int states(im_ctx *ctx, const solution *a, const solution *b, sol_state *sa,
@@ -337,21 +168,13 @@ static int states(im_ctx *ctx, const solution *a, const solution *b, sol_state *
 
 /* ---- junction ---- */
 
-typedef struct jres {
-	int asked;              /* M_* bits */
-	int done;               /* bits computed */
-	double v[3];            /* henderson, planck, diffusion, mV */
-	char why[3][IM_ERRLEN]; /* why a model asked for was not computed */
-	jn_diffusion_report rep;
-} jres;
-
-static const char *model_name[3] = {"henderson", "planck", "diffusion"};
-static const char *model_title[3] = {"Henderson", "Planck", "free diffusion"};
+static const char *model_name[LJP_NMODELS] = {"henderson", "planck", "diffusion"};
+static const char *model_title[LJP_NMODELS] = {"Henderson", "Planck", "free diffusion"};
 
 static int parse_junction_opts(int argc, char **argv, int *act, int *models, char *err)
 {
 	*act = 0;
-	*models = M_HENDERSON;
+	*models = LJP_BIT(LJP_HENDERSON);
 	for (int i = 3; i < argc; i++) {
 		if (strcmp(argv[i], "activities") == 0) {
 			*act = 1;
@@ -363,13 +186,13 @@ static int parse_junction_opts(int argc, char **argv, int *act, int *models, cha
 					       "diffusion or all");
 			m = argv[++i];
 			if (im_strcaseeq(m, "henderson"))
-				*models = M_HENDERSON;
+				*models = LJP_BIT(LJP_HENDERSON);
 			else if (im_strcaseeq(m, "planck"))
-				*models = M_PLANCK;
+				*models = LJP_BIT(LJP_PLANCK);
 			else if (im_strcaseeq(m, "diffusion"))
-				*models = M_DIFFUSION;
+				*models = LJP_BIT(LJP_DIFFUSION);
 			else if (im_strcaseeq(m, "all"))
-				*models = M_ALL;
+				*models = LJP_ALL;
 			else
 				return im_fail(err,
 					       "unknown junction model '%.30s' (use "
@@ -386,43 +209,17 @@ static int parse_junction_opts(int argc, char **argv, int *act, int *models, cha
 	return 0;
 }
 
-static void run_models(const pair *p, double t_C, jres *r)
+static void print_corrections(im_ctx *ctx, const ljp_result *r)
 {
-	int (*fn2[2])(const jn_ion *, int, double, double *, char *) = {jn_henderson_mV,
-									jn_planck_mV};
-	for (int m = 0; m < 3; m++) {
-		int rc;
-		if (!(r->asked & (1 << m)))
-			continue;
-		if (m < 2)
-			rc = fn2[m](p->ions, p->n, t_C, &r->v[m], r->why[m]);
-		else
-			rc = jn_diffusion_mV(p->ions, p->n, t_C, NULL, &r->rep, &r->v[m],
-					     r->why[m]);
-		if (rc == 0)
-			r->done |= 1 << m;
-	}
-}
-
-/* The model whose value is "the" LJP: the one asked, or Henderson for all. */
-static int main_model(int asked)
-{
-	return asked == M_PLANCK ? 1 : asked == M_DIFFUSION ? 2 : 0;
-}
-
-static void print_corrections(im_ctx *ctx, double ljp)
-{
-	double wc = el_true_mV(EL_WHOLE_CELL, -70.0, ljp, 0.0);
-	double io = el_true_mV(EL_INSIDE_OUT, 70.0, ljp, 0.0);
 	out_printf(ctx->out,
 		   "sign: the LJP is the potential of the bath relative to the pipette "
 		   "solution\n");
 	out_printf(ctx->out,
 		   "correction, after zeroing with the pipette in this bath:\n");
 	out_printf(ctx->out,
-		   "  whole-cell, outside-out: Vm = Vpipette - LJP; a command of -70 mV "
+		   "  whole-cell, outside-out: Vm = Vpipette - LJP; a command of %.0f mV "
 		   "is really %.1f mV\n",
-		   wc);
+		   r->wc_example_cmd_mV, r->wc_example_true_mV);
 	out_printf(ctx->out,
 		   "  cell-attached: once sealed there is no junction at the tip, but "
 		   "the offset keeps the LJP:\n    the pipette is truly at Vpipette - "
@@ -430,237 +227,244 @@ static void print_corrections(im_ctx *ctx, double ljp)
 	out_printf(ctx->out,
 		   "  inside-out: the bath faces the inner side, so Vm = -(Vpipette - "
 		   "LJP0), with LJP0 the junction\n    when you zeroed (this one only if "
-		   "you zeroed in this bath); +70 mV in the pipette is\n    %.1f mV "
+		   "you zeroed in this bath); %+.0f mV in the pipette is\n    %.1f mV "
 		   "here. The patch closes the tip, so a bath change adds no tip "
 		   "junction,\n    only the ground's shift (see `exchange`) (Neher 1992, "
 		   "Methods Enzymol 207:123)\n",
-		   io);
+		   r->io_example_cmd_mV, r->io_example_true_mV);
 	out_printf(ctx->out,
 		   "  perforated patch: Vm = Vpipette - LJP as for whole-cell, but this "
 		   "ignores the Donnan\n    potential between pipette and cytoplasm "
 		   "across the perforated patch\n");
 }
 
-static void json_corrections(jw *w, double ljp)
+static void json_corrections(jw *w, const ljp_result *r)
 {
 	jw_obj(w, "correction");
 	jw_str(w, "whole_cell", "Vm = Vpipette - LJP");
 	jw_str(w, "outside_out", "Vm = Vpipette - LJP");
-	jw_num(w, "example_command_mV", -70.0, 6);
-	jw_num(w, "example_true_mV", el_true_mV(EL_WHOLE_CELL, -70.0, ljp, 0.0), 6);
+	jw_num(w, "example_command_mV", r->wc_example_cmd_mV, 6);
+	jw_num(w, "example_true_mV", r->wc_example_true_mV, 6);
 	jw_str(w, "cell_attached",
 	       "pipette truly at Vpipette - LJP; Vpatch = Vrest - (Vpipette - LJP)");
 	jw_str(w, "inside_out",
 	       "Vm = -(Vpipette - LJP0), LJP0 the junction at zeroing; a bath change "
 	       "adds no tip junction, only the ground's shift");
+	jw_num(w, "inside_out_example_command_mV", r->io_example_cmd_mV, 6);
+	jw_num(w, "inside_out_example_true_mV", r->io_example_true_mV, 6);
 	jw_str(w, "perforated",
 	       "Vm = Vpipette - LJP; ignores the Donnan potential between pipette and "
 	       "cytoplasm across the perforated patch");
 	jw_close(w);
 }
 
-static void print_breakdown(im_ctx *ctx, const pair *p, const double *share, int act)
+static const char *range_method =
+	"interval: each mobility within +- its relative uncertainty (a bound); "
+	"vertex method on the Henderson equation, the same offsets for the other "
+	"models";
+
+static void json_junction(im_ctx *ctx, const char *pn, const char *bn, int act,
+			  const ljp_result *r)
+{
+	jw w;
+	jw_begin(&w, ctx->out);
+	jw_str(&w, "pipette", pn);
+	jw_str(&w, "bath", bn);
+	jw_num(&w, "temperature_C", r->t_C, 6);
+	jw_str(&w, "from", act ? "activities" : "concentrations");
+	jw_str(&w, "model", r->models_asked > 1 ? "all" : model_name[r->main_model]);
+	jw_num(&w, "ljp_mV", r->ljp_mV, 6);
+	jw_arr(&w, "ljp_range_mV");
+	jw_num(&w, NULL, r->lo_mV, 6);
+	jw_num(&w, NULL, r->hi_mV, 6);
+	jw_close(&w);
+	jw_arr(&w, "henderson_range_mV");
+	jw_num(&w, NULL, r->henderson_lo_mV, 6);
+	jw_num(&w, NULL, r->henderson_hi_mV, 6);
+	jw_close(&w);
+	jw_str(&w, "range_method", range_method);
+	jw_obj(&w, "mobility_sources");
+	jw_int(&w, "measured", r->count[RD_MOB_MEASURED]);
+	jw_int(&w, "from_memory", r->count[RD_MOB_MEMORY]);
+	jw_int(&w, "estimated", r->count[RD_MOB_ESTIMATED]);
+	jw_close(&w);
+	/* species with no mobility and no size in the data (bounded widely),
+	 * and those whose mobility is estimated: whole lists */
+	jw_arr(&w, "mobility_unknown");
+	for (int k = 0; k < r->n; k++)
+		if (r->sp[k].mob.how == LJP_NO_SIZE)
+			jw_str(&w, NULL, r->sp[k].ion->symbol);
+	jw_close(&w);
+	jw_arr(&w, "mobility_estimated");
+	for (int k = 0; k < r->n; k++)
+		if (r->sp[k].mob.cls == RD_MOB_ESTIMATED)
+			jw_str(&w, NULL, r->sp[k].ion->symbol);
+	jw_close(&w);
+	if (r->driver >= 0) {
+		jw_obj(&w, "range_driver");
+		jw_str(&w, "ion", r->sp[r->driver].ion->symbol);
+		jw_num(&w, "width_share", r->driver_share, 3);
+		jw_close(&w);
+	}
+	jw_str(&w, "sign", "potential of the bath relative to the pipette solution");
+	jw_bool(&w, "identical", r->identical);
+	jw_obj(&w, "models");
+	for (int m = 0; m < LJP_NMODELS; m++)
+		if (r->model[m].asked && r->model[m].ok)
+			jw_num(&w, model_name[m], r->model[m].ljp_mV, 9);
+	jw_close(&w);
+	if (r->models_ok < r->models_asked) {
+		jw_obj(&w, "not_applicable");
+		for (int m = 0; m < LJP_NMODELS; m++)
+			if (r->model[m].asked && !r->model[m].ok)
+				jw_str(&w, model_name[m], r->model[m].why);
+		jw_close(&w);
+	}
+	jw_int(&w, "models_asked", r->models_asked);
+	jw_int(&w, "models_ok", r->models_ok);
+	if (r->models_asked > 1)
+		jw_num(&w, "spread_mV", r->spread_mV, 6);
+	if (r->model[LJP_DIFFUSION].asked && r->model[LJP_DIFFUSION].ok &&
+	    r->diffusion.grid_points > 0) {
+		jw_obj(&w, "diffusion_solver");
+		jw_int(&w, "grid_points", r->diffusion.grid_points);
+		jw_int(&w, "grids", r->diffusion.grids);
+		jw_int(&w, "steps", r->diffusion.newton_its);
+		jw_int(&w, "continuation_steps", r->diffusion.continuation);
+		jw_num(&w, "error_estimate_mV", r->diffusion.grid_err_mV, 3);
+		jw_close(&w);
+	}
+	jw_arr(&w, "contributions");
+	for (int k = 0; k < r->n; k++) {
+		const ljp_species *s = &r->sp[k];
+		jw_obj(&w, NULL);
+		jw_str(&w, "ion", s->x.symbol);
+		jw_int(&w, "z", s->x.z);
+		jw_num(&w, "D_1e9_m2_s", s->x.D_m2_s * 1e9, 10);
+		jw_num(&w, "pipette_mM", s->x.pip_mM, 10);
+		jw_num(&w, "bath_mM", s->x.bath_mM, 10);
+		jw_num(&w, "share_mV", s->share_mV, 5);
+		jw_str(&w, "mobility_class", ljp_class_name(s->mob.cls));
+		jw_num(&w, "mobility_rel_unc", s->mob.rel_unc, 3);
+		jw_str(&w, "mobility_source", s->mob.source ? s->mob.source->id : NULL);
+		jw_num(&w, "range_width_share", s->width_share, 3);
+		jw_close(&w);
+	}
+	jw_close(&w);
+	json_corrections(&w, r);
+	jw_arr(&w, "cautions");
+	for (int i = 0; i < r->ncaution; i++)
+		jw_str(&w, NULL, r->caution[i]);
+	jw_close(&w);
+	jw_end(&w);
+}
+
+static void print_model_line(im_ctx *ctx, const ljp_result *r, int m)
+{
+	const ljp_model_run *x = &r->model[m];
+	if (!x->ok) {
+		out_printf(ctx->out, "  %-16s %8s   no value: %s\n", model_title[m], "-",
+			   x->why);
+		return;
+	}
+	out_printf(ctx->out, "  %-16s %+8.2f   (%.1f to %.1f)", model_title[m], x->ljp_mV,
+		   x->lo_mV, x->hi_mV);
+	if (m == LJP_DIFFUSION && r->diffusion.grid_points > 0)
+		out_printf(ctx->out, "   grid %d points, error ~%.1g mV",
+			   r->diffusion.grid_points, fmax(r->diffusion.grid_err_mV, 1e-6));
+	out_printf(ctx->out, "\n");
+}
+
+static void text_junction(im_ctx *ctx, const char *pn, const char *bn, int act,
+			  const ljp_result *r)
 {
 	out_printf(ctx->out,
-		   "ions and their shares of the Henderson LJP (each ion's term z D "
-		   "(c_bath - c_pip),\ntimes the common factor; the shares add up to the "
-		   "Henderson LJP):\n");
-	out_printf(ctx->out, "  %-14s %3s %13s %12s %12s %10s\n", "ion", "z",
-		   "D 1e-9 m2/s", act ? "pipette a mM" : "pipette mM",
-		   act ? "bath a mM" : "bath mM", "share mV");
-	for (int k = 0; k < p->n; k++)
-		out_printf(ctx->out, "  %-14s %+3d %13.4g %12.4g %12.4g %+10.2f\n",
-			   p->ions[k].symbol, p->ions[k].z, p->ions[k].D_m2_s * 1e9,
-			   p->ions[k].pip_mM, p->ions[k].bath_mM, share[k]);
+		   "Liquid junction potential: pipette %s | bath %s, %.1f C, from %s\n", pn,
+		   bn, r->t_C, act ? "activities" : "concentrations");
+	if (r->identical) {
+		out_printf(ctx->out,
+			   "  pipette and bath are identical: there is no liquid junction "
+			   "potential (LJP = 0 mV)\n  no correction: Vm = Vpipette\n");
+		return;
+	}
+	out_printf(ctx->out,
+		   "  LJP = %+.1f mV (%.1f to %.1f), %s: the bath is %.1f mV %s to the "
+		   "pipette solution\n",
+		   r->ljp_mV, r->lo_mV, r->hi_mV, model_title[r->main_model], fabs(r->ljp_mV),
+		   r->ljp_mV >= 0 ? "positive" : "negative");
+	out_printf(ctx->out,
+		   "  range: every mobility within its uncertainty (interval, vertex "
+		   "method); mobilities\n    %d measured, %d from memory, %d estimated",
+		   r->count[RD_MOB_MEASURED], r->count[RD_MOB_MEMORY],
+		   r->count[RD_MOB_ESTIMATED]);
+	if (r->driver >= 0 && r->driver_share >= 0.4)
+		out_printf(ctx->out, "; %s alone makes %.0f %% of the width",
+			   r->sp[r->driver].ion->symbol, 100.0 * r->driver_share);
+	out_printf(ctx->out, "\n");
+	if (r->models_asked > 1) {
+		out_printf(ctx->out, "  %-16s %8s   %s\n", "model", "LJP mV", "range mV");
+		for (int m = 0; m < LJP_NMODELS; m++)
+			if (r->model[m].asked)
+				print_model_line(ctx, r, m);
+		if (r->models_ok >= 2)
+			out_printf(ctx->out,
+				   "  %-16s %8.2f   (largest minus smallest, over %d of %d "
+				   "models)\n",
+				   "spread", r->spread_mV, r->models_ok, r->models_asked);
+		else
+			out_printf(ctx->out,
+				   "  %-16s %8s   (only %d of %d models gave a value)\n",
+				   "spread", "-", r->models_ok, r->models_asked);
+	} else if (r->main_model != LJP_HENDERSON) {
+		out_printf(ctx->out, "  (Henderson gives %+.2f mV", r->henderson_mV);
+		if (r->main_model == LJP_DIFFUSION && r->diffusion.grid_points > 0)
+			out_printf(ctx->out,
+				   "; free diffusion solved on a grid of %d points, "
+				   "estimated error ~%.1g mV",
+				   r->diffusion.grid_points,
+				   fmax(r->diffusion.grid_err_mV, 1e-6));
+		out_printf(ctx->out, ")\n");
+	}
+	{
+		char *bd = ljp_breakdown_text(r, "  ");
+		out_printf(ctx->out,
+			   "what drives it: each ion's share of the Henderson LJP, largest "
+			   "first (bar to scale;\nbath-positive shares to the right of |; "
+			   "all data per ion: --json or `info ION`):\n%s",
+			   bd);
+		free(bd);
+	}
+	print_corrections(ctx, r);
+	for (int i = 0; i < r->ncaution; i++)
+		out_note(ctx->out, "%s", r->caution[i]);
 }
 
 int cmd_junction(im_ctx *ctx, int argc, char **argv, char *err)
 {
 	solution *sp, *sb;
 	sol_state st_p, st_b;
-	pair p;
-	jres r;
-	cautions cw;
-	double *share, ljp, hend;
-	int act, same, mm;
+	ljp_result r;
+	int act, models;
 	if (argc < 3)
 		return im_fail(err, "usage: junction PIPETTE BATH [activities] [model "
 				    "henderson|planck|diffusion|all]");
-	memset(&r, 0, sizeof r);
-	if (parse_junction_opts(argc, argv, &act, &r.asked, err) ||
+	if (parse_junction_opts(argc, argv, &act, &models, err) ||
 	    find_solution(ctx, argv[1], &sp, err) ||
 	    find_solution(ctx, argv[2], &sb, err))
 		return -1;
 	if (states(ctx, sp, sb, &st_p, &st_b, err))
 		return -1;
-	if (need_ions(&st_p, sp->name, err) || need_ions(&st_b, sb->name, err) ||
-	    build_pair(&st_p, &st_b, act, ctx->temp_C, &p, err)) {
+	if (ljp_compute(ctx->ref, &st_p, &st_b, act, ctx->temp_C, models, sp->name, sb->name,
+			&r, err)) {
 		sol_state_free(&st_p);
 		sol_state_free(&st_b);
 		return -1;
 	}
-	memset(&cw, 0, sizeof cw);
-	neutral_caution(&st_p, sp->name, &cw);
-	if (sb != sp)
-		neutral_caution(&st_b, sb->name, &cw);
-	mobility_caution(&p, &cw);
-	unknown_caution(&p, &cw);
-	same = 1;
-	for (int k = 0; k < p.n; k++)
-		if (p.ions[k].pip_mM != p.ions[k].bath_mM)
-			same = 0;
-
-	/* the breakdown is Henderson's; its failure is the command's */
-	share = im_xcalloc(p.n, sizeof *share);
-	if (jn_henderson_contrib(p.ions, p.n, ctx->temp_C, share, &hend, err)) {
-		free(share);
-		pair_free(&p);
-		sol_state_free(&st_p);
-		sol_state_free(&st_b);
-		return -1;
-	}
-	strong_caution(&p, share, sp->name, sb->name, &cw);
-	r.done = 0;
-	run_models(&p, ctx->temp_C, &r);
-	mm = main_model(r.asked);
-	if (!(r.done & (1 << mm))) {
-		im_fail(err, "%s", r.why[mm]);
-		free(share);
-		pair_free(&p);
-		sol_state_free(&st_p);
-		sol_state_free(&st_b);
-		return -1;
-	}
-	ljp = r.v[mm];
-	if (ctx->out->json) {
-		jw w;
-		double lo = INFINITY, hi = -INFINITY;
-		jw_begin(&w, ctx->out);
-		jw_str(&w, "pipette", sp->name);
-		jw_str(&w, "bath", sb->name);
-		jw_num(&w, "temperature_C", ctx->temp_C, 6);
-		jw_str(&w, "from", act ? "activities" : "concentrations");
-		jw_str(&w, "model", r.asked == M_ALL ? "all" : model_name[mm]);
-		jw_num(&w, "ljp_mV", ljp, 6);
-		if (p.nunknown) {
-			double lo, hi;
-			char e2[IM_ERRLEN], list[120];
-			if (unknown_range(&p, &lo, &hi, e2) == 0) {
-				jw_arr(&w, "henderson_range_mV");
-				jw_num(&w, NULL, lo, 6);
-				jw_num(&w, NULL, hi, 6);
-				jw_close(&w);
-			}
-			unknown_list(&p, list, sizeof list);
-			jw_str(&w, "mobility_unknown", list);
-		}
-		jw_str(&w, "sign",
-		       "potential of the bath relative to the pipette solution");
-		jw_bool(&w, "identical", same);
-		jw_obj(&w, "models");
-		for (int m = 0; m < 3; m++)
-			if (r.done & (1 << m)) {
-				jw_num(&w, model_name[m], r.v[m], 6);
-				lo = fmin(lo, r.v[m]);
-				hi = fmax(hi, r.v[m]);
-			}
-		jw_close(&w);
-		if (r.asked != r.done) {
-			jw_obj(&w, "not_applicable");
-			for (int m = 0; m < 3; m++)
-				if ((r.asked & (1 << m)) && !(r.done & (1 << m)))
-					jw_str(&w, model_name[m], r.why[m]);
-			jw_close(&w);
-		}
-		if (r.asked == M_ALL)
-			jw_num(&w, "spread_mV", hi - lo, 6);
-		if ((r.done & M_DIFFUSION) && r.rep.grid_points > 0) {
-			jw_obj(&w, "diffusion_solver");
-			jw_int(&w, "grid_points", r.rep.grid_points);
-			jw_int(&w, "grids", r.rep.grids);
-			jw_int(&w, "steps", r.rep.steps);
-			jw_num(&w, "dt_ln_t", r.rep.dt, 4);
-			jw_num(&w, "last_change_mV", r.rep.last_change_mV, 3);
-			jw_num(&w, "error_estimate_mV", r.rep.grid_err_mV, 3);
-			jw_close(&w);
-		}
-		jw_arr(&w, "contributions");
-		for (int k = 0; k < p.n; k++) {
-			jw_obj(&w, NULL);
-			jw_str(&w, "ion", p.ions[k].symbol);
-			jw_int(&w, "z", p.ions[k].z);
-			jw_num(&w, "D_1e9_m2_s", p.ions[k].D_m2_s * 1e9, 5);
-			jw_num(&w, "pipette_mM", p.ions[k].pip_mM, 8);
-			jw_num(&w, "bath_mM", p.ions[k].bath_mM, 8);
-			jw_num(&w, "share_mV", share[k], 5);
-			jw_close(&w);
-		}
-		jw_close(&w);
-		json_corrections(&w, ljp);
-		json_cautions(&w, &cw);
-		jw_end(&w);
-	} else {
-		out_printf(ctx->out,
-			   "Liquid junction potential: pipette %s | bath %s, %.1f C, "
-			   "from %s\n",
-			   sp->name, sb->name, ctx->temp_C,
-			   act ? "activities" : "concentrations");
-		if (same) {
-			out_printf(ctx->out,
-				   "  pipette and bath are identical: there is no liquid "
-				   "junction potential (LJP = 0 mV)\n");
-		} else {
-			out_printf(ctx->out,
-				   "  LJP = %+.1f mV (%s): the bath is %.1f mV %s to the "
-				   "pipette solution\n",
-				   ljp, model_title[mm], fabs(ljp),
-				   ljp >= 0 ? "positive" : "negative");
-		}
-		if (r.asked == M_ALL) {
-			double lo = INFINITY, hi = -INFINITY;
-			out_printf(ctx->out, "  %-16s %10s\n", "model", "LJP mV");
-			for (int m = 0; m < 3; m++) {
-				if (r.done & (1 << m)) {
-					out_printf(ctx->out, "  %-16s %+10.2f",
-						   model_title[m], r.v[m]);
-					if (m == 2 && r.rep.grid_points > 0)
-						out_printf(ctx->out,
-							   "   (%d points, error < %.1g "
-							   "mV)",
-							   r.rep.grid_points,
-							   fmax(r.rep.grid_err_mV, 1e-6));
-					out_printf(ctx->out, "\n");
-					lo = fmin(lo, r.v[m]);
-					hi = fmax(hi, r.v[m]);
-				} else {
-					out_printf(ctx->out,
-						   "  %-16s %10s   (not applicable: %s)\n",
-						   model_title[m], "-", r.why[m]);
-				}
-			}
-			out_printf(ctx->out,
-				   "  %-16s %10.2f   (largest minus smallest)\n",
-				   "spread", hi - lo);
-		} else if (mm != 0) {
-			out_printf(ctx->out, "  (Henderson gives %+.2f mV", hend);
-			if (mm == 2 && r.rep.grid_points > 0)
-				out_printf(ctx->out,
-					   "; free diffusion solved on %d points, %d "
-					   "steps, error < %.1g mV",
-					   r.rep.grid_points, r.rep.steps,
-					   fmax(r.rep.grid_err_mV, 1e-6));
-			out_printf(ctx->out, ")\n");
-		}
-		if (!same) {
-			print_breakdown(ctx, &p, share, act);
-			print_corrections(ctx, ljp);
-		} else {
-			out_printf(ctx->out, "  no correction: Vm = Vpipette\n");
-		}
-		print_cautions(ctx, &cw);
-	}
-	free(share);
-	pair_free(&p);
+	if (ctx->out->json)
+		json_junction(ctx, sp->name, sb->name, act, &r);
+	else
+		text_junction(ctx, sp->name, sb->name, act, &r);
+	ljp_free(&r);
 	sol_state_free(&st_p);
 	sol_state_free(&st_b);
 	return 0;
@@ -857,8 +661,8 @@ int cmd_exchange(im_ctx *ctx, int argc, char **argv, char *err)
 			goto done;
 		have_p = 1;
 		if (need_ions(&st_p, spp->name, err) ||
-		    build_pair(&st_p, &st_o, 0, ctx->temp_C, &tip_o, err) ||
-		    build_pair(&st_p, &st_n, 0, ctx->temp_C, &tip_n, err))
+		    build_pair(ctx, &st_p, &st_o, ctx->temp_C, &tip_o, err) ||
+		    build_pair(ctx, &st_p, &st_n, ctx->temp_C, &tip_n, err))
 			goto done;
 		in.tip_old = tip_o.ions;
 		in.n_tip_old = tip_o.n;
@@ -870,8 +674,8 @@ int cmd_exchange(im_ctx *ctx, int argc, char **argv, char *err)
 		if (bridge_state(ctx, &xa, &st_b, err))
 			goto done;
 		have_b = 1;
-		if (build_pair(&st_b, &st_o, 0, ctx->temp_C, &br_o, err) ||
-		    build_pair(&st_b, &st_n, 0, ctx->temp_C, &br_n, err))
+		if (build_pair(ctx, &st_b, &st_o, ctx->temp_C, &br_o, err) ||
+		    build_pair(ctx, &st_b, &st_n, ctx->temp_C, &br_n, err))
 			goto done;
 		in.bridge_old = br_o.ions;
 		in.n_bridge_old = br_o.n;
@@ -988,6 +792,7 @@ int cmd_exchange(im_ctx *ctx, int argc, char **argv, char *err)
 	}
 	rc = 0;
 done:
+	cautions_free(&cw);
 	pair_free(&tip_o);
 	pair_free(&tip_n);
 	pair_free(&br_o);

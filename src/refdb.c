@@ -106,13 +106,26 @@ static int load_sources(refdb *r, char *err)
 
 static void load_derived(refdb *r);
 
+/* The mobility_class column as RD_MOB_*. */
+static int mob_class(const unsigned char *s)
+{
+	if (!s)
+		return RD_MOB_NONE;
+	if (strcmp((const char *)s, "measured") == 0)
+		return RD_MOB_MEASURED;
+	if (strcmp((const char *)s, "from-memory") == 0)
+		return RD_MOB_MEMORY;
+	return RD_MOB_ESTIMATED;
+}
+
 static int load_ions(refdb *r, char *err)
 {
 	sqlite3_stmt *st;
 	r->nion = count_rows(r->db, "ions");
 	r->ion = im_xcalloc(r->nion, sizeof *r->ion);
 	if (prep(r, "SELECT symbol, name, charge, lambda_S_cm2_eq, diffusion_1e9_m2_s,"
-		    " mobility_source, kielland_a_pm, size_source FROM ions"
+		    " mobility_source, kielland_a_pm, size_source, formula, mass_g_mol,"
+		    " mobility_class, mobility_rel_unc FROM ions"
 		    " ORDER BY symbol", &st, err))
 		return -1;
 	for (int i = 0; i < r->nion && sqlite3_step(st) == SQLITE_ROW; i++) {
@@ -125,6 +138,10 @@ static int load_ions(refdb *r, char *err)
 		x->mobility_source = src_by_id(r, sqlite3_column_text(st, 5));
 		x->kielland_a_pm = col_num(st, 6);
 		x->size_source = src_by_id(r, sqlite3_column_text(st, 7));
+		x->formula = keep(r, sqlite3_column_text(st, 8));
+		x->mass_g_mol = col_num(st, 9);
+		x->mobility_class = mob_class(sqlite3_column_text(st, 10));
+		x->mobility_rel_unc = col_num(st, 11);
 	}
 	sqlite3_finalize(st);
 	r->nion_sorted = r->nion;
@@ -134,18 +151,29 @@ static int load_ions(refdb *r, char *err)
 
 /* Species the equilibria tables can produce (protonation states, metal
  * complexes) that the ions table does not list: they join the ion array
- * with their charge and no mobility or size, so that every species a
- * solution holds after speciation is an rd_ion.  Nothing happens when the
+ * with their charge, no mobility or size, and the molar mass of their
+ * parts (species_parts; NAN when a part is missing), so that every species
+ * a solution holds after speciation is an rd_ion and ljp.c can estimate
+ * its mobility.  Nothing happens when the
  * equilibria tables are absent. */
 static const char derived_sql[] =
-	"SELECT symbol, charge FROM eq_ligand_states"
-	" WHERE symbol NOT IN (SELECT symbol FROM ions)"
+	"SELECT s.symbol, s.charge, l.mass_g_mol + s.n_h * h.mass_g_mol"
+	" FROM eq_ligand_states s"
+	" LEFT JOIN species_parts l ON l.part = s.ligand"
+	" LEFT JOIN species_parts h ON h.part = 'H'"
+	" WHERE s.symbol NOT IN (SELECT symbol FROM ions)"
 	" UNION "
 	"SELECT c.symbol, m.charge * (CASE c.kind WHEN 'M2L' THEN 2 ELSE 1 END)"
 	" + l.base_charge * (CASE c.kind WHEN 'ML2' THEN 2 ELSE 1 END)"
-	" + (CASE c.kind WHEN 'MHL' THEN 1 ELSE 0 END)"
+	" + (CASE c.kind WHEN 'MHL' THEN 1 ELSE 0 END),"
+	" pm.mass_g_mol * (CASE c.kind WHEN 'M2L' THEN 2 ELSE 1 END)"
+	" + pl.mass_g_mol * (CASE c.kind WHEN 'ML2' THEN 2 ELSE 1 END)"
+	" + (CASE c.kind WHEN 'MHL' THEN h.mass_g_mol ELSE 0 END)"
 	" FROM eq_complexes c JOIN eq_metals m ON m.symbol = c.metal"
 	" JOIN eq_ligands l ON l.name = c.ligand"
+	" LEFT JOIN species_parts pm ON pm.part = c.metal"
+	" LEFT JOIN species_parts pl ON pl.part = c.ligand"
+	" LEFT JOIN species_parts h ON h.part = 'H'"
 	" WHERE c.symbol NOT IN (SELECT symbol FROM ions)"
 	" ORDER BY 1";
 
@@ -162,9 +190,11 @@ static void load_derived(refdb *r)
 		x = &r->ion[r->nion++];
 		memset(x, 0, sizeof *x);
 		x->symbol = keep(r, sqlite3_column_text(st, 0));
-		x->name = "product of speciation (no mobility or size in the data)";
+		x->name = "product of speciation (mobility estimated from its molar mass)";
 		x->z = sqlite3_column_int(st, 1);
 		x->lambda_S_cm2_eq = x->D_1e9_m2_s = x->kielland_a_pm = NAN;
+		x->mass_g_mol = col_num(st, 2);
+		x->mobility_rel_unc = NAN;
 		x->derived = 1;
 	}
 	sqlite3_finalize(st);

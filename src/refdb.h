@@ -21,6 +21,9 @@ typedef struct rd_source {
 	int from_memory;     /* 1: a published value recalled, not looked up */
 } rd_source;
 
+/* Uncertainty class of an ion's mobility (column mobility_class). */
+enum { RD_MOB_NONE = 0, RD_MOB_MEASURED, RD_MOB_MEMORY, RD_MOB_ESTIMATED };
+
 typedef struct rd_ion {
 	const char *symbol;  /* 'K+', 'Ca2+', 'SO4^2-', 'glucose' */
 	const char *name;
@@ -32,6 +35,12 @@ typedef struct rd_ion {
 	const rd_source *size_source;
 	int derived;         /* 1: a product of speciation (complex, protonation
 			      * state) not in the ions table */
+	const char *formula; /* the species' formula, charge left off; NULL if not given */
+	double mass_g_mol;   /* molar mass, g/mol (for a derived species the sum of
+			      * its parts, data/mobility.sql); NAN if unknown */
+	int mobility_class;  /* RD_MOB_*; RD_MOB_NONE when no mobility is stored
+			      * (ljp.c then estimates one from the mass) */
+	double mobility_rel_unc; /* relative uncertainty of the stored mobility; NAN if none */
 } rd_ion;
 
 typedef struct rd_yield {
