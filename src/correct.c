@@ -11,6 +11,8 @@
 #include "correct.h"
 
 #include <errno.h>
+#include <stdarg.h>
+#include <time.h>
 #include <limits.h>
 #include <math.h>
 #include <stdint.h>
@@ -20,6 +22,9 @@
 #include <unistd.h>
 
 #include "common.h"
+#include "fileio.h"
+#include "signals.h"
+#include "version.h"
 
 #define RD_CHUNK (512 * 1024)                   /* at least this much per read */
 #define RD_CAP (RD_CHUNK + CORR_FIELD_MAX + 64) /* read buffer (+1 sentinel) */
@@ -56,6 +61,7 @@ typedef struct num {
 typedef struct ljp_prep {
 	uint64_t mag;
 	int neg, ndig, k0;
+	int flip;   /* 1: the result is negated (inside-out, cell-attached) */
 } ljp_prep;
 
 static int is_digit(int c)
@@ -232,6 +238,7 @@ static void big_set(big *a, const char *s, int n, int z)
 
 static void ljp_prepare(const corr_ljp *l, int unit_exp, ljp_prep *lp)
 {
+	lp->flip = 0;
 	lp->neg = l->scaled < 0;
 	lp->mag = (uint64_t)(lp->neg ? -l->scaled : l->scaled);
 	lp->ndig = ndigits_u64(lp->mag);
@@ -291,11 +298,12 @@ static int fix_num(const num *m, const ljp_prep *lp, char *out)
 	if (na <= 18 && nb <= 18) {
 		uint64_t A = m->val * pow10_u64[za], B = lp->mag * pow10_u64[zb];
 		/* r = a - b with a = +-A, b = +-B */
+		int sa = m->neg ^ lp->flip;
 		if (m->neg == !lp->neg)         /* a and -b have one sign: add */
-			return emit_u64(out, A + B, D, m->neg, m);
+			return emit_u64(out, A + B, D, sa, m);
 		if (A >= B)
-			return emit_u64(out, A - B, D, m->neg, m);
-		return emit_u64(out, B - A, D, !m->neg, m);
+			return emit_u64(out, A - B, D, sa, m);
+		return emit_u64(out, B - A, D, !sa, m);
 	}
 	if (na > CORR_DIGITS_MAX || nb > CORR_DIGITS_MAX)
 		return -1;
@@ -319,6 +327,7 @@ static int fix_num(const num *m, const ljp_prep *lp, char *out)
 		big_sub(&a, &b, &a);
 		neg = !m->neg;
 	}
+	neg ^= lp->flip;
 	for (int i = 0; i < a.n; i++)
 		tmp[i] = (char)('0' + a.d[a.n - 1 - i]);
 	return emit(out, tmp, a.n, D, neg && a.n > 0, m);
@@ -654,6 +663,8 @@ static int refill(eng *e, size_t keep)
 		e->buf[e->len] = '\0';
 		return 0;
 	}
+	if (sig_cancelled())
+		return im_fail(e->err, "%s: %s", e->name, SIG_CANCELLED_MSG);
 	errno = 0;
 	got = fread(e->buf + n, 1, RD_CAP - n, e->in);
 	e->len += got;
@@ -926,13 +937,13 @@ static int read_first(eng *e, const char *p, hdr *h)
 		field f;
 		int rc = scan(e, p, e->line, col, &f);
 		if (rc == SCAN_MORE)
-			return im_fail(e->err, "%s:1: first record longer than %d KiB",
-				       e->name, CORR_FIRST_MAX / 1024);
+			return im_fail(e->err, "%s:%ld: first record longer than %d KiB",
+				       e->name, e->line, CORR_FIRST_MAX / 1024);
 		if (rc == SCAN_ERR)
 			return -1;
 		if (f.q - e->buf > CORR_FIRST_MAX)
-			return im_fail(e->err, "%s:1: first record longer than %d KiB",
-				       e->name, CORR_FIRST_MAX / 1024);
+			return im_fail(e->err, "%s:%ld: first record longer than %d KiB",
+				       e->name, e->line, CORR_FIRST_MAX / 1024);
 		if (h->n == h->cap) {
 			h->cap = h->cap ? 2 * h->cap : 16;
 			h->text = im_xrealloc(h->text, (size_t)h->cap * sizeof *h->text);
@@ -1107,6 +1118,74 @@ static int choose(eng *e, const hdr *h)
 	return 0;
 }
 
+/* The metadata lines from *p on: the first o->skip lines, then lines that
+ * start with '#'.  They are copied as they are (written when the buffer
+ * moves on); a comment line follows when asked.  On return *p is the
+ * first byte of the header, at the start of the buffer when any metadata
+ * was passed so that the header has the whole buffer.  0 or -1. */
+static int metadata(eng *e, const char **p)
+{
+	const char *q = *p;
+	int hash = 0, crlf = 0;
+	for (;;) {
+		const char *end = e->buf + e->len;
+		if (q == end) {
+			if (e->eof)
+				break;
+			if (refill(e, (size_t)(q - e->buf)) < 0)
+				return -1;
+			q = e->buf;
+			continue;
+		}
+		/* past the count: '#' lines, and blank lines after metadata */
+		if (e->r->meta >= e->o->skip && *q != '#' &&
+		    !(e->r->meta > 0 && (*q == '\n' || (*q == '\r' && q + 1 < end && q[1] == '\n'))))
+			break;
+		const char *nl = memchr(q, '\n', (size_t)(end - q));
+		if (!nl && !e->eof) {
+			if (q == e->buf && e->len == RD_CAP)
+				return im_fail(e->err, "%s:%ld: metadata line longer than %d KiB",
+					       e->name, e->line, RD_CAP / 1024);
+			if (refill(e, (size_t)(q - e->buf)) < 0)
+				return -1;
+			q = e->buf;
+			continue;
+		}
+		const char *le = nl ? nl : end;
+		if (memchr(q, '\0', (size_t)(le - q)))
+			return im_fail(e->err, "%s:%ld: binary file (NUL byte); expected CSV"
+				       " or TSV text", e->name, e->line);
+		hash |= *q == '#';
+		crlf = nl && nl > q && nl[-1] == '\r';
+		e->r->meta++;
+		if (!nl) {
+			q = end;
+			break;
+		}
+		q = nl + 1;
+		e->line++;
+	}
+	if (e->r->meta == 0) {
+		*p = q;
+		return 0;
+	}
+	/* the header at the start of the buffer: the metadata is written */
+	if (q != e->buf && refill(e, (size_t)(q - e->buf)) < 0)
+		return -1;
+	if (hash && e->o->comment) {
+		size_t n = corr_comment_format(&e->o->ljp, e->o->config, e->o->about,
+					       NULL, 0);
+		char *c = im_xmalloc(n + 3);
+		corr_comment_format(&e->o->ljp, e->o->config, e->o->about, c, n + 1);
+		memcpy(c + n, crlf ? "\r\n" : "\n", crlf ? 3 : 2);
+		w_put(e, c, n + (crlf ? 2 : 1));
+		free(c);
+		e->r->comment = 1;
+	}
+	*p = e->buf;
+	return 0;
+}
+
 int corr_stream(FILE *in, const char *in_name, FILE *out, const corr_opts *o,
 		corr_result *r, char *err)
 {
@@ -1120,6 +1199,12 @@ int corr_stream(FILE *in, const char *in_name, FILE *out, const corr_opts *o,
 	r->ljp = o->ljp;
 	r->ljp_mV = corr_ljp_mV(&o->ljp);
 	r->delim = ',';
+	r->config = o->config;
+	r->about = o->about;
+	if (o->skip < 0)
+		return im_fail(err, "bad count of metadata lines %ld", o->skip);
+	if ((int)o->config < CORR_WHOLE_CELL || (int)o->config > CORR_CELL_ATTACHED)
+		return im_fail(err, "bad recording configuration %d", (int)o->config);
 	if (o->ljp.decimals < 0 || o->ljp.decimals > CORR_LJP_DECIMALS_MAX)
 		return im_fail(err, "bad LJP decimals %d", o->ljp.decimals);
 	if (o->ncolumns < 0 || (o->ncolumns > 0 && !o->columns))
@@ -1163,18 +1248,28 @@ int corr_stream(FILE *in, const char *in_name, FILE *out, const corr_opts *o,
 	}
 	bom = got >= 3 && memcmp(e.buf, "\xef\xbb\xbf", 3) == 0;
 	start = e.buf + (bom ? 3 : 0);
+	if (metadata(&e, &start) < 0)
+		goto done;
 	if (*start == '\n' || (start[0] == '\r' && start[1] == '\n')) {
 		const char *s = start;
-		while (s < e.buf + got && is_blank((unsigned char)*s))
+		while (s < e.buf + e.len && is_blank((unsigned char)*s))
 			s++;
-		if (s == e.buf + got)
+		if (s == e.buf + e.len && e.eof)
 			im_fail(err, "%s: empty file (blank lines only)", e.name);
-		else
+		else if (r->meta == 0)
 			im_fail(err, "%s:1: the first line is blank; expected a header"
 				" or a data row", e.name);
+		else
+			im_fail(err, "%s:%ld: the line after the metadata is blank; expected"
+				" a header or a data row", e.name, e.line);
 		goto done;
 	}
-	e.delim = pick_delim(start, e.buf + got);
+	if (start == e.buf + e.len) {
+		im_fail(err, "%s: only %ld metadata line%s, no header or data", e.name,
+			r->meta, r->meta == 1 ? "" : "s");
+		goto done;
+	}
+	e.delim = pick_delim(start, e.buf + e.len);
 	r->delim = e.delim;
 	e.tab_blank = e.delim != '\t';
 	e.stop_u[(unsigned char)e.delim] = 1;
@@ -1190,9 +1285,10 @@ int corr_stream(FILE *in, const char *in_name, FILE *out, const corr_opts *o,
 	for (int i = 0; i < r->ncols; i++) {
 		e.corr[r->cols[i].index - 1] = (unsigned char)(i + 1);
 		ljp_prepare(&o->ljp, r->cols[i].unit_exp, &e.prep[i]);
+		e.prep[i].flip = o->config == CORR_INSIDE_OUT || o->config == CORR_CELL_ATTACHED;
 	}
 	if (r->header) {
-		e.line = 1 + h.nl;
+		e.line += h.nl;
 		start = h.end;
 	}
 	if (run(&e, start) < 0)
@@ -1214,177 +1310,258 @@ done:
 
 /* ---- files ------------------------------------------------------------ */
 
-size_t corr_note_format(const corr_result *r, const char *in_name,
-			const char *out_name, char *buf, size_t n)
+const char *corr_config_name(corr_config c)
+{
+	switch (c) {
+	case CORR_OUTSIDE_OUT: return "outside-out";
+	case CORR_INSIDE_OUT: return "inside-out";
+	case CORR_CELL_ATTACHED: return "cell-attached";
+	default: return "whole-cell";
+	}
+}
+
+int corr_config_parse(const char *word, corr_config *c)
+{
+	static const corr_config all[] = {CORR_WHOLE_CELL, CORR_OUTSIDE_OUT,
+					  CORR_INSIDE_OUT, CORR_CELL_ATTACHED};
+	for (size_t i = 0; i < IM_COUNT(all); i++)
+		if (strcmp(word, corr_config_name(all[i])) == 0) {
+			*c = all[i];
+			return 0;
+		}
+	return -1;
+}
+
+const char *corr_config_formula(corr_config c)
+{
+	switch (c) {
+	case CORR_INSIDE_OUT: return "Vm = -(Vrecorded - LJP)";
+	case CORR_CELL_ATTACHED: return "Vpatch - Vrest = -(Vrecorded - LJP)";
+	default: return "Vm = Vrecorded - LJP";
+	}
+}
+
+void corr_about_stamp(corr_about *a, char *datebuf, size_t n)
+{
+	time_t t = time(NULL);
+	struct tm tm;
+	a->version = IONMIX_VERSION;
+	if (n > 0 && gmtime_r(&t, &tm) && strftime(datebuf, n, "%Y-%m-%dT%H:%M:%SZ", &tm) > 0)
+		a->date = datebuf;
+	else
+		a->date = NULL;
+}
+
+/* A growing text; put() appends like printf, without a limit. */
+typedef struct text {
+	char *s;
+	size_t n, cap;
+} text;
+
+static void put(text *t, const char *fmt, ...) __attribute__((format(printf, 2, 3)));
+static void put(text *t, const char *fmt, ...)
+{
+	va_list ap;
+	va_start(ap, fmt);
+	int w = vsnprintf(t->s ? t->s + t->n : NULL, t->s ? t->cap - t->n : 0, fmt, ap);
+	va_end(ap);
+	if (w < 0)
+		return;
+	if (!t->s || (size_t)w >= t->cap - t->n) {
+		size_t need = t->n + (size_t)w + 1;
+		t->cap = need > 2 * t->cap ? need : 2 * t->cap;
+		t->s = im_xrealloc(t->s, t->cap);
+		va_start(ap, fmt);
+		vsnprintf(t->s + t->n, t->cap - t->n, fmt, ap);
+		va_end(ap);
+	}
+	t->n += (size_t)w;
+}
+
+/* Copy the text into buf of n bytes, cut to n - 1, and free it.  Returns
+ * the length copied. */
+static size_t text_out(text *t, char *buf, size_t n)
+{
+	size_t k = t->n < n ? t->n : n ? n - 1 : 0;
+	if (n > 0) {
+		if (k)
+			memcpy(buf, t->s, k);
+		buf[k] = '\0';
+	}
+	free(t->s);
+	return k;
+}
+
+/* What the LJP came from: shared by the note and the comment line. */
+static void put_about(text *t, const corr_ljp *l, const corr_about *a, const char *sep)
 {
 	char ljp[32];
-	size_t k = 0;
-	corr_ljp_format(&r->ljp, ljp, sizeof ljp);
-#define PUT(...) do { \
-		int w_ = snprintf(k < n ? buf + k : NULL, k < n ? n - k : 0, __VA_ARGS__); \
-		if (w_ > 0) k += (size_t)w_; \
-	} while (0)
-	if (n == 0)
-		return 0;
-	buf[0] = '\0';
-	PUT("ionmix correct: the liquid junction potential was subtracted"
-	    " (Vm = Vrecorded - LJP)\n");
-	PUT("LJP: %s mV\n", ljp);
-	PUT("input: %s\n", in_name ? in_name : "-");
+	corr_ljp_format(l, ljp, sizeof ljp);
+	put(t, "LJP: %s mV%s", ljp, sep);
+	put(t, "LJP range: %s%s", a && a->range ? a->range : "not known", sep);
+	if (a && a->model) {
+		put(t, "model: %s%s", a->model, sep);
+		put(t, "pipette: %s%s", a->pipette ? a->pipette : "-", sep);
+		put(t, "bath: %s%s", a->bath ? a->bath : "-", sep);
+	} else {
+		put(t, "model: none (the LJP as given)%s", sep);
+	}
+	if (a && isfinite(a->temperature_C))
+		put(t, "temperature: %.1f C%s", a->temperature_C, sep);
+	put(t, "ionmix: %s%s", a && a->version ? a->version : IONMIX_VERSION, sep);
+	if (a && a->date)
+		put(t, "date: %s%s", a->date, sep);
+}
+
+size_t corr_comment_format(const corr_ljp *l, corr_config c, const corr_about *a,
+			   char *buf, size_t n)
+{
+	text t = {0};
+	put(&t, "# ionmix correct: %s, %s; ", corr_config_formula(c), corr_config_name(c));
+	put_about(&t, l, a, "; ");
+	t.n -= 2;  /* the last separator */
+	t.s[t.n] = '\0';
+	/* names come from the user: no line end may enter the file */
+	for (size_t i = 0; i < t.n; i++)
+		if (t.s[i] == '\n' || t.s[i] == '\r')
+			t.s[i] = ' ';
+	size_t len = t.n;
+	if (!buf || n == 0) {
+		free(t.s);
+		return len;
+	}
+	text_out(&t, buf, n);
+	return len;
+}
+
+/* The note's text into *t (empty on entry). */
+static void note_text(text *t, const corr_result *r, const char *in_name,
+		      const char *out_name)
+{
+	put(t, "ionmix correct: the liquid junction potential was subtracted"
+	    " (%s)\n", corr_config_formula(r->config));
+	put(t, "recording configuration: %s\n", corr_config_name(r->config));
+	put(t, "sign: the LJP is the potential of the bath relative to the pipette"
+	    " solution, at zeroing\n");
+	put_about(t, &r->ljp, r->about, "\n");
+	put(t, "input: %s\n", in_name ? in_name : "-");
 	if (out_name)
-		PUT("output: %s\n", out_name);
-	PUT("columns:");
+		put(t, "output: %s\n", out_name);
+	if (r->meta)
+		put(t, "metadata lines kept: %ld%s\n", r->meta,
+		    r->comment ? " (and a comment line added after them)" : "");
+	put(t, "columns:");
 	for (int i = 0; i < r->ncols; i++) {
 		const corr_column *c = &r->cols[i];
 		const char *unit = c->unit_exp == -3 ? "V" : c->unit_exp == 3 ? "uV" : "mV";
-		PUT("%s %d", i ? ";" : "", c->index);
+		put(t, "%s %d", i ? ";" : "", c->index);
 		if (c->name[0])
-			PUT(" \"%s\"", c->name);
-		PUT(" in %s%s", unit, c->unit_assumed ? " (assumed)" : "");
+			put(t, " \"%s\"", c->name);
+		put(t, " in %s%s", unit, c->unit_assumed ? " (assumed)" : "");
 	}
-	PUT("\n");
-	PUT("delimiter: %s; header row: %s\n", corr_delim_name(r->delim),
+	put(t, "\n");
+	put(t, "delimiter: %s; header row: %s\n", corr_delim_name(r->delim),
 	    r->header ? "yes" : "no");
-	PUT("rows: %ld; corrected: %ld; skipped: %ld (not a number or missing: %ld;"
+	put(t, "rows: %ld; corrected: %ld; skipped: %ld (not a number or missing: %ld;"
 	    " ragged rows: %ld); blank lines: %ld\n", r->rows, r->corrected,
 	    r->skipped, r->bad, r->ragged, r->blank);
-#undef PUT
-	return k < n ? k : n - 1;
 }
 
-/* "DIR/.BASE.XXXXXX" for a temporary file beside path; caller frees. */
-static char *tmp_template(const char *path)
+size_t corr_note_format(const corr_result *r, const char *in_name,
+			const char *out_name, char *buf, size_t n)
 {
-	const char *slash = strrchr(path, '/');
-	size_t dl = slash ? (size_t)(slash - path + 1) : 0;
-	const char *base = path + dl;
-	char *t = im_xmalloc(strlen(path) + 16);
-	memcpy(t, path, dl);
-	sprintf(t + dl, ".%s.XXXXXX", base);
-	return t;
+	text t = {0};
+	note_text(&t, r, in_name, out_name);
+	return text_out(&t, buf, n);
 }
 
-/* Open a temporary file beside path, mode 0666 less the umask. */
-static FILE *tmp_open(const char *path, char **tmp, char *err)
+/* 1 when path names the input: the same file as in_path, or the file open
+ * as the input (si, its fstat; covers standard input). */
+static int is_input(const char *path, const char *in_path, const struct stat *si)
 {
-	mode_t mask = umask(0);
-	umask(mask);
-	*tmp = tmp_template(path);
-	int fd = mkstemp(*tmp);
-	if (fd < 0) {
-		im_fail(err, "cannot create a file beside %s: %s", path, strerror(errno));
-		free(*tmp);
-		*tmp = NULL;
-		return NULL;
-	}
-	(void)fchmod(fd, 0666 & ~mask);
-	FILE *fp = fdopen(fd, "wb");
-	if (!fp) {
-		im_fail(err, "cannot open %s: %s", *tmp, strerror(errno));
-		close(fd);
-		unlink(*tmp);
-		free(*tmp);
-		*tmp = NULL;
-	}
-	return fp;
-}
-
-/* Flush, sync and close; 0 or -1 with err. */
-static int tmp_close(FILE *fp, const char *path, char *err)
-{
-	int bad = fflush(fp) != 0;
-	int e = errno;
-	if (!bad && fsync(fileno(fp)) != 0 && errno != EINVAL)
-		bad = 1, e = errno;
-	if (fclose(fp) != 0 && !bad)
-		bad = 1, e = errno;
-	return bad ? im_fail(err, "cannot write %s: %s", path, strerror(e)) : 0;
+	struct stat st;
+	if (in_path && fio_same_file(path, in_path))
+		return 1;
+	return si && strcmp(path, "-") != 0 && stat(path, &st) == 0 &&
+	       st.st_dev == si->st_dev && st.st_ino == si->st_ino;
 }
 
 int corr_file(const char *in_path, const char *out_path, FILE *out_fp,
 	      const corr_opts *o, corr_result *r, char *err)
 {
-	struct stat si, so;
-	FILE *in, *fp = NULL, *nfp = NULL;
-	char *tmp = NULL, *ntmp = NULL, *note = NULL;
-	int rc = -1;
+	struct stat si;
+	int from_stdin = strcmp(in_path, "-") == 0, rc = -1;
+	const char *in_name = from_stdin ? "standard input" : in_path;
+	const struct stat *sip = NULL;
+	FILE *in, *fp, *nfp = NULL;
+	char *note = NULL;
+	fio_batch b;
 
 	memset(r, 0, sizeof *r);
-	in = fopen(in_path, "rb");
+	in = from_stdin ? stdin : fopen(in_path, "rb");
 	if (!in)
 		return im_fail(err, "cannot open %s: %s", in_path, strerror(errno));
-	if (fstat(fileno(in), &si) == 0 && S_ISDIR(si.st_mode)) {
-		fclose(in);
-		return im_fail(err, "%s is a directory, not a CSV or TSV file", in_path);
+	if (fstat(fileno(in), &si) == 0) {
+		sip = &si;
+		if (S_ISDIR(si.st_mode)) {
+			if (!from_stdin)
+				fclose(in);
+			return im_fail(err, "%s is a directory, not a CSV or TSV file", in_name);
+		}
 	}
 	if (!out_path) {
 		if (!out_fp) {
-			fclose(in);
+			if (!from_stdin)
+				fclose(in);
 			return im_fail(err, "no output given");
 		}
-		rc = corr_stream(in, in_path, out_fp, o, r, err);
+		rc = corr_stream(in, in_name, out_fp, o, r, err);
 		if (rc == 0 && fflush(out_fp) != 0)
 			rc = im_fail(err, "cannot write the output: %s", strerror(errno));
-		fclose(in);
+		if (!from_stdin)
+			fclose(in);
 		return rc;
 	}
-	if (stat(out_path, &so) == 0) {
-		if (so.st_dev == si.st_dev && so.st_ino == si.st_ino) {
-			fclose(in);
-			return im_fail(err, "%s is the input file; write to another name",
-				       out_path);
-		}
-		if (S_ISDIR(so.st_mode)) {
-			fclose(in);
-			return im_fail(err, "%s is a directory; give a file name", out_path);
-		}
-	}
-	fp = tmp_open(out_path, &tmp, err);
-	if (!fp)
-		goto fail;
-	if (corr_stream(in, in_path, fp, o, r, err) < 0) {
-		fclose(fp);
-		goto fail;
-	}
-	if (tmp_close(fp, out_path, err) < 0)
-		goto fail;
-
+	fio_batch_init(&b);
 	note = im_xmalloc(strlen(out_path) + sizeof CORR_NOTE_SUFFIX);
 	sprintf(note, "%s%s", out_path, CORR_NOTE_SUFFIX);
-	nfp = tmp_open(note, &ntmp, err);
-	if (!nfp)
-		goto fail;
-	{
-		char text[2048];
-		size_t n = corr_note_format(r, in_path, out_path, text, sizeof text);
-		fwrite(text, 1, n, nfp);
+	/* before anything is written: no output may be the input */
+	if (is_input(out_path, from_stdin ? NULL : in_path, sip)) {
+		im_fail(err, "%s is the input file; write to another name", out_path);
+		goto done;
 	}
-	if (tmp_close(nfp, note, err) < 0)
-		goto fail;
-	if (rename(tmp, out_path) != 0) {
-		im_fail(err, "cannot rename to %s: %s", out_path, strerror(errno));
-		goto fail;
+	if (strcmp(out_path, "-") != 0 && is_input(note, from_stdin ? NULL : in_path, sip)) {
+		im_fail(err, "the side note %s would replace the input file; write the"
+			" output under another name", note);
+		goto done;
 	}
-	free(tmp);
-	tmp = NULL;
-	if (rename(ntmp, note) != 0) {
-		im_fail(err, "%s written, but not its note %s: %s", out_path, note,
-			strerror(errno));
-		goto fail;
+	if (fio_batch_open(&b, out_path, &fp, err) < 0)
+		goto done;
+	/* a note only beside a file that is replaced as a whole */
+	if (!fio_is_direct(b.f[0]) && fio_batch_open(&b, note, &nfp, err) < 0)
+		goto done;
+	if (corr_stream(in, in_name, fp, o, r, err) < 0)
+		goto done;
+	if (nfp) {
+		text t = {0};
+		note_text(&t, r, in_name, out_path);
+		size_t w = fwrite(t.s, 1, t.n, nfp);
+		free(t.s);
+		if (w != t.n) {
+			im_fail(err, "cannot write %s: %s", note, strerror(errno));
+			goto done;
+		}
 	}
-	free(ntmp);
-	ntmp = NULL;
+	/* the data, then the note: never a note without its data */
+	if (fio_batch_commit(&b, err) < 0)
+		goto done;
+	r->note = nfp != NULL;
 	rc = 0;
-fail:
-	if (tmp) {
-		unlink(tmp);
-		free(tmp);
-	}
-	if (ntmp) {
-		unlink(ntmp);
-		free(ntmp);
-	}
+done:
+	if (rc < 0)
+		fio_batch_abort(&b);  /* a no-op after a failed commit */
 	free(note);
-	fclose(in);
+	if (!from_stdin)
+		fclose(in);
 	return rc;
 }
