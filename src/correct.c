@@ -1118,6 +1118,40 @@ static int choose(eng *e, const hdr *h)
 	return 0;
 }
 
+/* The two engine buffers (RD_CAP + 1 and WR_CAP bytes) are kept for the
+ * next run rather than freed: a megabyte allocated and freed per call
+ * dominates the cost of correcting a short file.  A run that starts while
+ * another holds them (not done today: ionmix has one thread) gets its own.
+ * The kept pair stays reachable until exit. */
+static char *kept_rd, *kept_wr;
+static int kept_busy;
+
+static void bufs_get(char **rd, char **wr)
+{
+	if (!kept_busy) {
+		kept_busy = 1;
+		if (!kept_rd) {
+			kept_rd = im_xmalloc(RD_CAP + 1);
+			kept_wr = im_xmalloc(WR_CAP);
+		}
+		*rd = kept_rd;
+		*wr = kept_wr;
+		return;
+	}
+	*rd = im_xmalloc(RD_CAP + 1);
+	*wr = im_xmalloc(WR_CAP);
+}
+
+static void bufs_put(char *rd, char *wr)
+{
+	if (rd == kept_rd) {
+		kept_busy = 0;
+		return;
+	}
+	free(rd);
+	free(wr);
+}
+
 /* The metadata lines from *p on: the first o->skip lines, then lines that
  * start with '#'.  They are copied as they are (written when the buffer
  * moves on); a comment line follows when asked.  On return *p is the
@@ -1218,8 +1252,7 @@ int corr_stream(FILE *in, const char *in_name, FILE *out, const corr_opts *o,
 	e.r = r;
 	e.err = err;
 	e.line = 1;
-	e.buf = im_xmalloc(RD_CAP + 1);
-	e.wb = im_xmalloc(WR_CAP);
+	bufs_get(&e.buf, &e.wb);
 
 	errno = 0;
 	got = fread(e.buf, 1, RD_CAP, in);
@@ -1303,8 +1336,7 @@ int corr_stream(FILE *in, const char *in_name, FILE *out, const corr_opts *o,
 done:
 	hdr_free(&h);
 	free(e.corr);
-	free(e.buf);
-	free(e.wb);
+	bufs_put(e.buf, e.wb);
 	return rc;
 }
 
