@@ -245,21 +245,31 @@ static void ljp_prepare(const corr_ljp *l, int unit_exp, ljp_prep *lp)
 	lp->k0 = l->decimals - unit_exp;
 }
 
+/* "00" .. "99", for writing two digits at a time. */
+static const char dig2[201] =
+	"00010203040506070809101112131415161718192021222324252627282930313233343536373839"
+	"40414243444546474849505152535455565758596061626364656667686970717273747576777879"
+	"8081828384858687888990919293949596979899";
+
 /* Print R (magnitude) with D decimals in the style of m, then m's exponent
- * text; the digits are written in place from the right. */
+ * text: the same layout as emit, built from the right in a small buffer
+ * two digits at a time. */
 static int emit_u64(char *out, uint64_t R, int D, int neg, const num *m)
 {
-	int nd = R ? ndigits_u64(R) : 0;
-	int nint = nd > D ? nd - D : (m->ni > 0 || D == 0);
-	char *o = out, *t;
-	if (neg && R)
-		*o++ = '-';
-	else if (m->plus)
-		*o++ = '+';
-	t = o + nint + (D > 0 ? D + 1 : m->dot);
-	o = t;
+	char tmp[NUM_OUT_MAX], *t;
+	size_t el = (size_t)(m->epe - m->ep);
+	int nonzero = R != 0, i = 0;
+	if (D > 18 + 4)   /* long zero padding: the general layout */
+		goto general;
+	t = tmp + sizeof tmp;
 	if (D > 0) {
-		for (int i = 0; i < D; i++) {
+		for (; i + 2 <= D; i += 2) {
+			unsigned r = (unsigned)(R % 100);
+			R /= 100;
+			t -= 2;
+			memcpy(t, dig2 + 2 * r, 2);
+		}
+		if (i < D) {
 			*--t = (char)('0' + R % 10);
 			R /= 10;
 		}
@@ -267,20 +277,76 @@ static int emit_u64(char *out, uint64_t R, int D, int neg, const num *m)
 	} else if (m->dot) {
 		*--t = '.';
 	}
-	if (nd > D) {
-		while (R) {
-			*--t = (char)('0' + R % 10);
-			R /= 10;
+	if (R) {
+		while (R >= 100) {
+			unsigned r = (unsigned)(R % 100);
+			R /= 100;
+			t -= 2;
+			memcpy(t, dig2 + 2 * r, 2);
 		}
-	} else if (nint) {
+		if (R >= 10) {
+			t -= 2;
+			memcpy(t, dig2 + 2 * R, 2);
+		} else {
+			*--t = (char)('0' + R);
+		}
+	} else if (m->ni > 0 || D == 0) {
 		*--t = '0';
 	}
-	size_t el = (size_t)(m->epe - m->ep);
-	if (el) {
-		memcpy(o, m->ep, el);
-		o += el;
+	if (neg && nonzero)
+		*--t = '-';
+	else if (m->plus)
+		*--t = '+';
+	size_t n = (size_t)(tmp + sizeof tmp - t);
+	memcpy(out, t, n);
+	if (el)
+		memcpy(out + n, m->ep, el);
+	return (int)(n + el);
+general:;
+	char dg[24], *d = dg + sizeof dg;
+	while (R) {
+		*--d = (char)('0' + R % 10);
+		R /= 10;
 	}
-	return (int)(o - out);
+	int nd = (int)(dg + sizeof dg - d);
+	return emit(out, d, nd, D, neg && nd > 0, m);
+}
+
+/* The common cell, fast: exactly [+-]digits[.digits] over s[0..e) with at
+ * least one and at most 18 digits, nothing else (no blanks, exponent or
+ * CR).  Returns 0 with m filled as parse_num would, or -1 to let
+ * parse_num decide. */
+static inline int parse_plain(const char *s, const char *e, num *m)
+{
+	const char *p = s;
+	uint64_t v = 0;
+	m->neg = m->plus = m->dot = 0;
+	if (p < e && (*p == '-' || *p == '+')) {
+		m->neg = *p == '-';
+		m->plus = *p == '+';
+		p++;
+	}
+	m->ip = p;
+	while (p < e && (unsigned)(*p - '0') < 10)
+		v = v * 10 + (uint64_t)(*p++ - '0');
+	m->ni = (int)(p - m->ip);
+	m->fp = p;
+	m->nf = 0;
+	if (p < e && *p == '.') {
+		m->dot = 1;
+		m->fp = ++p;
+		while (p < e && (unsigned)(*p - '0') < 10)
+			v = v * 10 + (uint64_t)(*p++ - '0');
+		m->nf = (int)(p - m->fp);
+	}
+	if (p != e || m->ni + m->nf == 0 || m->ni + m->nf > 18)
+		return -1;
+	m->val = v;
+	m->ns = s;
+	m->ne = e;
+	m->ep = m->epe = e;
+	m->exp = 0;
+	return 0;
 }
 
 /* The corrected number for m (without blanks) at out, room NUM_OUT_MAX.
@@ -621,7 +687,17 @@ typedef struct eng {
 	unsigned char *corr;       /* corr[c] = 1 + index in r->cols; c < maxcol */
 	int maxcol;                /* largest corrected column number */
 	ljp_prep prep[CORR_MAXCOLS]; /* the LJP for each of r->cols */
+	const char *nul_at;        /* the first NUL in buf (buf + len: none) */
+	const char *qpos;          /* the next '"' at or after where it was looked for */
+	int qvalid;                /* 0: qpos must be looked for again */
 } eng;
+
+/* After buf changed: where its first NUL is; the quote search restarts. */
+static void buf_changed(eng *e)
+{
+	e->nul_at = e->buf + strlen(e->buf);
+	e->qvalid = 0;
+}
 
 static void w_flush(eng *e)
 {
@@ -661,6 +737,7 @@ static int refill(eng *e, size_t keep)
 	e->span = e->buf;
 	if (e->eof) {
 		e->buf[e->len] = '\0';
+		buf_changed(e);
 		return 0;
 	}
 	if (sig_cancelled())
@@ -669,6 +746,7 @@ static int refill(eng *e, size_t keep)
 	got = fread(e->buf + n, 1, RD_CAP - n, e->in);
 	e->len += got;
 	e->buf[e->len] = '\0';
+	buf_changed(e);
 	if (got < RD_CAP - n) {
 		if (ferror(e->in))
 			return im_fail(e->err, "%s: read error: %s", e->name,
@@ -760,7 +838,9 @@ static int do_cell(eng *e, const field *f, long line, int col)
 {
 	num m;
 	const char *ce = f->ce;
-	int rc = parse_num(f->cs, ce, e->tab_blank, &m);
+	int rc = f->quoted ? -1 : parse_plain(f->cs, ce, &m);
+	if (rc < 0)
+		rc = parse_num(f->cs, ce, e->tab_blank, &m);
 	if (f->quoted && rc >= 0) {
 		/* only blanks may follow the closing quote */
 		for (const char *s = ce + 1; s < f->q; s++)
@@ -807,6 +887,135 @@ static int do_cell(eng *e, const field *f, long line, int col)
 	return 0;
 }
 
+/* The end of a record that has `col` fields: count it, and deal with the
+ * corrected columns it lacks.  0 or -1. */
+static int row_done(eng *e, int col, long rec_line)
+{
+	e->r->rows++;
+	if (col >= e->maxcol)
+		return 0;
+	int missing = 0, first = 0;
+	for (int i = e->r->ncols - 1; i >= 0; i--)
+		if (e->r->cols[i].index > col) {
+			missing++;
+			first = e->r->cols[i].index;
+		}
+	if (!e->o->skip_bad)
+		return im_fail(e->err, "%s:%ld: row has %d field%s; column %d is missing"
+			       " (skip-bad copies such rows)", e->name, rec_line, col,
+			       col == 1 ? "" : "s", first);
+	e->r->ragged++;
+	e->r->bad += missing;
+	e->r->skipped += missing;
+	return 0;
+}
+
+/* A plain number at the start of s[0..e): [+-]digits[.digits], 1 to 18
+ * digits.  Returns the byte after it (the caller checks what follows) with
+ * m filled as parse_num would for a cell holding exactly it, or NULL. */
+static inline const char *plain_prefix(const char *s, const char *e, num *m)
+{
+	const char *p = s;
+	uint64_t v = 0;
+	m->neg = m->plus = m->dot = 0;
+	if (p < e && (*p == '-' || *p == '+')) {
+		m->neg = *p == '-';
+		m->plus = *p == '+';
+		p++;
+	}
+	m->ip = p;
+	while (p < e && (unsigned)(*p - '0') < 10)
+		v = v * 10 + (uint64_t)(*p++ - '0');
+	m->ni = (int)(p - m->ip);
+	m->fp = p;
+	m->nf = 0;
+	if (p < e && *p == '.') {
+		m->dot = 1;
+		m->fp = ++p;
+		while (p < e && (unsigned)(*p - '0') < 10)
+			v = v * 10 + (uint64_t)(*p++ - '0');
+		m->nf = (int)(p - m->fp);
+	}
+	if (m->ni + m->nf == 0 || m->ni + m->nf > 18)
+		return NULL;
+	m->val = v;
+	m->ns = s;
+	m->ne = p;
+	m->ep = m->epe = p;
+	m->exp = 0;
+	return p;
+}
+
+/* The common record, fast: its line end is in the buffer, it has no quote
+ * and no NUL byte, and it is no longer than a field may be.  Fields are
+ * found with memchr; a corrected cell that is a plain number ending at its
+ * delimiter (or at the line end, a CR allowed before it) is rewritten
+ * here, any other goes through do_cell.  Returns 1 with *pp after the
+ * record, 0 when the record is not of this kind (nothing of it done), or
+ * -1 on error. */
+static int fast_record(eng *e, const char **pp)
+{
+	const char *p = *pp, *end = e->buf + e->len;
+	const char *nl = memchr(p, '\n', (size_t)(end - p));
+	if (!nl || nl > e->nul_at || nl - p > CORR_FIELD_MAX)
+		return 0;
+	if (!e->qvalid || e->qpos < p) {
+		const char *q = memchr(p, '"', (size_t)(end - p));
+		e->qpos = q ? q : end;
+		e->qvalid = 1;
+	}
+	if (e->qpos < nl)
+		return 0;
+	if (p == nl || (p + 1 == nl && *p == '\r')) {
+		e->r->blank++;
+		e->line++;
+		*pp = nl + 1;
+		return 1;
+	}
+	const char *fs = p, *fe;
+	const char delim = e->delim;
+	for (int col = 1;; col++) {
+		if (col <= e->maxcol && e->corr[col - 1]) {
+			num m;
+			const char *ne = plain_prefix(fs, nl, &m);
+			if (ne && (ne == nl || *ne == delim || (*ne == '\r' && ne + 1 == nl))) {
+				w_put(e, e->span, (size_t)(fs - e->span));
+				if (WR_CAP - e->wl < NUM_OUT_MAX)
+					w_flush(e);
+				e->wl += (size_t)fix_num(&m, &e->prep[e->corr[col - 1] - 1],
+							  e->wb + e->wl);
+				e->span = ne;
+				e->r->corrected++;
+				fe = *ne == delim ? ne : nl;
+			} else {
+				fe = memchr(fs, delim, (size_t)(nl - fs));
+				if (!fe)
+					fe = nl;
+				field f = {fs, fe, fe, 0, 0};
+				if (do_cell(e, &f, e->line, col) < 0)
+					return -1;
+			}
+		} else {
+			fe = memchr(fs, delim, (size_t)(nl - fs));
+			if (!fe)
+				fe = nl;
+		}
+		if (fe == nl) {
+			if (row_done(e, col, e->line) < 0)
+				return -1;
+			break;
+		}
+		fs = fe + 1;
+		if (col >= e->maxcol) {   /* the rest of the line is copied */
+			e->r->rows++;
+			break;
+		}
+	}
+	e->line++;
+	*pp = nl + 1;
+	return 1;
+}
+
 /* The rows from p on. */
 static int run(eng *e, const char *p)
 {
@@ -825,6 +1034,14 @@ static int run(eng *e, const char *p)
 		}
 		long rec_line = e->line;
 		int col = 1;
+		int frc = fast_record(e, &p);
+		if (frc < 0)
+			return -1;
+		if (frc == 1) {
+			if (e->werr)
+				return write_failed(e);
+			continue;
+		}
 		for (;;) {
 			field f;
 			int rc = scan(e, p, e->line, col, &f);
@@ -1258,6 +1475,7 @@ int corr_stream(FILE *in, const char *in_name, FILE *out, const corr_opts *o,
 	got = fread(e.buf, 1, RD_CAP, in);
 	e.len = got;
 	e.buf[got] = '\0';
+	buf_changed(&e);
 	if (got < RD_CAP) {
 		if (ferror(in)) {
 			im_fail(err, "%s: read error: %s", e.name, strerror(errno ? errno : EIO));
