@@ -28,6 +28,7 @@
 
 #define RD_CHUNK (512 * 1024)                   /* at least this much per read */
 #define RD_CAP (RD_CHUNK + CORR_FIELD_MAX + 64) /* read buffer (+1 sentinel) */
+#define RD_SLACK 32                             /* readable bytes past the sentinel */
 #define WR_CAP (512 * 1024)                     /* write buffer */
 #define NUM_OUT_MAX (CORR_DIGITS_MAX + 24)      /* one formatted number */
 #define COL_NUMBER_MAX 1000000                  /* largest column number taken */
@@ -62,6 +63,7 @@ typedef struct ljp_prep {
 	uint64_t mag;
 	int neg, ndig, k0;
 	int flip;   /* 1: the result is negated (inside-out, cell-attached) */
+	char mdig[24]; /* mag's ndig digits, most significant first */
 } ljp_prep;
 
 static int is_digit(int c)
@@ -243,6 +245,11 @@ static void ljp_prepare(const corr_ljp *l, int unit_exp, ljp_prep *lp)
 	lp->mag = (uint64_t)(lp->neg ? -l->scaled : l->scaled);
 	lp->ndig = ndigits_u64(lp->mag);
 	lp->k0 = l->decimals - unit_exp;
+	uint64_t u = lp->mag;
+	for (int i = lp->ndig - 1; i >= 0; i--) {
+		lp->mdig[i] = (char)(u % 10);
+		u /= 10;
+	}
 }
 
 /* "00" .. "99", for writing two digits at a time. */
@@ -251,18 +258,37 @@ static const char dig2[201] =
 	"40414243444546474849505152535455565758596061626364656667686970717273747576777879"
 	"8081828384858687888990919293949596979899";
 
-/* Print R (magnitude) with D decimals in the style of m, then m's exponent
- * text: the same layout as emit, built from the right in a small buffer
- * two digits at a time. */
-static int emit_u64(char *out, uint64_t R, int D, int neg, const num *m)
+/* Digits of u (u > 0). */
+static inline int ndig_fast(uint64_t u)
 {
-	char tmp[NUM_OUT_MAX], *t;
+	int bits = 64 - __builtin_clzll(u);
+	int n = (bits * 1233) >> 12;   /* floor(bits * log10(2)), at most one short */
+	return n + (u >= pow10_u64[n]);
+}
+
+/* Print R (magnitude) with D decimals in the style of m, then m's exponent
+ * text: the layout of emit, written in place from the right two digits at
+ * a time. */
+static inline __attribute__((always_inline)) int emit_u64(char *out, uint64_t R, int D, int neg, const num *m)
+{
 	size_t el = (size_t)(m->epe - m->ep);
-	int nonzero = R != 0, i = 0;
-	if (D > 18 + 4)   /* long zero padding: the general layout */
-		goto general;
-	t = tmp + sizeof tmp;
+	int nd = R ? ndig_fast(R) : 0;
+	int nint = nd > D ? nd - D : (m->ni > 0 || D == 0);
+	int sign = (neg && R) || m->plus;
+	int len = sign + nint + (D > 0 ? D + 1 : m->dot);
+	char *t = out + len;
+	int i = 0;
 	if (D > 0) {
+		if (R <= UINT32_MAX) {
+			uint32_t r32 = (uint32_t)R;
+			for (; i + 2 <= D; i += 2) {
+				unsigned r = r32 % 100;
+				r32 /= 100;
+				t -= 2;
+				memcpy(t, dig2 + 2 * r, 2);
+			}
+			R = r32;
+		}
 		for (; i + 2 <= D; i += 2) {
 			unsigned r = (unsigned)(R % 100);
 			R /= 100;
@@ -278,38 +304,33 @@ static int emit_u64(char *out, uint64_t R, int D, int neg, const num *m)
 		*--t = '.';
 	}
 	if (R) {
-		while (R >= 100) {
+		while (R > UINT32_MAX) {
 			unsigned r = (unsigned)(R % 100);
 			R /= 100;
 			t -= 2;
 			memcpy(t, dig2 + 2 * r, 2);
 		}
-		if (R >= 10) {
+		uint32_t r32 = (uint32_t)R;   /* the rest in 32-bit arithmetic */
+		while (r32 >= 100) {
+			unsigned r = r32 % 100;
+			r32 /= 100;
 			t -= 2;
-			memcpy(t, dig2 + 2 * R, 2);
-		} else {
-			*--t = (char)('0' + R);
+			memcpy(t, dig2 + 2 * r, 2);
 		}
-	} else if (m->ni > 0 || D == 0) {
+		if (r32 >= 10) {
+			t -= 2;
+			memcpy(t, dig2 + 2 * r32, 2);
+		} else {
+			*--t = (char)('0' + r32);
+		}
+	} else if (nint) {
 		*--t = '0';
 	}
-	if (neg && nonzero)
-		*--t = '-';
-	else if (m->plus)
-		*--t = '+';
-	size_t n = (size_t)(tmp + sizeof tmp - t);
-	memcpy(out, t, n);
+	if (sign)
+		*--t = neg && nd ? '-' : '+';
 	if (el)
-		memcpy(out + n, m->ep, el);
-	return (int)(n + el);
-general:;
-	char dg[24], *d = dg + sizeof dg;
-	while (R) {
-		*--d = (char)('0' + R % 10);
-		R /= 10;
-	}
-	int nd = (int)(dg + sizeof dg - d);
-	return emit(out, d, nd, D, neg && nd > 0, m);
+		memcpy(out + len, m->ep, el);
+	return len + (int)el;
 }
 
 /* The common cell, fast: exactly [+-]digits[.digits] over s[0..e) with at
@@ -352,7 +373,11 @@ static inline int parse_plain(const char *s, const char *e, num *m)
 /* The corrected number for m (without blanks) at out, room NUM_OUT_MAX.
  * Returns its length, or -1 when the aligned numbers need more than
  * CORR_DIGITS_MAX digits. */
-static int fix_num(const num *m, const ljp_prep *lp, char *out)
+static int fix_big(const num *m, const ljp_prep *lp, char *out, int D, int za, int zb,
+		   int na, int nb) __attribute__((noinline));
+
+static inline __attribute__((always_inline)) int fix_num(const num *m, const ljp_prep *lp,
+							  char *out)
 {
 	/* value = (digits / 10^nf) 10^exp; the LJP in the cell's unit and in
 	 * units of 10^exp is mag / 10^k */
@@ -371,6 +396,13 @@ static int fix_num(const num *m, const ljp_prep *lp, char *out)
 			return emit_u64(out, A - B, D, sa, m);
 		return emit_u64(out, B - A, D, !sa, m);
 	}
+	return fix_big(m, lp, out, D, za, zb, na, nb);
+}
+
+/* fix_num past 18 digits: decimal digit arithmetic. */
+static int fix_big(const num *m, const ljp_prep *lp, char *out, int D, int za, int zb,
+		   int na, int nb)
+{
 	if (na > CORR_DIGITS_MAX || nb > CORR_DIGITS_MAX)
 		return -1;
 
@@ -672,7 +704,7 @@ typedef struct eng {
 	const corr_opts *o;
 	corr_result *r;
 	char *err;
-	char *buf;          /* RD_CAP + 1 bytes; buf[len] is a NUL sentinel */
+	char *buf;          /* RD_CAP + 1 (+ RD_SLACK) bytes; buf[len] is a NUL sentinel */
 	size_t len;
 	int eof;
 	const char *span;   /* first byte of buf not yet written */
@@ -946,74 +978,218 @@ static inline const char *plain_prefix(const char *s, const char *e, num *m)
 	return p;
 }
 
-/* The common record, fast: its line end is in the buffer, it has no quote
- * and no NUL byte, and it is no longer than a field may be.  Fields are
- * found with memchr; a corrected cell that is a plain number ending at its
- * delimiter (or at the line end, a CR allowed before it) is rewritten
- * here, any other goes through do_cell.  Returns 1 with *pp after the
- * record, 0 when the record is not of this kind (nothing of it done), or
- * -1 on error. */
-static int fast_record(eng *e, const char **pp)
+/* As plain_prefix, without the integer value (m->val is not set). */
+static inline const char *plain_scan(const char *s, const char *e, num *m)
 {
-	const char *p = *pp, *end = e->buf + e->len;
-	const char *nl = memchr(p, '\n', (size_t)(end - p));
-	if (!nl || nl > e->nul_at || nl - p > CORR_FIELD_MAX)
-		return 0;
-	if (!e->qvalid || e->qpos < p) {
-		const char *q = memchr(p, '"', (size_t)(end - p));
-		e->qpos = q ? q : end;
-		e->qvalid = 1;
+	const char *p = s;
+	m->neg = m->plus = m->dot = 0;
+	if (p < e && (*p == '-' || *p == '+')) {
+		m->neg = *p == '-';
+		m->plus = *p == '+';
+		p++;
 	}
-	if (e->qpos < nl)
-		return 0;
-	if (p == nl || (p + 1 == nl && *p == '\r')) {
-		e->r->blank++;
-		e->line++;
-		*pp = nl + 1;
-		return 1;
+	m->ip = p;
+	while (p < e && (unsigned)(*p - '0') < 10)
+		p++;
+	m->ni = (int)(p - m->ip);
+	m->fp = p;
+	m->nf = 0;
+	if (p < e && *p == '.') {
+		m->dot = 1;
+		m->fp = ++p;
+		while (p < e && (unsigned)(*p - '0') < 10)
+			p++;
+		m->nf = (int)(p - m->fp);
 	}
-	const char *fs = p, *fe;
-	const char delim = e->delim;
-	for (int col = 1;; col++) {
-		if (col <= e->maxcol && e->corr[col - 1]) {
-			num m;
-			const char *ne = plain_prefix(fs, nl, &m);
-			if (ne && (ne == nl || *ne == delim || (*ne == '\r' && ne + 1 == nl))) {
-				w_put(e, e->span, (size_t)(fs - e->span));
-				if (WR_CAP - e->wl < NUM_OUT_MAX)
-					w_flush(e);
-				e->wl += (size_t)fix_num(&m, &e->prep[e->corr[col - 1] - 1],
-							  e->wb + e->wl);
-				e->span = ne;
-				e->r->corrected++;
-				fe = *ne == delim ? ne : nl;
-			} else {
-				fe = memchr(fs, delim, (size_t)(nl - fs));
-				if (!fe)
-					fe = nl;
-				field f = {fs, fe, fe, 0, 0};
-				if (do_cell(e, &f, e->line, col) < 0)
-					return -1;
-			}
+	if (m->ni + m->nf == 0 || m->ni + m->nf > 18)
+		return NULL;
+	m->ns = s;
+	m->ne = p;
+	m->ep = m->epe = p;
+	m->exp = 0;
+	return p;
+}
+
+/* The corrected cell m written as its own text with the LJP's digits
+ * added or subtracted in place, for the common case where that gives
+ * exactly what fix_num prints: the LJP has no more decimals than the cell,
+ * no more digits once aligned, is not 0, the sign does not change, no digit
+ * is added or lost (no carry out of the first digit, no leading zero in the
+ * input or the result), and the result is not negated.  Returns the length
+ * written at out (which has NUM_OUT_MAX bytes, and 16 bytes may be read
+ * from m->ns), or -1 when fix_num must do it. */
+static inline int ascii_fix(const num *m, const ljp_prep *lp, char *out)
+{
+	int off = m->nf - lp->k0, nd = m->ni + m->nf;
+	int len = (int)(m->ne - m->ns);
+	if (lp->flip || lp->mag == 0 || off < 0 || lp->ndig + off > nd || len > 16 ||
+	    (m->ni > 1 && *m->ip == '0'))
+		return -1;
+	memcpy(out, m->ns, 16);
+	int add = m->neg != lp->neg, carry = 0;
+	char *fpe = out + (m->fp - m->ns) + m->nf;   /* after the fraction digits */
+	char *ipe = out + (m->ip - m->ns) + m->ni;   /* after the integer digits */
+	for (int j = off; j < off + lp->ndig || carry; j++) {
+		if (j >= nd)
+			return -1;                        /* a digit more */
+		char *c = j < m->nf ? fpe - 1 - j : ipe - 1 - (j - m->nf);
+		int l = j - off < lp->ndig ? lp->mdig[lp->ndig - 1 - (j - off)] : 0;
+		int d = *c - '0';
+		if (add) {
+			d += l + carry;
+			carry = d >= 10;
+			d -= carry ? 10 : 0;
 		} else {
-			fe = memchr(fs, delim, (size_t)(nl - fs));
-			if (!fe)
-				fe = nl;
+			d -= l + carry;
+			carry = d < 0;
+			d += carry ? 10 : 0;
 		}
-		if (fe == nl) {
-			if (row_done(e, col, e->line) < 0)
+		*c = (char)('0' + d);
+	}
+	if (!add) {
+		if (carry)
+			return -1;                        /* the sign changes */
+		if (m->ni > 1 && ipe[-m->ni] == '0')
+			return -1;                        /* a digit less */
+		if (m->neg) {                             /* "-0.0" is printed "0.0" */
+			int zero = 1;
+			for (char *c = out + (m->ip - m->ns); c < fpe && zero; c++)
+				zero = *c == '0' || *c == '.';
+			if (zero)
 				return -1;
-			break;
-		}
-		fs = fe + 1;
-		if (col >= e->maxcol) {   /* the rest of the line is copied */
-			e->r->rows++;
-			break;
 		}
 	}
-	e->line++;
-	*pp = nl + 1;
-	return 1;
+	return len;
+}
+
+/* The common records, fast, as many as come in a row.  A field is found
+ * with the stop table of an unquoted field; a corrected cell that is a
+ * plain number ending at its delimiter or the line end (a CR allowed
+ * before it) is rewritten here (ascii_fix, else fix_num), any other cell
+ * goes through do_cell; after the last corrected column the rest of the
+ * line is found with memchr when no quote can hide a line end in it.
+ * Anything else - a quoted field, a NUL byte, the end of the buffer, a
+ * field too long - stops the loop at the start of that field: *pp and
+ * *colp say where the general loop goes on (a new record when *colp is 1).
+ * The output position and counts are kept in locals and stored back.
+ * Returns 0, or -1 on error. */
+static int fast_run(eng *e, const char **pp, int *colp)
+{
+	const char *p = *pp, *const end = e->buf + e->len;
+	const char delim = e->delim;
+	const int maxcol = e->maxcol;
+	const unsigned char *const stop = e->stop_u;
+	char *const wb = e->wb;
+	size_t wl = e->wl;
+	const char *span = e->span;
+	long rows = 0, corrected = 0, line = e->line;
+	int rc = 0, col = 1;
+	const char *fs = p;
+
+	while (p < end) {
+		if (*p == '\n' || (*p == '\r' && p[1] == '\n')) {
+			e->r->blank++;
+			line++;
+			p += *p == '\n' ? 1 : 2;
+			continue;
+		}
+		fs = p;
+		for (col = 1;; col++) {
+			const char *fe;
+			if (*fs == '"')
+				goto out;
+			if (col <= maxcol && e->corr[col - 1]) {
+				num m;
+				const char *ne = plain_prefix(fs, end, &m);
+				if (ne && (*ne == delim || *ne == '\n' || (*ne == '\r' && ne[1] == '\n'))) {
+					const ljp_prep *lp = &e->prep[e->corr[col - 1] - 1];
+					size_t n = (size_t)(fs - span);
+					if (WR_CAP - wl < n + 16 + NUM_OUT_MAX) {
+						e->wl = wl;
+						w_put(e, span, n);
+						if (WR_CAP - e->wl < NUM_OUT_MAX)
+							w_flush(e);
+						wl = e->wl;
+					} else if (n <= 16) {
+						/* a short span: one fixed-size copy (the
+						 * buffers have room past their ends) */
+						memcpy(wb + wl, span, 16);
+						wl += n;
+					} else {
+						memcpy(wb + wl, span, n);
+						wl += n;
+					}
+					wl += (size_t)fix_num(&m, lp, wb + wl);
+					span = ne;
+					corrected++;
+					fe = *ne == '\r' ? ne + 1 : ne;
+				} else {
+					fe = fs;
+					while (!stop[(unsigned char)*fe])
+						fe++;
+					if (*fe == '\0' || fe - fs > CORR_FIELD_MAX)
+						goto out;
+					field f = {fs, fe, fe, 0, 0};
+					e->wl = wl;
+					e->span = span;
+					rc = do_cell(e, &f, line, col);
+					wl = e->wl;
+					span = e->span;
+					if (rc < 0)
+						goto out;
+				}
+			} else {
+				fe = fs;
+				while (!stop[(unsigned char)*fe])
+					fe++;
+				if (*fe == '\0' || fe - fs > CORR_FIELD_MAX)
+					goto out;
+			}
+			if (*fe == '\n') {
+				if (col < maxcol) {
+					e->wl = wl;
+					e->span = span;
+					e->r->rows += rows;
+					rows = 0;
+					rc = row_done(e, col, line);
+					if (rc < 0)
+						goto out;
+				} else {
+					rows++;
+				}
+				p = fe + 1;
+				break;
+			}
+			fs = fe + 1;
+			if (col >= maxcol) {   /* the rest of the line, when it is plain */
+				const char *nl = memchr(fs, '\n', (size_t)(end - fs));
+				if (!e->qvalid || e->qpos < fs) {
+					const char *q = memchr(fs, '"', (size_t)(end - fs));
+					e->qpos = q ? q : end;
+					e->qvalid = 1;
+				}
+				if (!nl || nl > e->nul_at || e->qpos < nl || nl - fs > CORR_FIELD_MAX) {
+					col++;
+					goto out;
+				}
+				rows++;
+				p = nl + 1;
+				break;
+			}
+		}
+		line++;
+		col = 1;
+		fs = p;
+	}
+out:
+	e->wl = wl;
+	e->span = span;
+	e->r->rows += rows;
+	e->r->corrected += corrected;
+	e->line = line;
+	*pp = fs;
+	*colp = col;
+	return rc;
 }
 
 /* The rows from p on. */
@@ -1032,16 +1208,14 @@ static int run(eng *e, const char *p)
 				return 0;
 			continue;
 		}
-		long rec_line = e->line;
 		int col = 1;
-		int frc = fast_record(e, &p);
-		if (frc < 0)
+		if (fast_run(e, &p, &col) < 0)
 			return -1;
-		if (frc == 1) {
-			if (e->werr)
-				return write_failed(e);
+		if (e->werr)
+			return write_failed(e);
+		if (p == end && col == 1)
 			continue;
-		}
+		long rec_line = e->line;
 		for (;;) {
 			field f;
 			int rc = scan(e, p, e->line, col, &f);
@@ -1348,14 +1522,14 @@ static void bufs_get(char **rd, char **wr)
 	if (!kept_busy) {
 		kept_busy = 1;
 		if (!kept_rd) {
-			kept_rd = im_xmalloc(RD_CAP + 1);
+			kept_rd = im_xcalloc(RD_CAP + 1 + RD_SLACK, 1);
 			kept_wr = im_xmalloc(WR_CAP);
 		}
 		*rd = kept_rd;
 		*wr = kept_wr;
 		return;
 	}
-	*rd = im_xmalloc(RD_CAP + 1);
+	*rd = im_xcalloc(RD_CAP + 1 + RD_SLACK, 1);
 	*wr = im_xmalloc(WR_CAP);
 }
 
