@@ -63,7 +63,9 @@ typedef struct ljp_prep {
 	uint64_t mag;
 	int neg, ndig, k0;
 	int flip;   /* 1: the result is negated (inside-out, cell-attached) */
-	char mdig[24]; /* mag's ndig digits, most significant first */
+	uint64_t bn[19]; /* for a plain cell with nf decimals: mag aligned to
+			  * them, mag * 10^(nf - k0); UINT64_MAX when nf < k0
+			  * or that has more than 18 digits (see fix_plain) */
 } ljp_prep;
 
 static int is_digit(int c)
@@ -245,10 +247,9 @@ static void ljp_prepare(const corr_ljp *l, int unit_exp, ljp_prep *lp)
 	lp->mag = (uint64_t)(lp->neg ? -l->scaled : l->scaled);
 	lp->ndig = ndigits_u64(lp->mag);
 	lp->k0 = l->decimals - unit_exp;
-	uint64_t u = lp->mag;
-	for (int i = lp->ndig - 1; i >= 0; i--) {
-		lp->mdig[i] = (char)(u % 10);
-		u /= 10;
+	for (int nf = 0; nf < 19; nf++) {
+		int z = nf - lp->k0;
+		lp->bn[nf] = z < 0 || lp->ndig + z > 18 ? UINT64_MAX : lp->mag * pow10_u64[z];
 	}
 }
 
@@ -978,94 +979,92 @@ static inline const char *plain_prefix(const char *s, const char *e, num *m)
 	return p;
 }
 
-/* As plain_prefix, without the integer value (m->val is not set). */
-static inline const char *plain_scan(const char *s, const char *e, num *m)
+/* Digits of u (u > 0). */
+static inline int ndig32(uint32_t u)
 {
-	const char *p = s;
-	m->neg = m->plus = m->dot = 0;
-	if (p < e && (*p == '-' || *p == '+')) {
-		m->neg = *p == '-';
-		m->plus = *p == '+';
-		p++;
-	}
-	m->ip = p;
-	while (p < e && (unsigned)(*p - '0') < 10)
-		p++;
-	m->ni = (int)(p - m->ip);
-	m->fp = p;
-	m->nf = 0;
-	if (p < e && *p == '.') {
-		m->dot = 1;
-		m->fp = ++p;
-		while (p < e && (unsigned)(*p - '0') < 10)
-			p++;
-		m->nf = (int)(p - m->fp);
-	}
-	if (m->ni + m->nf == 0 || m->ni + m->nf > 18)
-		return NULL;
-	m->ns = s;
-	m->ne = p;
-	m->ep = m->epe = p;
-	m->exp = 0;
-	return p;
+	return u < 10 ? 1 : u < 100 ? 2 : u < 1000 ? 3 : u < 10000 ? 4 : u < 100000 ? 5 :
+	       u < 1000000 ? 6 : u < 10000000 ? 7 : u < 100000000 ? 8 : u < 1000000000 ? 9 : 10;
 }
 
-/* The corrected cell m written as its own text with the LJP's digits
- * added or subtracted in place, for the common case where that gives
- * exactly what fix_num prints: the LJP has no more decimals than the cell,
- * no more digits once aligned, is not 0, the sign does not change, no digit
- * is added or lost (no carry out of the first digit, no leading zero in the
- * input or the result), and the result is not negated.  Returns the length
- * written at out (which has NUM_OUT_MAX bytes, and 16 bytes may be read
- * from m->ns), or -1 when fix_num must do it. */
-static inline int ascii_fix(const num *m, const ljp_prep *lp, char *out)
+/* Write u as exactly n digits (zero-padded) ending at t, two at a time. */
+static inline void put_digits(char *t, uint32_t u, int n)
 {
-	int off = m->nf - lp->k0, nd = m->ni + m->nf;
-	int len = (int)(m->ne - m->ns);
-	if (lp->flip || lp->mag == 0 || off < 0 || lp->ndig + off > nd || len > 16 ||
-	    (m->ni > 1 && *m->ip == '0'))
-		return -1;
-	memcpy(out, m->ns, 16);
-	int add = m->neg != lp->neg, carry = 0;
-	char *fpe = out + (m->fp - m->ns) + m->nf;   /* after the fraction digits */
-	char *ipe = out + (m->ip - m->ns) + m->ni;   /* after the integer digits */
-	for (int j = off; j < off + lp->ndig || carry; j++) {
-		if (j >= nd)
-			return -1;                        /* a digit more */
-		char *c = j < m->nf ? fpe - 1 - j : ipe - 1 - (j - m->nf);
-		int l = j - off < lp->ndig ? lp->mdig[lp->ndig - 1 - (j - off)] : 0;
-		int d = *c - '0';
-		if (add) {
-			d += l + carry;
-			carry = d >= 10;
-			d -= carry ? 10 : 0;
-		} else {
-			d -= l + carry;
-			carry = d < 0;
-			d += carry ? 10 : 0;
-		}
-		*c = (char)('0' + d);
+	for (; n >= 2; n -= 2) {
+		unsigned r = u % 100;
+		u /= 100;
+		t -= 2;
+		memcpy(t, dig2 + 2 * r, 2);
 	}
-	if (!add) {
-		if (carry)
-			return -1;                        /* the sign changes */
-		if (m->ni > 1 && ipe[-m->ni] == '0')
-			return -1;                        /* a digit less */
-		if (m->neg) {                             /* "-0.0" is printed "0.0" */
-			int zero = 1;
-			for (char *c = out + (m->ip - m->ns); c < fpe && zero; c++)
-				zero = *c == '0' || *c == '.';
-			if (zero)
-				return -1;
-		}
+	if (n)
+		t[-1] = (char)('0' + u % 10);
+}
+
+/* fix_num for a cell from plain_prefix (no exponent), fast where the LJP
+ * has no more decimals than the cell (the result keeps the cell's nf
+ * decimals) and the result is below 2^32: the integer and fraction parts
+ * are split by a constant divisor and written two digits at a time.  The
+ * same text as fix_num in every case. */
+static inline int fix_plain(const num *m, const ljp_prep *lp, char *out)
+{
+	uint64_t B = lp->bn[m->nf], A = m->val, R;
+	int neg, D = m->nf;
+	if (B == UINT64_MAX)
+		return fix_num(m, lp, out);
+	/* r = a - b with a = +-A, b = +-B, without branches on the data:
+	 * the magnitudes add when the signs differ, else subtract */
+	int add = m->neg != lp->neg, ge = A >= B;
+	uint64_t sub = ge ? A - B : B - A;
+	R = add ? A + B : sub;
+	neg = m->neg ^ (!add & !ge) ^ lp->flip;
+	if (R > UINT32_MAX || D > 9)
+		return emit_u64(out, R, D, neg, m);
+	uint32_t r = (uint32_t)R, ip, fp;
+	switch (D) {
+	case 0: ip = r; fp = 0; break;
+	case 1: ip = r / 10; fp = r % 10; break;
+	case 2: ip = r / 100; fp = r % 100; break;
+	case 3: ip = r / 1000; fp = r % 1000; break;
+	case 4: ip = r / 10000; fp = r % 10000; break;
+	case 5: ip = r / 100000; fp = r % 100000; break;
+	case 6: ip = r / 1000000; fp = r % 1000000; break;
+	case 7: ip = r / 10000000; fp = r % 10000000; break;
+	case 8: ip = r / 100000000; fp = r % 100000000; break;
+	default: ip = r / 1000000000; fp = r % 1000000000; break;
 	}
-	return len;
+	char *o = out;
+	int minus = neg && r;
+	*o = minus ? '-' : '+';
+	o += minus | m->plus;
+	if (ip) {
+		int n = ndig32(ip);
+		put_digits(o + n, ip, n);
+		o += n;
+	} else if (m->ni > 0 || D == 0) {
+		*o++ = '0';
+	}
+	if (D) {
+		*o++ = '.';
+		put_digits(o + D, fp, D);
+		o += D;
+	} else if (m->dot) {
+		*o++ = '.';
+	}
+	return (int)(o - out);
+}
+
+/* Where the unquoted field at p ends: its delimiter, LF, or a NUL byte
+ * (the buffer's sentinel at the latest). */
+static inline const char *field_end(const char *p, const unsigned char *stop)
+{
+	while (!stop[(unsigned char)*p])
+		p++;
+	return p;
 }
 
 /* The common records, fast, as many as come in a row.  A field is found
  * with the stop table of an unquoted field; a corrected cell that is a
  * plain number ending at its delimiter or the line end (a CR allowed
- * before it) is rewritten here (ascii_fix, else fix_num), any other cell
+ * before it) is rewritten here (fix_num), any other cell
  * goes through do_cell; after the last corrected column the rest of the
  * line is found with memchr when no quote can hide a line end in it.
  * Anything else - a quoted field, a NUL byte, the end of the buffer, a
@@ -1119,14 +1118,12 @@ static int fast_run(eng *e, const char **pp, int *colp)
 						memcpy(wb + wl, span, n);
 						wl += n;
 					}
-					wl += (size_t)fix_num(&m, lp, wb + wl);
+					wl += (size_t)fix_plain(&m, lp, wb + wl);
 					span = ne;
 					corrected++;
 					fe = *ne == '\r' ? ne + 1 : ne;
 				} else {
-					fe = fs;
-					while (!stop[(unsigned char)*fe])
-						fe++;
+					fe = field_end(fs, stop);
 					if (*fe == '\0' || fe - fs > CORR_FIELD_MAX)
 						goto out;
 					field f = {fs, fe, fe, 0, 0};
@@ -1139,9 +1136,7 @@ static int fast_run(eng *e, const char **pp, int *colp)
 						goto out;
 				}
 			} else {
-				fe = fs;
-				while (!stop[(unsigned char)*fe])
-					fe++;
+				fe = field_end(fs, stop);
 				if (*fe == '\0' || fe - fs > CORR_FIELD_MAX)
 					goto out;
 			}

@@ -1021,6 +1021,84 @@ static void test_boundaries(void **state)
 }
 
 
+/* The streaming loop has its own fast arithmetic for plain cells
+ * (fix_plain); every cell it writes must be the text corr_cell (the
+ * general parser and arithmetic, checked exactly above against an
+ * independent reader) gives for it.  Cells of every style - signs, '+',
+ * leading zeros, ".5", "5.", 0 to 9 decimals, up to 18 digits - against
+ * LJPs with 0 to 5 decimals, either sign or 0, in columns of mV, V and uV,
+ * LF and CRLF lines. */
+static void test_fast_path_same(void **state)
+{
+	(void)state;
+	static const char *const ljps[] = {"14.2", "-3", "0.125", "0", "999.999",
+					   "-0.00001", "7", "-14.20"};
+	static const struct { const char *head; int unit_exp; } units[] = {
+		{"Vm (mV)", 0}, {"V (V)", -3}, {"Vu (uV)", 3},
+	};
+	gen g = {2026};
+	char err[IM_ERRLEN];
+	for (size_t li = 0; li < IM_COUNT(ljps); li++)
+		for (size_t ui = 0; ui < IM_COUNT(units); ui++) {
+			corr_opts o = {0};
+			corr_result r;
+			const char *cols[] = {"2"};
+			assert_int_equal(corr_ljp_parse(ljps[li], &o.ljp, err), 0);
+			o.columns = cols;
+			o.ncolumns = 1;
+			char *in = NULL, *out = NULL;
+			size_t inl = 0, outl = 0;
+			FILE *fi = open_memstream(&in, &inl);
+			fprintf(fi, "t,%s,x\n", units[ui].head);
+			enum { ROWS = 3000 };
+			static char cells[ROWS][40];
+			for (int i = 0; i < ROWS; i++) {
+				char *c = cells[i];
+				int k = 0, ni = (int)(rnd(&g) % 8), nf = (int)(rnd(&g) % 10);
+				unsigned style = rnd(&g) % 8;
+				if (ni + nf > 18)
+					nf = 18 - ni;
+				if (style == 0)
+					c[k++] = '+';
+				else if (style < 4)
+					c[k++] = '-';
+				for (int d = 0; d < ni; d++)
+					c[k++] = (char)('0' + (d == 0 && rnd(&g) % 6 ? 1 + rnd(&g) % 9
+							  : rnd(&g) % 10));
+				if (nf > 0 || rnd(&g) % 4 == 0)
+					c[k++] = '.';
+				for (int d = 0; d < nf; d++)
+					c[k++] = (char)('0' + rnd(&g) % 10);
+				if (ni + nf == 0)
+					c[k++] = '0';
+				c[k] = '\0';
+				fprintf(fi, "%d,%s,%s", i, c, i % 3 ? "z" : "\"q,\"");
+				fputs(i % 5 == 0 ? "\r\n" : "\n", fi);
+			}
+			fclose(fi);
+			FILE *ifp = fmemopen(in, inl, "rb"), *ofp = open_memstream(&out, &outl);
+			if (corr_stream(ifp, "mem.csv", ofp, &o, &r, err) != 0)
+				fail_msg("LJP %s, %s: %s", ljps[li], units[ui].head, err);
+			fclose(ifp);
+			fclose(ofp);
+			assert_int_equal(r.corrected, ROWS);
+			const char *p = strchr(out, '\n') + 1;
+			for (int i = 0; i < ROWS; i++) {
+				char want[160];
+				size_t wl;
+				assert_int_equal(corr_cell(cells[i], strlen(cells[i]), &o.ljp,
+							   units[ui].unit_exp, want, sizeof want, &wl, err), 0);
+				const char *c = strchr(p, ',') + 1, *ce = strchr(c, ',');
+				if ((size_t)(ce - c) != wl || memcmp(c, want, wl) != 0)
+					fail_msg("LJP %s, %s, cell '%s': stream '%.*s', corr_cell '%s'",
+						 ljps[li], units[ui].head, cells[i], (int)(ce - c), c, want);
+				p = strchr(ce, '\n') + 1;
+			}
+			free(in);
+			free(out);
+		}
+}
+
 /* ---- metadata lines, recording configurations, standard streams ------- */
 
 /* corr_stream on a string with every option; output (malloc'd) or NULL. */
@@ -1482,6 +1560,7 @@ int main(void)
 		cmocka_unit_test(test_files),
 		cmocka_unit_test(test_big_file),
 		cmocka_unit_test(test_boundaries),
+		cmocka_unit_test(test_fast_path_same),
 		cmocka_unit_test(test_metadata),
 		cmocka_unit_test(test_configs),
 		cmocka_unit_test(test_std_streams),
