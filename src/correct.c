@@ -11,6 +11,8 @@
 #include "correct.h"
 
 #include <errno.h>
+#include <pthread.h>
+#include <signal.h>
 #include <stdarg.h>
 #include <time.h>
 #include <limits.h>
@@ -699,6 +701,18 @@ const char *corr_delim_name(char delim)
 
 /* ---- the streaming engine --------------------------------------------- */
 
+typedef struct writer {
+	pthread_t th;
+	pthread_mutex_t mu;
+	pthread_cond_t cv;
+	int started, failed;
+	int busy, quit;     /* under mu */
+	const char *buf;    /* the buffer in flight, n bytes; under mu */
+	size_t n;
+	int werr;           /* errno of a failed write; under mu */
+	FILE *out;
+} writer;
+
 typedef struct eng {
 	FILE *in, *out;
 	const char *name;
@@ -709,7 +723,9 @@ typedef struct eng {
 	size_t len;
 	int eof;
 	const char *span;   /* first byte of buf not yet written */
-	char *wb;           /* WR_CAP bytes */
+	char *wb;           /* WR_CAP bytes: the buffer being filled */
+	char *wb2;          /* the other one (in flight, or free) */
+	writer w;
 	size_t wl;
 	int werr;           /* errno of a failed write, 0 if none */
 	long line;          /* line of the current position */
@@ -732,10 +748,116 @@ static void buf_changed(eng *e)
 	e->qvalid = 0;
 }
 
+/* ---- the writer thread ----
+ * Once the output passes one write buffer, full buffers are handed to a
+ * second thread that writes them while this one fills the other buffer,
+ * so that the copy into the kernel overlaps the arithmetic.  Order is
+ * kept: one buffer in flight at a time.  Small outputs never start it;
+ * when it cannot be started the writes stay in this thread. */
+
+static void *writer_main(void *arg)
+{
+	writer *w = arg;
+	pthread_mutex_lock(&w->mu);
+	for (;;) {
+		while (!w->busy && !w->quit)
+			pthread_cond_wait(&w->cv, &w->mu);
+		if (!w->busy)
+			break;
+		const char *b = w->buf;
+		size_t n = w->n;
+		pthread_mutex_unlock(&w->mu);
+		errno = 0;
+		int bad = fwrite(b, 1, n, w->out) != n;
+		int err = errno ? errno : EIO;
+		pthread_mutex_lock(&w->mu);
+		if (bad && !w->werr)
+			w->werr = err;
+		w->busy = 0;
+		pthread_cond_broadcast(&w->cv);
+	}
+	pthread_mutex_unlock(&w->mu);
+	return NULL;
+}
+
+static int writer_start(eng *e)
+{
+	writer *w = &e->w;
+	sigset_t all, old;
+	if (pthread_mutex_init(&w->mu, NULL) != 0)
+		return -1;
+	if (pthread_cond_init(&w->cv, NULL) != 0) {
+		pthread_mutex_destroy(&w->mu);
+		return -1;
+	}
+	w->out = e->out;
+	w->busy = w->quit = w->werr = 0;
+	/* signals are for the main thread (signals.c) */
+	sigfillset(&all);
+	pthread_sigmask(SIG_BLOCK, &all, &old);
+	int rc = pthread_create(&w->th, NULL, writer_main, w);
+	pthread_sigmask(SIG_SETMASK, &old, NULL);
+	if (rc != 0) {
+		pthread_cond_destroy(&w->cv);
+		pthread_mutex_destroy(&w->mu);
+		return -1;
+	}
+	w->started = 1;
+	return 0;
+}
+
+/* Wait until no buffer is in flight; its error becomes ours. */
+static void writer_wait(eng *e)
+{
+	writer *w = &e->w;
+	if (!w->started)
+		return;
+	pthread_mutex_lock(&w->mu);
+	while (w->busy)
+		pthread_cond_wait(&w->cv, &w->mu);
+	if (w->werr && !e->werr)
+		e->werr = w->werr;
+	pthread_mutex_unlock(&w->mu);
+}
+
+/* Wait for the last buffer and end the thread. */
+static void writer_stop(eng *e)
+{
+	writer *w = &e->w;
+	if (!w->started)
+		return;
+	writer_wait(e);
+	pthread_mutex_lock(&w->mu);
+	w->quit = 1;
+	pthread_cond_broadcast(&w->cv);
+	pthread_mutex_unlock(&w->mu);
+	pthread_join(w->th, NULL);
+	pthread_cond_destroy(&w->cv);
+	pthread_mutex_destroy(&w->mu);
+	w->started = 0;
+}
+
 static void w_flush(eng *e)
 {
-	if (e->wl && !e->werr && fwrite(e->wb, 1, e->wl, e->out) != e->wl)
-		e->werr = errno ? errno : EIO;
+	if (e->wl && !e->werr) {
+		if (!e->w.started && !e->w.failed && e->wb2 && writer_start(e) != 0)
+			e->w.failed = 1;
+		if (e->w.started) {
+			writer *w = &e->w;
+			writer_wait(e);
+			pthread_mutex_lock(&w->mu);
+			w->buf = e->wb;
+			w->n = e->wl;
+			w->busy = 1;
+			pthread_cond_broadcast(&w->cv);
+			pthread_mutex_unlock(&w->mu);
+			char *t = e->wb;
+			e->wb = e->wb2;
+			e->wb2 = t;
+		} else if (fwrite(e->wb, 1, e->wl, e->out) != e->wl) {
+			e->werr = errno ? errno : EIO;
+		}
+	}
 	e->wl = 0;
 }
 
@@ -744,6 +866,7 @@ static void w_put(eng *e, const char *p, size_t n)
 	if (n > WR_CAP - e->wl) {
 		w_flush(e);
 		if (n >= WR_CAP) {
+			writer_wait(e);
 			if (!e->werr && fwrite(p, 1, n, e->out) != n)
 				e->werr = errno ? errno : EIO;
 			return;
@@ -1145,7 +1268,7 @@ static int fast_run(eng *e, const char **pp, int *colp)
 	const char delim = e->delim;
 	const int maxcol = e->maxcol;
 	const unsigned char *const stop = e->stop_u;
-	char *const wb = e->wb;
+	char *wb = e->wb;
 	size_t wl = e->wl;
 	const char *span = e->span;
 	long rows = 0, corrected = 0, line = e->line;
@@ -1176,6 +1299,7 @@ static int fast_run(eng *e, const char **pp, int *colp)
 						if (WR_CAP - e->wl < NUM_OUT_MAX)
 							w_flush(e);
 						wl = e->wl;
+						wb = e->wb;   /* a flush swaps the buffers */
 					} else if (n <= 16) {
 						/* a short span: one fixed-size copy (the
 						 * buffers have room past their ends) */
@@ -1198,6 +1322,7 @@ static int fast_run(eng *e, const char **pp, int *colp)
 					e->span = span;
 					rc = do_cell(e, &f, line, col);
 					wl = e->wl;
+					wb = e->wb;
 					span = e->span;
 					if (rc < 0)
 						goto out;
@@ -1571,31 +1696,36 @@ static int choose(eng *e, const hdr *h)
 	return 0;
 }
 
-/* The two engine buffers (RD_CAP + 1 and WR_CAP bytes) are kept for the
- * next run rather than freed: a megabyte allocated and freed per call
- * dominates the cost of correcting a short file.  A run that starts while
- * another holds them (not done today: ionmix has one thread) gets its own.
- * The kept pair stays reachable until exit. */
-static char *kept_rd, *kept_wr;
+/* The engine buffers (the read buffer and two write buffers) are kept for
+ * the next run rather than freed: a megabyte and more allocated and freed
+ * per call dominates the cost of correcting a short file.  A run that
+ * starts while another holds them (not done today: ionmix runs one
+ * correction at a time) gets its own.  The kept ones stay reachable until
+ * exit. */
+static char *kept_rd, *kept_wr, *kept_wr2;
 static int kept_busy;
 
-static void bufs_get(char **rd, char **wr)
+static void bufs_get(char **rd, char **wr, char **wr2)
 {
 	if (!kept_busy) {
 		kept_busy = 1;
 		if (!kept_rd) {
 			kept_rd = im_xcalloc(RD_CAP + 1 + RD_SLACK, 1);
 			kept_wr = im_xmalloc(WR_CAP);
+			kept_wr2 = im_xmalloc(WR_CAP);
 		}
 		*rd = kept_rd;
 		*wr = kept_wr;
+		*wr2 = kept_wr2;
 		return;
 	}
 	*rd = im_xcalloc(RD_CAP + 1 + RD_SLACK, 1);
 	*wr = im_xmalloc(WR_CAP);
+	*wr2 = im_xmalloc(WR_CAP);
 }
 
-static void bufs_put(char *rd, char *wr)
+/* Give back what bufs_get gave (the write buffers in either order). */
+static void bufs_put(char *rd, char *wr, char *wr2)
 {
 	if (rd == kept_rd) {
 		kept_busy = 0;
@@ -1603,6 +1733,7 @@ static void bufs_put(char *rd, char *wr)
 	}
 	free(rd);
 	free(wr);
+	free(wr2);
 }
 
 /* The metadata lines from *p on: the first o->skip lines, then lines that
@@ -1705,7 +1836,7 @@ int corr_stream(FILE *in, const char *in_name, FILE *out, const corr_opts *o,
 	e.r = r;
 	e.err = err;
 	e.line = 1;
-	bufs_get(&e.buf, &e.wb);
+	bufs_get(&e.buf, &e.wb, &e.wb2);
 
 	errno = 0;
 	got = fread(e.buf, 1, RD_CAP, in);
@@ -1782,6 +1913,7 @@ int corr_stream(FILE *in, const char *in_name, FILE *out, const corr_opts *o,
 		goto done;
 	w_put(&e, e.span, (size_t)(e.buf + e.len - e.span));
 	w_flush(&e);
+	writer_stop(&e);   /* every byte written before the verdict */
 	if (e.werr) {
 		write_failed(&e);
 		goto done;
@@ -1790,7 +1922,8 @@ int corr_stream(FILE *in, const char *in_name, FILE *out, const corr_opts *o,
 done:
 	hdr_free(&h);
 	free(e.corr);
-	bufs_put(e.buf, e.wb);
+	writer_stop(&e);
+	bufs_put(e.buf, e.wb, e.wb2);
 	return rc;
 }
 

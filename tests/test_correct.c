@@ -1099,6 +1099,39 @@ static void test_fast_path_same(void **state)
 		}
 }
 
+/* A full disk (/dev/full, ENOSPC on every write) is reported, whether the
+ * output is small (written at the end) or large (the writer thread). */
+static void test_write_error(void **state)
+{
+	(void)state;
+	char err[IM_ERRLEN];
+	corr_opts o = {0};
+	corr_result r;
+	FILE *full = fopen("/dev/full", "wb");
+	if (!full) {
+		skip();
+		return;
+	}
+	setvbuf(full, NULL, _IONBF, 0);
+	assert_int_equal(corr_ljp_parse("14.2", &o.ljp, err), 0);
+	for (int big = 0; big < 2; big++) {
+		char *in = NULL;
+		size_t inl = 0;
+		FILE *fi = open_memstream(&in, &inl);
+		fputs("t,Vm (mV)\n", fi);
+		for (int i = 0; i < (big ? 300000 : 3); i++)
+			fprintf(fi, "%d,-70.%03d\n", i, i % 1000);
+		fclose(fi);
+		FILE *ifp = fmemopen(in, inl, "rb");
+		assert_int_equal(corr_stream(ifp, "mem.csv", full, &o, &r, err), -1);
+		assert_contains(err, "cannot write the output");
+		assert_contains(err, strerror(ENOSPC));
+		fclose(ifp);
+		free(in);
+	}
+	fclose(full);
+}
+
 /* ---- metadata lines, recording configurations, standard streams ------- */
 
 /* corr_stream on a string with every option; output (malloc'd) or NULL. */
@@ -1561,6 +1594,7 @@ int main(void)
 		cmocka_unit_test(test_big_file),
 		cmocka_unit_test(test_boundaries),
 		cmocka_unit_test(test_fast_path_same),
+		cmocka_unit_test(test_write_error),
 		cmocka_unit_test(test_metadata),
 		cmocka_unit_test(test_configs),
 		cmocka_unit_test(test_std_streams),
