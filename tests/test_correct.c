@@ -1132,6 +1132,62 @@ static void test_write_error(void **state)
 	fclose(full);
 }
 
+/* Without `to`, a file over CMD_CORRECT_TTY_MAX bytes is not poured onto
+ * a terminal: one line saying how (a pseudo-terminal stands for it). */
+static void test_tty_refusal(void **state)
+{
+	(void)state;
+	const char *bin = getenv("IONMIX");
+	char in[600], errp[600], expr[1400];
+	size_t len;
+	if (!bin || !*bin) {
+		skip();
+		return;
+	}
+	int m = posix_openpt(O_RDWR | O_NOCTTY);
+	if (m < 0 || grantpt(m) != 0 || unlockpt(m) != 0 || !ptsname(m)) {
+		if (m >= 0)
+			close(m);
+		skip();   /* no pseudo-terminals here */
+		return;
+	}
+	const char *slave = ptsname(m);
+	path_in(in, sizeof in, "tty.csv");
+	path_in(errp, sizeof errp, "tty.err");
+	FILE *fp = fopen(in, "wb");
+	assert_non_null(fp);
+	fputs("t,Vm (mV)\n", fp);
+	for (int i = 0; ftell(fp) <= CMD_CORRECT_TTY_MAX; i++)
+		fprintf(fp, "%d,-70.%03d\n", i, i % 1000);
+	fclose(fp);
+	snprintf(expr, sizeof expr, "correct '%s' by 14.2", in);
+	pid_t pid = fork();
+	assert_true(pid >= 0);
+	if (pid == 0) {
+		int s = open(slave, O_RDWR);
+		int fe = open(errp, O_WRONLY | O_CREAT | O_TRUNC, 0644);
+		if (s < 0 || fe < 0)
+			_exit(126);
+		dup2(s, 1);
+		dup2(fe, 2);
+		setenv("IONMIX_DB", "/nonexistent/ionmix-test.db", 1);
+		execl(bin, bin, "-e", expr, (char *)NULL);
+		_exit(127);
+	}
+	int st;
+	assert_int_equal(waitpid(pid, &st, 0), pid);
+	close(m);
+	assert_true(WIFEXITED(st));
+	assert_int_equal(WEXITSTATUS(st), 1);
+	char *b = read_file(errp, &len);
+	assert_contains(b, "too much for the terminal");
+	assert_contains(b, "`to OUT`");
+	assert_int_equal(strchr(b, '\n') - b + 1, (long)len);   /* one line */
+	free(b);
+	unlink(errp);
+	unlink(in);
+}
+
 /* ---- metadata lines, recording configurations, standard streams ------- */
 
 /* corr_stream on a string with every option; output (malloc'd) or NULL. */
@@ -1595,6 +1651,7 @@ int main(void)
 		cmocka_unit_test(test_boundaries),
 		cmocka_unit_test(test_fast_path_same),
 		cmocka_unit_test(test_write_error),
+		cmocka_unit_test(test_tty_refusal),
 		cmocka_unit_test(test_metadata),
 		cmocka_unit_test(test_configs),
 		cmocka_unit_test(test_std_streams),
