@@ -17,6 +17,7 @@
 #include "common.h"
 #include "correct.h"
 #include "junction.h"
+#include "signals.h"
 
 #define CONVENTION "Vm = Vrecorded - LJP"
 
@@ -262,6 +263,9 @@ int cmd_correct(im_ctx *ctx, int argc, char **argv, char *err)
 			       "inside-out|cell-attached], or correct value MV... by MV");
 	if (strcmp(argv[1], "value") == 0)
 		return correct_values(ctx, argc, argv, err);
+	/* a Ctrl-C typed at the prompt before this command does not cancel it
+	 * (the shell clears the flag before each command too; signals.h) */
+	sig_clear();
 	for (int i = 2; i < argc; i++) {
 		const char *w = argv[i];
 		int more = argc - 1 - i;
