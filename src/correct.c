@@ -1274,6 +1274,12 @@ static int fast_run(eng *e, const char **pp, int *colp)
 	long rows = 0, corrected = 0, line = e->line;
 	int rc = 0, col = 1;
 	const char *fs = p;
+	/* one corrected column, the common case: its number and LJP in
+	 * locals, which stores into the output buffer cannot alias */
+	const int one = e->r->ncols == 1 ? e->r->cols[0].index : 0;
+	ljp_prep lp1;
+	if (one)
+		lp1 = e->prep[0];
 
 	while (p < end) {
 		if (*p == '\n' || (*p == '\r' && p[1] == '\n')) {
@@ -1287,11 +1293,11 @@ static int fast_run(eng *e, const char **pp, int *colp)
 			const char *fe;
 			if (*fs == '"')
 				goto out;
-			if (col <= maxcol && e->corr[col - 1]) {
+			if (one ? col == one : col <= maxcol && e->corr[col - 1]) {
 				num m;
 				const char *ne = plain_fast(fs, end, &m);
 				if (ne && (*ne == delim || *ne == '\n' || (*ne == '\r' && ne[1] == '\n'))) {
-					const ljp_prep *lp = &e->prep[e->corr[col - 1] - 1];
+					const ljp_prep *lp = one ? &lp1 : &e->prep[e->corr[col - 1] - 1];
 					size_t n = (size_t)(fs - span);
 					if (WR_CAP - wl < n + 16 + NUM_OUT_MAX) {
 						e->wl = wl;
