@@ -86,6 +86,10 @@ static double python_us(void)
 		return -1;
 	if (fscanf(p, "%lf us/call", &us) != 1)
 		us = -1;
+	/* read to the end: closing early would break the pipe under Python's
+	 * last write (its newline, written apart with PYTHONUNBUFFERED set) */
+	while (fgetc(p) != EOF)
+		;
 	if (pclose(p) != 0)
 		return -1;
 	return us;
