@@ -7,6 +7,14 @@
  * of the buffer is rescanned after the buffer is refilled with that field at
  * its start; CORR_FIELD_MAX bounds how much is kept.  The rules are in
  * correct.h.
+ *
+ * Two loops share that state.  fast_run takes plain records (no quoted
+ * field, no NUL, inside the buffer) as many as come in a row and does the
+ * common cell with the least work (plain_fast, fix_plain); at anything else
+ * it stops at the start of a field and the general per-field loop in run()
+ * (scan, do_cell) takes over, and hands back at the next record.  Both
+ * write the same bytes (test_fast_path_same).  Past one write buffer of
+ * output a writer thread writes full buffers while the next one fills.
  */
 #include "correct.h"
 
@@ -272,7 +280,8 @@ static inline int ndig_fast(uint64_t u)
 /* Print R (magnitude) with D decimals in the style of m, then m's exponent
  * text: the layout of emit, written in place from the right two digits at
  * a time. */
-static inline __attribute__((always_inline)) int emit_u64(char *out, uint64_t R, int D, int neg, const num *m)
+static inline __attribute__((always_inline)) int emit_u64(char *out, uint64_t R, int D,
+							   int neg, const num *m)
 {
 	size_t el = (size_t)(m->epe - m->ep);
 	int nd = R ? ndig_fast(R) : 0;
@@ -1430,25 +1439,8 @@ static int run(eng *e, const char *p)
 				if (col <= e->maxcol && e->corr[col - 1] &&
 				    do_cell(e, &f, e->line, col) < 0)
 					return -1;
-				if (at_end) {
-					e->r->rows++;
-					if (col < e->maxcol) {
-						int missing = 0, first = 0;
-						for (int i = e->r->ncols - 1; i >= 0; i--)
-							if (e->r->cols[i].index > col) {
-								missing++;
-								first = e->r->cols[i].index;
-							}
-						if (!e->o->skip_bad)
-							return im_fail(e->err, "%s:%ld: row has %d field%s;"
-								       " column %d is missing (skip-bad copies such rows)",
-								       e->name, rec_line, col, col == 1 ? "" : "s",
-								       first);
-						e->r->ragged++;
-						e->r->bad += missing;
-						e->r->skipped += missing;
-					}
-				}
+				if (at_end && row_done(e, col, rec_line) < 0)
+					return -1;
 			}
 			e->line += f.nl;
 			if (!at_end) {

@@ -15,8 +15,8 @@
  * UTF-8 byte-order mark at the start is copied and ignored for matching.
  * A field may be at most CORR_FIELD_MAX bytes (quotes included) and the
  * first record at most CORR_FIRST_MAX bytes; longer ones stop with an error
- * naming the line and column.  Memory is bounded (two fixed buffers), so
- * files larger than memory work.  A NUL byte anywhere stops with "binary
+ * naming the line and column.  Memory is bounded (a read buffer and two
+ * write buffers, kept between runs), so files larger than memory work.  A NUL byte anywhere stops with "binary
  * file".  Lines are counted physically (a quoted newline starts a new line);
  * error positions are FILE:LINE:COLUMN with COLUMN the 1-based field number.
  *
