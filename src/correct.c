@@ -735,6 +735,7 @@ typedef struct eng {
 	char *wb;           /* WR_CAP bytes: the buffer being filled */
 	char *wb2;          /* the other one (in flight, or free) */
 	writer w;
+	int last;           /* 1: the run's last flush comes */
 	size_t wl;
 	int werr;           /* errno of a failed write, 0 if none */
 	long line;          /* line of the current position */
@@ -849,7 +850,10 @@ static void writer_stop(eng *e)
 static void w_flush(eng *e)
 {
 	if (e->wl && !e->werr) {
-		if (!e->w.started && !e->w.failed && e->wb2 && writer_start(e) != 0)
+		/* a thread only for an output that fills buffers, not for the
+		 * last (or only) flush of a run */
+		if (!e->w.started && !e->w.failed && !e->last && e->wb2 &&
+		    writer_start(e) != 0)
 			e->w.failed = 1;
 		if (e->w.started) {
 			writer *w = &e->w;
@@ -1909,6 +1913,7 @@ int corr_stream(FILE *in, const char *in_name, FILE *out, const corr_opts *o,
 	}
 	if (run(&e, start) < 0)
 		goto done;
+	e.last = 1;
 	w_put(&e, e.span, (size_t)(e.buf + e.len - e.span));
 	w_flush(&e);
 	writer_stop(&e);   /* every byte written before the verdict */
