@@ -1115,6 +1115,20 @@ static inline const char *plain_prefix(const char *s, const char *e, num *m)
 	return p;
 }
 
+/* "000\0" .. "999\0": three digits in one copy; filled on first use. */
+static char dig3[1000 * 4];
+
+static void dig3_init(void)
+{
+	if (dig3[3 * 4 + 2])
+		return;
+	for (int i = 0; i < 1000; i++) {
+		dig3[4 * i] = (char)('0' + i / 100);
+		dig3[4 * i + 1] = (char)('0' + i / 10 % 10);
+		dig3[4 * i + 2] = (char)('0' + i % 10);
+	}
+}
+
 /* Digits of u (u > 0). */
 static inline int ndig32(uint32_t u)
 {
@@ -1171,7 +1185,13 @@ static inline int fix_plain(const num *m, const ljp_prep *lp, char *out)
 	int minus = neg && r;
 	*o = minus ? '-' : '+';
 	o += minus | m->plus;
-	if (ip) {
+	if (ip && ip < 1000) {
+		/* one copy of three digits, the leading zeros skipped (the
+		 * bytes after the number are written over next) */
+		int n = 1 + (ip >= 10) + (ip >= 100);
+		memcpy(o, dig3 + 4 * ip + 3 - n, 4);
+		o += n;
+	} else if (ip) {
 		int n = ndig32(ip);
 		put_digits(o + n, ip, n);
 		o += n;
@@ -1180,7 +1200,15 @@ static inline int fix_plain(const num *m, const ljp_prep *lp, char *out)
 	}
 	if (D) {
 		*o++ = '.';
-		put_digits(o + D, fp, D);
+		int k = D;
+		for (; k >= 3; k -= 3) {
+			memcpy(o + k - 3, dig3 + 4 * (fp % 1000), 3);
+			fp /= 1000;
+		}
+		if (k == 2)
+			memcpy(o, dig2 + 2 * fp, 2);
+		else if (k == 1)
+			*o = (char)('0' + fp);
 		o += D;
 	} else if (m->dot) {
 		*o++ = '.';
@@ -1839,6 +1867,7 @@ int corr_stream(FILE *in, const char *in_name, FILE *out, const corr_opts *o,
 	e.err = err;
 	e.line = 1;
 	bufs_get(&e.buf, &e.wb, &e.wb2);
+	dig3_init();
 
 	errno = 0;
 	got = fread(e.buf, 1, RD_CAP, in);
