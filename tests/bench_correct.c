@@ -9,7 +9,9 @@
  * -120 and +80 mV (made-up numbers; only their format matters), in $TMPDIR
  * (or /tmp), removed at the end.
  *
- * Whole process, output redirected to a file, medians of ROUNDS rounds:
+ * Whole process, output redirected to a new file (on /dev/shm where there
+ * is one, so that disk writeback does not enter anyone's time), medians
+ * of ROUNDS rounds, and the best:
  *   cat FILE > OUT                                  the floor
  *   ionmix -e 'correct FILE by 14.2' > OUT          ($IONMIX, else build/ionmix)
  *   mawk -F, '{print $1","$2-14.2}' FILE > OUT     the peer (inexact: floats)
@@ -55,6 +57,12 @@ static double median(double *v, int n)
 	return n % 2 ? v[n / 2] : 0.5 * (v[n / 2 - 1] + v[n / 2]);
 }
 
+/* The smallest of v[0..n) (call after median: v is sorted). */
+static double best(const double *v)
+{
+	return v[0];
+}
+
 static int generate(const char *path, long rows)
 {
 	FILE *fp = fopen(path, "wb");
@@ -79,6 +87,9 @@ static int generate(const char *path, long rows)
  * child's peak resident memory. */
 static double run(char *const argv[], const char *out_path, long *rss_kb)
 {
+	/* a fresh file for each contender: truncating the last one's 174 MB
+	 * is not part of anyone's time */
+	unlink(out_path);
 	double t0 = now_s();
 	pid_t pid = fork();
 	if (pid < 0)
@@ -155,7 +166,13 @@ int main(void)
 		bin = "build/ionmix";
 	snprintf(path, sizeof path, "%s/ionmix_bench_correct_%ld.csv", tmp && *tmp ? tmp : "/tmp",
 		 (long)getpid());
-	snprintf(out, sizeof out, "%s.out", path);
+	/* the outputs on a tmpfs where there is one: no disk writeback in
+	 * anyone's time, only the work and the copies */
+	struct stat sh;
+	if (stat("/dev/shm", &sh) == 0 && S_ISDIR(sh.st_mode) && access("/dev/shm", W_OK) == 0)
+		snprintf(out, sizeof out, "/dev/shm/ionmix_bench_correct_%ld.out", (long)getpid());
+	else
+		snprintf(out, sizeof out, "%s.out", path);
 	if (generate(path, rows) != 0 || stat(path, &st) != 0) {
 		fprintf(stderr, "bench_correct: cannot write %s\n", path);
 		unlink(path);
@@ -201,9 +218,12 @@ int main(void)
 	double mb = (double)st.st_size / 1e6;
 	double cat = median(t_cat, ROUNDS), ion = median(t_ion, ROUNDS);
 	double ci = median(c_ion, ROUNDS), cf = median(c_floor, ROUNDS);
-	printf("bench|correct, %.0e rows (%.0f MB), whole process > file|%.0f ms (%.0f MB/s)"
+	printf("bench|correct, %.0e rows (%.0f MB), whole process > file, median|%.0f ms (%.0f MB/s)"
 	       "|<= 2.5x cat|%.2fx cat\n", (double)rows, mb, ion * 1e3, mb / ion, ion / cat);
-	printf("bench|cat FILE > OUT, same file (the I/O floor)|%.0f ms|-|-\n", cat * 1e3);
+	printf("bench|correct, same, best of %d|%.0f ms|<= 2.5x cat|%.2fx cat (best)\n", ROUNDS,
+	       best(t_ion) * 1e3, best(t_ion) / best(t_cat));
+	printf("bench|cat FILE > OUT, same file (the I/O floor), median|%.0f ms (best %.0f ms)|-|-\n",
+	       cat * 1e3, best(t_cat) * 1e3);
 	if (n_mawk) {
 		double mk = median(t_mawk, n_mawk);
 		printf("bench|correct against mawk, whole process > file|%.0f ms mawk|<= 0.1x mawk"
