@@ -5,10 +5,13 @@
 #include "cmd_correct.h"
 #include "cmd_junction.h"
 
+#include <errno.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
+#include <unistd.h>
 
 #include "cmd_core.h"
 #include "common.h"
@@ -19,6 +22,7 @@
 #include "nwb.h"
 
 #include <time.h>
+#include "signals.h"
 
 #define CONVENTION "Vm = Vrecorded - LJP"
 
@@ -192,6 +196,10 @@ static void report(out *o, const ljp_src *src, double t_C, const char *in,
 	if (o->json) {
 		jw w;
 		jw_begin(&w, o);
+		jw_str(&w, "configuration", corr_config_name(r->config));
+		jw_str(&w, "formula", corr_config_formula(r->config));
+		jw_int(&w, "metadata_lines", r->meta);
+		jw_bool(&w, "comment_line", r->comment);
 		jw_int(&w, "rows", r->rows);
 		jw_int(&w, "corrected", r->corrected);
 		jw_int(&w, "skipped", r->skipped);
@@ -217,7 +225,8 @@ static void report(out *o, const ljp_src *src, double t_C, const char *in,
 		return;
 	}
 	say_ljp(o, src, t_C);
-	out_printf(o, "%s -> %s: subtracted from column%s", in, outp ? outp : "standard output",
+	out_printf(o, "%s -> %s: corrected column%s", strcmp(in, "-") ? in : "standard input",
+		   outp && strcmp(outp, "-") ? outp : "standard output",
 		   r->ncols == 1 ? "" : "s");
 	for (int i = 0; i < r->ncols; i++) {
 		const corr_column *c = &r->cols[i];
@@ -227,8 +236,11 @@ static void report(out *o, const ljp_src *src, double t_C, const char *in,
 		out_printf(o, " (%s%s)", unit_name(c), c->unit_assumed ? ", assumed" : "");
 	}
 	out_printf(o, "\n");
-	out_printf(o, "sign: %s (LJP: the bath relative to the pipette solution)\n",
-		   CONVENTION);
+	out_printf(o, "%s: %s (LJP: the bath relative to the pipette solution)\n",
+		   corr_config_name(r->config), corr_config_formula(r->config));
+	if (r->meta)
+		out_printf(o, "metadata lines kept before the header: %ld%s\n", r->meta,
+			   r->comment ? ", and a comment line recording the correction" : "");
 	out_printf(o, "rows %ld, corrected %ld, skipped %ld (not a number or missing %ld,"
 		   " ragged rows %ld), blank lines %ld\n", r->rows, r->corrected, r->skipped,
 		   r->bad, r->ragged, r->blank);
@@ -433,16 +445,24 @@ int cmd_correct(im_ctx *ctx, int argc, char **argv, char *err)
 {
 	const char *by = NULL, *pip = NULL, *bath = NULL, *to = NULL;
 	const char *cols[CORR_MAXCOLS];
-	int ncols = 0, skip_bad = 0;
+	int ncols = 0, skip_bad = 0, have_cfg = 0;
+	long skip = 0;
+	corr_config cfg = CORR_WHOLE_CELL;
 	ljp_src src;
 	corr_opts o;
 	corr_result r;
+	corr_about about;
+	char date[32];
 
 	if (argc < 2)
-		return im_fail(err, "usage: correct FILE [column N|NAME]... by MV|for PIPETTE"
-			       " BATH [to OUT] [skip-bad], or correct value MV... by MV");
+		return im_fail(err, "usage: correct FILE|- [column N|NAME]... by MV|for PIPETTE"
+			       " BATH [to OUT|-] [skip N] [skip-bad] [whole-cell|outside-out|"
+			       "inside-out|cell-attached], or correct value MV... by MV");
 	if (strcmp(argv[1], "value") == 0)
 		return correct_values(ctx, argc, argv, err);
+	/* a Ctrl-C typed at the prompt before this command does not cancel it
+	 * (the shell clears the flag before each command too; signals.h) */
+	sig_clear();
 	if (nwb_is_nwb(argv[1]))
 		return correct_nwb(ctx, argc, argv, err);
 	for (int i = 2; i < argc; i++) {
@@ -475,34 +495,77 @@ int cmd_correct(im_ctx *ctx, int argc, char **argv, char *err)
 			to = argv[++i];
 		} else if (strcmp(w, "skip-bad") == 0) {
 			skip_bad = 1;
+		} else if (strcmp(w, "skip") == 0) {
+			char *end;
+			if (more < 1)
+				return im_fail(err, "`skip` needs the number of metadata lines");
+			const char *n = argv[++i];
+			errno = 0;
+			skip = strtol(n, &end, 10);
+			if (!*n || *end || errno || skip < 0 || skip > CMD_CORRECT_SKIP_MAX ||
+			    n[0] == '+' || n[0] == ' ')
+				return im_fail(err, "`skip` takes a count of lines, 0 to %d, not"
+					       " '%.40s'", CMD_CORRECT_SKIP_MAX, n);
+		} else if (corr_config_parse(w, &cfg) == 0) {
+			if (have_cfg++)
+				return im_fail(err, "give one recording configuration");
 		} else {
-			return im_fail(err, "unexpected '%.40s'; expected column, by, for, to or"
-				       " skip-bad", w);
+			return im_fail(err, "unexpected '%.40s'; expected column, by, for, to,"
+				       " skip, skip-bad, whole-cell, outside-out, inside-out or"
+				       " cell-attached", w);
 		}
 	}
 	if (get_ljp(ctx, by, pip, bath, &src, err) < 0)
 		return -1;
+	memset(&about, 0, sizeof about);
+	about.temperature_C = NAN;
+	if (src.henderson) {
+		about.pipette = src.pip;
+		about.bath = src.bath;
+		about.model = "Henderson (concentrations), rounded to 0.1 mV";
+		about.temperature_C = ctx->temp_C;
+	}
+	corr_about_stamp(&about, date, sizeof date);
 	memset(&o, 0, sizeof o);
 	o.columns = cols;
 	o.ncolumns = ncols;
 	o.ljp = src.ljp;
 	o.skip_bad = skip_bad;
+	o.skip = skip;
+	o.config = cfg;
+	o.comment = 1;
+	o.about = &about;
 
-	if (to) {
+	if (to && strcmp(to, "-") != 0) {
 		if (corr_file(argv[1], to, NULL, &o, &r, err) < 0)
 			return -1;
-		char *note = im_xmalloc(strlen(to) + sizeof CORR_NOTE_SUFFIX);
-		sprintf(note, "%s%s", to, CORR_NOTE_SUFFIX);
+		char *note = NULL;
+		if (r.note) {
+			note = im_xmalloc(strlen(to) + sizeof CORR_NOTE_SUFFIX);
+			sprintf(note, "%s%s", to, CORR_NOTE_SUFFIX);
+		}
 		report(ctx->out, &src, ctx->temp_C, argv[1], to, note, &r);
 		free(note);
 		return 0;
+	}
+	/* to the result stream: a large file is not poured onto a terminal
+	 * unless asked for with `to -` */
+	if (!to && isatty(fileno(ctx->out->fp))) {
+		struct stat st;
+		int fd = strcmp(argv[1], "-") == 0 ? STDIN_FILENO : -1;
+		int big = fd >= 0 ? fstat(fd, &st) == 0 : stat(argv[1], &st) == 0;
+		if (big && S_ISREG(st.st_mode) && st.st_size > CMD_CORRECT_TTY_MAX)
+			return im_fail(err, "%s is %.1f MB, too much for the terminal: add"
+				       " `to OUT` to write a file (or `to -` to print it anyway)",
+				       fd >= 0 ? "standard input" : argv[1],
+				       (double)st.st_size / 1e6);
 	}
 	if (corr_file(argv[1], NULL, ctx->out->fp, &o, &r, err) < 0)
 		return -1;
 	/* the data went to the result stream: the summary goes beside it */
 	out side = *ctx->out;
 	side.fp = ctx->out->errfp;
-	report(&side, &src, ctx->temp_C, argv[1], NULL, NULL, &r);
+	report(&side, &src, ctx->temp_C, argv[1], "-", NULL, &r);
 	fflush(side.fp);
 	return 0;
 }

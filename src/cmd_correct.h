@@ -3,8 +3,14 @@
  * potential from recorded voltages, Vm = Vrecorded - LJP (LJP: the bath
  * relative to the pipette solution, in mV).  A handler of type cmd_fn
  * (command.h); it changes nothing in the workspace.  Synopses:
- *   correct FILE [column N|NAME]... by MV|for PIPETTE BATH [to OUT] [skip-bad]
+ *   correct FILE|- [column N|NAME]... by MV|for PIPETTE BATH [to OUT|-]
+ *           [skip N] [skip-bad] [whole-cell|outside-out|inside-out|cell-attached]
  *   correct value MV [MV...] by MV|for PIPETTE BATH
+ * FILE `-` is standard input; `to -` standard output.  `skip N` keeps the
+ * first N lines verbatim as metadata (lines starting with '#' always are);
+ * the configuration chooses the form of the correction (correct.h), and
+ * defaults to whole-cell.  Without `to`, a regular file larger than
+ * CMD_CORRECT_TTY_MAX bytes is refused when the output is a terminal.
  *   correct FILE.nwb by MV|for PIPETTE BATH [series NAME...] [to OUT.nwb] [again]
  * `by MV` gives the LJP; `for PIPETTE BATH` computes it from two solutions
  * of the workspace with the Henderson equation (concentrations, at the
@@ -24,6 +30,10 @@
 
 /* Decimals the LJP from `for PIPETTE BATH` is rounded to (0.1 mV). */
 #define CMD_CORRECT_HENDERSON_DECIMALS 1
+/* Largest input poured onto a terminal without `to` (bytes). */
+#define CMD_CORRECT_TTY_MAX (256L * 1024)
+/* Largest `skip N`. */
+#define CMD_CORRECT_SKIP_MAX 1000000
 
 int cmd_correct(im_ctx *ctx, int argc, char **argv, char *err);
 

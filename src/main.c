@@ -15,6 +15,7 @@
 #include "command.h"
 #include "common.h"
 #include "refdb.h"
+#include "signals.h"
 #include "shell.h"
 #include "userdb.h"
 #include "version.h"
@@ -128,6 +129,7 @@ int main(int argc, char **argv)
 		goto out;
 	}
 	ctx_init(&ctx, ref, &o);
+	sig_install(nact == 0 && isatty(STDIN_FILENO) && isatty(STDOUT_FILENO) && !o.json);
 	if (ctx_load_chemistry(&ctx, err)) {
 		fprintf(stderr, "ionmix: equilibria data do not load: %s\n", err);
 		ctx_free(&ctx);

@@ -72,6 +72,10 @@ static double python_us(void)
 	double us = -1;
 	if (fscanf(p, "%lf us/solve", &us) != 1)
 		us = -1;
+	/* read to the end: closing early would break the pipe under Python's
+	 * last write (its newline, written apart with PYTHONUNBUFFERED set) */
+	while (fgetc(p) != EOF)
+		;
 	if (pclose(p) != 0)
 		return -1;
 	return us;
