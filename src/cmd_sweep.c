@@ -5,14 +5,16 @@
  * neither).  The plots are plot.c's, as for `iv`.
  *
  *   sweep COMPOUND FROM to TO [UNIT] [in SOLUTION] show QUANTITY [activities]
- *         [points N] [svg FILE] [csv FILE] [plain]
+ *         [keep-pH] [points N] [svg FILE] [csv FILE] [plain]
  *   sweep temp FROM to TO [C] [in SOLUTION] show QUANTITY ...
  *
  * QUANTITY: pH | free METAL | osmolality | ionic-strength
  *         | nernst ION INSIDE OUTSIDE | ljp PIPETTE BATH
  *         | erev INSIDE OUTSIDE ION=P [ION=P ...]
  * The compound is varied in SOLUTION (default: the current solution), on a
- * copy; one-solution quantities read that solution.
+ * copy; one-solution quantities read that solution.  Other amounts stay as
+ * made, the titrant too, unless keep-pH titrates the varied solution again
+ * to its target pH at each point.
  */
 #include "cmd_sweep.h"
 
@@ -47,7 +49,7 @@ typedef struct sw_opts {
 static int is_keyword(const char *w)
 {
 	static const char *const kw[] = {"points", "svg", "csv", "plain", "in",
-					 "activities", "show"};
+					 "activities", "show", "keep-pH"};
 	for (size_t i = 0; i < IM_COUNT(kw); i++)
 		if (strcmp(w, kw[i]) == 0)
 			return 1;
@@ -353,6 +355,9 @@ int cmd_sweep(im_ctx *ctx, int argc, char **argv, char *err)
 		} else if (strcmp(a, "activities") == 0) {
 			sp.activities = 1;
 			i++;
+		} else if (im_strcaseeq(a, "keep-pH")) {
+			sp.keep_pH = 1;
+			i++;
 		} else if (strcmp(a, "plain") == 0) {
 			o.plain = 1;
 			i++;
@@ -377,7 +382,7 @@ int cmd_sweep(im_ctx *ctx, int argc, char **argv, char *err)
 			i += 2;
 		} else {
 			return im_fail(err, "unexpected '%.40s' (expected show, in, points, "
-				       "svg, csv, plain or activities)", a);
+				       "svg, csv, plain, activities or keep-pH)", a);
 		}
 	}
 	if (!o.have_show)
@@ -407,8 +412,8 @@ int cmd_sweep(im_ctx *ctx, int argc, char **argv, char *err)
 			px[np] = r.x[k];
 			py[np++] = f * r.y[k];
 		}
-	char xlab[128], ylab[160], ylab_svg[160], title[224], cond[4][120];
-	const char *notes[4];
+	char xlab[128], ylab[160], ylab_svg[160], title[224], cond[5][120];
+	const char *notes[5];
 	int nn = 0;
 	snprintf(xlab, sizeof xlab, "%s (%s)", r.x_name,
 		 sp.var == SWEEP_TEMP ? (utf8 ? "\u00b0C" : "C") : "mM");
@@ -434,8 +439,12 @@ int cmd_sweep(im_ctx *ctx, int argc, char **argv, char *err)
 		snprintf(cond[nn++], sizeof cond[0], "from %s%s",
 			 sp.activities ? "activities" : "concentrations",
 			 sp.qty == SWQ_LJP ? ", Henderson" : "");
-	if (sp.var == SWEEP_AMOUNT)
-		snprintf(cond[nn++], sizeof cond[0], "other amounts held as made");
+	if (sp.keep_pH)
+		snprintf(cond[nn++], sizeof cond[0], "titrated again to the target pH "
+			 "at each point");
+	else if (sp.var == SWEEP_AMOUNT)
+		snprintf(cond[nn++], sizeof cond[0], "other amounts, titrant too, held "
+			 "as made");
 	for (int k = 0; k < nn; k++)
 		notes[k] = cond[k];
 	plot_curve c = {r.y_short, px, py, np};
@@ -517,6 +526,11 @@ int cmd_sweep(im_ctx *ctx, int argc, char **argv, char *err)
 		}
 		jw_close(&w);
 		jw_int(&w, "failed_points", r.nfail);
+		jw_bool(&w, "keep_pH", sp.keep_pH);
+		if (isfinite(r.pH_lo)) {
+			jw_num(&w, "pH_min", r.pH_lo, 6);
+			jw_num(&w, "pH_max", r.pH_hi, 6);
+		}
 		if (o.svg)
 			jw_str(&w, "svg", o.svg);
 		if (o.csv)
@@ -545,6 +559,12 @@ int cmd_sweep(im_ctx *ctx, int argc, char **argv, char *err)
 		if (r.nfail)
 			out_printf(ctx->out, "  %d of %d points could not be computed\n",
 				   r.nfail, r.n);
+		if (!sp.keep_pH && sp.var == SWEEP_AMOUNT && isfinite(sp.target->ph_target)
+		    && isfinite(r.pH_lo) && r.pH_hi - r.pH_lo > 0.05)
+			out_printf(ctx->out, "  note: the pH of %s moves from %.2f to %.2f over "
+				   "the sweep (its titrant held as made); add keep-pH to "
+				   "titrate it again to pH %.2f at each point\n",
+				   sp.target->name, r.pH_lo, r.pH_hi, sp.target->ph_target);
 		out_printf(ctx->out, "\n");
 		if (np >= 2) {
 			char *buf = NULL;

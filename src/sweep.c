@@ -26,6 +26,21 @@ static int is_pair(sweep_qty q)
 	return q == SWQ_NERNST || q == SWQ_LJP || q == SWQ_EREV;
 }
 
+/* The titrant item of s, or NULL. */
+static const sol_item *titrant_of(const solution *s)
+{
+	for (int i = 0; i < s->n; i++)
+		if (s->items[i].titrant)
+			return &s->items[i];
+	return NULL;
+}
+
+/* 1 when s would be titrated again under keep_pH. */
+static int retitrates(const solution *s)
+{
+	return isfinite(s->ph_target) && titrant_of(s) && !(s->co2_frac > 0);
+}
+
 int sweep_check(const sweep_spec *sp, char *err)
 {
 	if (!sp)
@@ -81,6 +96,18 @@ int sweep_check(const sweep_spec *sp, char *err)
 				return im_fail(err, "permeability %d is not a number >= 0",
 					       i + 1);
 	}
+	if (sp->keep_pH) {
+		const solution *a = is_pair(sp->qty) ? sp->inside : sp->sol;
+		const solution *b = is_pair(sp->qty) ? sp->outside : NULL;
+		const solution *v = sp->var == SWEEP_AMOUNT ? sp->target : NULL;
+		int any = v ? retitrates(v) : retitrates(a) || (b && retitrates(b));
+		if (!any)
+			return im_fail(err, "keep-pH: %s was not titrated (use `ph TARGET "
+				       "with TITRANT` first)", v ? v->name : a->name);
+		if (v && titrant_of(v)->c == sp->compound)
+			return im_fail(err, "keep-pH: %s is the titrant of %s; vary "
+				       "something else", sp->compound->name, v->name);
+	}
 	if (sp->var == SWEEP_AMOUNT) {
 		const solution *a = is_pair(sp->qty) ? sp->inside : sp->sol;
 		const solution *b = is_pair(sp->qty) ? sp->outside : NULL;
@@ -89,6 +116,44 @@ int sweep_check(const sweep_spec *sp, char *err)
 				       "reads (it reads %s%s%s)", sp->compound->name,
 				       sp->target->name, is_pair(sp->qty) ? "pair" : "quantity",
 				       a->name, b ? " and " : "", b ? b->name : "");
+	}
+	return 0;
+}
+
+#define MAX_YIELD 16
+
+/* Titrate s again to its target pH with its titrant, as `ph TARGET with
+ * TITRANT` does: the old titrant out, spec_titrate on what is left, the
+ * new amount in as the titrant item (its stock kept). */
+static int retitrate(solution *s, const sol_env *env, char *err)
+{
+	spec_in in[SPEC_MAX_IN], tit[MAX_YIELD];
+	spec_cond cond;
+	spec_result *res;
+	const sol_item *t = titrant_of(s);
+	const rd_compound *c = t->c;
+	double stock = t->stock_mM, amount = 0;
+	int n, nt = 0, rc;
+	if (!env->chem)
+		return im_fail(err, "no titration without the equilibrium data");
+	sol_remove(s, c);
+	if ((n = sol_spec_inputs(s, 1, in, SPEC_MAX_IN, err)) < 0)
+		return -1;
+	for (int k = 0; k < c->nyields && nt < MAX_YIELD; k++)
+		tit[nt++] = (spec_in){c->yields[k].ion->symbol, c->yields[k].ion->z,
+				      c->yields[k].count};
+	sol_spec_cond(s, env, &cond);
+	cond.mode = SPEC_PH_FIXED;
+	cond.pH = s->ph_target;
+	res = im_xmalloc(sizeof *res);
+	rc = spec_titrate(env->chem, in, n, &cond, tit, nt, &amount, res, err);
+	free(res);
+	if (rc)
+		return -1;
+	if (amount > 1e-9) {
+		sol_add(s, c, amount);
+		sol_find(s, c)->titrant = 1;
+		sol_find(s, c)->stock_mM = stock;
 	}
 	return 0;
 }
@@ -240,7 +305,7 @@ int sweep_run(const sweep_spec *sp, const sol_env *env, sweep_result *r,
 {
 	side s[2];
 	int ns, rc = -1;
-	solution work;
+	solution work, cp;
 	int have_work = 0;
 	char why[IM_ERRLEN];
 	memset(r, 0, sizeof *r);
@@ -268,6 +333,7 @@ int sweep_run(const sweep_spec *sp, const sol_env *env, sweep_result *r,
 		have_work = 1;
 	}
 	r->n = sp->npts;
+	r->pH_lo = r->pH_hi = NAN;
 	r->x = im_xmalloc((size_t)r->n * sizeof *r->x);
 	r->y = im_xmalloc((size_t)r->n * sizeof *r->y);
 	r->why = im_xcalloc((size_t)r->n, sizeof *r->why);
@@ -290,9 +356,28 @@ int sweep_run(const sweep_spec *sp, const sol_env *env, sweep_result *r,
 		for (int k = 0; k < ns && ok; k++) {
 			const solution *src = have_work && s[k].sol == sp->target ? &work
 				: s[k].sol;
+			int fail = 0, tit = 0;
 			if (!s[k].varies) {
 				st[k] = s[k].st;
-			} else if (sol_compute(src, &e, &st[k], why)) {
+			} else {
+				if (sp->keep_pH && retitrates(src)) {
+					/* titrated again on a copy of this point */
+					sol_copy(&cp, src, src->name);
+					tit = 1;
+					fail = retitrate(&cp, &e, why);
+					src = &cp;
+				}
+				fail = fail || sol_compute(src, &e, &st[k], why);
+				if (tit)
+					sol_free(&cp);
+				if (!fail && st[k].chem && isfinite(st[k].pH)) {
+					if (!(st[k].pH >= r->pH_lo))
+						r->pH_lo = st[k].pH;
+					if (!(st[k].pH <= r->pH_hi))
+						r->pH_hi = st[k].pH;
+				}
+			}
+			if (fail) {
 				/* states 0..k-1 computed here are freed below */
 				for (int j = 0; j < k; j++)
 					if (s[j].varies)

@@ -63,6 +63,11 @@ typedef struct sweep_spec {
 	double perm[SWEEP_MAX_PERM];            /* P, cm/s or relative, >= 0 */
 	int nperm;
 	int activities;              /* nernst, ljp, erev: activities, not totals */
+	int keep_pH;                 /* 1: each varied solution that was titrated
+				      * (`ph TARGET with TITRANT`) is titrated
+				      * again to its target at every point, as
+				      * `ph` after the change would; 0: the
+				      * titrant stays as made */
 } sweep_spec;
 
 /* One sweep.  Arrays owned (sweep_free). */
@@ -78,12 +83,15 @@ typedef struct sweep_result {
 	char y_name[120]; /* "free Ca2+ in kglu", "LJP kglu | bath" */
 	char y_key[64];   /* a short machine name: "pH", "free_Ca2+", "ljp" */
 	char y_short[48]; /* a legend label: "free Ca2+", "LJP", "E(K+)" */
+	double pH_lo, pH_hi; /* range of the pH of the varied solution(s)
+			      * over the points; NAN without speciation */
 } sweep_result;
 
 /* Check spec (names what is wrong: a range over nothing or backwards, a
  * pair quantity without its pair, a compound sweep that changes none of
  * the solutions the quantity reads, a temperature outside 0..60 C, bad
- * permeabilities).  0, or -1 with err. */
+ * permeabilities, keep_pH for a solution never titrated or when the
+ * compound varied is its titrant).  0, or -1 with err. */
 int sweep_check(const sweep_spec *spec, char *err);
 
 /* Run the sweep under env (its temperature is replaced point by point in
