@@ -76,7 +76,7 @@ static const cmd_def table[] = {
 	 3, ANY, cmd_ghk_iv, COMPL_SOLUTION, COMPL_ION, 0},
 	{"sweep", "COMPOUND|temp FROM to TO [UNIT] [in SOLUTION] show QUANTITY [keep-pH] [points N] [svg FILE] [csv FILE] [plain]",
 	 "follow pH, free Ca2+/Mg2+, osmolality, ionic strength, E, the LJP or E_rev over a range of an amount or the temperature",
-	 7, ANY, cmd_sweep, COMPL_COMPOUND, COMPL_SOLUTION, 0},
+	 6, ANY, cmd_sweep, COMPL_COMPOUND, COMPL_SOLUTION, 0},
 	{"review", "PIPETTE BATH", "the checks to run before mixing, each with a verdict and its number",
 	 2, 2, cmd_review, COMPL_SOLUTION, COMPL_SOLUTION, 0},
 	{"weigh", "VOLUME [mL|L]", "bench sheet: what to weigh or pipette for the current solution",
