@@ -440,11 +440,9 @@ int cmd_sweep(im_ctx *ctx, int argc, char **argv, char *err)
 			 sp.activities ? "activities" : "concentrations",
 			 sp.qty == SWQ_LJP ? ", Henderson" : "");
 	if (sp.keep_pH)
-		snprintf(cond[nn++], sizeof cond[0], "titrated again to the target pH "
-			 "at each point");
+		snprintf(cond[nn++], sizeof cond[0], "pH titrated again each point");
 	else if (sp.var == SWEEP_AMOUNT)
-		snprintf(cond[nn++], sizeof cond[0], "other amounts, titrant too, held "
-			 "as made");
+		snprintf(cond[nn++], sizeof cond[0], "amounts and titrant as made");
 	for (int k = 0; k < nn; k++)
 		notes[k] = cond[k];
 	plot_curve c = {r.y_short, px, py, np};

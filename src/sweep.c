@@ -79,6 +79,8 @@ int sweep_check(const sweep_spec *sp, char *err)
 				       "potential" : "a reversal potential");
 	} else if (!sp->sol) {
 		return im_fail(err, "no solution to follow");
+	} else if (sp->sol->n == 0 && sp->var == SWEEP_TEMP) {
+		return im_fail(err, "%s is empty: nothing to follow", sp->sol->name);
 	}
 	if ((sp->qty == SWQ_FREE || sp->qty == SWQ_NERNST) && !sp->ion)
 		return im_fail(err, "no ion given");
@@ -169,6 +171,8 @@ int sweep_value(const sweep_spec *sp, const sol_state *a, const sol_state *b,
 		double t_C, double *y, char *err)
 {
 	ghk_ion g[SWEEP_MAX_PERM];
+	if (!is_pair(sp->qty) && a->n == 0)
+		return im_fail(err, "the solution is empty at this point");
 	switch (sp->qty) {
 	case SWQ_PH:
 		if (!a->chem || !isfinite(a->pH))
