@@ -81,16 +81,20 @@ static int prepare(const plot_curve *c, int nc, const plot_opts *o, int yticks,
 				yhi = y;
 		}
 	}
-	if (!(xhi > xlo))
-		return im_fail(err, "the x values span no range");
+	if (!(xhi - xlo > 1e-9 * fmax(fabs(xlo), fabs(xhi))))
+		return im_fail(err, "the x values span no range (or too narrow a "
+			       "one to plot)");
 	if (o->has_mark && !isfinite(o->mark_x))
 		return im_fail(err, "the mark is not a finite number");
 	if (o->nnotes < 0 || o->nnotes > PLOT_MAX_NOTES || (o->nnotes && !o->notes))
 		return im_fail(err, "at most %d notes under the legend", PLOT_MAX_NOTES);
-	if (!(yhi > ylo)) {   /* a constant: a small range about it */
-		double d = fabs(yhi) > 0 ? 0.05 * fabs(yhi) : 1.0;
-		ylo -= d;
-		yhi += d;
+	double mag = fmax(fabs(ylo), fabs(yhi));
+	if (!(yhi - ylo > 1e-6 * mag)) {
+		/* a constant, or changes below 1e-6 of the value (rounding,
+		 * not a trend): a small range about the middle */
+		double mid = 0.5 * (ylo + yhi), d = mag > 0 ? 0.05 * mag : 1.0;
+		ylo = o->y_free ? mid - d : fmin(ylo, -d);
+		yhi = o->y_free ? mid + d : fmax(yhi, d);
 	}
 	if (!isfinite(yhi - ylo))
 		return im_fail(err, "the y values span too wide a range");

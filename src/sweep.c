@@ -53,6 +53,9 @@ int sweep_check(const sweep_spec *sp, char *err)
 		return im_fail(err, "the range %g to %g %s covers nothing: give a "
 			       "range from low to high", sp->from, sp->to,
 			       sp->var == SWEEP_TEMP ? "C" : "mM");
+	if (sp->to - sp->from < 1e-6 * fmax(fabs(sp->from), fabs(sp->to)))
+		return im_fail(err, "the range %g to %g is too narrow: widen it",
+			       sp->from, sp->to);
 	if (sp->npts < 2 || sp->npts > SWEEP_MAX_PTS)
 		return im_fail(err, "%d points: give 2 to %d", sp->npts, SWEEP_MAX_PTS);
 	if (sp->var == SWEEP_TEMP) {

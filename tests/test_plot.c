@@ -300,6 +300,16 @@ static void test_y_free_and_notes(void **st)
 	assert_non_null(strstr(s, "inside: pip &amp; &lt;x&gt;"));
 	assert_null(strstr(s, "stroke-width=\"1.2\"/>"));  /* no zero line */
 	free(s);
+	/* a curve flat to 1e-9 relative (rounding, not a trend) is drawn
+	 * flat in a range about its value, ticks and all */
+	for (int k = 0; k < NPT; k++)
+		y[k] = 5.000108545 + 1e-9 * k;
+	s = render(0, &c, 1, &o, &rc, err);
+	assert_int_equal(rc, 0);
+	free(s);
+	s = render(1, &c, 1, &o, &rc, err);
+	assert_int_equal(rc, 0);
+	free(s);
 	/* too many notes is refused */
 	o.nnotes = PLOT_MAX_NOTES + 1;
 	assert_int_equal(plot_term(stdout, &c, 1, &o, err), -1);

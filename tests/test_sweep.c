@@ -265,6 +265,11 @@ static void bad_specs(void **state)
 	sp.to = 1;
 	assert_int_equal(sweep_check(&sp, err), -1);
 	assert_non_null(strstr(err, "covers nothing"));
+	sp.from = 1;
+	sp.to = 1 + 1e-9;   /* too narrow to tabulate or plot */
+	assert_int_equal(sweep_check(&sp, err), -1);
+	assert_non_null(strstr(err, "too narrow"));
+	sp.from = 3;
 	sp.to = 10;
 	sp.qty = SWQ_LJP;   /* a pair quantity without its pair */
 	assert_int_equal(sweep_check(&sp, err), -1);
