@@ -228,17 +228,23 @@ static double conc_scale(const sweep_result *r, int utf8, const char **unit)
 	return 1e6;
 }
 
-/* Digits a value of this quantity deserves in the table. */
+/* Digits a value of this quantity deserves in the table, as the single
+ * commands print it: pH to 0.01 and osmolality to 1 mOsm/kg (show), the
+ * LJP to 0.1 mV (junction), potentials to 0.01 mV (nernst, erev); the
+ * CSV and JSON keep every digit for other programs. */
 static void fmt_y(char *b, size_t n, sweep_qty q, double v)
 {
 	switch (q) {
 	case SWQ_PH:
-		snprintf(b, n, "%.3f", v);
+		snprintf(b, n, "%.2f", v);
 		break;
 	case SWQ_OSMOLALITY:
-		snprintf(b, n, "%.1f", v);
+		snprintf(b, n, "%.0f", v);
 		break;
-	case SWQ_NERNST: case SWQ_LJP: case SWQ_EREV:
+	case SWQ_LJP:
+		snprintf(b, n, "%+.1f", v);
+		break;
+	case SWQ_NERNST: case SWQ_EREV:
 		snprintf(b, n, "%+.2f", v);
 		break;
 	default:

@@ -54,7 +54,7 @@ int sweep_check(const sweep_spec *sp, char *err)
 			       "range from low to high", sp->from, sp->to,
 			       sp->var == SWEEP_TEMP ? "C" : "mM");
 	if (sp->to - sp->from < 1e-6 * fmax(fabs(sp->from), fabs(sp->to)))
-		return im_fail(err, "the range %g to %g is too narrow: widen it",
+		return im_fail(err, "the range %.10g to %.10g is too narrow: widen it",
 			       sp->from, sp->to);
 	if (sp->npts < 2 || sp->npts > SWEEP_MAX_PTS)
 		return im_fail(err, "%d points: give 2 to %d", sp->npts, SWEEP_MAX_PTS);
