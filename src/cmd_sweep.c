@@ -410,7 +410,7 @@ int cmd_sweep(im_ctx *ctx, int argc, char **argv, char *err)
 		f = conc_scale(&r, utf8, &yunit);
 		conc_scale(&r, 1, &yunit_svg);
 	}
-	int ngood = r.n - r.nfail, np = 0;
+	int np = 0;
 	px = im_xmalloc((size_t)r.n * sizeof *px);
 	py = im_xmalloc((size_t)r.n * sizeof *py);
 	for (int k = 0; k < r.n; k++)
@@ -542,10 +542,9 @@ int cmd_sweep(im_ctx *ctx, int argc, char **argv, char *err)
 		jw_end(&w);
 	} else {
 		char xb[96], yb[96];
-		out_printf(ctx->out, "sweep: %s over %s, %g to %g %s, %d points%s\n",
+		out_printf(ctx->out, "sweep: %s over %s, %g to %g %s, %d points\n",
 			   r.y_name, r.x_name, sp.from, sp.to,
-			   sp.var == SWEEP_TEMP ? "C" : "mM", r.n,
-			   sp.var == SWEEP_AMOUNT ? "" : "");
+			   sp.var == SWEEP_TEMP ? "C" : "mM", r.n);
 		for (int k = 0; k < nn; k++)
 			out_printf(ctx->out, "  %s\n", cond[k]);
 		snprintf(xb, sizeof xb, "%s %s", sp.var == SWEEP_TEMP ? "temp"
@@ -608,7 +607,6 @@ int cmd_sweep(im_ctx *ctx, int argc, char **argv, char *err)
 				   "%s\n", sp.qty == SWQ_PH ? "pH" : "osmolality",
 				   sp.qty == SWQ_PH ? "pH meter" : "osmometer");
 	}
-	(void)ngood;
 	rc = 0;
 done:
 	free(px);
