@@ -15,6 +15,7 @@
 #include <unistd.h>
 
 #include "common.h"
+#include "fileio.h"
 #include "ghk.h"
 #include "junction.h"
 #include "plot.h"
@@ -496,12 +497,13 @@ static double cur_scale(double maxabs, int utf8, const char **unit)
 	return f;
 }
 
+/* What the CSV writes: the table rows, in the unit the other outputs use
+ * (A/cm2, or relative with the same scale as text, SVG and JSON). */
 typedef struct iv_out {
 	const ghk_iv_curve *iv;
 	const ghk_ion *x;
-	const plot_curve *c;
-	int nc;
-	const plot_opts *po;
+	double scale;     /* multiplies A/cm2 into the unit written */
+	const char *unit; /* column-name suffix: "A_cm2" or "relative" */
 } iv_out;
 
 /* RFC 4180: quote a field holding a comma, quote or line break. */
@@ -520,73 +522,27 @@ static void csv_field(FILE *fp, const char *s)
 	fputc('"', fp);
 }
 
-static int write_csv(FILE *fp, void *arg, char *err)
+static int write_csv(FILE *fp, const iv_out *a, char *err)
 {
-	const iv_out *a = arg;
 	const ghk_iv_curve *iv = a->iv;
 	char h[96];
-	fputs("V_mV,total_A_cm2", fp);
+	fprintf(fp, "V_mV,total_%s", a->unit);
 	for (int i = 0; i < iv->nions; i++) {
-		snprintf(h, sizeof h, "%s_A_cm2", a->x[i].symbol);
+		snprintf(h, sizeof h, "%s_%s", a->x[i].symbol, a->unit);
 		fputc(',', fp);
 		csv_field(fp, h);
 	}
 	fputs("\r\n", fp);
 	for (int k = 0; k < iv->npts; k++) {
-		fprintf(fp, "%.10g,%.10g", iv->V_mV[k], iv->total_A_cm2[k]);
+		fprintf(fp, "%.10g,%.10g", iv->V_mV[k], a->scale * iv->total_A_cm2[k]);
 		for (int i = 0; i < iv->nions; i++)
-			fprintf(fp, ",%.10g", iv->ion_A_cm2[(size_t)k * iv->nions + i]);
+			fprintf(fp, ",%.10g",
+				a->scale * iv->ion_A_cm2[(size_t)k * iv->nions + i]);
 		fputs("\r\n", fp);
 	}
 	if (ferror(fp))
 		return im_fail(err, "write error");
 	return 0;
-}
-
-static int write_svg(FILE *fp, void *arg, char *err)
-{
-	const iv_out *a = arg;
-	return plot_svg(fp, a->c, a->nc, a->po, err);
-}
-
-/* Write through a temporary file in the same directory and rename it into
- * place, so that a failed write leaves no partial file. */
-static int write_atomic(const char *path, int (*fn)(FILE *, void *, char *),
-			void *arg, char *err)
-{
-	size_t n = strlen(path);
-	char *tmp = im_xmalloc(n + 8);
-	snprintf(tmp, n + 8, "%s.XXXXXX", path);
-	int fd = mkstemp(tmp), rc = 0;
-	if (fd < 0) {
-		rc = im_fail(err, "cannot write %s: %s", path, strerror(errno));
-		free(tmp);
-		return rc;
-	}
-	mode_t um = umask(0);
-	umask(um);
-	fchmod(fd, 0666 & ~um);
-	FILE *fp = fdopen(fd, "w");
-	if (!fp) {
-		rc = im_fail(err, "cannot write %s: %s", path, strerror(errno));
-		close(fd);
-		unlink(tmp);
-		free(tmp);
-		return rc;
-	}
-	rc = fn(fp, arg, err);
-	if (fflush(fp) != 0 || ferror(fp) || fsync(fileno(fp)) != 0) {
-		if (rc == 0)
-			rc = im_fail(err, "cannot write %s: %s", path, strerror(errno));
-	}
-	if (fclose(fp) != 0 && rc == 0)
-		rc = im_fail(err, "cannot write %s: %s", path, strerror(errno));
-	if (rc == 0 && rename(tmp, path) != 0)
-		rc = im_fail(err, "cannot write %s: %s", path, strerror(errno));
-	if (rc)
-		unlink(tmp);
-	free(tmp);
-	return rc;
 }
 
 int cmd_ghk_iv(im_ctx *ctx, int argc, char **argv, char *err)
@@ -596,7 +552,7 @@ int cmd_ghk_iv(im_ctx *ctx, int argc, char **argv, char *err)
 	ghk_ion x[MAX_PERM];
 	ghk_iv_curve iv;
 	int rc = -1;
-	double *ys = NULL;
+	double *ys = NULL, *fine = NULL;
 	memset(&o, 0, sizeof o);
 	memset(&iv, 0, sizeof iv);
 	o.v1 = GHK_IV_V1_MV;
@@ -618,40 +574,58 @@ int cmd_ghk_iv(im_ctx *ctx, int argc, char **argv, char *err)
 	fill(&o, &ins, &outs, x);
 	if (ghk_iv(x, o.np, ctx->temp_C, o.v1, o.v2, o.dv, o.rect, &iv, err))
 		goto done;
+	/* the plots draw a fine grid, whatever the table step */
+	const int nf = GHK_IV_FINE_PTS;
+	fine = im_xmalloc((size_t)nf * (2 + (size_t)o.np) * sizeof *fine);
+	double *fV = fine, *ftot = fine + nf, *fion = fine + 2 * (size_t)nf;
+	if (ghk_iv_fill(x, o.np, ctx->temp_C, o.v1, o.v2, nf, fV, ftot, fion, err))
+		goto done;
 
-	/* curves in a display unit: total, then each ion (as many as fit) */
+	/* curves in a display unit: total, then each ion (as many as fit);
+	 * the largest current over the range is at one of its ends (each GHK
+	 * current rises with V), which the fine grid holds */
 	double maxabs = 0;
-	for (int k = 0; k < iv.npts; k++)
-		if (fabs(iv.total_A_cm2[k]) > maxabs)
-			maxabs = fabs(iv.total_A_cm2[k]);
-	for (size_t k = 0; k < (size_t)iv.npts * iv.nions; k++)
-		if (fabs(iv.ion_A_cm2[k]) > maxabs)
-			maxabs = fabs(iv.ion_A_cm2[k]);
+	for (size_t k = 0; k < (size_t)nf * (1 + (size_t)o.np); k++)
+		if (fabs(ftot[k]) > maxabs)
+			maxabs = fabs(ftot[k]);
 	int term_utf8 = ctx->out->utf8 && !o.plain;
 	const char *unit_t, *unit_svg;
 	double f = cur_scale(maxabs, term_utf8, &unit_t);
 	cur_scale(maxabs, 1, &unit_svg);
 	if (o.absolute != 1) {
-		/* relative permeabilities: the current is per unit of the P
-		 * given, in the same scale as if P were in cm/s */
+		/* relative permeabilities: the current has no absolute scale;
+		 * every output divides by the largest |current| on the range */
 		unit_t = unit_svg = "relative units";
 		f = maxabs > 0 ? 1.0 / maxabs : 1.0;
 	}
+	const char *rel_unit = "relative: largest |current| from V1 to V2 = 1";
 	/* one ion: its curve is the total, drawn once */
 	int nc = o.np == 1 ? 1
 		: 1 + (o.np < PLOT_MAX_CURVES - 1 ? o.np : PLOT_MAX_CURVES - 1);
 	char one[48];
 	snprintf(one, sizeof one, "total (%s)", x[0].symbol);
-	ys = im_xmalloc((size_t)nc * iv.npts * sizeof *ys);
+	ys = im_xmalloc((size_t)nc * nf * sizeof *ys);
 	plot_curve c[PLOT_MAX_CURVES];
 	for (int j = 0; j < nc; j++) {
-		double *y = ys + (size_t)j * iv.npts;
-		for (int k = 0; k < iv.npts; k++)
-			y[k] = f * (j == 0 ? iv.total_A_cm2[k]
-				    : iv.ion_A_cm2[(size_t)k * iv.nions + (j - 1)]);
+		double *y = ys + (size_t)j * nf;
+		for (int k = 0; k < nf; k++)
+			y[k] = f * (j == 0 ? ftot[k] : fion[(size_t)k * o.np + (j - 1)]);
 		c[j] = (plot_curve){j > 0 ? x[j - 1].symbol : nc == 1 ? one : "total",
-				    iv.V_mV, y, iv.npts};
+				    fV, y, nf};
 	}
+	/* the legend's conditions: the pair, the temperature, each P */
+	char nb[PLOT_MAX_NOTES][96];
+	const char *notes[PLOT_MAX_NOTES];
+	int nn = 0;
+	snprintf(nb[nn++], sizeof nb[0], "inside: %.80s", ins.sol->name);
+	snprintf(nb[nn++], sizeof nb[0], "outside: %.80s", outs.sol->name);
+	snprintf(nb[nn++], sizeof nb[0], "%.1f C, from %s", ctx->temp_C, basis(&o));
+	snprintf(nb[nn++], sizeof nb[0], "permeabilities (%s):",
+		 o.absolute == 1 ? "cm/s" : "relative");
+	for (int i = 0; i < o.np && nn < PLOT_MAX_NOTES; i++)
+		snprintf(nb[nn++], sizeof nb[0], "  P(%s) = %.4g", x[i].symbol, x[i].P);
+	for (int i = 0; i < nn; i++)
+		notes[i] = nb[i];
 	char mark[64], title[200], ylab_t[64], ylab_svg[64];
 	snprintf(mark, sizeof mark, "E_rev %+.1f mV", iv.E_rev_mV);
 	snprintf(title, sizeof title, "GHK current: %.64s inside, %.64s outside, "
@@ -666,35 +640,54 @@ int cmd_ghk_iv(im_ctx *ctx, int argc, char **argv, char *err)
 	po.has_mark = iv.has_erev;
 	po.mark_x = iv.E_rev_mV;
 	po.mark_label = mark;
+	po.notes = notes;
+	po.nnotes = nn;
 
-	if (o.svg) {
-		plot_opts ps = po;
-		ps.utf8 = 1;
-		ps.title = title;
-		ps.y_label = ylab_svg;
-		iv_out a = {&iv, x, c, nc, &ps};
-		if (write_atomic(o.svg, write_svg, &a, err))
-			goto done;
-	}
-	if (o.csv) {
-		iv_out a = {&iv, x, c, nc, &po};
-		if (write_atomic(o.csv, write_csv, &a, err))
+	/* both files, or neither */
+	if (o.svg || o.csv) {
+		fio_batch b;
+		FILE *fp;
+		fio_batch_init(&b);
+		if (o.svg) {
+			plot_opts ps = po;
+			ps.utf8 = 1;
+			ps.title = title;
+			ps.y_label = ylab_svg;
+			if (fio_batch_open(&b, o.svg, &fp, err) ||
+			    plot_svg(fp, c, nc, &ps, err)) {
+				fio_batch_abort(&b);
+				goto done;
+			}
+		}
+		if (o.csv) {
+			iv_out a = {&iv, x, o.absolute == 1 ? 1.0 : f,
+				    o.absolute == 1 ? "A_cm2" : "relative"};
+			if (fio_batch_open(&b, o.csv, &fp, err) || write_csv(fp, &a, err)) {
+				fio_batch_abort(&b);
+				goto done;
+			}
+		}
+		if (fio_batch_commit(&b, err))
 			goto done;
 	}
 
 	if (ctx->out->json) {
 		jw w;
 		json_head(&w, ctx, &ins, &outs, &o, x);
-		jw_str(&w, "current_unit", o.absolute == 1 ? "A/cm2"
-			: "A/cm2 per cm/s of the relative P given");
+		/* the same numbers and unit as the text table and the CSV */
+		double g = o.absolute == 1 ? 1.0 : f;
+		jw_str(&w, "permeability_unit", o.absolute == 1 ? "cm/s" : "relative");
+		jw_str(&w, "current_unit", o.absolute == 1 ? "A/cm2" : rel_unit);
+		if (o.absolute != 1)
+			jw_num(&w, "relative_unit_A_cm2_per_cm_s", maxabs, 8);
 		jw_arr(&w, "points");
 		for (int k = 0; k < iv.npts; k++) {
 			jw_obj(&w, NULL);
 			jw_num(&w, "mV", iv.V_mV[k], 10);
-			jw_num(&w, "total", iv.total_A_cm2[k], 10);
+			jw_num(&w, "total", g * iv.total_A_cm2[k], 10);
 			for (int i = 0; i < iv.nions; i++)
 				jw_num(&w, x[i].symbol,
-				       iv.ion_A_cm2[(size_t)k * iv.nions + i], 10);
+				       g * iv.ion_A_cm2[(size_t)k * iv.nions + i], 10);
 			jw_close(&w);
 		}
 		jw_close(&w);
@@ -718,8 +711,13 @@ int cmd_ghk_iv(im_ctx *ctx, int argc, char **argv, char *err)
 			   "%.1f C, from %s; %s\n", ins.sol->name,
 			   outs.sol->name, ctx->temp_C, basis(&o),
 			   o.absolute == 1 ? "P in cm/s, current in A/cm2"
-			   : "P relative, so the current is in relative units (scaled so "
-			     "the largest is 1; give P as K=1e-6cm/s for A/cm2)");
+			   : "P relative, current in relative units");
+		if (o.absolute != 1)
+			out_printf(ctx->out, "  note: permeabilities without a unit (%s=%g) are "
+				   "taken as relative: the current is scaled so that the "
+				   "largest |current| from %g to %g mV is 1 (the same in the "
+				   "CSV, SVG and JSON); give P as %s=%gcm/s for A/cm2\n",
+				   x[0].symbol, x[0].P, o.v1, o.v2, x[0].symbol, x[0].P);
 		out_printf(ctx->out, "  %8s %12s", "V mV", "total");
 		for (int i = 0; i < o.np; i++)
 			out_printf(ctx->out, " %12s", x[i].symbol);
@@ -771,6 +769,7 @@ int cmd_ghk_iv(im_ctx *ctx, int argc, char **argv, char *err)
 	rc = 0;
 done:
 	free(ys);
+	free(fine);
 	ghk_iv_free(&iv);
 	side_close(&ins);
 	side_close(&outs);

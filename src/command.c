@@ -16,6 +16,7 @@
 #include "cmd_ghk.h"
 #include "cmd_junction.h"
 #include "cmd_review.h"
+#include "cmd_sweep.h"
 #include "common.h"
 #include "userdb.h"
 
@@ -73,6 +74,9 @@ static const cmd_def table[] = {
 	{"iv", "INSIDE OUTSIDE ION=P [...] [from V1] [to V2] [step DV] [rect MV] [svg FILE] [csv FILE] [plain] [activities]",
 	 "GHK current-voltage curves, rectification and a plot (P in cm/s or relative)",
 	 3, ANY, cmd_ghk_iv, COMPL_SOLUTION, COMPL_ION, 0},
+	{"sweep", "COMPOUND|temp FROM to TO [UNIT] [in SOLUTION] show QUANTITY [keep-pH] [points N] [svg FILE] [csv FILE] [plain]",
+	 "follow pH, free Ca2+/Mg2+, osmolality, ionic strength, E, the LJP or E_rev over a range of an amount or the temperature",
+	 6, ANY, cmd_sweep, COMPL_COMPOUND, COMPL_SOLUTION, 0},
 	{"review", "PIPETTE BATH", "the checks to run before mixing, each with a verdict and its number",
 	 2, 2, cmd_review, COMPL_SOLUTION, COMPL_SOLUTION, 0},
 	{"weigh", "VOLUME [mL|L] [html FILE] [csv FILE] [prep C]",

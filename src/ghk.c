@@ -641,3 +641,38 @@ int ghk_iv(const ghk_ion *ions, int n, double t_C, double v1_mV, double v2_mV,
 		snprintf(iv->no_erev, sizeof iv->no_erev, "%s", why);
 	return 0;
 }
+
+int ghk_iv_fill(const ghk_ion *ions, int n, double t_C, double v1_mV,
+		double v2_mV, int npts, double *V_mV, double *total_A_cm2,
+		double *ion_A_cm2, char *err)
+{
+	int has_root;
+	char why[IM_ERRLEN];
+	if (!isfinite(v1_mV) || !isfinite(v2_mV) || !(v1_mV < v2_mV))
+		return im_fail(err, "voltage range: from %g must be below to %g mV",
+			       v1_mV, v2_mV);
+	if (npts < 2 || npts > GHK_IV_MAX_PTS)
+		return im_fail(err, "%d voltages: give 2 to %d", npts, GHK_IV_MAX_PTS);
+	if (!V_mV || !total_A_cm2)
+		return im_fail(err, "no arrays for the currents");
+	if (check_ions(ions, n, t_C, &has_root, why, err))
+		return -1;
+	for (int k = 0; k < npts; k++) {
+		/* the last point is v2 exactly, not v1 plus rounded steps */
+		double V = k == npts - 1 ? v2_mV
+			: v1_mV + (v2_mV - v1_mV) * k / (npts - 1), s = 0.0;
+		V_mV[k] = V;
+		for (int i = 0; i < n; i++) {
+			const ghk_ion *x = &ions[i];
+			double I = x->P > 0 ? ghk_current_A_cm2(x->z, x->P, x->in_mM,
+						x->out_mM, V, t_C) : 0.0;
+			if (ion_A_cm2)
+				ion_A_cm2[(size_t)k * n + i] = I;
+			s += I;
+		}
+		if (!isfinite(s))
+			return im_fail(err, "current not finite at %g mV", V);
+		total_A_cm2[k] = s;
+	}
+	return 0;
+}

@@ -119,4 +119,19 @@ int ghk_iv(const ghk_ion *ions, int n, double t_C, double v1_mV, double v2_mV,
 	   double dv_mV, double rect_mV, ghk_iv_curve *iv, char *err);
 void ghk_iv_free(ghk_iv_curve *iv);
 
+/* Points of the fine grid plots draw whatever the table step, so that a
+ * curve never shows the kinks of straight segments between table rows
+ * (0.375 mV apart over the default -120 to 60 mV). */
+#define GHK_IV_FINE_PTS 481
+
+/* Currents on npts (2 .. GHK_IV_MAX_PTS) evenly spaced voltages from v1_mV
+ * to v2_mV, both included (v1 < v2): V_mV[k], the sum total_A_cm2[k] and,
+ * when ion_A_cm2 is not NULL, each ion's current ion_A_cm2[k * n + i].
+ * The arrays are the caller's, with room for npts (npts * n) values.
+ * Checks the ions as ghk_erev_mV does (but a missing reversal potential
+ * is no error here); -1 with err on bad input or a non-finite current. */
+int ghk_iv_fill(const ghk_ion *ions, int n, double t_C, double v1_mV,
+		double v2_mV, int npts, double *V_mV, double *total_A_cm2,
+		double *ion_A_cm2, char *err);
+
 #endif

@@ -682,9 +682,37 @@ static void test_scipy_table(void **st)
 	assert_int_equal(ncases, 20);
 }
 
+/* The fine grid for plots: the ends exact (v2 included whatever the
+ * spacing), even spacing, each value the GHK current of ghk_current_A_cm2
+ * and the total their sum; bad ranges refused. */
+static void test_iv_fill(void **st)
+{
+	(void)st;
+	char err[IM_ERRLEN];
+	ghk_ion x[2] = {{"K+", 1, 1.0, 140, 5, }, {"Na+", 1, 0.05, 10, 145}};
+	enum { N = GHK_IV_FINE_PTS };
+	static double V[N], tot[N], ion[2 * N];
+	assert_int_equal(ghk_iv_fill(x, 2, 25, -100, 45, N, V, tot, ion, err), 0);
+	assert_true(V[0] == -100 && V[N - 1] == 45);
+	for (int k = 0; k < N; k++) {
+		assert_close(V[k], -100 + 145.0 * k / (N - 1), 0, 1e-9);
+		double a = ghk_current_A_cm2(1, 1.0, 140, 5, V[k], 25);
+		double b = ghk_current_A_cm2(1, 0.05, 10, 145, V[k], 25);
+		assert_close(ion[2 * k], a, 1e-15, 0);
+		assert_close(ion[2 * k + 1], b, 1e-15, 0);
+		assert_close(tot[k], a + b, 1e-12, 1e-30);
+		if (k > 0)   /* each GHK current rises with V */
+			assert_true(tot[k] > tot[k - 1]);
+	}
+	assert_int_equal(ghk_iv_fill(x, 2, 25, 10, 10, N, V, tot, NULL, err), -1);
+	assert_int_equal(ghk_iv_fill(x, 2, 25, -10, 10, 1, V, tot, NULL, err), -1);
+	assert_int_equal(ghk_iv_fill(x, 2, 25, -10, 10, N, V, tot, NULL, err), 0);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_iv_fill),
 		cmocka_unit_test(test_single_ion_is_nernst),
 		cmocka_unit_test(test_hodgkin_katz_squid),
 		cmocka_unit_test(test_numeric_vs_closed_mono),
