@@ -96,8 +96,10 @@ static const cmd_def table[] = {
 	 2, 2, cmd_export, COMPL_SOLUTION, COMPL_FILE, 0},
 	{"run", "FILE", "run the commands in FILE; stops at the first bad line",
 	 1, 1, cmd_run, COMPL_FILE, COMPL_NONE, 1},
-	{"correct", "FILE|- [column N|NAME]... by MV|for PIPETTE BATH [to OUT|-] [skip N] [skip-bad] [whole-cell|outside-out|inside-out|cell-attached] | value MV... by MV|for PIPETTE BATH | FILE.nwb by MV|for PIPETTE BATH [series NAME...] [to OUT.nwb] [again]",
-	 "subtract the LJP from recorded voltages, Vm = Vrecorded - LJP (CSV/TSV columns, values, NWB offsets)",
+	{"correct", "FILE|-|FILE.nwb|value MV... by MV|for PIPETTE BATH [to OUT] [OPTION]...",
+	 "subtract the LJP from recorded voltages, Vm = Vrecorded - LJP (CSV/TSV columns, values, NWB offsets); "
+	 "CSV options: column N|NAME, skip N, skip-bad, whole-cell|outside-out|inside-out|cell-attached, to -; "
+	 "NWB options: series NAME..., again",
 	 1, ANY, cmd_correct, COMPL_FILE, COMPL_FILE, 0},
 	{"info", "COMPOUND|ION", "reference data of a compound or ion, with sources",
 	 1, 1, cmd_info, COMPL_COMPOUND, COMPL_NONE, 0},
