@@ -12,7 +12,7 @@
 #include <stdlib.h>
 #include <string.h>
 
-#include "cmd_core.h"
+#include "session.h"
 #include "common.h"
 #include "units.h"
 
@@ -20,7 +20,7 @@
 
 static int need_chem(im_ctx *ctx, char *err)
 {
-	if (!ctx->chem || !ctx->osm)
+	if (!ctx->ses->chem || !ctx->ses->osm)
 		return im_fail(err, "the equilibria data are not loaded");
 	return 0;
 }
@@ -71,11 +71,11 @@ static int titrate(im_ctx *ctx, solution *s, double pH, const rd_compound *titra
 	if ((n = sol_spec_inputs(s, 1, in, SPEC_MAX_IN, err)) < 0)
 		return -1;
 	nt = yields_in(titrant, tit);
-	sol_spec_cond(s, ctx_env(ctx), &cond);
+	sol_spec_cond(s, ses_env(ctx->ses), &cond);
 	cond.mode = SPEC_PH_FIXED;
 	cond.pH = pH;
 	r = im_xmalloc(sizeof *r);
-	rc = spec_titrate(ctx->chem, in, n, &cond, tit, nt, amount_mM, r, err);
+	rc = spec_titrate(ctx->ses->chem, in, n, &cond, tit, nt, amount_mM, r, err);
 	free(r);
 	if (rc)
 		return -1;
@@ -91,7 +91,7 @@ static int titrate(im_ctx *ctx, solution *s, double pH, const rd_compound *titra
 /* The computed state of s, for checking a result forward. */
 static int forward(im_ctx *ctx, const solution *s, sol_state *st, char *err)
 {
-	return sol_compute(s, ctx_env(ctx), st, err);
+	return sol_compute(s, ses_env(ctx->ses), st, err);
 }
 
 int cmd_ph(im_ctx *ctx, int argc, char **argv, char *err)
@@ -101,7 +101,7 @@ int cmd_ph(im_ctx *ctx, int argc, char **argv, char *err)
 	double pH, amount = 0, stock = 0;
 	sol_state st;
 	char b[48];
-	if (need_chem(ctx, err) || core_solution(ctx, NULL, &s, err))
+	if (need_chem(ctx, err) || ses_solution(ctx->ses, NULL, &s, err))
 		return -1;
 	if (argc != 4 && argc != 6 && argc != 7)
 		return im_fail(err, "usage: ph TARGET with TITRANT [stock CONC [UNIT]]");
@@ -111,7 +111,7 @@ int cmd_ph(im_ctx *ctx, int argc, char **argv, char *err)
 		return im_fail(err, "target pH %s is outside 2 to 12", argv[1]);
 	if (strcmp(argv[2], "with") != 0)
 		return im_fail(err, "expected 'with', got '%.40s' (ph TARGET with TITRANT)", argv[2]);
-	if (core_compound(ctx, argv[3], &t, err))
+	if (ses_compound(ctx->ses, argv[3], &t, err))
 		return -1;
 	if (argc > 4) {
 		if (strcmp(argv[4], "stock") != 0)
@@ -135,7 +135,7 @@ int cmd_ph(im_ctx *ctx, int argc, char **argv, char *err)
 		jw w;
 		jw_begin(&w, ctx->out);
 		jw_str(&w, "solution", s->name);
-		jw_num(&w, "temperature_C", ctx->temp_C, 6);
+		jw_num(&w, "temperature_C", ctx->ses->temp_C, 6);
 		jw_num(&w, "target_pH", pH, 6);
 		jw_str(&w, "titrant", t->name);
 		jw_num(&w, "titrant_mM", amount, 8);
@@ -150,7 +150,7 @@ int cmd_ph(im_ctx *ctx, int argc, char **argv, char *err)
 	} else {
 		units_fmt_conc(b, sizeof b, amount, ctx->out->utf8);
 		out_printf(ctx->out, "%s: %s %s brings the pH to %.2f at %.1f C (computed pH "
-				     "%.3f)\n", s->name, b, t->name, pH, ctx->temp_C, st.pH);
+				     "%.3f)\n", s->name, b, t->name, pH, ctx->ses->temp_C, st.pH);
 		if (stock > 0) {
 			char sb[48];
 			units_fmt_conc(sb, sizeof sb, stock, ctx->out->utf8);
@@ -173,7 +173,7 @@ int cmd_gas(im_ctx *ctx, int argc, char **argv, char *err)
 	double pct, p = 1.0;
 	int dry = 0;
 	char num[32];
-	if (core_solution(ctx, NULL, &s, err))
+	if (ses_solution(ctx->ses, NULL, &s, err))
 		return -1;
 	if (strcmp(argv[1], "off") == 0 && argc == 2) {
 		s->co2_frac = 0;
@@ -215,14 +215,14 @@ int cmd_gas(im_ctx *ctx, int argc, char **argv, char *err)
 		jw_begin(&w, ctx->out);
 		jw_str(&w, "solution", s->name);
 		jw_num(&w, "co2_percent", pct, 6);
-		jw_num(&w, "pco2_atm", spec_pco2_atm(s->co2_frac, p, ctx->temp_C, !dry), 6);
+		jw_num(&w, "pco2_atm", spec_pco2_atm(s->co2_frac, p, ctx->ses->temp_C, !dry), 6);
 		jw_num(&w, "pH", st.pH, 6);
 		jw_end(&w);
 	} else {
 		out_printf(ctx->out, "%s: equilibrated with %g %% CO2 (%s, %g atm; pCO2 %.4f atm at "
 				     "%.1f C): pH %.2f\n", s->name, pct,
 			   dry ? "dry gas" : "humidified", p,
-			   spec_pco2_atm(s->co2_frac, p, ctx->temp_C, !dry), ctx->temp_C, st.pH);
+			   spec_pco2_atm(s->co2_frac, p, ctx->ses->temp_C, !dry), ctx->ses->temp_C, st.pH);
 		out_printf(ctx->out, "  (Henderson-Hasselbalch with the CO2 solubility of Harned "
 				     "& Davis 1943; confirm with a calibrated pH meter)\n");
 		if (isfinite(s->ph_target))
@@ -254,9 +254,9 @@ int cmd_free(im_ctx *ctx, int argc, char **argv, char *err)
 	int i = 3, yields_metal = 0;
 	char name[64], b1[48], b2[48];
 	sol_state st;
-	if (need_chem(ctx, err) || core_solution(ctx, NULL, &s, err))
+	if (need_chem(ctx, err) || ses_solution(ctx->ses, NULL, &s, err))
 		return -1;
-	metal = refdb_ion(ctx->ref, argv[1]);
+	metal = refdb_ion(ctx->ses->ref, argv[1]);
 	if (!metal || metal->z != 2)
 		return im_fail(err, "'%.20s' is not a divalent metal ionmix binds (Ca, Mg, Ba, Sr, "
 				    "Zn)", argv[1]);
@@ -269,12 +269,12 @@ int cmd_free(im_ctx *ctx, int argc, char **argv, char *err)
 	if (i < argc) {
 		if (strcmp(argv[i], "with") != 0 || i + 2 != argc)
 			return im_fail(err, "usage: free METAL AMOUNT [UNIT] [with COMPOUND]");
-		if (core_compound(ctx, argv[i + 1], &src, err))
+		if (ses_compound(ctx->ses, argv[i + 1], &src, err))
 			return -1;
 	} else {
 		size_t b = strcspn(metal->symbol, "0123456789+");
 		snprintf(name, sizeof name, "%.*sCl2", (int)b, metal->symbol);
-		if (core_compound(ctx, name, &src, err))
+		if (ses_compound(ctx->ses, name, &src, err))
 			return -1;
 	}
 	for (int k = 0; k < src->nyields; k++)
@@ -299,12 +299,12 @@ int cmd_free(im_ctx *ctx, int argc, char **argv, char *err)
 			free(r);
 			return -1;
 		}
-		sol_spec_cond(s, ctx_env(ctx), &cond);
+		sol_spec_cond(s, ses_env(ctx->ses), &cond);
 		if (isfinite(s->ph_target) && s->co2_frac == 0) {
 			cond.mode = SPEC_PH_FIXED;
 			cond.pH = s->ph_target;
 		}
-		rc = spec_free_target(ctx->chem, in, n, &cond, metal->symbol, sy, ns, target,
+		rc = spec_free_target(ctx->ses->chem, in, n, &cond, metal->symbol, sy, ns, target,
 				      &amount, r, err);
 		free(r);
 		if (rc)
@@ -349,7 +349,7 @@ int cmd_free(im_ctx *ctx, int argc, char **argv, char *err)
 		units_fmt_conc(b1, sizeof b1, amount, ctx->out->utf8);
 		units_fmt_conc(b2, sizeof b2, got, ctx->out->utf8);
 		out_printf(ctx->out, "%s: %s %s in all gives free %s %s at pH %.2f, %.1f C\n",
-			   s->name, b1, src->name, metal->symbol, b2, st.pH, ctx->temp_C);
+			   s->name, b1, src->name, metal->symbol, b2, st.pH, ctx->ses->temp_C);
 		if (isfinite(s->ph_target) && s->co2_frac == 0)
 			out_printf(ctx->out, "  (the titrant was recomputed to hold pH %.2f)\n",
 				   s->ph_target);
@@ -382,7 +382,7 @@ int cmd_osmo(im_ctx *ctx, int argc, char **argv, char *err)
 	int dilute = 0;
 	double water = 0;
 	char b[48];
-	if (need_chem(ctx, err) || core_solution(ctx, NULL, &s, err))
+	if (need_chem(ctx, err) || ses_solution(ctx->ses, NULL, &s, err))
 		return -1;
 	if (units_number(argv[1], &target, err))
 		return -1;
@@ -390,10 +390,10 @@ int cmd_osmo(im_ctx *ctx, int argc, char **argv, char *err)
 		return im_fail(err, "osmolality target %s mOsm/kg must be above 0 and at most 2000",
 			       argv[1]);
 	if (argc == 4 && strcmp(argv[2], "with") == 0) {
-		if (core_compound(ctx, argv[3], &c, err))
+		if (ses_compound(ctx->ses, argv[3], &c, err))
 			return -1;
 	} else if (argc == 2) {
-		if (core_compound(ctx, "sucrose", &c, err))
+		if (ses_compound(ctx->ses, "sucrose", &c, err))
 			return -1;
 	} else {
 		return im_fail(err, "usage: osmo TARGET [with COMPOUND]");
@@ -420,7 +420,7 @@ int cmd_osmo(im_ctx *ctx, int argc, char **argv, char *err)
 		for (int k = 0; k < c->nyields && na < MAX_YIELD; k++)
 			ad[na++] = (osm_species){c->yields[k].ion->symbol, c->yields[k].ion->z,
 						 c->yields[k].count};
-		if (osm_adjust(ctx->osm, sp, n, ctx->temp_C, target, ad, na, &r, err)) {
+		if (osm_adjust(ctx->ses->osm, sp, n, ctx->ses->temp_C, target, ad, na, &r, err)) {
 			sol_state_free(&st);
 			return -1;
 		}
@@ -483,7 +483,7 @@ static int compilations(im_ctx *ctx, char names[][32], int max)
 {
 	sqlite3_stmt *st;
 	int n = 0;
-	if (sqlite3_prepare_v2(refdb_sqlite(ctx->ref),
+	if (sqlite3_prepare_v2(refdb_sqlite(ctx->ses->ref),
 			       "SELECT compilation FROM eq_pka UNION SELECT compilation FROM "
 			       "eq_complexes UNION SELECT compilation FROM osm_pitzer ORDER BY 1",
 			       -1, &st, NULL) != SQLITE_OK) {
@@ -525,22 +525,22 @@ int cmd_constants(im_ctx *ctx, int argc, char **argv, char *err)
 		return 0;
 	}
 	if (strcmp(argv[1], "default") == 0) {
-		spec_use_compilation(ctx->chem, "default", err);
-		osm_use_compilation(ctx->osm, "default", err);
+		spec_use_compilation(ctx->ses->chem, "default", err);
+		osm_use_compilation(ctx->ses->osm, "default", err);
 		out_printf(ctx->out, "constants: every default in use again\n");
 		return 0;
 	}
 	for (int i = 0; i < nc; i++)
 		if (strcmp(comp[i], argv[1]) == 0) {
 			char e1[IM_ERRLEN], e2[IM_ERRLEN];
-			int a = spec_use_compilation(ctx->chem, argv[1], e1) == 0;
-			int b = osm_use_compilation(ctx->osm, argv[1], e2) == 0;
+			int a = spec_use_compilation(ctx->ses->chem, argv[1], e1) == 0;
+			int b = osm_use_compilation(ctx->ses->osm, argv[1], e2) == 0;
 			if (!a && !b)
 				return im_fail(err, "%s", e1);
 			picked = 1;
 		}
 	rows = im_xcalloc(MAX_CONST, sizeof *rows);
-	n = spec_constants(ctx->chem, argv[1], rows, MAX_CONST, err);
+	n = spec_constants(ctx->ses->chem, argv[1], rows, MAX_CONST, err);
 	if (n < 0 && !picked) {
 		free(rows);
 		return -1;
@@ -552,7 +552,7 @@ int cmd_constants(im_ctx *ctx, int argc, char **argv, char *err)
 		jw_bool(&w, "picked", picked);
 		jw_arr(&w, "constants");
 		for (int i = 0; i < n; i++) {
-			const rd_source *src = refdb_source(ctx->ref, rows[i].source);
+			const rd_source *src = refdb_source(ctx->ses->ref, rows[i].source);
 			jw_obj(&w, NULL);
 			jw_str(&w, "species", rows[i].what);
 			jw_str(&w, "reaction", rows[i].reaction);
@@ -580,7 +580,7 @@ int cmd_constants(im_ctx *ctx, int argc, char **argv, char *err)
 			   rows[i].value, rows[i].t_ref_C, rows[i].i_ref_M, rows[i].compilation,
 			   rows[i].in_use ? "*" : "");
 	for (int i = 0; i < n; i++) {
-		const rd_source *src = refdb_source(ctx->ref, rows[i].source);
+		const rd_source *src = refdb_source(ctx->ses->ref, rows[i].source);
 		int dup = 0;
 		for (int j = 0; j < i; j++)
 			dup |= strcmp(rows[j].source, rows[i].source) == 0;

@@ -10,7 +10,7 @@
 #include <stdlib.h>
 #include <string.h>
 
-#include "cmd_core.h"
+#include "session.h"
 #include "common.h"
 #include "correct.h"
 #include "junction.h"
@@ -34,15 +34,15 @@ static int henderson(im_ctx *ctx, const char *pip, const char *bath, double *ljp
 	sol_state st[2];
 	char e2[IM_ERRLEN];
 	int rc;
-	if (core_solution(ctx, pip, &sp, err) || core_solution(ctx, bath, &sb, err))
+	if (ses_solution(ctx->ses, pip, &sp, err) || ses_solution(ctx->ses, bath, &sb, err))
 		return -1;
-	if (sol_compute(sp, ctx_env(ctx), &st[0], err))
+	if (sol_compute(sp, ses_env(ctx->ses), &st[0], err))
 		return -1;
-	if (sol_compute(sb, ctx_env(ctx), &st[1], err)) {
+	if (sol_compute(sb, ses_env(ctx->ses), &st[1], err)) {
 		sol_state_free(&st[0]);
 		return -1;
 	}
-	rc = cmdj_henderson_mV(&st[0], &st[1], 0, ctx->temp_C, ljp_mV, e2);
+	rc = cmdj_henderson_mV(&st[0], &st[1], 0, ctx->ses->temp_C, ljp_mV, e2);
 	if (rc)
 		im_fail(err, "LJP of %s against %s: %s", pip, bath, e2);
 	sol_state_free(&st[0]);
@@ -145,7 +145,7 @@ static int correct_values(im_ctx *ctx, int argc, char **argv, char *err)
 	if (ctx->out->json) {
 		jw w;
 		jw_begin(&w, ctx->out);
-		json_ljp(&w, &src, ctx->temp_C);
+		json_ljp(&w, &src, ctx->ses->temp_C);
 		jw_int(&w, "corrected", nv);
 		jw_arr(&w, "values");
 		for (int k = 0; k < nv; k++) {
@@ -157,7 +157,7 @@ static int correct_values(im_ctx *ctx, int argc, char **argv, char *err)
 		}
 		jw_end(&w);
 	} else {
-		say_ljp(ctx->out, &src, ctx->temp_C);
+		say_ljp(ctx->out, &src, ctx->ses->temp_C);
 		out_printf(ctx->out, "sign: %s (LJP: the bath relative to the pipette"
 			   " solution)\n", CONVENTION);
 		out_printf(ctx->out, "  %14s  %14s\n", "recorded mV", "Vm mV");
@@ -294,7 +294,7 @@ int cmd_correct(im_ctx *ctx, int argc, char **argv, char *err)
 			return -1;
 		char *note = im_xmalloc(strlen(to) + sizeof CORR_NOTE_SUFFIX);
 		sprintf(note, "%s%s", to, CORR_NOTE_SUFFIX);
-		report(ctx->out, &src, ctx->temp_C, argv[1], to, note, &r);
+		report(ctx->out, &src, ctx->ses->temp_C, argv[1], to, note, &r);
 		free(note);
 		return 0;
 	}
@@ -303,7 +303,7 @@ int cmd_correct(im_ctx *ctx, int argc, char **argv, char *err)
 	/* the data went to the result stream: the summary goes beside it */
 	out side = *ctx->out;
 	side.fp = ctx->out->errfp;
-	report(&side, &src, ctx->temp_C, argv[1], NULL, NULL, &r);
+	report(&side, &src, ctx->ses->temp_C, argv[1], NULL, NULL, &r);
 	fflush(side.fp);
 	return 0;
 }

@@ -15,6 +15,8 @@
 #include <unistd.h>
 
 #include "common.h"
+#include "fileio.h"
+#include "units.h"
 #include "ghk.h"
 #include "junction.h"
 #include "plot.h"
@@ -47,16 +49,12 @@ typedef struct opts {
 
 /* ---- parsing ---- */
 
-/* A plain decimal number: strtod (the program never sets LC_NUMERIC, so
- * the decimal separator is '.'), nothing after it, finite. */
+/* A plain decimal number, read by the one number parser (units.c). */
 static int parse_num(const char *s, const char *what, double *v, char *err)
 {
-	char *end;
-	errno = 0;
-	double x = strtod(s, &end);
-	if (end == s || *end != '\0' || !isfinite(x) || errno == ERANGE)
-		return im_fail(err, "%s: '%.40s' is not a number", what, s);
-	*v = x;
+	char e2[IM_ERRLEN];
+	if (units_number(s, v, e2))
+		return im_fail(err, "%s: %s", what, e2);
 	return 0;
 }
 
@@ -69,7 +67,7 @@ static int parse_perm(im_ctx *ctx, const char *arg, opts *o, char *err)
 		return im_fail(err, "expected ION=P, got '%.40s'", arg);
 	memcpy(name, arg, len);
 	name[len] = '\0';
-	const rd_ion *ion = refdb_ion(ctx->ref, name);
+	const rd_ion *ion = refdb_ion(ctx->ses->ref, name);
 	if (!ion)
 		return im_fail(err, "unknown ion '%s' (try `info %s`; a symbol like K, "
 			       "Na, Cl, Ca)", name, name);
@@ -154,10 +152,10 @@ static int parse_rest(im_ctx *ctx, int argc, char **argv, int first, int with_iv
 static int side_open(im_ctx *ctx, const char *name, side *s, char *err)
 {
 	memset(s, 0, sizeof *s);
-	s->sol = ws_find(&ctx->ws, name);
+	s->sol = ws_find(&ctx->ses->ws, name);
 	if (!s->sol)
 		return im_fail(err, "unknown solution '%.60s' (see `list`)", name);
-	if (sol_compute(s->sol, ctx_env(ctx), &s->st, err))
+	if (sol_compute(s->sol, ses_env(ctx->ses), &s->st, err))
 		return -1;
 	s->have = 1;
 	return 0;
@@ -210,7 +208,7 @@ static void json_head(jw *w, im_ctx *ctx, const side *ins, const side *outs,
 	jw_begin(w, ctx->out);
 	jw_str(w, "inside", ins->sol->name);
 	jw_str(w, "outside", outs->sol->name);
-	jw_num(w, "temperature_C", ctx->temp_C, 6);
+	jw_num(w, "temperature_C", ctx->ses->temp_C, 6);
 	jw_str(w, "from", basis(o));
 	jw_obj(w, "permeabilities");
 	for (int i = 0; i < o->np; i++)
@@ -241,11 +239,11 @@ int cmd_ghk_erev(im_ctx *ctx, int argc, char **argv, char *err)
 	if (side_open(ctx, argv[2], &outs, err))
 		goto done;
 	fill(&o, &ins, &outs, x);
-	if (ghk_erev_mV(x, o.np, ctx->temp_C, &E, err))
+	if (ghk_erev_mV(x, o.np, ctx->ses->temp_C, &E, err))
 		goto done;
 	if (o.corrected) {
 		char e2[IM_ERRLEN];
-		if (ljp(&ins, &outs, ctx->temp_C, &L, e2) == 0)
+		if (ljp(&ins, &outs, ctx->ses->temp_C, &L, e2) == 0)
 			have_ljp = 1;
 		else
 			snprintf(why, sizeof why, "no liquid junction potential: %.200s",
@@ -258,7 +256,7 @@ int cmd_ghk_erev(im_ctx *ctx, int argc, char **argv, char *err)
 		jw_obj(&w, "nernst_mV");
 		for (int i = 0; i < o.np; i++) {
 			double En;
-			if (ghk_nernst_mV(x[i].z, x[i].in_mM, x[i].out_mM, ctx->temp_C,
+			if (ghk_nernst_mV(x[i].z, x[i].in_mM, x[i].out_mM, ctx->ses->temp_C,
 					  &En, NULL) == 0)
 				jw_num(&w, x[i].symbol, En, 8);
 			else
@@ -280,7 +278,7 @@ int cmd_ghk_erev(im_ctx *ctx, int argc, char **argv, char *err)
 	} else {
 		out_printf(ctx->out, "GHK reversal potential: %s inside, %s outside, "
 			   "%.1f C, from %s\n", ins.sol->name, outs.sol->name,
-			   ctx->temp_C, basis(&o));
+			   ctx->ses->temp_C, basis(&o));
 		out_printf(ctx->out, "  %-10s %10s %12s %12s %10s\n", "ion", "P",
 			   o.activities ? "inside a mM" : "inside mM",
 			   o.activities ? "outside a mM" : "outside mM", "Nernst mV");
@@ -289,7 +287,7 @@ int cmd_ghk_erev(im_ctx *ctx, int argc, char **argv, char *err)
 			char e2[IM_ERRLEN];
 			out_printf(ctx->out, "  %-10s %10.4g %12.4g %12.4g ", x[i].symbol,
 				   x[i].P, x[i].in_mM, x[i].out_mM);
-			if (ghk_nernst_mV(x[i].z, x[i].in_mM, x[i].out_mM, ctx->temp_C,
+			if (ghk_nernst_mV(x[i].z, x[i].in_mM, x[i].out_mM, ctx->ses->temp_C,
 					  &En, e2) == 0)
 				out_printf(ctx->out, "%+10.2f\n", En);
 			else
@@ -343,8 +341,8 @@ int cmd_ghk_ratio(im_ctx *ctx, int argc, char **argv, char *err)
 		      "(mV)", &mv, err))
 		return -1;
 	first = shift ? 10 : 7;
-	const rd_ion *ion = refdb_ion(ctx->ref, argv[3]);
-	const rd_ion *ref = refdb_ion(ctx->ref, argv[4]);
+	const rd_ion *ion = refdb_ion(ctx->ses->ref, argv[3]);
+	const rd_ion *ref = refdb_ion(ctx->ses->ref, argv[4]);
 	if (!ion || !ref)
 		return im_fail(err, "unknown ion '%.40s'", !ion ? argv[3] : argv[4]);
 	if (ion->z == 0 || ref->z == 0)
@@ -383,7 +381,7 @@ int cmd_ghk_ratio(im_ctx *ctx, int argc, char **argv, char *err)
 	if (side_open(ctx, argv[shift ? 6 : 2], &outs, err))
 		goto done;
 	if (shift) {
-		if (!ws_find(&ctx->ws, argv[2])) {
+		if (!ws_find(&ctx->ses->ws, argv[2])) {
 			im_fail(err, "unknown solution '%.60s' (see `list`)", argv[2]);
 			goto done;
 		}
@@ -394,21 +392,21 @@ int cmd_ghk_ratio(im_ctx *ctx, int argc, char **argv, char *err)
 	if (shift) {
 		for (int i = 0; i < o.np; i++)
 			to_out[i] = conc(&to, o.p[i].ion, o.activities);
-		if (ghk_ratio_shift(x, o.np, to_out, 0, 1, mv, ctx->temp_C, &q, err))
+		if (ghk_ratio_shift(x, o.np, to_out, 0, 1, mv, ctx->ses->temp_C, &q, err))
 			goto done;
-	} else if (ghk_ratio(x, o.np, 0, 1, mv, ctx->temp_C, &q, err)) {
+	} else if (ghk_ratio(x, o.np, 0, 1, mv, ctx->ses->temp_C, &q, err)) {
 		goto done;
 	}
 	/* the reversal potentials at the ratio found, for the record */
 	double E1 = 0, E2 = 0;
 	int have_E = 0;
 	x[0].P = q * x[1].P;
-	if (ghk_erev_mV(x, o.np, ctx->temp_C, &E1, NULL) == 0) {
+	if (ghk_erev_mV(x, o.np, ctx->ses->temp_C, &E1, NULL) == 0) {
 		have_E = 1;
 		if (shift) {
 			for (int i = 0; i < o.np; i++)
 				x[i].out_mM = to_out[i];
-			have_E = ghk_erev_mV(x, o.np, ctx->temp_C, &E2, NULL) == 0;
+			have_E = ghk_erev_mV(x, o.np, ctx->ses->temp_C, &E2, NULL) == 0;
 		}
 	}
 	if (ctx->out->json) {
@@ -420,7 +418,7 @@ int cmd_ghk_ratio(im_ctx *ctx, int argc, char **argv, char *err)
 			jw_str(&w, "from_bath", outs.sol->name);
 			jw_str(&w, "to_bath", to.sol->name);
 		}
-		jw_num(&w, "temperature_C", ctx->temp_C, 6);
+		jw_num(&w, "temperature_C", ctx->ses->temp_C, 6);
 		jw_str(&w, "from", basis(&o));
 		jw_str(&w, "ion", ion->symbol);
 		jw_str(&w, "ref", ref->symbol);
@@ -441,12 +439,12 @@ int cmd_ghk_ratio(im_ctx *ctx, int argc, char **argv, char *err)
 		if (shift)
 			out_printf(ctx->out, "permeability ratio from a reversal-potential "
 				   "shift: %s inside, bath %s -> %s, %.1f C, from %s\n",
-				   ins.sol->name, outs.sol->name, to.sol->name, ctx->temp_C,
+				   ins.sol->name, outs.sol->name, to.sol->name, ctx->ses->temp_C,
 				   basis(&o));
 		else
 			out_printf(ctx->out, "permeability ratio from a reversal potential: "
 				   "%s inside, %s outside, %.1f C, from %s\n",
-				   ins.sol->name, outs.sol->name, ctx->temp_C, basis(&o));
+				   ins.sol->name, outs.sol->name, ctx->ses->temp_C, basis(&o));
 		out_printf(ctx->out, "  P(%s)/P(%s) = %.4g\n", ion->symbol, ref->symbol, q);
 		if (shift)
 			out_printf(ctx->out, "  measured shift %+.2f mV", mv);
@@ -545,44 +543,22 @@ static int write_svg(FILE *fp, void *arg, char *err)
 	return plot_svg(fp, a->c, a->nc, a->po, err);
 }
 
-/* Write through a temporary file in the same directory and rename it into
- * place, so that a failed write leaves no partial file. */
-static int write_atomic(const char *path, int (*fn)(FILE *, void *, char *),
-			void *arg, char *err)
+/* Write the SVG and CSV through the one file writer, as one batch: both
+ * are written, or neither is. */
+static int write_outputs(const char *svg, const iv_out *as, const char *csv,
+			 const iv_out *ac, char *err)
 {
-	size_t n = strlen(path);
-	char *tmp = im_xmalloc(n + 8);
-	snprintf(tmp, n + 8, "%s.XXXXXX", path);
-	int fd = mkstemp(tmp), rc = 0;
-	if (fd < 0) {
-		rc = im_fail(err, "cannot write %s: %s", path, strerror(errno));
-		free(tmp);
-		return rc;
-	}
-	mode_t um = umask(0);
-	umask(um);
-	fchmod(fd, 0666 & ~um);
-	FILE *fp = fdopen(fd, "w");
-	if (!fp) {
-		rc = im_fail(err, "cannot write %s: %s", path, strerror(errno));
-		close(fd);
-		unlink(tmp);
-		free(tmp);
-		return rc;
-	}
-	rc = fn(fp, arg, err);
-	if (fflush(fp) != 0 || ferror(fp) || fsync(fileno(fp)) != 0) {
-		if (rc == 0)
-			rc = im_fail(err, "cannot write %s: %s", path, strerror(errno));
-	}
-	if (fclose(fp) != 0 && rc == 0)
-		rc = im_fail(err, "cannot write %s: %s", path, strerror(errno));
-	if (rc == 0 && rename(tmp, path) != 0)
-		rc = im_fail(err, "cannot write %s: %s", path, strerror(errno));
-	if (rc)
-		unlink(tmp);
-	free(tmp);
-	return rc;
+	fio_batch b;
+	FILE *fp;
+	fio_batch_init(&b);
+	if (svg && (fio_batch_open(&b, svg, &fp, err) || write_svg(fp, (void *)as, err)))
+		goto fail;
+	if (csv && (fio_batch_open(&b, csv, &fp, err) || write_csv(fp, (void *)ac, err)))
+		goto fail;
+	return fio_batch_commit(&b, err);
+fail:
+	fio_batch_abort(&b);
+	return -1;
 }
 
 int cmd_ghk_iv(im_ctx *ctx, int argc, char **argv, char *err)
@@ -612,7 +588,7 @@ int cmd_ghk_iv(im_ctx *ctx, int argc, char **argv, char *err)
 	if (side_open(ctx, argv[2], &outs, err))
 		goto done;
 	fill(&o, &ins, &outs, x);
-	if (ghk_iv(x, o.np, ctx->temp_C, o.v1, o.v2, o.dv, o.rect, &iv, err))
+	if (ghk_iv(x, o.np, ctx->ses->temp_C, o.v1, o.v2, o.dv, o.rect, &iv, err))
 		goto done;
 
 	/* curves in a display unit: total, then each ion (as many as fit) */
@@ -652,7 +628,7 @@ int cmd_ghk_iv(im_ctx *ctx, int argc, char **argv, char *err)
 	snprintf(mark, sizeof mark, "E_rev %+.1f mV", iv.E_rev_mV);
 	snprintf(title, sizeof title, "GHK current: %.64s inside, %.64s outside, "
 		 "%.1f C",
-		 ins.sol->name, outs.sol->name, ctx->temp_C);
+		 ins.sol->name, outs.sol->name, ctx->ses->temp_C);
 	snprintf(ylab_t, sizeof ylab_t, "current density (%s), outward up", unit_t);
 	snprintf(ylab_svg, sizeof ylab_svg, "current density (%s), outward up",
 		 unit_svg);
@@ -663,18 +639,13 @@ int cmd_ghk_iv(im_ctx *ctx, int argc, char **argv, char *err)
 	po.mark_x = iv.E_rev_mV;
 	po.mark_label = mark;
 
-	if (o.svg) {
+	{
 		plot_opts ps = po;
 		ps.utf8 = 1;
 		ps.title = title;
 		ps.y_label = ylab_svg;
-		iv_out a = {&iv, x, c, nc, &ps};
-		if (write_atomic(o.svg, write_svg, &a, err))
-			goto done;
-	}
-	if (o.csv) {
-		iv_out a = {&iv, x, c, nc, &po};
-		if (write_atomic(o.csv, write_csv, &a, err))
+		iv_out as = {&iv, x, c, nc, &ps}, ac = {&iv, x, c, nc, &po};
+		if (write_outputs(o.svg, &as, o.csv, &ac, err))
 			goto done;
 	}
 
@@ -712,7 +683,7 @@ int cmd_ghk_iv(im_ctx *ctx, int argc, char **argv, char *err)
 	} else {
 		out_printf(ctx->out, "GHK current-voltage curve: %s inside, %s outside, "
 			   "%.1f C, from %s; %s\n", ins.sol->name,
-			   outs.sol->name, ctx->temp_C, basis(&o),
+			   outs.sol->name, ctx->ses->temp_C, basis(&o),
 			   o.absolute == 1 ? "P in cm/s, current in A/cm2"
 			   : "P relative, so the current is in relative units (scaled so "
 			     "the largest is 1; give P as K=1e-6cm/s for A/cm2)");

@@ -12,6 +12,7 @@
 #include <string.h>
 
 #include "common.h"
+#include "units.h"
 #include "electrode.h"
 #include "junction.h"
 #include "output.h"
@@ -61,7 +62,7 @@ static void json_cautions(jw *w, const cautions *c)
 
 static int find_solution(im_ctx *ctx, const char *name, solution **res, char *err)
 {
-	*res = ws_find(&ctx->ws, name);
+	*res = ws_find(&ctx->ses->ws, name);
 	if (*res)
 		return 0;
 	return im_fail(err,
@@ -326,9 +327,9 @@ static void strong_caution(const pair *p, const double *share, const char *pip,
 static int states(im_ctx *ctx, const solution *a, const solution *b, sol_state *sa,
 		  sol_state *sb, char *err)
 {
-	if (sol_compute(a, ctx_env(ctx), sa, err))
+	if (sol_compute(a, ses_env(ctx->ses), sa, err))
 		return -1;
-	if (sol_compute(b, ctx_env(ctx), sb, err)) {
+	if (sol_compute(b, ses_env(ctx->ses), sb, err)) {
 		sol_state_free(sa);
 		return -1;
 	}
@@ -494,7 +495,7 @@ int cmd_junction(im_ctx *ctx, int argc, char **argv, char *err)
 	if (states(ctx, sp, sb, &st_p, &st_b, err))
 		return -1;
 	if (need_ions(&st_p, sp->name, err) || need_ions(&st_b, sb->name, err) ||
-	    build_pair(&st_p, &st_b, act, ctx->temp_C, &p, err)) {
+	    build_pair(&st_p, &st_b, act, ctx->ses->temp_C, &p, err)) {
 		sol_state_free(&st_p);
 		sol_state_free(&st_b);
 		return -1;
@@ -512,7 +513,7 @@ int cmd_junction(im_ctx *ctx, int argc, char **argv, char *err)
 
 	/* the breakdown is Henderson's; its failure is the command's */
 	share = im_xcalloc(p.n, sizeof *share);
-	if (jn_henderson_contrib(p.ions, p.n, ctx->temp_C, share, &hend, err)) {
+	if (jn_henderson_contrib(p.ions, p.n, ctx->ses->temp_C, share, &hend, err)) {
 		free(share);
 		pair_free(&p);
 		sol_state_free(&st_p);
@@ -521,7 +522,7 @@ int cmd_junction(im_ctx *ctx, int argc, char **argv, char *err)
 	}
 	strong_caution(&p, share, sp->name, sb->name, &cw);
 	r.done = 0;
-	run_models(&p, ctx->temp_C, &r);
+	run_models(&p, ctx->ses->temp_C, &r);
 	mm = main_model(r.asked);
 	if (!(r.done & (1 << mm))) {
 		im_fail(err, "%s", r.why[mm]);
@@ -538,7 +539,7 @@ int cmd_junction(im_ctx *ctx, int argc, char **argv, char *err)
 		jw_begin(&w, ctx->out);
 		jw_str(&w, "pipette", sp->name);
 		jw_str(&w, "bath", sb->name);
-		jw_num(&w, "temperature_C", ctx->temp_C, 6);
+		jw_num(&w, "temperature_C", ctx->ses->temp_C, 6);
 		jw_str(&w, "from", act ? "activities" : "concentrations");
 		jw_str(&w, "model", r.asked == M_ALL ? "all" : model_name[mm]);
 		jw_num(&w, "ljp_mV", ljp, 6);
@@ -603,7 +604,7 @@ int cmd_junction(im_ctx *ctx, int argc, char **argv, char *err)
 		out_printf(ctx->out,
 			   "Liquid junction potential: pipette %s | bath %s, %.1f C, "
 			   "from %s\n",
-			   sp->name, sb->name, ctx->temp_C,
+			   sp->name, sb->name, ctx->ses->temp_C,
 			   act ? "activities" : "concentrations");
 		if (same) {
 			out_printf(ctx->out,
@@ -682,42 +683,17 @@ static int is_conc_unit(const char *u, double *factor)
 }
 
 /* A bridge concentration: num may carry its unit ("3M", "3000mM"); unit
- * may be NULL (then mM) or the next word.  strtod (LC_NUMERIC is never
- * set) with NaN, infinity and trailing garbage rejected. */
+ * may be NULL (then mM) or the next word.  The one number parser
+ * (units.c) reads it. */
 static int parse_conc(const char *num, const char *unit, double *mM, char *err)
 {
-	char *end;
-	double v, f = 1.0;
 	if (!num || !*num)
 		return im_fail(err, "missing bridge concentration");
-	if (strpbrk(num, "xX"))
-		return im_fail(err,
-			       "bridge concentration '%.30s': write a decimal number",
-			       num);
-	v = strtod(num, &end);
-	if (end == num)
-		return im_fail(err, "bridge concentration '%.30s' is not a number", num);
-	if (*end) {
-		if (unit)
-			return im_fail(err, "bridge concentration '%.30s': a unit twice",
-				       num);
-		if (!is_conc_unit(end, &f))
-			return im_fail(err,
-				       "bridge concentration '%.30s': unknown unit "
-				       "'%.10s' (use mM or M)",
-				       num, end);
-	} else if (unit && !is_conc_unit(unit, &f)) {
-		return im_fail(err, "unknown unit '%.20s' for the bridge (use mM or M)",
-			       unit);
-	}
-	if (!isfinite(v))
-		return im_fail(err, "bridge concentration '%.30s' is not a finite number",
-			       num);
-	v *= f;
-	if (!(v > 0) || v > BRIDGE_MAX_mM)
+	if (units_amount_mM(num, unit, 0, mM, err))
+		return -1;
+	if (*mM > BRIDGE_MAX_mM)
 		return im_fail(err, "bridge concentration must be > 0 and at most %g M",
 			       BRIDGE_MAX_mM / 1000.0);
-	*mM = v;
 	return 0;
 }
 
@@ -775,19 +751,19 @@ static int parse_exchange_opts(int argc, char **argv, xargs *x, char *err)
 
 static double cl_activity(im_ctx *ctx, const sol_state *st)
 {
-	const rd_ion *cl = refdb_ion(ctx->ref, "Cl-");
+	const rd_ion *cl = refdb_ion(ctx->ses->ref, "Cl-");
 	const sol_species *s = cl ? sol_state_find(st, cl) : NULL;
 	return s ? s->act_mM : 0.0;
 }
 
 static int bridge_state(im_ctx *ctx, xargs *x, sol_state *st, char *err)
 {
-	const rd_compound *c = refdb_compound(ctx->ref, x->salt);
+	const rd_compound *c = refdb_compound(ctx->ses->ref, x->salt);
 	solution tmp;
 	int rc;
 	if (!c) {
 		const char *sug[3];
-		int n = refdb_suggest(ctx->ref, x->salt, sug, 3);
+		int n = refdb_suggest(ctx->ses->ref, x->salt, sug, 3);
 		if (n > 0)
 			return im_fail(err,
 				       "unknown compound '%.60s' for the bridge; did you "
@@ -800,7 +776,7 @@ static int bridge_state(im_ctx *ctx, xargs *x, sol_state *st, char *err)
 	x->salt_c = c;
 	sol_init(&tmp, "bridge");
 	sol_add(&tmp, c, x->salt_mM);
-	rc = sol_compute(&tmp, ctx_env(ctx), st, err);
+	rc = sol_compute(&tmp, ses_env(ctx->ses), st, err);
 	sol_free(&tmp);
 	if (rc)
 		return -1;
@@ -853,12 +829,12 @@ int cmd_exchange(im_ctx *ctx, int argc, char **argv, char *err)
 		goto done;
 	}
 	if (spp) {
-		if (sol_compute(spp, ctx_env(ctx), &st_p, err))
+		if (sol_compute(spp, ses_env(ctx->ses), &st_p, err))
 			goto done;
 		have_p = 1;
 		if (need_ions(&st_p, spp->name, err) ||
-		    build_pair(&st_p, &st_o, 0, ctx->temp_C, &tip_o, err) ||
-		    build_pair(&st_p, &st_n, 0, ctx->temp_C, &tip_n, err))
+		    build_pair(&st_p, &st_o, 0, ctx->ses->temp_C, &tip_o, err) ||
+		    build_pair(&st_p, &st_n, 0, ctx->ses->temp_C, &tip_n, err))
 			goto done;
 		in.tip_old = tip_o.ions;
 		in.n_tip_old = tip_o.n;
@@ -870,8 +846,8 @@ int cmd_exchange(im_ctx *ctx, int argc, char **argv, char *err)
 		if (bridge_state(ctx, &xa, &st_b, err))
 			goto done;
 		have_b = 1;
-		if (build_pair(&st_b, &st_o, 0, ctx->temp_C, &br_o, err) ||
-		    build_pair(&st_b, &st_n, 0, ctx->temp_C, &br_n, err))
+		if (build_pair(&st_b, &st_o, 0, ctx->ses->temp_C, &br_o, err) ||
+		    build_pair(&st_b, &st_n, 0, ctx->ses->temp_C, &br_n, err))
 			goto done;
 		in.bridge_old = br_o.ions;
 		in.n_bridge_old = br_o.n;
@@ -880,7 +856,7 @@ int cmd_exchange(im_ctx *ctx, int argc, char **argv, char *err)
 		if (!spp)
 			mobility_caution(&br_o, &cw);
 	}
-	if (el_exchange_shift_mV(&in, ctx->temp_C, &x, err))
+	if (el_exchange_shift_mV(&in, ctx->ses->temp_C, &x, err))
 		goto done;
 	gname = xa.ground == EL_GROUND_AGCL ? "agcl" : "bridge";
 	if (x.bridge_advised && xa.ground == EL_GROUND_AGCL)
@@ -894,7 +870,7 @@ int cmd_exchange(im_ctx *ctx, int argc, char **argv, char *err)
 		jw_str(&w, "from", so->name);
 		jw_str(&w, "to", sn->name);
 		jw_str(&w, "ground", gname);
-		jw_num(&w, "temperature_C", ctx->temp_C, 6);
+		jw_num(&w, "temperature_C", ctx->ses->temp_C, 6);
 		jw_num(&w, "shift_mV", x.shift_mV, 6);
 		jw_bool(&w, "includes_tip", x.have_tip);
 		jw_num(&w, "ground_term_mV", x.ground_mV, 6);
@@ -930,7 +906,7 @@ int cmd_exchange(im_ctx *ctx, int argc, char **argv, char *err)
 		jw_end(&w);
 	} else {
 		out_printf(ctx->out, "Bath exchange %s -> %s, %.1f C, ground: %s\n",
-			   so->name, sn->name, ctx->temp_C,
+			   so->name, sn->name, ctx->ses->temp_C,
 			   xa.ground == EL_GROUND_AGCL ? "bare Ag/AgCl" : "salt bridge");
 		if (so == sn || sol_equal(so, sn))
 			out_printf(ctx->out,

@@ -12,7 +12,7 @@
 #include <stdlib.h>
 #include <string.h>
 
-#include "cmd_core.h"
+#include "session.h"
 #include "cmd_junction.h"
 #include "common.h"
 #include "electrode.h"
@@ -106,9 +106,9 @@ static double buffer_capacity(im_ctx *ctx, const solution *s, const sol_state *s
 	if (n < 0 || !st->chem)
 		return NAN;
 	in[n++] = (spec_in){"OH-", -1, 0.1};
-	sol_spec_cond(s, ctx_env(ctx), &cond);
+	sol_spec_cond(s, ses_env(ctx->ses), &cond);
 	r = im_xmalloc(sizeof *r);
-	if (spec_solve(ctx->chem, in, n, &cond, r, err) == 0 && r->pH != st->pH)
+	if (spec_solve(ctx->ses->chem, in, n, &cond, r, err) == 0 && r->pH != st->pH)
 		beta = 0.1 / (r->pH - st->pH);
 	free(r);
 	return beta;
@@ -214,12 +214,12 @@ static void review_potentials(report *r, im_ctx *ctx, const sol_state *p,
 	static const char *ions[] = {"K+", "Na+", "Cl-", "Ca2+"};
 	for (size_t i = 0; i < IM_COUNT(ions); i++) {
 		char check[32], e2[IM_ERRLEN];
-		const rd_ion *ion = refdb_ion(ctx->ref, ions[i]);
+		const rd_ion *ion = refdb_ion(ctx->ses->ref, ions[i]);
 		double E;
 		snprintf(check, sizeof check, "E_%.*s", (int)strcspn(ions[i], "0123456789+-"),
 			 ions[i]);
-		if (nernst_mV(ion->z, conc_of(p, ctx->ref, ions[i], 0),
-			      conc_of(b, ctx->ref, ions[i], 0), ctx->temp_C, &E, e2)) {
+		if (nernst_mV(ion->z, conc_of(p, ctx->ses->ref, ions[i], 0),
+			      conc_of(b, ctx->ses->ref, ions[i], 0), ctx->ses->temp_C, &E, e2)) {
 			add(r, check, FINE, NAN, "mV", "%s on one side only: %s", ions[i], e2);
 			continue;
 		}
@@ -234,7 +234,7 @@ static void review_ljp(report *r, im_ctx *ctx, const sol_state *p, const sol_sta
 {
 	double ljp, cl;
 	char e2[IM_ERRLEN];
-	if (cmdj_henderson_mV(p, b, 0, ctx->temp_C, &ljp, e2)) {
+	if (cmdj_henderson_mV(p, b, 0, ctx->ses->temp_C, &ljp, e2)) {
 		add(r, "liquid junction potential", CHECK, NAN, "mV", "%s", e2);
 	} else {
 		add(r, "liquid junction potential", fabs(ljp) > LJP_CORRECT_mV ? CHECK : FINE, ljp,
@@ -242,12 +242,12 @@ static void review_ljp(report *r, im_ctx *ctx, const sol_state *p, const sol_sta
 		    "bath relative to pipette (Henderson); whole-cell Vm = Vpipette - LJP: a "
 		    "command of -70 mV is really %.1f mV", -70.0 - ljp);
 	}
-	cl = conc_of(b, ctx->ref, "Cl-", 1);
+	cl = conc_of(b, ctx->ses->ref, "Cl-", 1);
 	if (cl > 0) {
 		/* the ground against one chlorided in a 150 mM Cl- saline */
-		double ref_act = REF_CL_mM * conc_of(b, ctx->ref, "Cl-", 1) /
-				 conc_of(b, ctx->ref, "Cl-", 0);
-		double shift = el_agcl_mV(cl, ctx->temp_C) - el_agcl_mV(ref_act, ctx->temp_C);
+		double ref_act = REF_CL_mM * conc_of(b, ctx->ses->ref, "Cl-", 1) /
+				 conc_of(b, ctx->ses->ref, "Cl-", 0);
+		double shift = el_agcl_mV(cl, ctx->ses->temp_C) - el_agcl_mV(ref_act, ctx->ses->temp_C);
 		add(r, "Ag/AgCl ground in the bath", el_bridge_advisable(shift) ? CHECK : FINE,
 		    shift, "mV",
 		    el_bridge_advisable(shift)
@@ -284,13 +284,13 @@ int cmd_review(im_ctx *ctx, int argc, char **argv, char *err)
 	sol_state p, b;
 	report *r;
 	(void)argc;
-	if (core_solution(ctx, argv[1], &sp, err) || core_solution(ctx, argv[2], &sb, err))
+	if (ses_solution(ctx->ses, argv[1], &sp, err) || ses_solution(ctx->ses, argv[2], &sb, err))
 		return -1;
 	if (sp->n == 0 || sb->n == 0)
 		return im_fail(err, "%s is empty: nothing to review", sp->n ? sb->name : sp->name);
-	if (sol_compute(sp, ctx_env(ctx), &p, err))
+	if (sol_compute(sp, ses_env(ctx->ses), &p, err))
 		return -1;
-	if (sol_compute(sb, ctx_env(ctx), &b, err)) {
+	if (sol_compute(sb, ses_env(ctx->ses), &b, err)) {
 		sol_state_free(&p);
 		return -1;
 	}
@@ -312,7 +312,7 @@ int cmd_review(im_ctx *ctx, int argc, char **argv, char *err)
 		jw_begin(&w, ctx->out);
 		jw_str(&w, "pipette", sp->name);
 		jw_str(&w, "bath", sb->name);
-		jw_num(&w, "temperature_C", ctx->temp_C, 6);
+		jw_num(&w, "temperature_C", ctx->ses->temp_C, 6);
 		jw_arr(&w, "items");
 		for (int i = 0; i < r->n; i++) {
 			jw_obj(&w, NULL);
@@ -327,7 +327,7 @@ int cmd_review(im_ctx *ctx, int argc, char **argv, char *err)
 	} else {
 		int count[3] = {0, 0, 0};
 		out_printf(ctx->out, "review: pipette %s, bath %s, %.1f C\n", sp->name, sb->name,
-			   ctx->temp_C);
+			   ctx->ses->temp_C);
 		for (int i = 0; i < r->n; i++) {
 			const item *x = &r->it[i];
 			char v[32] = "";

@@ -3,9 +3,21 @@
  */
 #include "output.h"
 
+#include <errno.h>
 #include <math.h>
 #include <stdarg.h>
 #include <string.h>
+
+int out_failed(out *o)
+{
+	errno = 0;
+	if (fflush(o->fp) != 0 || ferror(o->fp)) {
+		if (!o->werrno)
+			o->werrno = errno ? errno : EIO;
+		return 1;
+	}
+	return 0;
+}
 
 void out_printf(out *o, const char *fmt, ...)
 {

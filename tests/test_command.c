@@ -43,7 +43,7 @@ static int fresh(void **state)
 	o.errfp = stderr;
 	o.json = 0;
 	ctx_init(&ctx, db, &o);
-	ctx.db_path = dbfile;
+	ctx.ses->db_path = dbfile;
 	{
 		char err[IM_ERRLEN];
 		if (ctx_load_chemistry(&ctx, err))
@@ -81,16 +81,16 @@ static void compose(void **state)
 	(void)state;
 	ok("solution bath; add NaCl 140; add KCl 5 mM; add CaCl2.2H2O 2");
 	ok("add NaCl 10");
-	assert_close(sol_find(ws_current(&ctx.ws), refdb_compound(db, "NaCl"))->mM, 150, 0, 0);
+	assert_close(sol_find(ws_current(&ctx.ses->ws), refdb_compound(db, "NaCl"))->mM, 150, 0, 0);
 	ok("set NaCl 0.14 M");
-	assert_close(sol_find(ws_current(&ctx.ws), refdb_compound(db, "NaCl"))->mM, 140, 1e-12, 0);
+	assert_close(sol_find(ws_current(&ctx.ses->ws), refdb_compound(db, "NaCl"))->mM, 140, 1e-12, 0);
 	ok("remove KCl");
-	assert_int_equal(ws_current(&ctx.ws)->n, 2);
+	assert_int_equal(ws_current(&ctx.ses->ws)->n, 2);
 	ok("solution copy from bath");
-	assert_string_equal(ws_current(&ctx.ws)->name, "copy");
-	assert_int_equal(ws_current(&ctx.ws)->n, 2);
+	assert_string_equal(ws_current(&ctx.ses->ws)->name, "copy");
+	assert_int_equal(ws_current(&ctx.ses->ws)->n, 2);
 	ok("temp 37");
-	assert_close(ctx.temp_C, 37, 0, 0);
+	assert_close(ctx.ses->temp_C, 37, 0, 0);
 	ok("# a comment line");
 	ok("");
 	ok("show; show bath; nernst copy bath; nernst copy bath activities; weigh 250");
@@ -116,22 +116,22 @@ static void bad_input_leaves_workspace(void **state)
 	(void)state;
 	ok("solution bath; add NaCl 140; add KCl 5");
 	for (size_t i = 0; i < IM_COUNT(bad); i++) {
-		ws_copy(&before, &ctx.ws);
+		ws_copy(&before, &ctx.ses->ws);
 		err[0] = '\0';
 		if (run(bad[i], err) == 0)
 			fail_msg("'%s' succeeded", bad[i]);
 		assert_true(strlen(err) > 0);
 		assert_null(strchr(err, '\n'));
-		assert_int_equal(before.n, ctx.ws.n);
+		assert_int_equal(before.n, ctx.ses->ws.n);
 		for (int k = 0; k < before.n; k++)
-			if (!sol_equal(before.sol[k], ctx.ws.sol[k]))
+			if (!sol_equal(before.sol[k], ctx.ses->ws.sol[k]))
 				fail_msg("'%s' changed the workspace", bad[i]);
-		assert_close(ctx.temp_C, 25, 0, 0);
+		assert_close(ctx.ses->temp_C, 25, 0, 0);
 		ws_free(&before);
 	}
 	/* in "a; b" a failing b leaves a's change standing, as two lines would */
 	assert_int_equal(run("add NaCl 10; add Bogus 1", err), -1);
-	assert_close(sol_find(ws_current(&ctx.ws), refdb_compound(db, "NaCl"))->mM, 150, 0, 0);
+	assert_close(sol_find(ws_current(&ctx.ses->ws), refdb_compound(db, "NaCl"))->mM, 150, 0, 0);
 	/* messages name the offending token */
 	run("add NaCll 10", err);
 	assert_non_null(strstr(err, "NaCll"));
@@ -173,8 +173,8 @@ static void script_stops_at_bad_line(void **state)
 	assert_string_equal(ctx.errfile, p);
 	assert_int_equal(ctx.errline, 4);
 	/* lines before the bad one stand; the one after never ran */
-	assert_non_null(ws_find(&ctx.ws, "bath"));
-	assert_int_equal(ws_find(&ctx.ws, "bath")->n, 1);
+	assert_non_null(ws_find(&ctx.ses->ws, "bath"));
+	assert_int_equal(ws_find(&ctx.ses->ws, "bath")->n, 1);
 }
 
 static void script_with_bom(void **state)
@@ -188,7 +188,7 @@ static void script_with_bom(void **state)
 	fclose(f);
 	snprintf(line, sizeof line, "run %s", p);
 	ok(line);
-	assert_int_equal(ws_find(&ctx.ws, "bom")->n, 1);
+	assert_int_equal(ws_find(&ctx.ses->ws, "bom")->n, 1);
 	ok("compounds salt");
 	{
 		char err[IM_ERRLEN];
@@ -207,11 +207,11 @@ static void export_then_run(void **state)
 	snprintf(p, sizeof p, "%s/pip.ionmix", dir);
 	snprintf(line, sizeof line, "export pip %s", p);
 	ok(line);
-	ws_copy(&before, &ctx.ws);
+	ws_copy(&before, &ctx.ses->ws);
 	ok("set KCl 50; add NaCl 3; solution other");
 	snprintf(line, sizeof line, "run %s", p);
 	ok(line);
-	assert_true(sol_equal(ws_find(&before, "pip"), ws_find(&ctx.ws, "pip")));
+	assert_true(sol_equal(ws_find(&before, "pip"), ws_find(&ctx.ses->ws, "pip")));
 	ws_free(&before);
 }
 
@@ -220,9 +220,9 @@ static void save_load(void **state)
 	workspace before;
 	(void)state;
 	ok("solution bath; add NaCl 140; add HEPES 10; save");
-	ws_copy(&before, &ctx.ws);
+	ws_copy(&before, &ctx.ses->ws);
 	ok("set NaCl 1; load bath");
-	assert_true(sol_equal(ws_find(&before, "bath"), ws_find(&ctx.ws, "bath")));
+	assert_true(sol_equal(ws_find(&before, "bath"), ws_find(&ctx.ses->ws, "bath")));
 	ok("list; delete bath");
 	ws_free(&before);
 }
