@@ -174,10 +174,13 @@ static int run_actions(im_ctx *ctx, const opts *op)
  * pipe is exit status 1 with a message, never a silent 0. */
 static int check_stdout(out *o, int status)
 {
-	if (out_failed(o) || fclose(stdout) != 0) {
+	int failed = out_failed(o);
+	if (fclose(stdout) != 0)
+		failed = 1;
+	if (failed && status == 0) { /* else the failing command said it */
 		fprintf(stderr, "ionmix: cannot write to standard output: %s\n",
 			strerror(o->werrno ? o->werrno : errno ? errno : EIO));
-		return status ? status : 1;
+		return 1;
 	}
 	return status;
 }

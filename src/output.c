@@ -100,7 +100,9 @@ void out_json_string(FILE *fp, const char *s)
 
 void out_error(out *o, const char *file, int line, const char *msg)
 {
-	if (o->json) {
+	/* when the results cannot be written, neither can a JSON error: it
+	 * goes to the error stream as text */
+	if (o->json && !o->werrno) {
 		fputs("{\"error\":", o->fp);
 		out_json_string(o->fp, msg);
 		if (file) {
