@@ -145,8 +145,7 @@ void jw_end(jw *w)
 {
 	while (w->depth > 0)
 		jw_close(w);
-	fputs("}\n", w->o->fp);
-	fflush(w->o->fp);
+	fputs("}\n", w->o->fp); /* the line loop flushes after each command (out_failed) */
 }
 
 void jw_str(jw *w, const char *key, const char *val)
