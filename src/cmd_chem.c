@@ -14,6 +14,7 @@
 
 #include "session.h"
 #include "common.h"
+#include "render.h"
 #include "units.h"
 
 #define MAX_YIELD 16
@@ -176,10 +177,12 @@ int cmd_gas(im_ctx *ctx, int argc, char **argv, char *err)
 	if (ses_solution(ctx->ses, NULL, &s, err))
 		return -1;
 	if (strcmp(argv[1], "off") == 0 && argc == 2) {
+		render *r = render_new(ctx->out);
 		s->co2_frac = 0;
-		out_printf(ctx->out, "%s: no CO2 gas; the pH follows from the protons present\n",
-			   s->name);
-		return 0;
+		render_str(r, "solution", NULL, s->name);
+		render_num(r, "co2_percent", NULL, "%", 0, UNITS_SIG(3));
+		render_text(r, "%s: no CO2 gas; the pH follows from the protons present", s->name);
+		return render_done(r);
 	}
 	if (!im_strcaseeq(argv[1], "co2") || argc < 3)
 		return im_fail(err, "usage: gas co2 PERCENT [dry] [pressure ATM] | gas off");
@@ -527,8 +530,11 @@ int cmd_constants(im_ctx *ctx, int argc, char **argv, char *err)
 	if (strcmp(argv[1], "default") == 0) {
 		spec_use_compilation(ctx->ses->chem, "default", err);
 		osm_use_compilation(ctx->ses->osm, "default", err);
-		out_printf(ctx->out, "constants: every default in use again\n");
-		return 0;
+		render *r = render_new(ctx->out);
+		render_str(r, "name", NULL, "default");
+		render_bool(r, "picked", NULL, 0);
+		render_text(r, "constants: every default in use again");
+		return render_done(r);
 	}
 	for (int i = 0; i < nc; i++)
 		if (strcmp(comp[i], argv[1]) == 0) {
