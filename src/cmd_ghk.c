@@ -496,6 +496,8 @@ typedef struct iv_out {
 	const plot_curve *c;
 	int nc;
 	const plot_opts *po;
+	double scale;       /* what the currents are multiplied by (1: A/cm2) */
+	const char *suffix; /* of the CSV column names: "_A_cm2" or "_rel" */
 } iv_out;
 
 /* RFC 4180: quote a field holding a comma, quote or line break. */
@@ -519,17 +521,17 @@ static int write_csv(FILE *fp, void *arg, char *err)
 	const iv_out *a = arg;
 	const ghk_iv_curve *iv = a->iv;
 	char h[96];
-	fputs("V_mV,total_A_cm2", fp);
+	fprintf(fp, "V_mV,total%s", a->suffix);
 	for (int i = 0; i < iv->nions; i++) {
-		snprintf(h, sizeof h, "%s_A_cm2", a->x[i].symbol);
+		snprintf(h, sizeof h, "%s%s", a->x[i].symbol, a->suffix);
 		fputc(',', fp);
 		csv_field(fp, h);
 	}
 	fputs("\r\n", fp);
 	for (int k = 0; k < iv->npts; k++) {
-		fprintf(fp, "%.10g,%.10g", iv->V_mV[k], iv->total_A_cm2[k]);
+		fprintf(fp, "%.10g,%.10g", iv->V_mV[k], a->scale * iv->total_A_cm2[k]);
 		for (int i = 0; i < iv->nions; i++)
-			fprintf(fp, ",%.10g", iv->ion_A_cm2[(size_t)k * iv->nions + i]);
+			fprintf(fp, ",%.10g", a->scale * iv->ion_A_cm2[(size_t)k * iv->nions + i]);
 		fputs("\r\n", fp);
 	}
 	if (ferror(fp))
@@ -644,7 +646,11 @@ int cmd_ghk_iv(im_ctx *ctx, int argc, char **argv, char *err)
 		ps.utf8 = 1;
 		ps.title = title;
 		ps.y_label = ylab_svg;
-		iv_out as = {&iv, x, c, nc, &ps}, ac = {&iv, x, c, nc, &po};
+		/* the CSV and JSON carry the numbers the text and SVG show: A/cm2
+		 * for absolute P, relative units (largest |I| = 1) otherwise */
+		iv_out as = {&iv, x, c, nc, &ps, 1, ""},
+		       ac = {&iv, x, c, nc, &po, o.absolute == 1 ? 1 : f,
+			     o.absolute == 1 ? "_A_cm2" : "_rel"};
 		if (write_outputs(o.svg, &as, o.csv, &ac, err))
 			goto done;
 	}
@@ -652,16 +658,19 @@ int cmd_ghk_iv(im_ctx *ctx, int argc, char **argv, char *err)
 	if (ctx->out->json) {
 		jw w;
 		json_head(&w, ctx, &ins, &outs, &o, x);
+		double js = o.absolute == 1 ? 1 : f;
 		jw_str(&w, "current_unit", o.absolute == 1 ? "A/cm2"
-			: "A/cm2 per cm/s of the relative P given");
+			: "relative (the largest |I| is 1)");
+		if (o.absolute != 1) /* relative unit = A/cm2 per cm/s of the P given x scale */
+			jw_num(&w, "relative_scale_cm2_s_A", f, 10);
 		jw_arr(&w, "points");
 		for (int k = 0; k < iv.npts; k++) {
 			jw_obj(&w, NULL);
 			jw_num(&w, "mV", iv.V_mV[k], 10);
-			jw_num(&w, "total", iv.total_A_cm2[k], 10);
+			jw_num(&w, "total", js * iv.total_A_cm2[k], 10);
 			for (int i = 0; i < iv.nions; i++)
 				jw_num(&w, x[i].symbol,
-				       iv.ion_A_cm2[(size_t)k * iv.nions + i], 10);
+				       js * iv.ion_A_cm2[(size_t)k * iv.nions + i], 10);
 			jw_close(&w);
 		}
 		jw_close(&w);

@@ -102,10 +102,14 @@ static int parse_opts(int argc, char **argv, opts *o)
 	};
 	int c;
 	opterr = 0;
-	/* "+": stop at the first file name, as the order of actions matters;
-	 * ":": a missing argument is told apart from an unknown option */
-	while ((c = getopt_long(argc, argv, "+:e:", longs, NULL)) != -1) {
+	/* "-": file names come back in place (as option 1), so scripts and
+	 * -e commands keep the order given; ":": a missing argument is told
+	 * apart from an unknown option.  After "--" every word is a file. */
+	while ((c = getopt_long(argc, argv, "-:e:", longs, NULL)) != -1) {
 		switch (c) {
+		case 1:
+			o->acts[o->nact++] = optarg;
+			break;
 		case 'e':
 			o->is_expr[o->nact] = 1;
 			o->acts[o->nact++] = optarg;
@@ -136,7 +140,6 @@ static int parse_opts(int argc, char **argv, opts *o)
 					"Try 'ionmix --help'.\n", argv[optind - 1]);
 			return 2;
 		}
-		/* after a file name, more options may follow (GNU order) */
 	}
 	for (int i = optind; i < argc; i++)
 		o->acts[o->nact++] = argv[i];
