@@ -8,6 +8,7 @@
 
 #include "command.h"
 #include "common.h"
+#include "render.h"
 
 static refdb *db;
 static im_ctx ctx;
@@ -244,6 +245,100 @@ static void json_show(void **state)
 	o.json = 0;
 }
 
+/* One description, two forms: the text and the JSON of a small result
+ * hold the same fields, the numbers with the digits the field asks for. */
+static void render_both(void **state)
+{
+	for (int json = 0; json < 2; json++) {
+		render *r;
+		o.json = json;
+		r = render_new(&o);
+		render_str(r, "solution", NULL, "pip");
+		render_text(r, "pip at 25.0 C");
+		render_num(r, "ionic_strength_mM", "ionic strength", "mM", 148.0987, UNITS_DEC(2));
+		render_num(r, "net_charge_mEq_L", "net charge", "mEq/L", -0.001, UNITS_DEC(2));
+		render_table(r, "ions", NULL);
+		render_row(r);
+		render_str(r, "ion", "ion", "K+");
+		render_charge(r, "z", "z", 1);
+		render_conc(r, "mM", "free", 140);
+		render_row(r);
+		render_str(r, "ion", "ion", "Ca2+");
+		render_charge(r, "z", "z", 2);
+		render_conc(r, "mM", "free", 5e-8);
+		render_table_end(r);
+		render_note(r, "a note");
+		render_done(r);
+		fflush(o.fp);
+	}
+	o.json = 0;
+	(void)state;
+	assert_string_equal(buf,
+			    "pip at 25.0 C\n"
+			    "  ionic strength  148.10 mM\n"
+			    "  net charge      0.00 mEq/L\n"
+			    "  ion    z    free\n"
+			    "  K+    +1  140 mM\n"
+			    "  Ca2+  +2   50 pM\n"
+			    "  note: a note\n"
+			    "{\"solution\":\"pip\",\"ionic_strength_mM\":148.0987,"
+			    "\"net_charge_mEq_L\":-0.001,\"ions\":[{\"ion\":\"K+\",\"z\":1,"
+			    "\"mM\":140},{\"ion\":\"Ca2+\",\"z\":2,\"mM\":5e-08}],"
+			    "\"notes\":[\"a note\"]}\n");
+}
+
+/* A message of any length reaches the output whole (no fixed buffer). */
+static void render_long_note(void **state)
+{
+	char *long_note = malloc(3001);
+	render *r;
+	(void)state;
+	memset(long_note, 'x', 3000);
+	long_note[3000] = '\0';
+	r = render_new(&o);
+	render_note(r, "%s", long_note);
+	render_done(r);
+	fflush(o.fp);
+	assert_int_equal(strlen(buf), strlen("  note: ") + 3000 + 1);
+	free(long_note);
+}
+
+/* The line loop: quit stops a script there; run, help and quit are
+ * commands of the table; a script run from the shell still stops at its
+ * first error while the shell goes on. */
+static void loop_rules(void **state)
+{
+	char p[160], err[IM_ERRLEN];
+	FILE *fp;
+	int line;
+	(void)state;
+	assert_non_null(cmd_lookup("run"));
+	assert_non_null(cmd_lookup("help"));
+	assert_non_null(cmd_lookup("quit"));
+	snprintf(p, sizeof p, "%s/q.ionmix", dir);
+	fp = fopen(p, "w");
+	fputs("solution q\r\nadd NaCl 1\nquit\nadd KCl 1\n", fp);
+	fclose(fp);
+	fp = fopen(p, "r");
+	assert_int_equal(cmd_run_stream(&ctx, fp, &line, err), 0);
+	fclose(fp);
+	assert_int_equal(line, 3);
+	assert_int_equal(ws_find(&ctx.ses->ws, "q")->n, 1);
+	assert_true(ctx.quit);
+	ctx.quit = 0;
+	/* interactive: an error is reported and the loop goes on */
+	fp = fopen(p, "w");
+	fputs("add Nope 1\nadd KCl 2\n", fp);
+	fclose(fp);
+	fp = fopen(p, "r");
+	ctx.interactive = 1;
+	assert_int_equal(cmd_run_stream(&ctx, fp, &line, err), 0);
+	ctx.interactive = 0;
+	fclose(fp);
+	assert_int_equal(line, 2);
+	assert_non_null(sol_find(ws_find(&ctx.ses->ws, "q"), refdb_compound(db, "KCl")));
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -255,6 +350,9 @@ int main(void)
 		cmocka_unit_test_setup_teardown(export_then_run, fresh, done),
 		cmocka_unit_test_setup_teardown(save_load, fresh, done),
 		cmocka_unit_test_setup_teardown(json_show, fresh, done),
+		cmocka_unit_test_setup_teardown(render_both, fresh, done),
+		cmocka_unit_test_setup_teardown(render_long_note, fresh, done),
+		cmocka_unit_test_setup_teardown(loop_rules, fresh, done),
 	};
 	return cmocka_run_group_tests(tests, setup, teardown);
 }
