@@ -16,6 +16,7 @@
 
 #include "common.h"
 #include "fileio.h"
+#include "render.h"
 #include "units.h"
 #include "ghk.h"
 #include "junction.h"
@@ -152,9 +153,8 @@ static int parse_rest(im_ctx *ctx, int argc, char **argv, int first, int with_iv
 static int side_open(im_ctx *ctx, const char *name, side *s, char *err)
 {
 	memset(s, 0, sizeof *s);
-	s->sol = ws_find(&ctx->ses->ws, name);
-	if (!s->sol)
-		return im_fail(err, "unknown solution '%.60s' (see `list`)", name);
+	if (ses_solution(ctx->ses, name, &s->sol, err))
+		return -1;
 	if (sol_compute(s->sol, ses_env(ctx->ses), &s->st, err))
 		return -1;
 	s->have = 1;
@@ -216,104 +216,112 @@ static void json_head(jw *w, im_ctx *ctx, const side *ins, const side *outs,
 	jw_close(w);
 }
 
+/* The same head as a render: the pair, temperature, basis and the
+ * permeabilities given (JSON only; the text names them in its title and
+ * table), and the Nernst potentials under their contract key. */
+static void render_head(render *r, const side *ins, const side *outs, const opts *o,
+			const ghk_ion *x, double t_C)
+{
+	render_str(r, "inside", NULL, ins->sol->name);
+	render_str(r, "outside", NULL, outs->sol->name);
+	render_num(r, "temperature_C", NULL, "C", t_C, UNITS_DEC(1));
+	render_str(r, "from", NULL, basis(o));
+	render_object(r, "permeabilities");
+	for (int i = 0; i < o->np; i++)
+		render_num(r, x[i].symbol, NULL, NULL, x[i].P, UNITS_SIG(4));
+	render_object_end(r);
+	render_object(r, "nernst_mV");
+	for (int i = 0; i < o->np; i++) {
+		double En;
+		if (ghk_nernst_mV(x[i].z, x[i].in_mM, x[i].out_mM, t_C, &En, NULL) == 0)
+			render_numj(r, x[i].symbol, NULL, "mV", En, UNITS_DEC(2), 8);
+		else
+			render_null(r, x[i].symbol, NULL);
+	}
+	render_object_end(r);
+}
+
 /* ---- erev ---- */
+
+/* One permeant ion of erev: its P, the two sides and its Nernst
+ * potential, or why there is none. */
+static void erev_row(render *r, const ghk_ion *x, int act, double t_C)
+{
+	double En;
+	render_row(r);
+	render_str(r, "ion", "ion", x->symbol);
+	render_numj(r, "P", "P", NULL, x->P, UNITS_SIG(4), 10);
+	render_num(r, "inside_mM", act ? "inside a" : "inside", "mM", x->in_mM, UNITS_SIG(4));
+	render_num(r, "outside_mM", act ? "outside a" : "outside", "mM", x->out_mM,
+		   UNITS_SIG(4));
+	if (ghk_nernst_mV(x->z, x->in_mM, x->out_mM, t_C, &En, NULL) == 0) {
+		render_numj(r, "nernst_mV", "Nernst", "mV", En, UNITS_DEC(2), 8);
+	} else {
+		render_null(r, "nernst_mV", "Nernst");
+		render_str(r, NULL, "", x->in_mM > 0 ? "(absent outside)"
+				 : x->out_mM > 0 ? "(absent inside)" : "(absent)");
+	}
+}
+
+/* `corrected`: the reversal potential as read before the LJP correction
+ * (whole-cell, the inside solution in the pipette). */
+static void erev_corrected(render *r, const side *ins, const side *outs, double E,
+			   double t_C)
+{
+	double L;
+	char e2[IM_ERRLEN];
+	if (ljp(ins, outs, t_C, &L, e2) == 0) {
+		render_numj(r, "ljp_mV", NULL, "mV", L, UNITS_DEC(2), 6);
+		render_numj(r, "E_rev_uncorrected_mV", NULL, "mV", E + L, UNITS_DEC(2), 8);
+		render_text(r, "  reads %+.2f mV before junction-potential correction (whole-cell, "
+			       "pipette = %s):\n    E_rev + LJP, Henderson LJP %+.2f mV from "
+			       "concentrations (bath relative to pipette)", E + L, ins->sol->name, L);
+		return;
+	}
+	render_null(r, "ljp_mV", NULL);
+	render_null(r, "E_rev_uncorrected_mV", NULL);
+	render_note_as(r, "ljp_note", "uncorrected value not available: ",
+		       "no liquid junction potential: %s", e2);
+	(void)outs;
+}
 
 int cmd_ghk_erev(im_ctx *ctx, int argc, char **argv, char *err)
 {
 	opts o;
 	side ins, outs;
 	ghk_ion x[MAX_PERM];
-	double E, L = 0;
-	int rc = -1, have_ljp = 0;
-	char why[IM_ERRLEN] = "";
+	double E, t = ctx->ses->temp_C;
+	render *r;
 	memset(&o, 0, sizeof o);
-	if (argc < 4)
-		return im_fail(err, "usage: erev INSIDE OUTSIDE ION=P [ION=P ...] "
-			       "[activities] [corrected]");
 	if (parse_rest(ctx, argc, argv, 3, 0, &o, err))
 		return -1;
 	if (o.np == 0)
 		return im_fail(err, "give at least one permeability, e.g. K=1 Na=0.04");
 	if (side_open(ctx, argv[1], &ins, err))
 		return -1;
-	if (side_open(ctx, argv[2], &outs, err))
-		goto done;
-	fill(&o, &ins, &outs, x);
-	if (ghk_erev_mV(x, o.np, ctx->ses->temp_C, &E, err))
-		goto done;
-	if (o.corrected) {
-		char e2[IM_ERRLEN];
-		if (ljp(&ins, &outs, ctx->ses->temp_C, &L, e2) == 0)
-			have_ljp = 1;
-		else
-			snprintf(why, sizeof why, "no liquid junction potential: %.200s",
-				 e2);
+	if (side_open(ctx, argv[2], &outs, err) ||
+	    (fill(&o, &ins, &outs, x), ghk_erev_mV(x, o.np, t, &E, err))) {
+		side_close(&ins);
+		side_close(&outs);
+		return -1;
 	}
-	if (ctx->out->json) {
-		jw w;
-		json_head(&w, ctx, &ins, &outs, &o, x);
-		jw_num(&w, "E_rev_mV", E, 8);
-		jw_obj(&w, "nernst_mV");
-		for (int i = 0; i < o.np; i++) {
-			double En;
-			if (ghk_nernst_mV(x[i].z, x[i].in_mM, x[i].out_mM, ctx->ses->temp_C,
-					  &En, NULL) == 0)
-				jw_num(&w, x[i].symbol, En, 8);
-			else
-				jw_str(&w, x[i].symbol, NULL);
-		}
-		jw_close(&w);
-		if (o.corrected) {
-			if (have_ljp) {
-				jw_num(&w, "ljp_mV", L, 6);
-				jw_num(&w, "E_rev_uncorrected_mV", E + L, 8);
-			} else {
-				jw_str(&w, "ljp_mV", NULL);
-				jw_str(&w, "E_rev_uncorrected_mV", NULL);
-				jw_str(&w, "ljp_note", why);
-			}
-		}
-		jw_str(&w, "convention", CONVENTION);
-		jw_end(&w);
-	} else {
-		out_printf(ctx->out, "GHK reversal potential: %s inside, %s outside, "
-			   "%.1f C, from %s\n", ins.sol->name, outs.sol->name,
-			   ctx->ses->temp_C, basis(&o));
-		out_printf(ctx->out, "  %-10s %10s %12s %12s %10s\n", "ion", "P",
-			   o.activities ? "inside a mM" : "inside mM",
-			   o.activities ? "outside a mM" : "outside mM", "Nernst mV");
-		for (int i = 0; i < o.np; i++) {
-			double En;
-			char e2[IM_ERRLEN];
-			out_printf(ctx->out, "  %-10s %10.4g %12.4g %12.4g ", x[i].symbol,
-				   x[i].P, x[i].in_mM, x[i].out_mM);
-			if (ghk_nernst_mV(x[i].z, x[i].in_mM, x[i].out_mM, ctx->ses->temp_C,
-					  &En, e2) == 0)
-				out_printf(ctx->out, "%+10.2f\n", En);
-			else
-				out_printf(ctx->out, "%10s  (%s)\n", "-",
-					   x[i].in_mM > 0 ? "absent outside"
-					   : x[i].out_mM > 0 ? "absent inside" : "absent");
-		}
-		out_printf(ctx->out, "  E_rev = %+.2f mV\n", E);
-		if (o.corrected) {
-			if (have_ljp)
-				out_printf(ctx->out, "  reads %+.2f mV before junction-potential "
-					   "correction (whole-cell, pipette = %s):\n"
-					   "    E_rev + LJP, Henderson LJP %+.2f mV from concentrations "
-					   "(bath relative to pipette)\n", E + L,
-					   ins.sol->name, L);
-			else
-				out_printf(ctx->out, "  uncorrected value not available: %s\n",
-					   why);
-		}
-		out_printf(ctx->out, "  sign: %s\n", CONVENTION);
-	}
-	rc = 0;
-done:
+	r = render_new(ctx->out);
+	render_text(r, "GHK reversal potential: %s inside, %s outside, %.1f C, from %s",
+		    ins.sol->name, outs.sol->name, t, basis(&o));
+	render_head(r, &ins, &outs, &o, x, t);
+	render_table(r, "ions", NULL);
+	for (int i = 0; i < o.np; i++)
+		erev_row(r, &x[i], o.activities, t);
+	render_table_end(r);
+	render_numj(r, "E_rev_mV", NULL, "mV", E, UNITS_DEC(2), 8);
+	render_text(r, "  E_rev = %+.2f mV", E);
+	if (o.corrected)
+		erev_corrected(r, &ins, &outs, E, t);
+	render_str(r, "convention", NULL, CONVENTION);
+	render_text(r, "  sign: %s", CONVENTION);
 	side_close(&ins);
 	side_close(&outs);
-	return rc;
+	return render_done(r);
 }
 
 /* ---- ratio ---- */

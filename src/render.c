@@ -493,6 +493,9 @@ static void emit_json(const render *r)
 			jw_obj(&w, x->key);
 		} else if (x->k == N_OEND) {
 			jw_close(&w);
+		} else if (x->k == N_TABLE && !x->key) { /* a table for the text only */
+			while (i < r->count && r->n[i].k != N_TEND)
+				i++;
 		} else if (x->k == N_TABLE) {
 			jw_arr(&w, x->key);
 			row_open = 0;

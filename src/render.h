@@ -70,7 +70,8 @@ void render_note_as(render *r, const char *key, const char *prefix, const char *
 /* A table: a JSON array of objects under key; in text a title line (NULL:
  * none), a header and aligned rows.  render_row starts a row; the fields
  * that follow are its cells, until the next render_row or
- * render_table_end.  A cell missing from a row prints blank. */
+ * render_table_end.  A cell missing from a row prints blank.  A table
+ * whose key is NULL is in the text only. */
 void render_table(render *r, const char *key, const char *title);
 void render_row(render *r);
 void render_table_end(render *r);
