@@ -167,27 +167,16 @@ int cmd_ph(im_ctx *ctx, int argc, char **argv, char *err)
 	return 0;
 }
 
-int cmd_gas(im_ctx *ctx, int argc, char **argv, char *err)
+/* The words of `gas co2 PERCENT [dry] [pressure ATM]`: the fraction
+ * (0-1), the total pressure in atm and whether the gas is dry. */
+static int gas_args(int argc, char **argv, double *frac, double *p_atm, int *dry, char *err)
 {
-	solution *s;
-	sol_state st;
-	double pct, p = 1.0;
-	int dry = 0;
 	char num[32];
-	if (ses_solution(ctx->ses, NULL, &s, err))
-		return -1;
-	if (strcmp(argv[1], "off") == 0 && argc == 2) {
-		render *r = render_new(ctx->out);
-		s->co2_frac = 0;
-		render_str(r, "solution", NULL, s->name);
-		render_num(r, "co2_percent", NULL, "%", 0, UNITS_SIG(3));
-		render_text(r, "%s: no CO2 gas; the pH follows from the protons present", s->name);
-		return render_done(r);
-	}
+	double pct;
+	*p_atm = 1.0;
+	*dry = 0;
 	if (!im_strcaseeq(argv[1], "co2") || argc < 3)
 		return im_fail(err, "usage: gas co2 PERCENT [dry] [pressure ATM] | gas off");
-	if (need_chem(ctx, err))
-		return -1;
 	snprintf(num, sizeof num, "%s", argv[2]);
 	if (num[0] && num[strlen(num) - 1] == '%')
 		num[strlen(num) - 1] = '\0';
@@ -197,43 +186,60 @@ int cmd_gas(im_ctx *ctx, int argc, char **argv, char *err)
 		return im_fail(err, "CO2 fraction %s %% must be above 0 and at most 100", num);
 	for (int i = 3; i < argc; i++) {
 		if (strcmp(argv[i], "dry") == 0) {
-			dry = 1;
+			*dry = 1;
 		} else if (strcmp(argv[i], "pressure") == 0 && i + 1 < argc) {
-			if (units_number(argv[++i], &p, err))
+			if (units_number(argv[++i], p_atm, err))
 				return -1;
-			if (!(p > 0.1 && p <= 5))
+			if (!(*p_atm > 0.1 && *p_atm <= 5))
 				return im_fail(err, "gas pressure %s atm is outside 0.1 to 5 atm", argv[i]);
 		} else {
 			return im_fail(err, "unexpected '%.40s' (gas co2 PERCENT [dry] [pressure ATM])",
 				       argv[i]);
 		}
 	}
-	s->co2_frac = pct / 100.0;
+	*frac = pct / 100.0;
+	return 0;
+}
+
+int cmd_gas(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	solution *s;
+	sol_state st;
+	double frac = 0, p = 1.0, pco2, t = ctx->ses->temp_C;
+	int dry = 0, off = strcmp(argv[1], "off") == 0 && argc == 2;
+	render *r;
+	if (ses_solution(ctx->ses, NULL, &s, err) ||
+	    (!off && (gas_args(argc, argv, &frac, &p, &dry, err) || need_chem(ctx, err))))
+		return -1;
+	s->co2_frac = frac;
 	s->co2_p_atm = p;
 	s->co2_dry = dry;
-	if (forward(ctx, s, &st, err))
-		return -1;
-	if (ctx->out->json) {
-		jw w;
-		jw_begin(&w, ctx->out);
-		jw_str(&w, "solution", s->name);
-		jw_num(&w, "co2_percent", pct, 6);
-		jw_num(&w, "pco2_atm", spec_pco2_atm(s->co2_frac, p, ctx->ses->temp_C, !dry), 6);
-		jw_num(&w, "pH", st.pH, 6);
-		jw_end(&w);
-	} else {
-		out_printf(ctx->out, "%s: equilibrated with %g %% CO2 (%s, %g atm; pCO2 %.4f atm at "
-				     "%.1f C): pH %.2f\n", s->name, pct,
-			   dry ? "dry gas" : "humidified", p,
-			   spec_pco2_atm(s->co2_frac, p, ctx->ses->temp_C, !dry), ctx->ses->temp_C, st.pH);
-		out_printf(ctx->out, "  (Henderson-Hasselbalch with the CO2 solubility of Harned "
-				     "& Davis 1943; confirm with a calibrated pH meter)\n");
-		if (isfinite(s->ph_target))
-			out_printf(ctx->out, "  note: the titrant added by `ph` stays in; with the gas "
-					     "the pH no longer follows it\n");
+	r = render_new(ctx->out);
+	render_str(r, "solution", NULL, s->name);
+	render_numj(r, "co2_percent", NULL, "%", 100 * frac, UNITS_SIG(3), 6);
+	if (off) {
+		render_text(r, "%s: no CO2 gas; the pH follows from the protons present", s->name);
+		return render_done(r);
 	}
+	if (forward(ctx, s, &st, err)) {
+		render_drop(r);
+		return -1;
+	}
+	pco2 = spec_pco2_atm(frac, p, t, !dry);
+	render_numj(r, "pco2_atm", NULL, "atm", pco2, UNITS_DEC(4), 6);
+	render_numj(r, "pressure_atm", NULL, "atm", p, UNITS_SIG(3), 6);
+	render_bool(r, "dry", NULL, dry);
+	render_numj(r, "pH", NULL, NULL, st.pH, UNITS_DEC(2), 6);
+	render_text(r, "%s: equilibrated with %g %% CO2 (%s, %g atm; pCO2 %.4f atm at %.1f C): "
+		       "pH %.2f", s->name, 100 * frac, dry ? "dry gas" : "humidified", p, pco2, t,
+		    st.pH);
+	render_note_as(r, "notes", "", "(Henderson-Hasselbalch with the CO2 solubility of Harned "
+		       "& Davis 1943; confirm with a calibrated pH meter)");
+	if (isfinite(s->ph_target))
+		render_note(r, "the titrant added by `ph` stays in; with the gas the pH no longer "
+			       "follows it");
 	sol_state_free(&st);
-	return 0;
+	return render_done(r);
 }
 
 /* Free concentration of metal in a computed state, mM (-1 if absent). */
