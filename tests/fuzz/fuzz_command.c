@@ -85,7 +85,7 @@ static void run_line(const char *line, size_t n, int json)
 	char err[IM_ERRLEN];
 	char *buf = NULL;
 	size_t len = 0;
-	out o;
+	out o = {NULL, NULL, 0, 0, NULL, 0};
 	im_ctx ctx;
 	workspace before;
 	int rc;

@@ -46,7 +46,7 @@ static void run_script(const char *bytes, size_t n, int json)
 	char err[IM_ERRLEN];
 	char *buf = NULL;
 	size_t len = 0, lines = 1;
-	out o;
+	out o = {NULL, NULL, 0, 0, NULL, 0};
 	im_ctx ctx;
 	int rc;
 	FILE *f = fopen(script, "wb");
