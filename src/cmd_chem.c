@@ -242,17 +242,6 @@ int cmd_gas(im_ctx *ctx, int argc, char **argv, char *err)
 	return render_done(r);
 }
 
-/* Free concentration of metal in a computed state, mM (-1 if absent). */
-static double free_of(const sol_state *st, const char *metal)
-{
-	if (!st->chem)
-		return -1;
-	for (int m = 0; m < st->chem->nmetals; m++)
-		if (strcmp(st->chem->metals[m].symbol, metal) == 0)
-			return st->chem->metals[m].free_mM;
-	return -1;
-}
-
 int cmd_free(im_ctx *ctx, int argc, char **argv, char *err)
 {
 	solution *s;
@@ -342,7 +331,9 @@ int cmd_free(im_ctx *ctx, int argc, char **argv, char *err)
 	}
 	if (forward(ctx, s, &st, err))
 		return -1;
-	got = free_of(&st, metal->symbol);
+	got = sol_state_free_mM(&st, metal->symbol);
+	if (!(got >= 0))
+		got = -1; /* no speciation: nothing known */
 	if (ctx->out->json) {
 		jw w;
 		jw_begin(&w, ctx->out);

@@ -83,16 +83,6 @@ static double conc_of(const sol_state *st, const refdb *ref, const char *sym, in
 	return x ? (act ? x->act_mM : x->mM) : 0;
 }
 
-static double free_of(const sol_state *st, const char *metal)
-{
-	if (!st->chem)
-		return NAN;
-	for (int m = 0; m < st->chem->nmetals; m++)
-		if (strcmp(st->chem->metals[m].symbol, metal) == 0)
-			return st->chem->metals[m].free_mM;
-	return 0;
-}
-
 /* Buffer capacity, mM of strong base per pH unit: the pH change when
  * 0.1 mM of OH- joins the solution's protons (closed system). */
 static double buffer_capacity(session *ses, const solution *s, const sol_state *st)
@@ -173,7 +163,7 @@ static void review_ph(report *r, session *ses, const char *which, const solution
 
 static void review_divalent(report *r, const sol_state *p)
 {
-	double ca = free_of(p, "Ca2+"), mg = free_of(p, "Mg2+");
+	double ca = sol_state_free_mM(p, "Ca2+"), mg = sol_state_free_mM(p, "Mg2+");
 	char b[48];
 	if (isfinite(ca) && ca > 0) {
 		units_fmt_conc(b, sizeof b, ca, 0);
