@@ -119,8 +119,8 @@ static int parse_opts(int argc, char **argv, opts *o)
 			break;
 		case OPT_DB:
 			if (!*optarg) {
-				fprintf(stderr, "ionmix: option '--db' needs a path, not an empty "
-						"one\nTry 'ionmix --help'.\n");
+				fprintf(stderr, "ionmix: --db: an empty path names no database "
+						"(see --help)\n");
 				return 2;
 			}
 			o->db = optarg;

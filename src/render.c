@@ -12,14 +12,14 @@
 #include "common.h"
 
 typedef enum {
-	N_STR, N_NUM, N_CONC, N_INT, N_BOOL, N_NULL, N_LIST, /* values */
+	N_STR, N_NUM, N_CONC, N_INT, N_BOOL, N_NULL, N_LIST, N_RANGE, /* values */
 	N_TEXT, N_NOTE, N_TABLE, N_ROW, N_TEND, N_TEMPTY, N_OBJ, N_OEND
 } nkind;
 
 typedef struct node {
 	nkind k;
 	char *key, *label, *unit, *s; /* owned; any may be NULL */
-	double v;
+	double v, v2; /* v2: the high end of an N_RANGE */
 	long i;
 	int digits, jsig;
 	char **list; /* N_LIST: owned strings */
@@ -130,6 +130,16 @@ void render_object_end(render *r)
 	add(r, N_OEND, NULL, NULL, NULL);
 }
 
+void render_range(render *r, const char *key, const char *label, const char *unit, double lo,
+		  double hi, int digits)
+{
+	node *x = add(r, N_RANGE, key, label, unit);
+	x->v = lo;
+	x->v2 = hi;
+	x->digits = digits;
+	x->jsig = 6;
+}
+
 void render_null(render *r, const char *key, const char *label)
 {
 	add(r, N_NULL, key, label, NULL);
@@ -214,7 +224,7 @@ void render_drop(render *r)
 
 static int is_value(nkind k)
 {
-	return k <= N_LIST;
+	return k <= N_RANGE;
 }
 
 /* Columns a UTF-8 string takes (continuation bytes take none). */
@@ -246,6 +256,15 @@ static char *value_text(const node *x, int utf8, int with_unit)
 		break;
 	case N_BOOL:
 		return im_xstrdup(x->i ? "yes" : "no");
+	case N_RANGE: {
+		char hi[64];
+		units_fmt_num(num, sizeof num, x->v, x->digits);
+		units_fmt_num(hi, sizeof hi, x->v2, x->digits);
+		s = im_xmalloc(strlen(num) + strlen(hi) + (x->unit ? strlen(x->unit) : 0) + 8);
+		sprintf(s, "%s to %s%s%s", num, hi, with_unit && x->unit ? " " : "",
+			with_unit && x->unit ? x->unit : "");
+		return s;
+	}
 	case N_LIST:
 		for (int j = 0; j < x->nlist; j++)
 			len += strlen(x->list[j]) + 2;
@@ -468,6 +487,12 @@ static void json_value(jw *w, const node *x)
 		break;
 	case N_NULL:
 		jw_str(w, x->key, NULL);
+		break;
+	case N_RANGE:
+		jw_arr(w, x->key);
+		jw_num(w, NULL, x->v, x->jsig);
+		jw_num(w, NULL, x->v2, x->jsig);
+		jw_close(w);
 		break;
 	case N_LIST:
 		jw_arr(w, x->key);

@@ -54,6 +54,9 @@ void render_int(render *r, const char *key, const char *label, long v);
 void render_bool(render *r, const char *key, const char *label, int v);
 /* A charge number: "+2" in text, 2 in JSON. */
 void render_charge(render *r, const char *key, const char *label, int z);
+/* A range: the JSON array [lo, hi] under key, the text "lo to hi unit". */
+void render_range(render *r, const char *key, const char *label, const char *unit, double lo,
+		  double hi, int digits);
 /* A JSON null with a text "-". */
 void render_null(render *r, const char *key, const char *label);
 /* A list of strings under key (JSON array; text: "  label  a, b, c"). */
