@@ -174,7 +174,7 @@ void render_note(render *r, const char *fmt, ...)
 void render_note_as(render *r, const char *key, const char *prefix, const char *fmt, ...)
 {
 	va_list ap;
-	node *x = add(r, N_NOTE, key, prefix ? prefix : "", NULL);
+	node *x = add(r, N_NOTE, key, prefix, NULL);
 	va_start(ap, fmt);
 	x->s = vfmt(fmt, ap);
 	va_end(ap);
@@ -454,8 +454,10 @@ static void emit_text(const render *r)
 			i = text_table(r, i);
 		} else if (x->k == N_TEXT) {
 			fprintf(fp, "%s\n", x->s);
-		} else if (x->k == N_NOTE) {
+		} else if (x->k == N_NOTE && x->label) {
 			fprintf(fp, "  %s%s\n", x->label, x->s);
+		} else if (x->k == N_NOTE) { /* no prefix: a line of its own, not indented */
+			fprintf(fp, "%s\n", x->s);
 		} else if (is_value(x->k) && x->label) {
 			char *v = value_text(x, r->o->utf8, 1);
 			int pad = lw - width(x->label);

@@ -65,7 +65,8 @@ void render_list(render *r, const char *key, const char *label, const char *cons
 /* A line of text only, printf-style (no trailing newline needed). */
 void render_text(render *r, const char *fmt, ...) __attribute__((format(printf, 2, 3)));
 /* A note: a text line "  note: ..." and an entry of the JSON array
- * "notes" (or of `key` with render_note_as). */
+ * "notes" (or of `key` with render_note_as, the text line "  PREFIXtext",
+ * or "text" without indent when prefix is NULL). */
 void render_note(render *r, const char *fmt, ...) __attribute__((format(printf, 2, 3)));
 void render_note_as(render *r, const char *key, const char *prefix, const char *fmt, ...)
 	__attribute__((format(printf, 4, 5)));
