@@ -7,6 +7,7 @@ MANDIR     ?= $(PREFIX)/share/man
 DESTDIR    ?=
 CC         ?= cc
 CFLAGS     ?= -O2 -g
+CPPFLAGS   ?=
 LDFLAGS    ?=
 PKG_CONFIG ?= pkg-config
 # the Debian interpreter, which has python3-periodictable and python3-scipy
@@ -33,7 +34,7 @@ ifeq ($(SAN),1)
 IM_CFLAGS  += -fsanitize=address,undefined -fno-omit-frame-pointer -fno-sanitize-recover=undefined
 IM_LDFLAGS := -fsanitize=address,undefined
 endif
-ALL_CFLAGS := $(IM_CFLAGS) $(CFLAGS)
+ALL_CFLAGS := $(IM_CFLAGS) $(CPPFLAGS) $(CFLAGS)
 ifeq ($(V),1)
 Q          :=
 say        := @true
@@ -68,7 +69,7 @@ help:
 	@echo "make fuzz       run each libFuzzer target for FUZZ_SECONDS (default 60)"
 	@echo "make check-valgrind  every test program and golden script under valgrind"
 	@echo "make install    install to \$$(DESTDIR)\$$(PREFIX) (PREFIX=$(PREFIX))"
-	@echo "make clean      remove $(BUILD)/"
+	@echo "make clean      remove $(BUILD)/ (BUILD=DIR: another build directory)"
 
 deps:
 	@sh src/tools/ensure-deps.sh build
@@ -118,7 +119,7 @@ $(BUILD)/gen/refdata.c: $(BUILD)/embed $(DATA_SQL) | $(BUILD)/gen
 
 $(BUILD)/embed: src/tools/embed.c | $(BUILD)/gen
 	$(say) CC $<
-	$(Q)$(CC) -std=c11 -Wall -Wextra -O1 $(PKG_CFLAGS) -o $@ $< $(PKG_LIBS)
+	$(Q)$(CC) -std=c11 -Wall -Wextra -O1 $(CPPFLAGS) $(PKG_CFLAGS) -o $@ $< $(PKG_LIBS)
 
 $(BUILD)/gen/version.h: VERSION | $(BUILD)/gen
 	$(Q)printf '#define IONMIX_VERSION "%s"\n' "$(VERSION)" > $@.tmp && mv $@.tmp $@
@@ -138,8 +139,12 @@ install: $(BUILD)/ionmix
 uninstall:
 	rm -f $(DESTDIR)$(BINDIR)/ionmix $(DESTDIR)$(MANDIR)/man1/ionmix.1
 
+# Only the build directory: BUILD=out makes `make clean` remove out/, and a
+# BUILD that is empty, the source tree or a parent of it is refused.
 clean:
-	rm -rf build
+	@case "$(BUILD)" in ""|.|./|..|../*|/|src|src/|tests|tests/|data|data/) \
+		echo "make clean: refusing to remove BUILD='$(BUILD)'" >&2; exit 1;; esac
+	rm -rf -- "$(BUILD)"
 
 # ---- fuzzing and valgrind (robustness) ----
 # `make fuzz` runs every libFuzzer target tests/fuzz/fuzz_*.c for
@@ -178,7 +183,7 @@ $(FUZZ_BUILD)/bin/%: tests/fuzz/%.c tests/fuzz/fuzzutil.h $(FUZZ_BUILD)/libionmi
 	$(say) FUZZ $<
 	$(Q)mkdir -p $(@D)
 	$(Q)$(FUZZ_CC) -std=c11 -D_POSIX_C_SOURCE=200809L -D_DEFAULT_SOURCE -Wall -Wextra \
-		-O1 -g -fsanitize=fuzzer $(FUZZ_SAN) -Isrc $(PKG_CFLAGS) -o $@ $< \
+		-O1 -g -fsanitize=fuzzer $(FUZZ_SAN) -Isrc $(CPPFLAGS) $(PKG_CFLAGS) -o $@ $< \
 		$(FUZZ_BUILD)/libionmix.a $(IM_LIBS)
 
 fuzz: fuzz-build

@@ -12,7 +12,8 @@
 #include <stdlib.h>
 #include <string.h>
 
-#include "cmd_core.h"
+#include "render.h"
+#include "session.h"
 #include "common.h"
 #include "units.h"
 
@@ -20,7 +21,7 @@
 
 static int need_chem(im_ctx *ctx, char *err)
 {
-	if (!ctx->chem || !ctx->osm)
+	if (!ctx->ses->chem || !ctx->ses->osm)
 		return im_fail(err, "the equilibria data are not loaded");
 	return 0;
 }
@@ -71,11 +72,11 @@ static int titrate(im_ctx *ctx, solution *s, double pH, const rd_compound *titra
 	if ((n = sol_spec_inputs(s, 1, in, SPEC_MAX_IN, err)) < 0)
 		return -1;
 	nt = yields_in(titrant, tit);
-	sol_spec_cond(s, ctx_env(ctx), &cond);
+	sol_spec_cond(s, ses_env(ctx->ses), &cond);
 	cond.mode = SPEC_PH_FIXED;
 	cond.pH = pH;
 	r = im_xmalloc(sizeof *r);
-	rc = spec_titrate(ctx->chem, in, n, &cond, tit, nt, amount_mM, r, err);
+	rc = spec_titrate(ctx->ses->chem, in, n, &cond, tit, nt, amount_mM, r, err);
 	free(r);
 	if (rc)
 		return -1;
@@ -91,7 +92,7 @@ static int titrate(im_ctx *ctx, solution *s, double pH, const rd_compound *titra
 /* The computed state of s, for checking a result forward. */
 static int forward(im_ctx *ctx, const solution *s, sol_state *st, char *err)
 {
-	return sol_compute(s, ctx_env(ctx), st, err);
+	return sol_compute(s, ses_env(ctx->ses), st, err);
 }
 
 int cmd_ph(im_ctx *ctx, int argc, char **argv, char *err)
@@ -101,7 +102,7 @@ int cmd_ph(im_ctx *ctx, int argc, char **argv, char *err)
 	double pH, amount = 0, stock = 0;
 	sol_state st;
 	char b[48];
-	if (need_chem(ctx, err) || core_solution(ctx, NULL, &s, err))
+	if (need_chem(ctx, err) || ses_solution(ctx->ses, NULL, &s, err))
 		return -1;
 	if (argc != 4 && argc != 6 && argc != 7)
 		return im_fail(err, "usage: ph TARGET with TITRANT [stock CONC [UNIT]]");
@@ -111,7 +112,7 @@ int cmd_ph(im_ctx *ctx, int argc, char **argv, char *err)
 		return im_fail(err, "target pH %s is outside 2 to 12", argv[1]);
 	if (strcmp(argv[2], "with") != 0)
 		return im_fail(err, "expected 'with', got '%.40s' (ph TARGET with TITRANT)", argv[2]);
-	if (core_compound(ctx, argv[3], &t, err))
+	if (ses_compound(ctx->ses, argv[3], &t, err))
 		return -1;
 	if (argc > 4) {
 		if (strcmp(argv[4], "stock") != 0)
@@ -135,7 +136,7 @@ int cmd_ph(im_ctx *ctx, int argc, char **argv, char *err)
 		jw w;
 		jw_begin(&w, ctx->out);
 		jw_str(&w, "solution", s->name);
-		jw_num(&w, "temperature_C", ctx->temp_C, 6);
+		jw_num(&w, "temperature_C", ctx->ses->temp_C, 6);
 		jw_num(&w, "target_pH", pH, 6);
 		jw_str(&w, "titrant", t->name);
 		jw_num(&w, "titrant_mM", amount, 8);
@@ -150,7 +151,7 @@ int cmd_ph(im_ctx *ctx, int argc, char **argv, char *err)
 	} else {
 		units_fmt_conc(b, sizeof b, amount, ctx->out->utf8);
 		out_printf(ctx->out, "%s: %s %s brings the pH to %.2f at %.1f C (computed pH "
-				     "%.3f)\n", s->name, b, t->name, pH, ctx->temp_C, st.pH);
+				     "%.3f)\n", s->name, b, t->name, pH, ctx->ses->temp_C, st.pH);
 		if (stock > 0) {
 			char sb[48];
 			units_fmt_conc(sb, sizeof sb, stock, ctx->out->utf8);
@@ -166,25 +167,16 @@ int cmd_ph(im_ctx *ctx, int argc, char **argv, char *err)
 	return 0;
 }
 
-int cmd_gas(im_ctx *ctx, int argc, char **argv, char *err)
+/* The words of `gas co2 PERCENT [dry] [pressure ATM]`: the fraction
+ * (0-1), the total pressure in atm and whether the gas is dry. */
+static int gas_args(int argc, char **argv, double *frac, double *p_atm, int *dry, char *err)
 {
-	solution *s;
-	sol_state st;
-	double pct, p = 1.0;
-	int dry = 0;
 	char num[32];
-	if (core_solution(ctx, NULL, &s, err))
-		return -1;
-	if (strcmp(argv[1], "off") == 0 && argc == 2) {
-		s->co2_frac = 0;
-		out_printf(ctx->out, "%s: no CO2 gas; the pH follows from the protons present\n",
-			   s->name);
-		return 0;
-	}
+	double pct;
+	*p_atm = 1.0;
+	*dry = 0;
 	if (!im_strcaseeq(argv[1], "co2") || argc < 3)
 		return im_fail(err, "usage: gas co2 PERCENT [dry] [pressure ATM] | gas off");
-	if (need_chem(ctx, err))
-		return -1;
 	snprintf(num, sizeof num, "%s", argv[2]);
 	if (num[0] && num[strlen(num) - 1] == '%')
 		num[strlen(num) - 1] = '\0';
@@ -194,49 +186,65 @@ int cmd_gas(im_ctx *ctx, int argc, char **argv, char *err)
 		return im_fail(err, "CO2 fraction %s %% must be above 0 and at most 100", num);
 	for (int i = 3; i < argc; i++) {
 		if (strcmp(argv[i], "dry") == 0) {
-			dry = 1;
+			*dry = 1;
 		} else if (strcmp(argv[i], "pressure") == 0 && i + 1 < argc) {
-			if (units_number(argv[++i], &p, err))
+			if (units_number(argv[++i], p_atm, err))
 				return -1;
-			if (!(p > 0.1 && p <= 5))
+			if (!(*p_atm > 0.1 && *p_atm <= 5))
 				return im_fail(err, "gas pressure %s atm is outside 0.1 to 5 atm", argv[i]);
 		} else {
 			return im_fail(err, "unexpected '%.40s' (gas co2 PERCENT [dry] [pressure ATM])",
 				       argv[i]);
 		}
 	}
-	s->co2_frac = pct / 100.0;
+	*frac = pct / 100.0;
+	return 0;
+}
+
+int cmd_gas(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	solution *s;
+	sol_state st;
+	double frac = 0, p = 1.0, pco2, t = ctx->ses->temp_C;
+	int dry = 0, off = strcmp(argv[1], "off") == 0 && argc == 2;
+	render *r;
+	if (ses_solution(ctx->ses, NULL, &s, err) ||
+	    (!off && (gas_args(argc, argv, &frac, &p, &dry, err) || need_chem(ctx, err))))
+		return -1;
+	s->co2_frac = frac;
 	s->co2_p_atm = p;
 	s->co2_dry = dry;
-	if (forward(ctx, s, &st, err))
-		return -1;
-	if (ctx->out->json) {
-		jw w;
-		jw_begin(&w, ctx->out);
-		jw_str(&w, "solution", s->name);
-		jw_num(&w, "co2_percent", pct, 6);
-		jw_num(&w, "pco2_atm", spec_pco2_atm(s->co2_frac, p, ctx->temp_C, !dry), 6);
-		jw_num(&w, "pH", st.pH, 6);
-		jw_num(&w, "co2_mM", st.chem ? st.chem->co2_mM : NAN, 6);
-		jw_num(&w, "pK_app", spec_co2_pk_app(ctx->chem, ctx->temp_C, st.pH,
-						     st.ionic_strength_mM), 6);
-		jw_end(&w);
-	} else {
-		out_printf(ctx->out, "%s: equilibrated with %g %% CO2 (%s, %g atm; pCO2 %.4f atm at "
-				     "%.1f C): pH %.2f\n", s->name, pct,
-			   dry ? "dry gas" : "humidified", p,
-			   spec_pco2_atm(s->co2_frac, p, ctx->temp_C, !dry), ctx->temp_C, st.pH);
-		out_printf(ctx->out, "  (CO2 %.3f mM; apparent pK' %.3f at this temperature and ionic "
-				     "strength, Severinghaus 1966, CO2 solubility of Kelman 1967; "
-				     "confirm with a calibrated pH meter)\n",
-			   st.chem ? st.chem->co2_mM : NAN,
-			   spec_co2_pk_app(ctx->chem, ctx->temp_C, st.pH, st.ionic_strength_mM));
-		if (isfinite(s->ph_target))
-			out_printf(ctx->out, "  note: the titrant added by `ph` stays in; with the gas "
-					     "the pH no longer follows it\n");
+	r = render_new(ctx->out);
+	render_str(r, "solution", NULL, s->name);
+	render_numj(r, "co2_percent", NULL, "%", 100 * frac, UNITS_SIG(3), 6);
+	if (off) {
+		render_text(r, "%s: no CO2 gas; the pH follows from the protons present", s->name);
+		return render_done(r);
 	}
+	if (forward(ctx, s, &st, err)) {
+		render_drop(r);
+		return -1;
+	}
+	pco2 = spec_pco2_atm(frac, p, t, !dry);
+	render_numj(r, "pco2_atm", NULL, "atm", pco2, UNITS_DEC(4), 6);
+	render_numj(r, "pressure_atm", NULL, "atm", p, UNITS_SIG(3), 6);
+	render_bool(r, "dry", NULL, dry);
+	render_numj(r, "pH", NULL, NULL, st.pH, UNITS_DEC(2), 6);
+	double co2_mM = st.chem ? st.chem->co2_mM : NAN;
+	double pk = spec_co2_pk_app(ctx->ses->chem, t, st.pH, st.ionic_strength_mM);
+	render_numj(r, "co2_mM", NULL, "mM", co2_mM, UNITS_DEC(3), 6);
+	render_numj(r, "pK_app", NULL, NULL, pk, UNITS_DEC(3), 6);
+	render_text(r, "%s: equilibrated with %g %% CO2 (%s, %g atm; pCO2 %.4f atm at %.1f C): "
+		       "pH %.2f", s->name, 100 * frac, dry ? "dry gas" : "humidified", p, pco2, t,
+		    st.pH);
+	render_note_as(r, "notes", "", "(CO2 %.3f mM; apparent pK' %.3f at this temperature and "
+		       "ionic strength, Severinghaus 1966, CO2 solubility of Kelman 1967; confirm "
+		       "with a calibrated pH meter)", co2_mM, pk);
+	if (isfinite(s->ph_target))
+		render_note(r, "the titrant added by `ph` stays in; with the gas the pH no longer "
+			       "follows it");
 	sol_state_free(&st);
-	return 0;
+	return render_done(r);
 }
 
 /* Free concentration of metal in a computed state, mM (-1 if absent). */
@@ -260,9 +268,9 @@ int cmd_free(im_ctx *ctx, int argc, char **argv, char *err)
 	int i = 3, yields_metal = 0;
 	char name[64], b1[48], b2[48];
 	sol_state st;
-	if (need_chem(ctx, err) || core_solution(ctx, NULL, &s, err))
+	if (need_chem(ctx, err) || ses_solution(ctx->ses, NULL, &s, err))
 		return -1;
-	metal = refdb_ion(ctx->ref, argv[1]);
+	metal = refdb_ion(ctx->ses->ref, argv[1]);
 	if (!metal || metal->z != 2)
 		return im_fail(err, "'%.20s' is not a divalent metal ionmix binds (Ca, Mg, Ba, Sr, "
 				    "Zn)", argv[1]);
@@ -275,12 +283,12 @@ int cmd_free(im_ctx *ctx, int argc, char **argv, char *err)
 	if (i < argc) {
 		if (strcmp(argv[i], "with") != 0 || i + 2 != argc)
 			return im_fail(err, "usage: free METAL AMOUNT [UNIT] [with COMPOUND]");
-		if (core_compound(ctx, argv[i + 1], &src, err))
+		if (ses_compound(ctx->ses, argv[i + 1], &src, err))
 			return -1;
 	} else {
 		size_t b = strcspn(metal->symbol, "0123456789+");
 		snprintf(name, sizeof name, "%.*sCl2", (int)b, metal->symbol);
-		if (core_compound(ctx, name, &src, err))
+		if (ses_compound(ctx->ses, name, &src, err))
 			return -1;
 	}
 	for (int k = 0; k < src->nyields; k++)
@@ -305,12 +313,12 @@ int cmd_free(im_ctx *ctx, int argc, char **argv, char *err)
 			free(r);
 			return -1;
 		}
-		sol_spec_cond(s, ctx_env(ctx), &cond);
+		sol_spec_cond(s, ses_env(ctx->ses), &cond);
 		if (isfinite(s->ph_target) && s->co2_frac == 0) {
 			cond.mode = SPEC_PH_FIXED;
 			cond.pH = s->ph_target;
 		}
-		rc = spec_free_target(ctx->chem, in, n, &cond, metal->symbol, sy, ns, target,
+		rc = spec_free_target(ctx->ses->chem, in, n, &cond, metal->symbol, sy, ns, target,
 				      &amount, r, err);
 		free(r);
 		if (rc)
@@ -355,7 +363,7 @@ int cmd_free(im_ctx *ctx, int argc, char **argv, char *err)
 		units_fmt_conc(b1, sizeof b1, amount, ctx->out->utf8);
 		units_fmt_conc(b2, sizeof b2, got, ctx->out->utf8);
 		out_printf(ctx->out, "%s: %s %s in all gives free %s %s at pH %.2f, %.1f C\n",
-			   s->name, b1, src->name, metal->symbol, b2, st.pH, ctx->temp_C);
+			   s->name, b1, src->name, metal->symbol, b2, st.pH, ctx->ses->temp_C);
 		if (isfinite(s->ph_target) && s->co2_frac == 0)
 			out_printf(ctx->out, "  (the titrant was recomputed to hold pH %.2f)\n",
 				   s->ph_target);
@@ -416,7 +424,7 @@ int cmd_osmo(im_ctx *ctx, int argc, char **argv, char *err)
 	int dilute = 0;
 	double water = 0;
 	char b[48];
-	if (need_chem(ctx, err) || core_solution(ctx, NULL, &s, err))
+	if (need_chem(ctx, err) || ses_solution(ctx->ses, NULL, &s, err))
 		return -1;
 	if (units_number(argv[1], &target, err))
 		return -1;
@@ -424,10 +432,10 @@ int cmd_osmo(im_ctx *ctx, int argc, char **argv, char *err)
 		return im_fail(err, "osmolality target %s mOsm/kg must be above 0 and at most 2000",
 			       argv[1]);
 	if (argc == 4 && strcmp(argv[2], "with") == 0) {
-		if (core_compound(ctx, argv[3], &c, err))
+		if (ses_compound(ctx->ses, argv[3], &c, err))
 			return -1;
 	} else if (argc == 2) {
-		if (core_compound(ctx, "sucrose", &c, err))
+		if (ses_compound(ctx->ses, "sucrose", &c, err))
 			return -1;
 	} else {
 		return im_fail(err, "usage: osmo TARGET [with COMPOUND]");
@@ -454,7 +462,7 @@ int cmd_osmo(im_ctx *ctx, int argc, char **argv, char *err)
 		for (int k = 0; k < c->nyields && na < MAX_YIELD; k++)
 			ad[na++] = (osm_species){c->yields[k].ion->symbol, c->yields[k].ion->z,
 						 c->yields[k].count};
-		if (osm_adjust(ctx->osm, sp, n, ctx->temp_C, target, ad, na, &r, err)) {
+		if (osm_adjust(ctx->ses->osm, sp, n, ctx->ses->temp_C, target, ad, na, &r, err)) {
 			sol_state_free(&st);
 			return -1;
 		}
@@ -520,7 +528,7 @@ int cmd_constants(im_ctx *ctx, int argc, char **argv, char *err)
 	spec_const *rows;
 	if (need_chem(ctx, err))
 		return -1;
-	nc = spec_compilations(ctx->chem, ctx->osm, comp, 32);
+	nc = spec_compilations(ctx->ses->chem, ctx->ses->osm, comp, 32);
 	if (argc == 1) {
 		if (ctx->out->json) {
 			jw w;
@@ -540,19 +548,22 @@ int cmd_constants(im_ctx *ctx, int argc, char **argv, char *err)
 		return 0;
 	}
 	if (strcmp(argv[1], "default") == 0) {
-		if (spec_pick_compilation(ctx->chem, ctx->osm, "default", err))
+		if (spec_pick_compilation(ctx->ses->chem, ctx->ses->osm, "default", err))
 			return -1;
-		out_printf(ctx->out, "constants: every default in use again\n");
-		return 0;
+		render *r = render_new(ctx->out);
+		render_str(r, "name", NULL, "default");
+		render_bool(r, "picked", NULL, 0);
+		render_text(r, "constants: every default in use again");
+		return render_done(r);
 	}
 	for (int i = 0; i < nc; i++)
 		if (strcmp(comp[i], argv[1]) == 0) {
-			if (spec_pick_compilation(ctx->chem, ctx->osm, argv[1], err))
+			if (spec_pick_compilation(ctx->ses->chem, ctx->ses->osm, argv[1], err))
 				return -1;
 			picked = 1;
 		}
 	rows = im_xcalloc(MAX_CONST, sizeof *rows);
-	n = spec_constants(ctx->chem, argv[1], rows, MAX_CONST, err);
+	n = spec_constants(ctx->ses->chem, argv[1], rows, MAX_CONST, err);
 	if (n < 0 && !picked) {
 		free(rows);
 		return -1;
@@ -564,7 +575,7 @@ int cmd_constants(im_ctx *ctx, int argc, char **argv, char *err)
 		jw_bool(&w, "picked", picked);
 		jw_arr(&w, "constants");
 		for (int i = 0; i < n; i++) {
-			const rd_source *src = refdb_source(ctx->ref, rows[i].source);
+			const rd_source *src = refdb_source(ctx->ses->ref, rows[i].source);
 			jw_obj(&w, NULL);
 			jw_str(&w, "species", rows[i].what);
 			jw_str(&w, "reaction", rows[i].reaction);
@@ -576,7 +587,7 @@ int cmd_constants(im_ctx *ctx, int argc, char **argv, char *err)
 			jw_str(&w, "dH_analogue", rows[i].dh_analogue[0] ? rows[i].dh_analogue : NULL);
 			{
 				const rd_source *ds = rows[i].dh_source[0]
-							      ? refdb_source(ctx->ref, rows[i].dh_source)
+							      ? refdb_source(ctx->ses->ref, rows[i].dh_source)
 							      : NULL;
 				jw_str(&w, "dH_source", ds ? ds->citation : NULL);
 			}
@@ -610,7 +621,7 @@ int cmd_constants(im_ctx *ctx, int argc, char **argv, char *err)
 	/* every source once: the constants', then the enthalpies' */
 	for (int i = 0; i < 2 * n; i++) {
 		const char *key = i < n ? rows[i].source : rows[i - n].dh_source;
-		const rd_source *src = *key ? refdb_source(ctx->ref, key) : NULL;
+		const rd_source *src = *key ? refdb_source(ctx->ses->ref, key) : NULL;
 		int dup = 0;
 		for (int j = 0; j < i; j++)
 			dup |= strcmp(j < n ? rows[j].source : rows[j - n].dh_source, key) == 0;

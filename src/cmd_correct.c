@@ -13,7 +13,7 @@
 #include <sys/stat.h>
 #include <unistd.h>
 
-#include "cmd_core.h"
+#include "session.h"
 #include "common.h"
 #include "correct.h"
 #include "fileio.h"
@@ -44,15 +44,15 @@ static int henderson(im_ctx *ctx, const char *pip, const char *bath, double *ljp
 	sol_state st[2];
 	char e2[IM_ERRLEN];
 	int rc;
-	if (core_solution(ctx, pip, &sp, err) || core_solution(ctx, bath, &sb, err))
+	if (ses_solution(ctx->ses, pip, &sp, err) || ses_solution(ctx->ses, bath, &sb, err))
 		return -1;
-	if (sol_compute(sp, ctx_env(ctx), &st[0], err))
+	if (sol_compute(sp, ses_env(ctx->ses), &st[0], err))
 		return -1;
-	if (sol_compute(sb, ctx_env(ctx), &st[1], err)) {
+	if (sol_compute(sb, ses_env(ctx->ses), &st[1], err)) {
 		sol_state_free(&st[0]);
 		return -1;
 	}
-	rc = cmdj_ljp(&st[0], &st[1], 0, ctx->temp_C, ljp_mV, lo_mV, hi_mV, e2);
+	rc = cmdj_ljp(&st[0], &st[1], 0, ctx->ses->temp_C, ljp_mV, lo_mV, hi_mV, e2);
 	if (rc)
 		im_fail(err, "LJP of %s against %s: %s", pip, bath, e2);
 	sol_state_free(&st[0]);
@@ -160,7 +160,7 @@ static int correct_values(im_ctx *ctx, int argc, char **argv, char *err)
 	if (ctx->out->json) {
 		jw w;
 		jw_begin(&w, ctx->out);
-		json_ljp(&w, &src, ctx->temp_C);
+		json_ljp(&w, &src, ctx->ses->temp_C);
 		jw_int(&w, "corrected", nv);
 		jw_arr(&w, "values");
 		for (int k = 0; k < nv; k++) {
@@ -172,7 +172,7 @@ static int correct_values(im_ctx *ctx, int argc, char **argv, char *err)
 		}
 		jw_end(&w);
 	} else {
-		say_ljp(ctx->out, &src, ctx->temp_C);
+		say_ljp(ctx->out, &src, ctx->ses->temp_C);
 		out_printf(ctx->out, "sign: %s (LJP: the bath relative to the pipette"
 			   " solution)\n", CONVENTION);
 		out_printf(ctx->out, "  %14s  %14s\n", "recorded mV", "Vm mV");
@@ -330,7 +330,7 @@ static int correct_nwb(im_ctx *ctx, int argc, char **argv, char *err)
 		.pipette = src.henderson ? pip : NULL,
 		.bath = src.henderson ? bath : NULL,
 		.has_temp = src.henderson,
-		.t_C = ctx->temp_C,
+		.t_C = ctx->ses->temp_C,
 		.model = src.henderson ? "Henderson equation from concentrations, rounded to"
 					 " 0.1 mV" : "given by the user",
 		.version = IONMIX_VERSION,
@@ -346,7 +346,7 @@ static int correct_nwb(im_ctx *ctx, int argc, char **argv, char *err)
 		jw_str(&w, "input", argv[1]);
 		jw_str(&w, "output", dest);
 		jw_bool(&w, "in_place", to == NULL || fio_same_file(argv[1], to));
-		json_ljp(&w, &src, ctx->temp_C);
+		json_ljp(&w, &src, ctx->ses->temp_C);
 		jw_str(&w, "date", date);
 		jw_arr(&w, "series");
 		for (int i = 0; i < r.n; i++) {
@@ -363,7 +363,7 @@ static int correct_nwb(im_ctx *ctx, int argc, char **argv, char *err)
 		jw_close(&w);
 		jw_end(&w);
 	} else {
-		say_ljp(ctx->out, &src, ctx->temp_C);
+		say_ljp(ctx->out, &src, ctx->ses->temp_C);
 		out_printf(ctx->out, "%s -> %s: offset changed in %d series, data untouched\n",
 			   argv[1], dest, r.n);
 		out_printf(ctx->out, "sign: %s (value = data * conversion + offset)\n", CONVENTION);
@@ -523,7 +523,7 @@ int cmd_correct(im_ctx *ctx, int argc, char **argv, char *err)
 		about.pipette = src.pip;
 		about.bath = src.bath;
 		about.model = "Henderson (concentrations), rounded to 0.1 mV";
-		about.temperature_C = ctx->temp_C;
+		about.temperature_C = ctx->ses->temp_C;
 	}
 	corr_about_stamp(&about, date, sizeof date);
 	memset(&o, 0, sizeof o);
@@ -544,7 +544,7 @@ int cmd_correct(im_ctx *ctx, int argc, char **argv, char *err)
 			note = im_xmalloc(strlen(to) + sizeof CORR_NOTE_SUFFIX);
 			sprintf(note, "%s%s", to, CORR_NOTE_SUFFIX);
 		}
-		report(ctx->out, &src, ctx->temp_C, argv[1], to, note, &r);
+		report(ctx->out, &src, ctx->ses->temp_C, argv[1], to, note, &r);
 		free(note);
 		return 0;
 	}
@@ -565,7 +565,7 @@ int cmd_correct(im_ctx *ctx, int argc, char **argv, char *err)
 	/* the data went to the result stream: the summary goes beside it */
 	out side = *ctx->out;
 	side.fp = ctx->out->errfp;
-	report(&side, &src, ctx->temp_C, argv[1], "-", NULL, &r);
+	report(&side, &src, ctx->ses->temp_C, argv[1], "-", NULL, &r);
 	fflush(side.fp);
 	return 0;
 }

@@ -16,8 +16,11 @@
 
 #include "common.h"
 #include "fileio.h"
+#include "render.h"
+#include "units.h"
 #include "ghk.h"
 #include "junction.h"
+#include "ljp.h"
 #include "plot.h"
 
 #define MAX_PERM 16   /* ions with a permeability in one command */
@@ -48,16 +51,12 @@ typedef struct opts {
 
 /* ---- parsing ---- */
 
-/* A plain decimal number: strtod (the program never sets LC_NUMERIC, so
- * the decimal separator is '.'), nothing after it, finite. */
+/* A plain decimal number, read by the one number parser (units.c). */
 static int parse_num(const char *s, const char *what, double *v, char *err)
 {
-	char *end;
-	errno = 0;
-	double x = strtod(s, &end);
-	if (end == s || *end != '\0' || !isfinite(x) || errno == ERANGE)
-		return im_fail(err, "%s: '%.40s' is not a number", what, s);
-	*v = x;
+	char e2[IM_ERRLEN];
+	if (units_number(s, v, e2))
+		return im_fail(err, "%s: %s", what, e2);
 	return 0;
 }
 
@@ -70,7 +69,7 @@ static int parse_perm(im_ctx *ctx, const char *arg, opts *o, char *err)
 		return im_fail(err, "expected ION=P, got '%.40s'", arg);
 	memcpy(name, arg, len);
 	name[len] = '\0';
-	const rd_ion *ion = refdb_ion(ctx->ref, name);
+	const rd_ion *ion = refdb_ion(ctx->ses->ref, name);
 	if (!ion)
 		return im_fail(err, "unknown ion '%s' (try `info %s`; a symbol like K, "
 			       "Na, Cl, Ca)", name, name);
@@ -155,10 +154,9 @@ static int parse_rest(im_ctx *ctx, int argc, char **argv, int first, int with_iv
 static int side_open(im_ctx *ctx, const char *name, side *s, char *err)
 {
 	memset(s, 0, sizeof *s);
-	s->sol = ws_find(&ctx->ws, name);
-	if (!s->sol)
-		return im_fail(err, "unknown solution '%.60s' (see `list`)", name);
-	if (sol_compute(s->sol, ctx_env(ctx), &s->st, err))
+	if (ses_solution(ctx->ses, name, &s->sol, err))
+		return -1;
+	if (sol_compute(s->sol, ses_env(ctx->ses), &s->st, err))
 		return -1;
 	s->have = 1;
 	return 0;
@@ -200,7 +198,7 @@ static const char *basis(const opts *o)
 static int ljp(const side *pip, const side *bath, double t_C, double *ljp_mV,
 	       double *lo_mV, double *hi_mV, char *err)
 {
-	return cmdj_ljp(&pip->st, &bath->st, 0, t_C, ljp_mV, lo_mV, hi_mV, err);
+	return ljp_pair_mV(&pip->st, &bath->st, 0, t_C, ljp_mV, lo_mV, hi_mV, err);
 }
 
 /* The JSON keys erev and iv share: the pair, temperature, basis and the
@@ -211,7 +209,7 @@ static void json_head(jw *w, im_ctx *ctx, const side *ins, const side *outs,
 	jw_begin(w, ctx->out);
 	jw_str(w, "inside", ins->sol->name);
 	jw_str(w, "outside", outs->sol->name);
-	jw_num(w, "temperature_C", ctx->temp_C, 6);
+	jw_num(w, "temperature_C", ctx->ses->temp_C, 6);
 	jw_str(w, "from", basis(o));
 	jw_obj(w, "permeabilities");
 	for (int i = 0; i < o->np; i++)
@@ -219,108 +217,114 @@ static void json_head(jw *w, im_ctx *ctx, const side *ins, const side *outs,
 	jw_close(w);
 }
 
+/* The same head as a render: the pair, temperature, basis and the
+ * permeabilities given (JSON only; the text names them in its title and
+ * table), and the Nernst potentials under their contract key. */
+static void render_head(render *r, const side *ins, const side *outs, const opts *o,
+			const ghk_ion *x, double t_C)
+{
+	render_str(r, "inside", NULL, ins->sol->name);
+	render_str(r, "outside", NULL, outs->sol->name);
+	render_num(r, "temperature_C", NULL, "C", t_C, UNITS_DEC(1));
+	render_str(r, "from", NULL, basis(o));
+	render_object(r, "permeabilities");
+	for (int i = 0; i < o->np; i++)
+		render_num(r, x[i].symbol, NULL, NULL, x[i].P, UNITS_SIG(4));
+	render_object_end(r);
+	render_object(r, "nernst_mV");
+	for (int i = 0; i < o->np; i++) {
+		double En;
+		if (ghk_nernst_mV(x[i].z, x[i].in_mM, x[i].out_mM, t_C, &En, NULL) == 0)
+			render_numj(r, x[i].symbol, NULL, "mV", En, UNITS_DEC(2), 8);
+		else
+			render_null(r, x[i].symbol, NULL);
+	}
+	render_object_end(r);
+}
+
 /* ---- erev ---- */
+
+/* One permeant ion of erev: its P, the two sides and its Nernst
+ * potential, or why there is none. */
+static void erev_row(render *r, const ghk_ion *x, int act, double t_C)
+{
+	double En;
+	render_row(r);
+	render_str(r, "ion", "ion", x->symbol);
+	render_numj(r, "P", "P", NULL, x->P, UNITS_SIG(4), 10);
+	render_num(r, "inside_mM", act ? "inside a" : "inside", "mM", x->in_mM, UNITS_SIG(4));
+	render_num(r, "outside_mM", act ? "outside a" : "outside", "mM", x->out_mM,
+		   UNITS_SIG(4));
+	if (ghk_nernst_mV(x->z, x->in_mM, x->out_mM, t_C, &En, NULL) == 0) {
+		render_numj(r, "nernst_mV", "Nernst", "mV", En, UNITS_DEC(2), 8);
+	} else {
+		render_null(r, "nernst_mV", "Nernst");
+		render_str(r, NULL, "", x->in_mM > 0 ? "(absent outside)"
+				 : x->out_mM > 0 ? "(absent inside)" : "(absent)");
+	}
+}
+
+/* `corrected`: the reversal potential as read before the LJP correction
+ * (whole-cell, the inside solution in the pipette). */
+static void erev_corrected(render *r, const side *ins, const side *outs, double E,
+			   double t_C)
+{
+	double L, lo, hi;
+	char e2[IM_ERRLEN];
+	if (ljp(ins, outs, t_C, &L, &lo, &hi, e2) == 0) {
+		render_numj(r, "ljp_mV", NULL, "mV", L, UNITS_DEC(2), 6);
+		render_range(r, "ljp_range_mV", NULL, "mV", lo, hi, UNITS_DEC(1));
+		render_numj(r, "E_rev_uncorrected_mV", NULL, "mV", E + L, UNITS_DEC(2), 8);
+		render_text(r, "  reads %+.2f mV before junction-potential correction (whole-cell, "
+			       "pipette = %s):\n    E_rev + LJP, Henderson LJP %+.2f mV from "
+			       "concentrations (bath relative to pipette;\n    %.1f to %.1f mV with the "
+			       "mobility uncertainties)", E + L, ins->sol->name, L, lo, hi);
+		return;
+	}
+	render_null(r, "ljp_mV", NULL);
+	render_null(r, "E_rev_uncorrected_mV", NULL);
+	render_note_as(r, "ljp_note", "uncorrected value not available: ",
+		       "no liquid junction potential: %s", e2);
+	(void)outs;
+}
 
 int cmd_ghk_erev(im_ctx *ctx, int argc, char **argv, char *err)
 {
 	opts o;
 	side ins, outs;
 	ghk_ion x[MAX_PERM];
-	double E, L = 0, Llo = 0, Lhi = 0;
-	int rc = -1, have_ljp = 0;
-	char why[IM_ERRLEN] = "";
+	double E, t = ctx->ses->temp_C;
+	render *r;
 	memset(&o, 0, sizeof o);
-	if (argc < 4)
-		return im_fail(err, "usage: erev INSIDE OUTSIDE ION=P [ION=P ...] "
-			       "[activities] [corrected]");
 	if (parse_rest(ctx, argc, argv, 3, 0, &o, err))
 		return -1;
 	if (o.np == 0)
 		return im_fail(err, "give at least one permeability, e.g. K=1 Na=0.04");
 	if (side_open(ctx, argv[1], &ins, err))
 		return -1;
-	if (side_open(ctx, argv[2], &outs, err))
-		goto done;
-	fill(&o, &ins, &outs, x);
-	if (ghk_erev_mV(x, o.np, ctx->temp_C, &E, err))
-		goto done;
-	if (o.corrected) {
-		char e2[IM_ERRLEN];
-		if (ljp(&ins, &outs, ctx->temp_C, &L, &Llo, &Lhi, e2) == 0)
-			have_ljp = 1;
-		else
-			snprintf(why, sizeof why, "no liquid junction potential: %.200s",
-				 e2);
+	if (side_open(ctx, argv[2], &outs, err) ||
+	    (fill(&o, &ins, &outs, x), ghk_erev_mV(x, o.np, t, &E, err))) {
+		side_close(&ins);
+		side_close(&outs);
+		return -1;
 	}
-	if (ctx->out->json) {
-		jw w;
-		json_head(&w, ctx, &ins, &outs, &o, x);
-		jw_num(&w, "E_rev_mV", E, 8);
-		jw_obj(&w, "nernst_mV");
-		for (int i = 0; i < o.np; i++) {
-			double En;
-			if (ghk_nernst_mV(x[i].z, x[i].in_mM, x[i].out_mM, ctx->temp_C,
-					  &En, NULL) == 0)
-				jw_num(&w, x[i].symbol, En, 8);
-			else
-				jw_str(&w, x[i].symbol, NULL);
-		}
-		jw_close(&w);
-		if (o.corrected) {
-			if (have_ljp) {
-				jw_num(&w, "ljp_mV", L, 6);
-				jw_arr(&w, "ljp_range_mV");
-				jw_num(&w, NULL, Llo, 6);
-				jw_num(&w, NULL, Lhi, 6);
-				jw_close(&w);
-				jw_num(&w, "E_rev_uncorrected_mV", E + L, 8);
-			} else {
-				jw_str(&w, "ljp_mV", NULL);
-				jw_str(&w, "E_rev_uncorrected_mV", NULL);
-				jw_str(&w, "ljp_note", why);
-			}
-		}
-		jw_str(&w, "convention", CONVENTION);
-		jw_end(&w);
-	} else {
-		out_printf(ctx->out, "GHK reversal potential: %s inside, %s outside, "
-			   "%.1f C, from %s\n", ins.sol->name, outs.sol->name,
-			   ctx->temp_C, basis(&o));
-		out_printf(ctx->out, "  %-10s %10s %12s %12s %10s\n", "ion", "P",
-			   o.activities ? "inside a mM" : "inside mM",
-			   o.activities ? "outside a mM" : "outside mM", "Nernst mV");
-		for (int i = 0; i < o.np; i++) {
-			double En;
-			char e2[IM_ERRLEN];
-			out_printf(ctx->out, "  %-10s %10.4g %12.4g %12.4g ", x[i].symbol,
-				   x[i].P, x[i].in_mM, x[i].out_mM);
-			if (ghk_nernst_mV(x[i].z, x[i].in_mM, x[i].out_mM, ctx->temp_C,
-					  &En, e2) == 0)
-				out_printf(ctx->out, "%+10.2f\n", En);
-			else
-				out_printf(ctx->out, "%10s  (%s)\n", "-",
-					   x[i].in_mM > 0 ? "absent outside"
-					   : x[i].out_mM > 0 ? "absent inside" : "absent");
-		}
-		out_printf(ctx->out, "  E_rev = %+.2f mV\n", E);
-		if (o.corrected) {
-			if (have_ljp)
-				out_printf(ctx->out, "  reads %+.2f mV before junction-potential "
-					   "correction (whole-cell, pipette = %s):\n"
-					   "    E_rev + LJP, Henderson LJP %+.2f mV from concentrations "
-					   "(bath relative to pipette;\n    %.1f to %.1f mV with the "
-					   "mobility uncertainties)\n", E + L, ins.sol->name, L, Llo, Lhi);
-			else
-				out_printf(ctx->out, "  uncorrected value not available: %s\n",
-					   why);
-		}
-		out_printf(ctx->out, "  sign: %s\n", CONVENTION);
-	}
-	rc = 0;
-done:
+	r = render_new(ctx->out);
+	render_text(r, "GHK reversal potential: %s inside, %s outside, %.1f C, from %s",
+		    ins.sol->name, outs.sol->name, t, basis(&o));
+	render_head(r, &ins, &outs, &o, x, t);
+	render_table(r, "ions", NULL);
+	for (int i = 0; i < o.np; i++)
+		erev_row(r, &x[i], o.activities, t);
+	render_table_end(r);
+	render_numj(r, "E_rev_mV", NULL, "mV", E, UNITS_DEC(2), 8);
+	render_text(r, "  E_rev = %+.2f mV", E);
+	if (o.corrected)
+		erev_corrected(r, &ins, &outs, E, t);
+	render_str(r, "convention", NULL, CONVENTION);
+	render_text(r, "  sign: %s", CONVENTION);
 	side_close(&ins);
 	side_close(&outs);
-	return rc;
+	return render_done(r);
 }
 
 /* ---- ratio ---- */
@@ -348,8 +352,8 @@ int cmd_ghk_ratio(im_ctx *ctx, int argc, char **argv, char *err)
 		      "(mV)", &mv, err))
 		return -1;
 	first = shift ? 10 : 7;
-	const rd_ion *ion = refdb_ion(ctx->ref, argv[3]);
-	const rd_ion *ref = refdb_ion(ctx->ref, argv[4]);
+	const rd_ion *ion = refdb_ion(ctx->ses->ref, argv[3]);
+	const rd_ion *ref = refdb_ion(ctx->ses->ref, argv[4]);
 	if (!ion || !ref)
 		return im_fail(err, "unknown ion '%.40s'", !ion ? argv[3] : argv[4]);
 	if (ion->z == 0 || ref->z == 0)
@@ -388,7 +392,7 @@ int cmd_ghk_ratio(im_ctx *ctx, int argc, char **argv, char *err)
 	if (side_open(ctx, argv[shift ? 6 : 2], &outs, err))
 		goto done;
 	if (shift) {
-		if (!ws_find(&ctx->ws, argv[2])) {
+		if (!ws_find(&ctx->ses->ws, argv[2])) {
 			im_fail(err, "unknown solution '%.60s' (see `list`)", argv[2]);
 			goto done;
 		}
@@ -399,21 +403,21 @@ int cmd_ghk_ratio(im_ctx *ctx, int argc, char **argv, char *err)
 	if (shift) {
 		for (int i = 0; i < o.np; i++)
 			to_out[i] = conc(&to, o.p[i].ion, o.activities);
-		if (ghk_ratio_shift(x, o.np, to_out, 0, 1, mv, ctx->temp_C, &q, err))
+		if (ghk_ratio_shift(x, o.np, to_out, 0, 1, mv, ctx->ses->temp_C, &q, err))
 			goto done;
-	} else if (ghk_ratio(x, o.np, 0, 1, mv, ctx->temp_C, &q, err)) {
+	} else if (ghk_ratio(x, o.np, 0, 1, mv, ctx->ses->temp_C, &q, err)) {
 		goto done;
 	}
 	/* the reversal potentials at the ratio found, for the record */
 	double E1 = 0, E2 = 0;
 	int have_E = 0;
 	x[0].P = q * x[1].P;
-	if (ghk_erev_present_mV(x, o.np, ctx->temp_C, &E1, NULL) == 0) {
+	if (ghk_erev_present_mV(x, o.np, ctx->ses->temp_C, &E1, NULL) == 0) {
 		have_E = 1;
 		if (shift) {
 			for (int i = 0; i < o.np; i++)
 				x[i].out_mM = to_out[i];
-			have_E = ghk_erev_present_mV(x, o.np, ctx->temp_C, &E2, NULL) == 0;
+			have_E = ghk_erev_present_mV(x, o.np, ctx->ses->temp_C, &E2, NULL) == 0;
 		}
 	}
 	if (ctx->out->json) {
@@ -425,7 +429,7 @@ int cmd_ghk_ratio(im_ctx *ctx, int argc, char **argv, char *err)
 			jw_str(&w, "from_bath", outs.sol->name);
 			jw_str(&w, "to_bath", to.sol->name);
 		}
-		jw_num(&w, "temperature_C", ctx->temp_C, 6);
+		jw_num(&w, "temperature_C", ctx->ses->temp_C, 6);
 		jw_str(&w, "from", basis(&o));
 		jw_str(&w, "ion", ion->symbol);
 		jw_str(&w, "ref", ref->symbol);
@@ -446,12 +450,12 @@ int cmd_ghk_ratio(im_ctx *ctx, int argc, char **argv, char *err)
 		if (shift)
 			out_printf(ctx->out, "permeability ratio from a reversal-potential "
 				   "shift: %s inside, bath %s -> %s, %.1f C, from %s\n",
-				   ins.sol->name, outs.sol->name, to.sol->name, ctx->temp_C,
+				   ins.sol->name, outs.sol->name, to.sol->name, ctx->ses->temp_C,
 				   basis(&o));
 		else
 			out_printf(ctx->out, "permeability ratio from a reversal potential: "
 				   "%s inside, %s outside, %.1f C, from %s\n",
-				   ins.sol->name, outs.sol->name, ctx->temp_C, basis(&o));
+				   ins.sol->name, outs.sol->name, ctx->ses->temp_C, basis(&o));
 		out_printf(ctx->out, "  P(%s)/P(%s) = %.4g\n", ion->symbol, ref->symbol, q);
 		if (shift)
 			out_printf(ctx->out, "  measured shift %+.2f mV", mv);
@@ -572,13 +576,13 @@ int cmd_ghk_iv(im_ctx *ctx, int argc, char **argv, char *err)
 	if (side_open(ctx, argv[2], &outs, err))
 		goto done;
 	fill(&o, &ins, &outs, x);
-	if (ghk_iv(x, o.np, ctx->temp_C, o.v1, o.v2, o.dv, o.rect, &iv, err))
+	if (ghk_iv(x, o.np, ctx->ses->temp_C, o.v1, o.v2, o.dv, o.rect, &iv, err))
 		goto done;
 	/* the plots draw a fine grid, whatever the table step */
 	const int nf = GHK_IV_FINE_PTS;
 	fine = im_xmalloc((size_t)nf * (2 + (size_t)o.np) * sizeof *fine);
 	double *fV = fine, *ftot = fine + nf, *fion = fine + 2 * (size_t)nf;
-	if (ghk_iv_fill(x, o.np, ctx->temp_C, o.v1, o.v2, nf, fV, ftot, fion, err))
+	if (ghk_iv_fill(x, o.np, ctx->ses->temp_C, o.v1, o.v2, nf, fV, ftot, fion, err))
 		goto done;
 
 	/* curves in a display unit: total, then each ion (as many as fit);
@@ -619,7 +623,7 @@ int cmd_ghk_iv(im_ctx *ctx, int argc, char **argv, char *err)
 	int nn = 0;
 	snprintf(nb[nn++], sizeof nb[0], "inside: %.80s", ins.sol->name);
 	snprintf(nb[nn++], sizeof nb[0], "outside: %.80s", outs.sol->name);
-	snprintf(nb[nn++], sizeof nb[0], "%.1f C, from %s", ctx->temp_C, basis(&o));
+	snprintf(nb[nn++], sizeof nb[0], "%.1f C, from %s", ctx->ses->temp_C, basis(&o));
 	snprintf(nb[nn++], sizeof nb[0], "permeabilities (%s):",
 		 o.absolute == 1 ? "cm/s" : "relative");
 	for (int i = 0; i < o.np && nn < PLOT_MAX_NOTES; i++)
@@ -630,7 +634,7 @@ int cmd_ghk_iv(im_ctx *ctx, int argc, char **argv, char *err)
 	snprintf(mark, sizeof mark, "E_rev %+.1f mV", iv.E_rev_mV);
 	snprintf(title, sizeof title, "GHK current: %.64s inside, %.64s outside, "
 		 "%.1f C",
-		 ins.sol->name, outs.sol->name, ctx->temp_C);
+		 ins.sol->name, outs.sol->name, ctx->ses->temp_C);
 	snprintf(ylab_t, sizeof ylab_t, "current density (%s), outward up", unit_t);
 	snprintf(ylab_svg, sizeof ylab_svg, "current density (%s), outward up",
 		 unit_svg);
@@ -709,7 +713,7 @@ int cmd_ghk_iv(im_ctx *ctx, int argc, char **argv, char *err)
 	} else {
 		out_printf(ctx->out, "GHK current-voltage curve: %s inside, %s outside, "
 			   "%.1f C, from %s; %s\n", ins.sol->name,
-			   outs.sol->name, ctx->temp_C, basis(&o),
+			   outs.sol->name, ctx->ses->temp_C, basis(&o),
 			   o.absolute == 1 ? "P in cm/s, current in A/cm2"
 			   : "P relative, current in relative units");
 		if (o.absolute != 1)

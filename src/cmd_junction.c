@@ -17,7 +17,9 @@
 #include "ljp.h"
 #include "output.h"
 #include "refdb.h"
+#include "session.h"
 #include "solution.h"
+#include "units.h"
 
 /* Largest bridge filling accepted, mM (the 5 M the amounts take). */
 #define BRIDGE_MAX_mM 5000.0
@@ -76,7 +78,7 @@ static void json_cautions(jw *w, const cautions *c)
 
 static int find_solution(im_ctx *ctx, const char *name, solution **res, char *err)
 {
-	*res = ws_find(&ctx->ws, name);
+	*res = ws_find(&ctx->ses->ws, name);
 	if (*res)
 		return 0;
 	return im_fail(err,
@@ -114,7 +116,7 @@ static int build_pair(im_ctx *ctx, const sol_state *a, const sol_state *b, doubl
 		      pair *p, char *err)
 {
 	memset(p, 0, sizeof *p);
-	if (ljp_compute(ctx->ref, a, b, 0, t_C, LJP_BIT(LJP_HENDERSON), NULL, NULL, &p->r,
+	if (ljp_compute(ctx->ses->ref, a, b, 0, t_C, LJP_BIT(LJP_HENDERSON), NULL, NULL, &p->r,
 			err))
 		return -1;
 	p->n = p->r.n;
@@ -136,16 +138,7 @@ static void mobility_caution(const pair *p, cautions *c)
 int cmdj_ljp(const sol_state *pip, const sol_state *bath, int act, double t_C, double *ljp_mV,
 	     double *lo_mV, double *hi_mV, char *err)
 {
-	ljp_result r;
-	if (ljp_compute(NULL, pip, bath, act, t_C, LJP_BIT(LJP_HENDERSON), NULL, NULL, &r, err))
-		return -1;
-	*ljp_mV = r.ljp_mV;
-	if (lo_mV)
-		*lo_mV = r.lo_mV;
-	if (hi_mV)
-		*hi_mV = r.hi_mV;
-	ljp_free(&r);
-	return 0;
+	return ljp_pair_mV(pip, bath, act, t_C, ljp_mV, lo_mV, hi_mV, err);
 }
 
 int cmdj_henderson_mV(const sol_state *pip, const sol_state *bath, int act, double t_C,
@@ -157,9 +150,9 @@ int cmdj_henderson_mV(const sol_state *pip, const sol_state *bath, int act, doub
 static int states(im_ctx *ctx, const solution *a, const solution *b, sol_state *sa,
 		  sol_state *sb, char *err)
 {
-	if (sol_compute(a, ctx_env(ctx), sa, err))
+	if (sol_compute(a, ses_env(ctx->ses), sa, err))
 		return -1;
-	if (sol_compute(b, ctx_env(ctx), sb, err)) {
+	if (sol_compute(b, ses_env(ctx->ses), sb, err)) {
 		sol_state_free(sa);
 		return -1;
 	}
@@ -454,7 +447,7 @@ int cmd_junction(im_ctx *ctx, int argc, char **argv, char *err)
 		return -1;
 	if (states(ctx, sp, sb, &st_p, &st_b, err))
 		return -1;
-	if (ljp_compute(ctx->ref, &st_p, &st_b, act, ctx->temp_C, models, sp->name, sb->name,
+	if (ljp_compute(ctx->ses->ref, &st_p, &st_b, act, ctx->ses->temp_C, models, sp->name, sb->name,
 			&r, err)) {
 		sol_state_free(&st_p);
 		sol_state_free(&st_b);
@@ -486,42 +479,17 @@ static int is_conc_unit(const char *u, double *factor)
 }
 
 /* A bridge concentration: num may carry its unit ("3M", "3000mM"); unit
- * may be NULL (then mM) or the next word.  strtod (LC_NUMERIC is never
- * set) with NaN, infinity and trailing garbage rejected. */
+ * may be NULL (then mM) or the next word.  The one number parser
+ * (units.c) reads it. */
 static int parse_conc(const char *num, const char *unit, double *mM, char *err)
 {
-	char *end;
-	double v, f = 1.0;
 	if (!num || !*num)
 		return im_fail(err, "missing bridge concentration");
-	if (strpbrk(num, "xX"))
-		return im_fail(err,
-			       "bridge concentration '%.30s': write a decimal number",
-			       num);
-	v = strtod(num, &end);
-	if (end == num)
-		return im_fail(err, "bridge concentration '%.30s' is not a number", num);
-	if (*end) {
-		if (unit)
-			return im_fail(err, "bridge concentration '%.30s': a unit twice",
-				       num);
-		if (!is_conc_unit(end, &f))
-			return im_fail(err,
-				       "bridge concentration '%.30s': unknown unit "
-				       "'%.10s' (use mM or M)",
-				       num, end);
-	} else if (unit && !is_conc_unit(unit, &f)) {
-		return im_fail(err, "unknown unit '%.20s' for the bridge (use mM or M)",
-			       unit);
-	}
-	if (!isfinite(v))
-		return im_fail(err, "bridge concentration '%.30s' is not a finite number",
-			       num);
-	v *= f;
-	if (!(v > 0) || v > BRIDGE_MAX_mM)
+	if (units_amount_mM(num, unit, 0, mM, err))
+		return -1;
+	if (*mM > BRIDGE_MAX_mM)
 		return im_fail(err, "bridge concentration must be > 0 and at most %g M",
 			       BRIDGE_MAX_mM / 1000.0);
-	*mM = v;
 	return 0;
 }
 
@@ -579,19 +547,19 @@ static int parse_exchange_opts(int argc, char **argv, xargs *x, char *err)
 
 static double cl_activity(im_ctx *ctx, const sol_state *st)
 {
-	const rd_ion *cl = refdb_ion(ctx->ref, "Cl-");
+	const rd_ion *cl = refdb_ion(ctx->ses->ref, "Cl-");
 	const sol_species *s = cl ? sol_state_find(st, cl) : NULL;
 	return s ? s->act_mM : 0.0;
 }
 
 static int bridge_state(im_ctx *ctx, xargs *x, sol_state *st, char *err)
 {
-	const rd_compound *c = refdb_compound(ctx->ref, x->salt);
+	const rd_compound *c = refdb_compound(ctx->ses->ref, x->salt);
 	solution tmp;
 	int rc;
 	if (!c) {
 		const char *sug[3];
-		int n = refdb_suggest(ctx->ref, x->salt, sug, 3);
+		int n = refdb_suggest(ctx->ses->ref, x->salt, sug, 3);
 		if (n > 0)
 			return im_fail(err,
 				       "unknown compound '%.60s' for the bridge; did you "
@@ -604,7 +572,7 @@ static int bridge_state(im_ctx *ctx, xargs *x, sol_state *st, char *err)
 	x->salt_c = c;
 	sol_init(&tmp, "bridge");
 	sol_add(&tmp, c, x->salt_mM);
-	rc = sol_compute(&tmp, ctx_env(ctx), st, err);
+	rc = sol_compute(&tmp, ses_env(ctx->ses), st, err);
 	sol_free(&tmp);
 	if (rc)
 		return -1;
@@ -657,12 +625,12 @@ int cmd_exchange(im_ctx *ctx, int argc, char **argv, char *err)
 		goto done;
 	}
 	if (spp) {
-		if (sol_compute(spp, ctx_env(ctx), &st_p, err))
+		if (sol_compute(spp, ses_env(ctx->ses), &st_p, err))
 			goto done;
 		have_p = 1;
 		if (need_ions(&st_p, spp->name, err) ||
-		    build_pair(ctx, &st_p, &st_o, ctx->temp_C, &tip_o, err) ||
-		    build_pair(ctx, &st_p, &st_n, ctx->temp_C, &tip_n, err))
+		    build_pair(ctx, &st_p, &st_o, ctx->ses->temp_C, &tip_o, err) ||
+		    build_pair(ctx, &st_p, &st_n, ctx->ses->temp_C, &tip_n, err))
 			goto done;
 		in.tip_old = tip_o.ions;
 		in.n_tip_old = tip_o.n;
@@ -674,8 +642,8 @@ int cmd_exchange(im_ctx *ctx, int argc, char **argv, char *err)
 		if (bridge_state(ctx, &xa, &st_b, err))
 			goto done;
 		have_b = 1;
-		if (build_pair(ctx, &st_b, &st_o, ctx->temp_C, &br_o, err) ||
-		    build_pair(ctx, &st_b, &st_n, ctx->temp_C, &br_n, err))
+		if (build_pair(ctx, &st_b, &st_o, ctx->ses->temp_C, &br_o, err) ||
+		    build_pair(ctx, &st_b, &st_n, ctx->ses->temp_C, &br_n, err))
 			goto done;
 		in.bridge_old = br_o.ions;
 		in.n_bridge_old = br_o.n;
@@ -684,7 +652,7 @@ int cmd_exchange(im_ctx *ctx, int argc, char **argv, char *err)
 		if (!spp)
 			mobility_caution(&br_o, &cw);
 	}
-	if (el_exchange_shift_mV(&in, ctx->temp_C, &x, err))
+	if (el_exchange_shift_mV(&in, ctx->ses->temp_C, &x, err))
 		goto done;
 	gname = xa.ground == EL_GROUND_AGCL ? "agcl" : "bridge";
 	if (x.bridge_advised && xa.ground == EL_GROUND_AGCL)
@@ -698,7 +666,7 @@ int cmd_exchange(im_ctx *ctx, int argc, char **argv, char *err)
 		jw_str(&w, "from", so->name);
 		jw_str(&w, "to", sn->name);
 		jw_str(&w, "ground", gname);
-		jw_num(&w, "temperature_C", ctx->temp_C, 6);
+		jw_num(&w, "temperature_C", ctx->ses->temp_C, 6);
 		jw_num(&w, "shift_mV", x.shift_mV, 6);
 		jw_bool(&w, "includes_tip", x.have_tip);
 		jw_num(&w, "ground_term_mV", x.ground_mV, 6);
@@ -734,7 +702,7 @@ int cmd_exchange(im_ctx *ctx, int argc, char **argv, char *err)
 		jw_end(&w);
 	} else {
 		out_printf(ctx->out, "Bath exchange %s -> %s, %.1f C, ground: %s\n",
-			   so->name, sn->name, ctx->temp_C,
+			   so->name, sn->name, ctx->ses->temp_C,
 			   xa.ground == EL_GROUND_AGCL ? "bare Ag/AgCl" : "salt bridge");
 		if (so == sn || sol_equal(so, sn))
 			out_printf(ctx->out,

@@ -1,349 +1,74 @@
 /*
- * cmd_review.c - the pre-experiment review of a pipette/bath pair.
- *
- * Thresholds are facts of the trade (common practice), named here so a
- * reader can argue with them:
+ * cmd_review.c - `review PIPETTE BATH`: review.c's report, rendered.
  */
 #include "cmd_review.h"
 
 #include <math.h>
-#include <stdarg.h>
 #include <stdio.h>
-#include <stdlib.h>
 #include <string.h>
 
-#include "cmd_core.h"
-#include "cmd_junction.h"
 #include "common.h"
-#include "electrode.h"
-#include "nernst.h"
-#include "units.h"
+#include "render.h"
+#include "review.h"
 
-/* pipette osmolality below the bath by 0 to 20 mOsm/kg is the usual aim;
- * beyond 40 either way cells swell or shrink within minutes */
-#define OSM_DIFF_FINE_MAX 20.0
-#define OSM_DIFF_BAD 40.0
-/* a recording solution outside 6.8-7.8 is rarely intended */
-#define PH_LOW 6.8
-#define PH_HIGH 7.8
-/* buffer capacity below 2 mM per pH unit holds the pH poorly */
-#define BETA_MIN_mM 2.0
-/* free Ca2+ inside: resting cytoplasm is about 50-200 nM; above 1 uM
- * inside is almost always a mistake */
-#define CA_IN_HIGH_mM 1e-3
-/* free Mg2+ inside: about 0.3-1 mM in cytoplasm; outside 0.1-3 mM check */
-#define MG_IN_LOW_mM 0.1
-#define MG_IN_HIGH_mM 3.0
-/* an LJP above this should be corrected for */
-#define LJP_CORRECT_mV 2.0
-/* Cl- of the saline a bare Ag/AgCl ground is usually chlorided in */
-#define REF_CL_mM 150.0
-
-enum { FINE, CHECK, PROBLEM };
-static const char *verdict_name[] = {"fine", "check", "problem"};
-
-#define MAX_ITEMS 32
-
-typedef struct item {
-	char check[48];
-	int verdict;
-	double value;   /* NAN: none */
-	char unit[16];
-	char note[200];
-} item;
-
-typedef struct report {
-	item it[MAX_ITEMS];
-	int n;
-} report;
-
-static void add(report *r, const char *check, int verdict, double value, const char *unit,
-		const char *fmt, ...) __attribute__((format(printf, 6, 7)));
-
-static void add(report *r, const char *check, int verdict, double value, const char *unit,
-		const char *fmt, ...)
+/* The digits a review value deserves, by its unit. */
+static int digits_of(const char *unit)
 {
-	item *x;
-	va_list ap;
-	if (r->n == MAX_ITEMS)
-		return;
-	x = &r->it[r->n++];
-	snprintf(x->check, sizeof x->check, "%s", check);
-	x->verdict = verdict;
-	x->value = fabs(value) < 1e-9 ? 0 : value; /* no -0 or 1e-15 of rounding */
-	snprintf(x->unit, sizeof x->unit, "%s", unit);
-	va_start(ap, fmt);
-	vsnprintf(x->note, sizeof x->note, fmt, ap);
-	va_end(ap);
+	if (strcmp(unit, "mOsm/kg") == 0)
+		return UNITS_DEC(0);
+	if (strcmp(unit, "mV") == 0)
+		return UNITS_DEC(1);
+	if (strcmp(unit, "") == 0 || strcmp(unit, "mEq/L") == 0) /* pH, charge */
+		return UNITS_DEC(2);
+	return UNITS_SIG(3);
 }
 
-static double conc_of(const sol_state *st, const refdb *ref, const char *sym, int act)
+static void review_row(render *r, const review_item *x, int utf8)
 {
-	const sol_species *x = sol_state_find(st, refdb_ion(ref, sym));
-	return x ? (act ? x->act_mM : x->mM) : 0;
-}
-
-static double free_of(const sol_state *st, const char *metal)
-{
-	if (!st->chem)
-		return NAN;
-	for (int m = 0; m < st->chem->nmetals; m++)
-		if (strcmp(st->chem->metals[m].symbol, metal) == 0)
-			return st->chem->metals[m].free_mM;
-	return 0;
-}
-
-/* Buffer capacity, mM of strong base per pH unit: the pH change when
- * 0.1 mM of OH- joins the solution's protons (closed system). */
-static double buffer_capacity(im_ctx *ctx, const solution *s, const sol_state *st)
-{
-	spec_in in[SPEC_MAX_IN + 1];
-	spec_cond cond;
-	spec_result *r;
-	char err[IM_ERRLEN];
-	double beta = NAN;
-	int n = sol_spec_inputs(s, 0, in, SPEC_MAX_IN, err);
-	if (n < 0 || !st->chem)
-		return NAN;
-	in[n++] = (spec_in){"OH-", -1, 0.1};
-	sol_spec_cond(s, ctx_env(ctx), &cond);
-	r = im_xmalloc(sizeof *r);
-	if (spec_solve(ctx->chem, in, n, &cond, r, err) == 0 && r->pH != st->pH)
-		beta = 0.1 / (r->pH - st->pH);
-	free(r);
-	return beta;
-}
-
-static int has_chelator(const sol_state *st)
-{
-	for (int i = 0; st->chem && i < st->chem->nligands; i++) {
-		const char *l = st->chem->ligands[i].name;
-		if (strcmp(l, "EGTA") == 0 || strcmp(l, "BAPTA") == 0 || strcmp(l, "EDTA") == 0)
-			return 1;
-	}
-	return 0;
-}
-
-static void review_osmo(report *r, const sol_state *p, const sol_state *b)
-{
-	double d = b->osmolality_mOsm_kg - p->osmolality_mOsm_kg;
-	add(r, "osmolality pipette", FINE, p->osmolality_mOsm_kg, "mOsm/kg",
-	    "Pitzer estimate; confirm with an osmometer");
-	add(r, "osmolality bath", FINE, b->osmolality_mOsm_kg, "mOsm/kg",
-	    "Pitzer estimate; confirm with an osmometer");
-	if (!isfinite(d))
-		return;
-	if (d >= 0 && d <= OSM_DIFF_FINE_MAX)
-		add(r, "osmolality difference", FINE, d, "mOsm/kg",
-		    "bath minus pipette; the pipette a little below the bath is the usual aim "
-		    "(common practice)");
-	else if (fabs(d) > OSM_DIFF_BAD)
-		add(r, "osmolality difference", PROBLEM, d, "mOsm/kg",
-		    "bath minus pipette; over %.0f mOsm/kg apart, cells swell or shrink (adjust with "
-		    "`osmo`)", OSM_DIFF_BAD);
-	else
-		add(r, "osmolality difference", CHECK, d, "mOsm/kg",
-		    "bath minus pipette; usually the pipette is 0 to %.0f mOsm/kg below the bath "
-		    "(common practice)", OSM_DIFF_FINE_MAX);
-}
-
-static void review_ph(report *r, im_ctx *ctx, const char *which, const solution *s,
-		      const sol_state *st)
-{
-	char check[48];
-	double beta = buffer_capacity(ctx, s, st);
-	int set = isfinite(s->ph_target) || s->co2_frac > 0;
-	snprintf(check, sizeof check, "pH %s", which);
-	if (!isfinite(st->pH))
-		return;
-	if (st->pH < PH_LOW || st->pH > PH_HIGH)
-		add(r, check, PROBLEM, st->pH, "", "%s; outside %.1f to %.1f: titrate with `ph`",
-		    set ? "as set" : "not set: the solution as mixed", PH_LOW, PH_HIGH);
-	else
-		add(r, check, set ? FINE : CHECK, st->pH, "",
-		    set ? (s->co2_frac > 0 ? "set by CO2 and bicarbonate" : "titrated")
-			: "not titrated; confirm with a pH meter");
-	snprintf(check, sizeof check, "buffer capacity %s", which);
-	if (isfinite(beta))
-		add(r, check, beta >= BETA_MIN_mM ? FINE : CHECK, beta, "mM/pH",
-		    beta >= BETA_MIN_mM ? "a buffer's pKa lies within about one unit of the pH"
-					: "weakly buffered at this pH: no buffer with its pKa within "
-					  "about one unit (common practice)");
-}
-
-static void review_divalent(report *r, const sol_state *p)
-{
-	double ca = free_of(p, "Ca2+"), mg = free_of(p, "Mg2+");
-	char b[48];
-	if (isfinite(ca) && ca > 0) {
-		units_fmt_conc(b, sizeof b, ca, 0);
-		if (ca > CA_IN_HIGH_mM)
-			add(r, "free Ca2+ pipette", PROBLEM, ca * 1e6, "nM",
-			    "%s inside: far above resting cytoplasm (50-200 nM); almost always a "
-			    "mistake unless intended", b);
-		else
-			add(r, "free Ca2+ pipette", has_chelator(p) ? FINE : CHECK, ca * 1e6, "nM",
-			    has_chelator(p) ? "buffered by a chelator" : "not buffered: no EGTA or BAPTA");
-	} else if (isfinite(ca)) {
-		add(r, "free Ca2+ pipette", has_chelator(p) ? FINE : CHECK, 0, "nM",
-		    has_chelator(p) ? "no Ca2+ added; the chelator holds it near zero"
-				    : "no Ca2+ and no chelator: trace Ca2+ is unbuffered");
-	}
-	if (isfinite(mg)) {
-		if (mg <= 0)
-			add(r, "free Mg2+ pipette", CHECK, 0, "mM",
-			    "no Mg2+: ATP needs Mg2+, and Mg2+ shapes inward rectifiers and NMDA "
-			    "receptors");
-		else
-			add(r, "free Mg2+ pipette", mg < MG_IN_LOW_mM || mg > MG_IN_HIGH_mM ? CHECK : FINE,
-			    mg, "mM",
-			    "cytoplasm holds about 0.3-1 mM; Mg2+ blocks inward rectifiers and NMDA "
-			    "receptors (common practice)");
-	}
-}
-
-static int balanced(const sol_state *st)
-{
-	double lim = 0.005 * st->cation_mEq_L;
-	return fabs(st->net_charge_mEq_L) <= (lim > 0.1 ? lim : 0.1);
-}
-
-static void review_potentials(report *r, im_ctx *ctx, const sol_state *p,
-			      const sol_state *b)
-{
-	static const char *ions[] = {"K+", "Na+", "Cl-", "Ca2+"};
-	for (size_t i = 0; i < IM_COUNT(ions); i++) {
-		char check[32], e2[IM_ERRLEN];
-		const rd_ion *ion = refdb_ion(ctx->ref, ions[i]);
-		double E;
-		snprintf(check, sizeof check, "E_%.*s", (int)strcspn(ions[i], "0123456789+-"),
-			 ions[i]);
-		if (nernst_mV(ion->z, conc_of(p, ctx->ref, ions[i], 0),
-			      conc_of(b, ctx->ref, ions[i], 0), ctx->temp_C, &E, e2)) {
-			add(r, check, FINE, NAN, "mV", "%s on one side only: %s", ions[i], e2);
-			continue;
-		}
-		add(r, check, FINE, E, "mV", "%s",
-		    strcmp(ions[i], "Cl-") == 0
-			    ? "inhibitory (GABA-A, glycine) currents reverse near E_Cl"
-			    : "Nernst, inside relative to outside");
-	}
-}
-
-static void review_ljp(report *r, im_ctx *ctx, const sol_state *p, const sol_state *b)
-{
-	double ljp, lo, hi, cl;
-	char e2[IM_ERRLEN];
-	if (cmdj_ljp(p, b, 0, ctx->temp_C, &ljp, &lo, &hi, e2)) {
-		add(r, "liquid junction potential", CHECK, NAN, "mV", "%s", e2);
-	} else {
-		add(r, "liquid junction potential", fabs(ljp) > LJP_CORRECT_mV ? CHECK : FINE, ljp,
-		    "mV",
-		    "bath relative to pipette (Henderson; %.1f to %.1f mV with the mobility "
-		    "uncertainties); whole-cell Vm = Vpipette - LJP: a command of -70 mV is "
-		    "really %.1f mV", lo, hi, -70.0 - ljp);
-	}
-	cl = conc_of(b, ctx->ref, "Cl-", 1);
-	if (cl > 0) {
-		/* the ground against one chlorided in a 150 mM Cl- saline */
-		double ref_act = REF_CL_mM * conc_of(b, ctx->ref, "Cl-", 1) /
-				 conc_of(b, ctx->ref, "Cl-", 0);
-		double shift = el_agcl_mV(cl, ctx->temp_C) - el_agcl_mV(ref_act, ctx->temp_C);
-		add(r, "Ag/AgCl ground in the bath", el_bridge_advisable(shift) ? CHECK : FINE,
-		    shift, "mV",
-		    el_bridge_advisable(shift)
-			    ? "a bare Ag/AgCl ground here sits this far from its value in 150 mM "
-			      "Cl-: use a salt bridge (common practice)"
-			    : "against a 150 mM Cl- saline; a bare Ag/AgCl ground is fine");
-	} else {
-		add(r, "Ag/AgCl ground in the bath", PROBLEM, NAN, "mV",
-		    "no Cl- in the bath: a bare Ag/AgCl ground has no defined potential; use a "
-		    "salt bridge");
-	}
-}
-
-static void review_hazards(report *r, const solution *p, const solution *b)
-{
-	for (int side = 0; side < 2; side++) {
-		const solution *s = side ? b : p;
-		for (int i = 0; i < s->n; i++) {
-			const rd_compound *c = s->items[i].c;
-			int dup = 0;
-			if (!c->hazard)
-				continue;
-			for (int k = 0; side && k < p->n; k++)
-				dup |= p->items[k].c == c;
-			if (!dup)
-				add(r, "caution", CHECK, NAN, "", "%s: %s", c->name, c->hazard);
+	char v[64] = "";
+	if (isfinite(x->value) && (strcmp(x->unit, "nM") == 0 || strcmp(x->unit, "mM") == 0)) {
+		/* a concentration: the unit switches as everywhere else */
+		units_fmt_conc(v, sizeof v, x->unit[0] == 'n' ? x->value * 1e-6 : x->value, utf8);
+	} else if (isfinite(x->value)) {
+		units_fmt_num(v, sizeof v, x->value, digits_of(x->unit));
+		if (x->unit[0]) {
+			strcat(v, " ");
+			strncat(v, x->unit, sizeof v - strlen(v) - 1);
 		}
 	}
+	render_row(r);
+	render_str(r, "verdict", "", review_verdict_name(x->verdict));
+	render_str(r, "check", "", x->check);
+	render_numj(r, "value", NULL, NULL, x->value, digits_of(x->unit), 6);
+	render_str(r, "unit", NULL, x->unit);
+	render_str(r, NULL, "", v);
+	render_str(r, "note", "", x->note);
 }
 
 int cmd_review(im_ctx *ctx, int argc, char **argv, char *err)
 {
 	solution *sp, *sb;
-	sol_state p, b;
-	report *r;
+	review_report rep;
+	render *r;
 	(void)argc;
-	if (core_solution(ctx, argv[1], &sp, err) || core_solution(ctx, argv[2], &sb, err))
+	if (ses_solution(ctx->ses, argv[1], &sp, err) || ses_solution(ctx->ses, argv[2], &sb, err) ||
+	    review_pair(ctx->ses, sp, sb, &rep, err))
 		return -1;
-	if (sp->n == 0 || sb->n == 0)
-		return im_fail(err, "%s is empty: nothing to review", sp->n ? sb->name : sp->name);
-	if (sol_compute(sp, ctx_env(ctx), &p, err))
-		return -1;
-	if (sol_compute(sb, ctx_env(ctx), &b, err)) {
-		sol_state_free(&p);
-		return -1;
-	}
-	r = im_xcalloc(1, sizeof *r);
-	review_osmo(r, &p, &b);
-	review_ph(r, ctx, "pipette", sp, &p);
-	review_ph(r, ctx, "bath", sb, &b);
-	review_divalent(r, &p);
-	add(r, "charge balance pipette", balanced(&p) ? FINE : PROBLEM, p.net_charge_mEq_L,
-	    "mEq/L", balanced(&p) ? "electroneutral" : "not electroneutral: a counter-ion is missing");
-	add(r, "charge balance bath", balanced(&b) ? FINE : PROBLEM, b.net_charge_mEq_L, "mEq/L",
-	    balanced(&b) ? "electroneutral" : "not electroneutral: a counter-ion is missing");
-	review_potentials(r, ctx, &p, &b);
-	review_ljp(r, ctx, &p, &b);
-	review_hazards(r, sp, sb);
-
-	if (ctx->out->json) {
-		jw w;
-		jw_begin(&w, ctx->out);
-		jw_str(&w, "pipette", sp->name);
-		jw_str(&w, "bath", sb->name);
-		jw_num(&w, "temperature_C", ctx->temp_C, 6);
-		jw_arr(&w, "items");
-		for (int i = 0; i < r->n; i++) {
-			jw_obj(&w, NULL);
-			jw_str(&w, "check", r->it[i].check);
-			jw_str(&w, "verdict", verdict_name[r->it[i].verdict]);
-			jw_num(&w, "value", r->it[i].value, 6);
-			jw_str(&w, "unit", r->it[i].unit);
-			jw_str(&w, "note", r->it[i].note);
-			jw_close(&w);
-		}
-		jw_end(&w);
-	} else {
-		int count[3] = {0, 0, 0};
-		out_printf(ctx->out, "review: pipette %s, bath %s, %.1f C\n", sp->name, sb->name,
-			   ctx->temp_C);
-		for (int i = 0; i < r->n; i++) {
-			const item *x = &r->it[i];
-			char v[32] = "";
-			count[x->verdict]++;
-			if (isfinite(x->value))
-				snprintf(v, sizeof v, "%.6g %s", x->value, x->unit);
-			out_printf(ctx->out, "  %-8s %-28s %14s  %s\n", verdict_name[x->verdict],
-				   x->check, v, x->note);
-		}
-		out_printf(ctx->out, "%d fine, %d to check, %d problems; estimates: confirm pH with "
-				     "a calibrated meter and osmolality with an osmometer\n",
-			   count[FINE], count[CHECK], count[PROBLEM]);
-	}
-	free(r);
-	sol_state_free(&p);
-	sol_state_free(&b);
-	return 0;
+	r = render_new(ctx->out);
+	render_str(r, "pipette", NULL, sp->name);
+	render_str(r, "bath", NULL, sb->name);
+	render_num(r, "temperature_C", NULL, "C", rep.temp_C, UNITS_DEC(1));
+	render_text(r, "review: pipette %s, bath %s, %.1f C", sp->name, sb->name, rep.temp_C);
+	render_table(r, "items", NULL);
+	for (int i = 0; i < rep.n; i++)
+		review_row(r, &rep.it[i], ctx->out->utf8);
+	render_table_end(r);
+	render_int(r, "fine", NULL, rep.count[REVIEW_FINE]);
+	render_int(r, "to_check", NULL, rep.count[REVIEW_CHECK]);
+	render_int(r, "problems", NULL, rep.count[REVIEW_PROBLEM]);
+	render_text(r, "%d fine, %d to check, %d problems; estimates: confirm pH with a calibrated "
+		       "meter and osmolality with an osmometer", rep.count[REVIEW_FINE],
+		    rep.count[REVIEW_CHECK], rep.count[REVIEW_PROBLEM]);
+	review_free(&rep);
+	return render_done(r);
 }

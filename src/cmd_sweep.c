@@ -24,7 +24,7 @@
 #include <stdlib.h>
 #include <string.h>
 
-#include "cmd_core.h"
+#include "session.h"
 #include "common.h"
 #include "fileio.h"
 #include "plot.h"
@@ -60,7 +60,7 @@ static int solution_arg(im_ctx *ctx, const char *name, const solution **s,
 			char *err)
 {
 	solution *x;
-	if (core_solution(ctx, name, &x, err))
+	if (ses_solution(ctx->ses, name, &x, err))
 		return -1;
 	*s = x;
 	return 0;
@@ -68,7 +68,7 @@ static int solution_arg(im_ctx *ctx, const char *name, const solution **s,
 
 static int ion_arg(im_ctx *ctx, const char *name, const rd_ion **ion, char *err)
 {
-	*ion = refdb_ion(ctx->ref, name);
+	*ion = refdb_ion(ctx->ses->ref, name);
 	if (!*ion)
 		return im_fail(err, "unknown ion '%.40s' (a symbol like K, Na, Cl, Ca)",
 			       name);
@@ -330,7 +330,7 @@ int cmd_sweep(im_ctx *ctx, int argc, char **argv, char *err)
 		sp.var = SWEEP_TEMP;
 	} else {
 		sp.var = SWEEP_AMOUNT;
-		if (core_compound(ctx, argv[1], &sp.compound, err))
+		if (ses_compound(ctx->ses, argv[1], &sp.compound, err))
 			return -1;
 	}
 	if (parse_range(argc, argv, &sp, &i, err))
@@ -399,7 +399,7 @@ int cmd_sweep(im_ctx *ctx, int argc, char **argv, char *err)
 		return im_fail(err, "'activities' applies to nernst, ljp and erev only");
 	if (o.svg && o.csv && (strcmp(o.svg, o.csv) == 0 || fio_same_file(o.svg, o.csv)))
 		return im_fail(err, "the SVG and the CSV cannot be the same file");
-	if (sweep_run(&sp, ctx_env(ctx), &r, err))
+	if (sweep_run(&sp, ses_env(ctx->ses), &r, err))
 		return -1;
 
 	/* what the plot and the table show */
@@ -432,7 +432,7 @@ int cmd_sweep(im_ctx *ctx, int argc, char **argv, char *err)
 	}
 	snprintf(title, sizeof title, "sweep: %s over %s", r.y_name, r.x_name);
 	if (sp.var == SWEEP_AMOUNT)
-		snprintf(cond[nn++], sizeof cond[0], "at %.1f C", ctx->temp_C);
+		snprintf(cond[nn++], sizeof cond[0], "at %.1f C", ctx->ses->temp_C);
 	if (sp.qty == SWQ_EREV) {
 		size_t len = 0;
 		cond[nn][0] = '\0';
@@ -498,7 +498,7 @@ int cmd_sweep(im_ctx *ctx, int argc, char **argv, char *err)
 			jw_str(&w, "sweep", "amount");
 			jw_str(&w, "compound", sp.compound->name);
 			jw_str(&w, "solution", sp.target->name);
-			jw_num(&w, "temperature_C", ctx->temp_C, 6);
+			jw_num(&w, "temperature_C", ctx->ses->temp_C, 6);
 		}
 		jw_str(&w, "quantity", r.y_key);
 		jw_str(&w, "x_unit", r.x_unit);

@@ -1,24 +1,37 @@
 /*
- * command.c - the command table, word splitting and dispatch.
+ * command.c - the command table, word splitting, dispatch with rollback,
+ * the one line loop, and the commands that drive the loop itself: run,
+ * help and quit.
  *
- * To add a command: write its handler (a cmd_fn) in the cmd_*.c file of
- * its area, declare it in that file's header, and add one row below.  The
- * row drives dispatch, the argument-count check, `help` and completion.
+ * To add a command: write its handler (a cmd_fn: parse, call, render) in
+ * the cmd_*.c file of what the user does, declare it in that file's
+ * header, add one row below and a schema schemas/NAME.json for its JSON
+ * result.  The row drives dispatch, the argument-count check, `help`,
+ * completion and tests/ref/check_schemas.py.
  */
 #include "command.h"
 
+#include <errno.h>
 #include <stdlib.h>
 #include <string.h>
 
+#include "cmd_bench.h"
 #include "cmd_chem.h"
-#include "cmd_core.h"
 #include "cmd_correct.h"
+#include "cmd_ephys.h"
 #include "cmd_ghk.h"
 #include "cmd_junction.h"
+#include "cmd_ref.h"
 #include "cmd_review.h"
 #include "cmd_sweep.h"
+#include "cmd_solution.h"
+#include "cmd_store.h"
 #include "common.h"
-#include "userdb.h"
+#include "render.h"
+
+static int cmd_run(im_ctx *ctx, int argc, char **argv, char *err);
+static int cmd_help(im_ctx *ctx, int argc, char **argv, char *err);
+static int cmd_quit(im_ctx *ctx, int argc, char **argv, char *err);
 
 #define ANY -1
 
@@ -107,6 +120,10 @@ static const cmd_def table[] = {
 	 0, 1, cmd_compounds, COMPL_NONE, COMPL_NONE, 0},
 	{"help", "[COMMAND]", "list the commands, or explain one",
 	 0, 1, cmd_help, COMPL_COMMAND, COMPL_NONE, 0},
+	{"quit", "", "leave ionmix (Ctrl-D too); in a script, stop there",
+	 0, 0, cmd_quit, COMPL_NONE, COMPL_NONE, 0},
+	{"exit", "", "the same as quit",
+	 0, 0, cmd_quit, COMPL_NONE, COMPL_NONE, 0},
 };
 
 const cmd_def *cmd_table(int *n)
@@ -203,9 +220,7 @@ static int exec_one(im_ctx *ctx, char *cmd, char *err)
 	char *argv[CMD_ARGS_MAX];
 	int argc = cmd_split(cmd, argv, CMD_ARGS_MAX, err), nargs, rc;
 	const cmd_def *d;
-	workspace saved;
-	double t = ctx->temp_C;
-	act_model m = ctx->model;
+	ses_mark mark;
 	if (argc <= 0)
 		return argc;
 	d = cmd_lookup(argv[0]);
@@ -222,16 +237,16 @@ static int exec_one(im_ctx *ctx, char *cmd, char *err)
 	if (d->max_args != ANY && nargs > d->max_args)
 		return im_fail(err, "%s: unexpected '%.40s' (usage: %s %s)", d->name,
 			       argv[d->max_args + 1], d->name, d->synopsis);
-	ws_copy(&saved, &ctx->ws);
+	ses_mark_take(ctx->ses, &mark);
 	rc = d->fn(ctx, argc, argv, err);
-	if (rc != 0 && !d->keep_on_fail) {
-		ws_free(&ctx->ws);
-		ctx->ws = saved;
-		ctx->temp_C = t;
-		ctx->model = m;
-	} else {
-		ws_free(&saved);
-	}
+	if (rc == 0 && out_failed(ctx->out))
+		rc = im_fail(err, "cannot write the result of %s to %s: %s", d->name,
+			     ctx->out->name ? ctx->out->name : "standard output",
+			     strerror(ctx->out->werrno ? ctx->out->werrno : EIO));
+	if (rc != 0 && !d->keep_on_fail)
+		ses_mark_restore(ctx->ses, &mark);
+	else
+		ses_mark_drop(&mark);
 	return rc;
 }
 
@@ -266,60 +281,191 @@ int cmd_exec(im_ctx *ctx, const char *line, char *err)
 	}
 }
 
+/* ---- the one line loop ---- */
+
+typedef struct file_reader {
+	FILE *fp;
+	char *buf;
+	size_t cap;
+} file_reader;
+
+static int file_next(void *arg, char **line, size_t *len)
+{
+	file_reader *f = arg;
+	ssize_t n;
+	errno = 0;
+	n = getline(&f->buf, &f->cap, f->fp);
+	if (n < 0)
+		/* a directory opens but does not read (EISDIR): not an empty script */
+		return ferror(f->fp) ? (errno ? -1 : (errno = EIO, -1)) : 0;
+	*line = f->buf;
+	*len = (size_t)n;
+	return 1;
+}
+
+void cmd_reader_file(cmd_reader *r, FILE *fp)
+{
+	file_reader *f = im_xcalloc(1, sizeof *f);
+	f->fp = fp;
+	r->next = file_next;
+	r->arg = f;
+}
+
+void cmd_reader_file_done(cmd_reader *r)
+{
+	file_reader *f = r->arg;
+	if (f)
+		free(f->buf);
+	free(f);
+	r->arg = NULL;
+}
+
+static void set_errfile(im_ctx *ctx, const char *file, int line)
+{
+	free(ctx->errfile);
+	ctx->errfile = file ? im_xstrdup(file) : NULL;
+	ctx->errline = line;
+}
+
+int cmd_loop(im_ctx *ctx, const cmd_reader *rd, int *line_out, char *err)
+{
+	char *line;
+	size_t len;
+	int lineno = 0, r;
+	*line_out = 0;
+	while (!ctx->quit && (r = rd->next(rd->arg, &line, &len)) > 0) {
+		int rc;
+		lineno++;
+		if (lineno == 1 && len >= 3 && memcmp(line, "\xef\xbb\xbf", 3) == 0) {
+			/* a UTF-8 byte-order mark, as some editors write: not a command */
+			line += 3;
+			len -= 3;
+		}
+		set_errfile(ctx, NULL, 0);
+		if (len > CMD_LINE_MAX)
+			rc = im_fail(err, "line is longer than %d bytes", CMD_LINE_MAX);
+		else if (memchr(line, '\0', len))
+			rc = im_fail(err, "line holds a NUL byte: not a text script");
+		else
+			rc = cmd_exec(ctx, line, err);
+		if (rc == 0)
+			continue;
+		if (!ctx->interactive || out_failed(ctx->out)) {
+			*line_out = lineno;
+			return -1;
+		}
+		out_error(ctx->out, ctx->errfile, ctx->errline, err);
+	}
+	if (!ctx->quit && r < 0) {
+		*line_out = lineno + 1;
+		return im_fail(err, "cannot read it: %s", strerror(errno ? errno : EIO));
+	}
+	*line_out = lineno;
+	return 0;
+}
+
+int cmd_run_stream(im_ctx *ctx, FILE *fp, int *line_out, char *err)
+{
+	cmd_reader rd;
+	int rc;
+	cmd_reader_file(&rd, fp);
+	rc = cmd_loop(ctx, &rd, line_out, err);
+	cmd_reader_file_done(&rd);
+	return rc;
+}
+
+/* ---- the commands of the loop itself ---- */
+
+static int cmd_run(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	FILE *fp;
+	int line = 0, rc, before;
+	render *r;
+	(void)argc;
+	if (ctx->run_depth >= 8)
+		return im_fail(err, "run: scripts nested more than 8 deep (a script runs itself?)");
+	fp = strcmp(argv[1], "-") == 0 ? stdin : fopen(argv[1], "r");
+	if (!fp)
+		return im_fail(err, "cannot open %s: %s", argv[1], strerror(errno));
+	ctx->run_depth++;
+	before = ctx->interactive;
+	ctx->interactive = 0; /* a script stops at its first error, even run from the shell */
+	rc = cmd_run_stream(ctx, fp, &line, err);
+	ctx->interactive = before;
+	ctx->run_depth--;
+	if (fp != stdin)
+		fclose(fp);
+	if (rc != 0) {
+		if (!ctx->errfile) /* the failure was in this file, not deeper */
+			set_errfile(ctx, argv[1], line);
+		return -1;
+	}
+	r = render_new(ctx->out);
+	/* the script's commands spoke for themselves: JSON only */
+	render_str(r, "ran", NULL, argv[1]);
+	render_int(r, "lines", NULL, line);
+	return render_done(r);
+}
+
+static int cmd_help(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	render *r = render_new(ctx->out);
+	if (argc > 1) {
+		const cmd_def *d = cmd_lookup(argv[1]);
+		if (!d) {
+			render_drop(r);
+			return im_fail(err, "no command '%.40s' (type `help` for the list)", argv[1]);
+		}
+		render_str(r, "command", NULL, d->name);
+		render_str(r, "synopsis", NULL, d->synopsis);
+		render_str(r, "help", NULL, d->help);
+		render_text(r, "usage: %s %s\n  %s", d->name, d->synopsis, d->help);
+		return render_done(r);
+	}
+	render_text(r, "commands (`help COMMAND` for its arguments):");
+	render_table(r, "commands", NULL);
+	for (size_t i = 0; i < IM_COUNT(table); i++) {
+		render_row(r);
+		render_str(r, "command", "", table[i].name);
+		render_str(r, "synopsis", NULL, table[i].synopsis);
+		render_str(r, "help", "", table[i].help);
+	}
+	render_table_end(r);
+	return render_done(r);
+}
+
+static int cmd_quit(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	render *r = render_new(ctx->out);
+	(void)argc;
+	(void)argv;
+	(void)err;
+	ctx->quit = 1;
+	render_bool(r, "quit", NULL, 1);
+	return render_done(r);
+}
+
+/* ---- the context ---- */
+
 void ctx_init(im_ctx *ctx, refdb *ref, out *o)
 {
 	memset(ctx, 0, sizeof *ctx);
-	ctx->ref = ref;
+	ctx->ses = im_xmalloc(sizeof *ctx->ses);
+	ses_init(ctx->ses, ref);
 	ctx->out = o;
-	ctx->temp_C = 25.0;
-	ctx->model = ACT_DAVIES;
-	ws_init(&ctx->ws);
 }
 
 int ctx_load_chemistry(im_ctx *ctx, char *err)
 {
-	if (spec_load(refdb_sqlite(ctx->ref), &ctx->chem, err))
-		return -1;
-	if (osm_load(refdb_sqlite(ctx->ref), &ctx->osm, err)) {
-		spec_data_free(ctx->chem);
-		ctx->chem = NULL;
-		return -1;
-	}
-	return 0;
-}
-
-const sol_env *ctx_env(im_ctx *ctx)
-{
-	ctx->env = (sol_env){ctx->ref, ctx->chem, ctx->osm, ctx->temp_C, ctx->model};
-	return &ctx->env;
+	return ses_load_chemistry(ctx->ses, err);
 }
 
 void ctx_free(im_ctx *ctx)
 {
-	spec_data_free(ctx->chem);
-	osm_data_free(ctx->osm);
-	ctx->chem = NULL;
-	ctx->osm = NULL;
-	ws_free(&ctx->ws);
-	udb_close(ctx->user);
-	ctx->user = NULL;
-}
-
-struct userdb *ctx_userdb(im_ctx *ctx, int create, char *err, int *failed)
-{
-	int rc;
-	*failed = 0;
-	if (ctx->user)
-		return ctx->user;
-	if (!ctx->db_path) {
-		*failed = 1;
-		udb_nowhere(err);
-		return NULL;
-	}
-	rc = udb_open(ctx->db_path, create, &ctx->user, err);
-	if (rc < 0)
-		*failed = 1;
-	else if (ctx->user && ctx->interactive) /* after 2 s of waiting, say so */
-		udb_set_patience(ctx->user, UDB_WAIT_S, UDB_NOTICE_S, ctx->out->errfp);
-	return ctx->user;
+	if (ctx->ses)
+		ses_free(ctx->ses);
+	free(ctx->ses);
+	ctx->ses = NULL;
+	free(ctx->errfile);
+	ctx->errfile = NULL;
 }

@@ -22,7 +22,8 @@
 #define IM_AVOGADRO_MOL 6.02214076e23    /* N_A, 1/mol */
 #define IM_CHARGE_C 1.602176634e-19      /* e, C */
 
-#define IM_ERRLEN 256
+/* Room for any one-line message, synopses of the longest commands included. */
+#define IM_ERRLEN 1024
 
 /* RT/F in mV at temperature t_C (25.6926 mV at 25 C). */
 double im_rt_f_mV(double t_C);

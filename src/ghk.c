@@ -21,6 +21,7 @@
 #include <string.h>
 
 #include "common.h"
+#include "nernst.h"
 
 /* 1 A/m2 = 1e-4 A/cm2 and P[m/s] = 1e-2 P[cm/s]; mM == mol/m3. */
 #define A_CM2_PER_CM_S_MM_F (1e-6 * IM_FARADAY_C_MOL)
@@ -118,21 +119,8 @@ static double sum_current(double V_mV, void *vctx)
 int ghk_nernst_mV(int z, double in_mM, double out_mM, double t_C, double *E_mV,
 		  char *err)
 {
-	if (z == 0)
-		return im_fail(err, "no Nernst potential for a neutral species");
-	if (!isfinite(t_C) || t_C <= -IM_ZERO_C_K)
-		return im_fail(err, "temperature %g C is not a real temperature", t_C);
-	if (!isfinite(in_mM) || !isfinite(out_mM))
-		return im_fail(err, "concentration is not a finite number");
-	if (in_mM <= 0 || out_mM <= 0)
-		return im_fail(err, "no Nernst potential: the ion is absent %s",
-			       in_mM <= 0 && out_mM <= 0 ? "on both sides"
-			       : in_mM <= 0 ? "inside" : "outside");
-	double E = im_rt_f_mV(t_C) / z * log(out_mM / in_mM);
-	if (!isfinite(E))
-		return im_fail(err, "Nernst potential out of range");
-	*E_mV = E;
-	return 0;
+	/* one Nernst equation in the program: nernst.c's */
+	return nernst_mV(z, in_mM, out_mM, t_C, E_mV, err);
 }
 
 

@@ -18,6 +18,8 @@
 #ifndef IONMIX_GHK_H
 #define IONMIX_GHK_H
 
+#include "common.h"
+
 /* One ion species on both sides of the membrane.  The caller owns the array
  * and the symbol string; the functions below only read them. */
 typedef struct ghk_ion {
@@ -100,7 +102,7 @@ typedef struct ghk_iv_curve {
 	double rect_mV;     /* distance used for the rectification figure */
 	double rect;        /* |I(E_rev + rect_mV)| / |I(E_rev - rect_mV)|;
 			     * > 1: outward rectification; valid when has_erev */
-	char no_erev[256];  /* why there is none, when has_erev == 0 */
+	char no_erev[IM_ERRLEN]; /* why there is none, when has_erev == 0 */
 } ghk_iv_curve;
 
 #define GHK_IV_V1_MV -120.0  /* defaults of the voltage grid */

@@ -519,3 +519,18 @@ char *ljp_breakdown_text(const ljp_result *r, const char *indent)
 	free(o);
 	return sb_take(&b);
 }
+
+int ljp_pair_mV(const sol_state *pip, const sol_state *bath, int act, double t_C,
+		double *ljp_mV, double *lo_mV, double *hi_mV, char *err)
+{
+	ljp_result r;
+	if (ljp_compute(NULL, pip, bath, act, t_C, LJP_BIT(LJP_HENDERSON), NULL, NULL, &r, err))
+		return -1;
+	*ljp_mV = r.ljp_mV;
+	if (lo_mV)
+		*lo_mV = r.lo_mV;
+	if (hi_mV)
+		*hi_mV = r.hi_mV;
+	ljp_free(&r);
+	return 0;
+}

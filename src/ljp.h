@@ -128,6 +128,14 @@ int ljp_compute(const refdb *ref, const sol_state *pip, const sol_state *bath, i
 		ljp_result *r, char *err);
 void ljp_free(ljp_result *r);
 
+/* The Henderson LJP of a pair with its range from the mobility
+ * uncertainties (ljp_compute with the Henderson model alone), mV, bath
+ * relative to pipette; lo_mV / hi_mV may be NULL.  The one way solutions
+ * become a junction for `correct for`, `erev corrected`, `review`, sweeps
+ * and NWB records.  -1 with err as ljp_compute. */
+int ljp_pair_mV(const sol_state *pip, const sol_state *bath, int act, double t_C,
+		double *ljp_mV, double *lo_mV, double *hi_mV, char *err);
+
 /* The ranked breakdown as text: the ions whose |share| is at least
  * LJP_RANK_MIN_FRAC of the largest (at most LJP_RANK_MAX lines), largest
  * first, each with a bar scaled to its share (right of the axis for

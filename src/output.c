@@ -3,9 +3,21 @@
  */
 #include "output.h"
 
+#include <errno.h>
 #include <math.h>
 #include <stdarg.h>
 #include <string.h>
+
+int out_failed(out *o)
+{
+	errno = 0;
+	if (fflush(o->fp) != 0 || ferror(o->fp)) {
+		if (!o->werrno)
+			o->werrno = errno ? errno : EIO;
+		return 1;
+	}
+	return 0;
+}
 
 void out_printf(out *o, const char *fmt, ...)
 {
@@ -88,7 +100,9 @@ void out_json_string(FILE *fp, const char *s)
 
 void out_error(out *o, const char *file, int line, const char *msg)
 {
-	if (o->json) {
+	/* when the results cannot be written, neither can a JSON error: it
+	 * goes to the error stream as text */
+	if (o->json && !o->werrno) {
 		fputs("{\"error\":", o->fp);
 		out_json_string(o->fp, msg);
 		if (file) {
@@ -131,8 +145,7 @@ void jw_end(jw *w)
 {
 	while (w->depth > 0)
 		jw_close(w);
-	fputs("}\n", w->o->fp);
-	fflush(w->o->fp);
+	fputs("}\n", w->o->fp); /* the line loop flushes after each command (out_failed) */
 }
 
 void jw_str(jw *w, const char *key, const char *val)

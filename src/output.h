@@ -13,7 +13,14 @@ typedef struct out {
 	FILE *errfp;    /* where human error messages go (stderr) */
 	int json;       /* 1: results and errors as JSON lines on fp */
 	int utf8;       /* 1: the terminal takes UTF-8 (plots, micro sign) */
+	const char *name; /* fp's name for messages; NULL: "standard output" */
+	int werrno;     /* errno of the first failed write, set by out_failed */
 } out;
+
+/* 1 when a write to o->fp has failed (it is flushed first: a full disk,
+ * a closed pipe, /dev/full); o->werrno then holds the cause.  The line
+ * loop turns it into a failed command and main into exit status 1. */
+int out_failed(out *o);
 
 /* Human text; nothing is printed in JSON mode. */
 void out_printf(out *o, const char *fmt, ...) __attribute__((format(printf, 2, 3)));

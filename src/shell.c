@@ -46,17 +46,17 @@ static const char *candidate(int i)
 		return i < n ? t[i].name : NULL;
 	}
 	case COMPL_COMPOUND:
-		n = refdb_ncompounds(c->ref);
+		n = refdb_ncompounds(c->ses->ref);
 		if (i < n)
-			return refdb_compound_at(c->ref, i)->name;
+			return refdb_compound_at(c->ses->ref, i)->name;
 		i -= n;
-		return i < refdb_naliases(c->ref) ? refdb_alias_at(c->ref, i) : NULL;
+		return i < refdb_naliases(c->ses->ref) ? refdb_alias_at(c->ses->ref, i) : NULL;
 	case COMPL_ION:
-		return i < refdb_nions(c->ref) ? refdb_ion_at(c->ref, i)->symbol : NULL;
+		return i < refdb_nions(c->ses->ref) ? refdb_ion_at(c->ses->ref, i)->symbol : NULL;
 	case COMPL_SOLUTION:
-		if (i < c->ws.n)
-			return c->ws.sol[i]->name;
-		i -= c->ws.n;
+		if (i < c->ses->ws.n)
+			return c->ses->ws.sol[i]->name;
+		i -= c->ses->ws.n;
 		return i < nsaved ? saved_names[i] : NULL;
 	case COMPL_SAVED:
 		return i < nsaved ? saved_names[i] : NULL;
@@ -79,8 +79,8 @@ static char *generator(const char *text, int state)
 			continue;
 		if (!strchr(s, ' '))
 			return im_xstrdup(s);
-		if (want == COMPL_COMPOUND && refdb_compound(sh_ctx->ref, s) &&
-		    strcmp(refdb_compound(sh_ctx->ref, s)->name, s) == 0) {
+		if (want == COMPL_COMPOUND && refdb_compound(sh_ctx->ses->ref, s) &&
+		    strcmp(refdb_compound(sh_ctx->ses->ref, s)->name, s) == 0) {
 			/* a canonical name with a space completes quoted; aliases
 			 * with spaces are left out (too many near-duplicates) */
 			char *q = im_xmalloc(strlen(s) + 3);
@@ -95,7 +95,7 @@ static void fetch_saved(void)
 {
 	char err[IM_ERRLEN];
 	int failed;
-	struct userdb *u = ctx_userdb(sh_ctx, 0, err, &failed);
+	struct userdb *u = ses_userdb(sh_ctx->ses, 0, err, &failed);
 	for (int i = 0; i < nsaved; i++)
 		free(saved_names[i]);
 	free(saved_names);
@@ -154,9 +154,45 @@ static void make_parent(const char *path)
 		}
 }
 
+/* The readline reader of cmd_loop: a prompt naming the current
+ * solution and the temperature, history kept in history_path. */
+typedef struct rl_reader {
+	im_ctx *ctx;
+	const char *history_path;
+	char *line;
+} rl_reader;
+
+static int rl_next(void *arg, char **line, size_t *len)
+{
+	rl_reader *r = arg;
+	char prompt[128];
+	solution *s = ws_current(&r->ctx->ses->ws);
+	fflush(r->ctx->out->fp);
+	free(r->line);
+	snprintf(prompt, sizeof prompt, "ionmix [%s, %.1f C]> ", s ? s->name : "no solution",
+		 r->ctx->ses->temp_C);
+	r->line = readline(prompt);
+	if (!r->line)
+		return 0;
+	if (r->line[strspn(r->line, " \t")] != '\0') {
+		add_history(r->line);
+		if (r->history_path) {
+			make_parent(r->history_path);
+			if (append_history(1, r->history_path) != 0)
+				write_history(r->history_path);
+		}
+	}
+	*line = r->line;
+	*len = strlen(r->line);
+	return 1;
+}
+
 int shell_run(im_ctx *ctx, const char *history_path)
 {
-	char *line, prompt[128], err[IM_ERRLEN];
+	char err[IM_ERRLEN];
+	int line;
+	rl_reader rr = {ctx, history_path, NULL};
+	cmd_reader rd = {rl_next, &rr};
 	sh_ctx = ctx;
 	rl_readline_name = "ionmix";
 	rl_attempted_completion_function = complete;
@@ -165,32 +201,10 @@ int shell_run(im_ctx *ctx, const char *history_path)
 	stifle_history(2000);
 	if (history_path)
 		read_history(history_path);
-	out_printf(ctx->out, "ionmix: type `help` for the commands, Ctrl-D to leave\n");
-	for (;;) {
-		solution *s = ws_current(&ctx->ws);
-		snprintf(prompt, sizeof prompt, "ionmix [%s, %.1f C]> ", s ? s->name : "no solution",
-			 ctx->temp_C);
-		line = readline(prompt);
-		if (!line)
-			break;
-		if (line[strspn(line, " \t")] != '\0') {
-			add_history(line);
-			if (history_path) {
-				make_parent(history_path);
-				if (append_history(1, history_path) != 0)
-					write_history(history_path);
-			}
-		}
-		if (strcmp(line, "quit") == 0 || strcmp(line, "exit") == 0) {
-			free(line);
-			break;
-		}
-		ctx->errfile[0] = '\0';
-		if (cmd_exec(ctx, line, err))
-			out_error(ctx->out, ctx->errfile[0] ? ctx->errfile : NULL, ctx->errline, err);
-		fflush(ctx->out->fp);
-		free(line);
-	}
+	out_printf(ctx->out, "ionmix: type `help` for the commands, `quit` or Ctrl-D to leave\n");
+	if (cmd_loop(ctx, &rd, &line, err)) /* only when the output fails */
+		out_error(ctx->out, NULL, 0, err);
+	free(rr.line);
 	if (history_path)
 		history_truncate_file(history_path, 2000);
 	for (int i = 0; i < nsaved; i++)

@@ -276,6 +276,16 @@ const sol_species *sol_state_find(const sol_state *st, const rd_ion *ion)
 	return NULL;
 }
 
+double sol_state_free_mM(const sol_state *st, const char *metal)
+{
+	if (!st->chem)
+		return NAN;
+	for (int m = 0; m < st->chem->nmetals; m++)
+		if (strcmp(st->chem->metals[m].symbol, metal) == 0)
+			return st->chem->metals[m].free_mM;
+	return 0;
+}
+
 void ws_init(workspace *w)
 {
 	memset(w, 0, sizeof *w);

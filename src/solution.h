@@ -114,6 +114,11 @@ void sol_spec_cond(const solution *s, const sol_env *env, spec_cond *cond);
 void sol_state_free(sol_state *st);
 /* The species entry for ion, or NULL when the solution lacks it. */
 const sol_species *sol_state_find(const sol_state *st, const rd_ion *ion);
+/* The free concentration of a metal (its symbol, "Ca2+"), mM, after
+ * speciation: 0 when the solution holds none of it, NAN when the state
+ * was computed without speciation (nothing known about binding).  The one
+ * meaning of "absent" for every caller. */
+double sol_state_free_mM(const sol_state *st, const char *metal);
 
 void ws_init(workspace *w);
 void ws_free(workspace *w);

@@ -157,6 +157,22 @@ void units_fmt_sig(char *buf, size_t n, double v, int sig)
 	}
 }
 
+void units_fmt_num(char *buf, size_t n, double v, int digits)
+{
+	int dec;
+	if (digits > 0) {
+		units_fmt_sig(buf, n, v, digits);
+	} else if (!isfinite(v)) {
+		snprintf(buf, n, "-");
+	} else {
+		dec = -1 - digits;
+		snprintf(buf, n, "%.*f", dec, v);
+	}
+	/* a negative value that rounds to zero prints as zero */
+	if (buf[0] == '-' && buf[1] != '\0' && strspn(buf + 1, "0.") == strlen(buf + 1))
+		memmove(buf, buf + 1, strlen(buf));
+}
+
 void units_fmt_conc(char *buf, size_t n, double mM, int utf8)
 {
 	char num[48];
@@ -165,6 +181,9 @@ void units_fmt_conc(char *buf, size_t n, double mM, int utf8)
 	if (fabs(mM) >= 1000) {
 		v = mM / 1000;
 		u = "M";
+	} else if (fabs(mM) < 1e-7 && mM != 0) {
+		v = mM * 1e9;
+		u = "pM";
 	} else if (fabs(mM) < 1e-4 && mM != 0) {
 		v = mM * 1e6;
 		u = "nM";

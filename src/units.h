@@ -29,9 +29,23 @@ int units_is_unit(const char *s);
 /* Volume: num with optional unit mL (default), L, uL, µL.  > 0, <= 100 L. */
 int units_volume_mL(const char *num, const char *unit, double *mL, char *err);
 
-/* Format a concentration given in mM with a fitting unit (M, mM, uM or nM;
- * µM when utf8), 4 significant digits: "140 mM", "98.2 nM". */
+/* Format a concentration given in mM with a fitting unit (M, mM, uM, nM
+ * or pM; µM when utf8), 4 significant digits: "140 mM", "98.2 nM".  The
+ * unit switches at the same places for every quantity: >= 1 M, >= 0.1 mM,
+ * >= 0.1 uM, >= 0.1 nM, else pM. */
 void units_fmt_conc(char *buf, size_t n, double mM, int utf8);
+
+/* Digits a number deserves, for units_fmt_num: UNITS_SIG(n) significant
+ * digits (a concentration, a mass), UNITS_DEC(n) decimals after the point
+ * (a potential to 0.1 mV, a pH to 0.01). */
+#define UNITS_SIG(n) (n)
+#define UNITS_DEC(n) (-1 - (n))
+
+/* The one number formatter: v with `digits` (UNITS_SIG or UNITS_DEC), a
+ * dot whatever the locale, no exponent for ordinary magnitudes, never
+ * "-0" or "-0.00" (a value that rounds to zero prints unsigned), "-" for
+ * a value that is not finite. */
+void units_fmt_num(char *buf, size_t n, double v, int digits);
 
 /* Format v with `sig` significant digits, no exponent for ordinary
  * magnitudes (1e-4 to 1e7), trailing zeros after the point dropped. */

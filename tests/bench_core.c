@@ -72,7 +72,7 @@ int main(int argc, char **argv)
 	}
 	o.fp = fopen("/dev/null", "w");
 	ctx_init(&ctx, db, &o);
-	ctx.db_path = "/nonexistent/bench.db";
+	ctx.ses->db_path = "/nonexistent/bench.db";
 	if (ctx_load_chemistry(&ctx, err)) {
 		fprintf(stderr, "%s\n", err);
 		return 1;

@@ -132,15 +132,15 @@ static int demo_pair(double *acc)
 	o.fp = open_memstream(&buf, &len);
 	o.errfp = o.fp;
 	ctx_init(&ctx, db, &o);
-	ctx.db_path = "/nonexistent/ionmix-bench.db";
+	ctx.ses->db_path = "/nonexistent/ionmix-bench.db";
 	if (ctx_load_chemistry(&ctx, err))
 		goto fail;
 	for (size_t i = 0; i < sizeof lines / sizeof *lines; i++)
 		if (cmd_exec(&ctx, lines[i], err))
 			goto fail;
-	if (sol_compute(ws_find(&ctx.ws, "k-pipette"), ctx_env(&ctx), &a, err))
+	if (sol_compute(ws_find(&ctx.ses->ws, "k-pipette"), ses_env(ctx.ses), &a, err))
 		goto fail;
-	if (sol_compute(ws_find(&ctx.ws, "bath"), ctx_env(&ctx), &b, err))
+	if (sol_compute(ws_find(&ctx.ses->ws, "bath"), ses_env(ctx.ses), &b, err))
 		goto fail;
 	for (int k = 0; k < 200; k++) {
 		double t0 = now_s(), t;

@@ -58,7 +58,7 @@ int main(void)
 	}
 	o.fp = fopen("/dev/null", "w");
 	ctx_init(&ctx, db, &o);
-	ctx.db_path = "/nonexistent/bench.db";
+	ctx.ses->db_path = "/nonexistent/bench.db";
 	if (ctx_load_chemistry(&ctx, err)) {
 		fprintf(stderr, "%s\n", err);
 		return 1;

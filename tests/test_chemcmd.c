@@ -39,7 +39,7 @@ static int fresh(void **state)
 	o.fp = open_memstream(&buf, &len);
 	o.errfp = stderr;
 	ctx_init(&ctx, db, &o);
-	ctx.db_path = "/nonexistent/ionmix-test.db";
+	ctx.ses->db_path = "/nonexistent/ionmix-test.db";
 	return ctx_load_chemistry(&ctx, err);
 }
 
@@ -64,7 +64,7 @@ static void ok(const char *line)
 static void forward(sol_state *st)
 {
 	char err[IM_ERRLEN];
-	if (sol_compute(ws_current(&ctx.ws), ctx_env(&ctx), st, err))
+	if (sol_compute(ws_current(&ctx.ses->ws), ses_env(ctx.ses), st, err))
 		fail_msg("compute: %s", err);
 }
 
@@ -79,7 +79,7 @@ static double free_metal(const sol_state *st, const char *m)
 
 static double amount(const char *compound)
 {
-	sol_item *it = sol_find(ws_current(&ctx.ws), refdb_compound(db, compound));
+	sol_item *it = sol_find(ws_current(&ctx.ses->ws), refdb_compound(db, compound));
 	return it ? it->mM : 0;
 }
 
@@ -181,7 +181,7 @@ static void bicarbonate_bath(void **state)
 	assert_true(st.pH > 7.3 && st.pH < 7.6);
 	sol_state_free(&st);
 	ok("gas off");
-	assert_close(ws_current(&ctx.ws)->co2_frac, 0, 0, 0);
+	assert_close(ws_current(&ctx.ses->ws)->co2_frac, 0, 0, 0);
 }
 
 /* issue 10: `free Ca 100 nM` with 0.3 mM GTP present (almost every
@@ -310,12 +310,12 @@ static void refusals_change_nothing(void **state)
 	(void)state;
 	ok("solution h; add HEPES 10; add KCl 140");
 	for (size_t i = 0; i < IM_COUNT(bad); i++) {
-		ws_copy(&before, &ctx.ws);
+		ws_copy(&before, &ctx.ses->ws);
 		if (cmd_exec(&ctx, bad[i], err) == 0)
 			fail_msg("'%s' succeeded", bad[i]);
 		assert_null(strchr(err, '\n'));
 		for (int k = 0; k < before.n; k++)
-			if (!sol_equal(before.sol[k], ctx.ws.sol[k]))
+			if (!sol_equal(before.sol[k], ctx.ses->ws.sol[k]))
 				fail_msg("'%s' changed the workspace", bad[i]);
 		ws_free(&before);
 	}
@@ -332,12 +332,12 @@ static void recipe_replays_titration(void **state)
 	   "free Ca 50 nM");
 	snprintf(line, sizeof line, "export k %s", path);
 	ok(line);
-	ws_copy(&before, &ctx.ws);
+	ws_copy(&before, &ctx.ses->ws);
 	ok("add NaCl 20; solution other");
 	snprintf(line, sizeof line, "run %s", path);
 	ok(line);
 	{
-		solution *a = ws_find(&before, "k"), *b = ws_find(&ctx.ws, "k");
+		solution *a = ws_find(&before, "k"), *b = ws_find(&ctx.ses->ws, "k");
 		assert_int_equal(a->n, b->n);
 		for (int i = 0; i < a->n; i++) {
 			assert_ptr_equal(a->items[i].c, b->items[i].c);

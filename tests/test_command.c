@@ -8,6 +8,7 @@
 
 #include "command.h"
 #include "common.h"
+#include "render.h"
 
 static refdb *db;
 static im_ctx ctx;
@@ -43,7 +44,7 @@ static int fresh(void **state)
 	o.errfp = stderr;
 	o.json = 0;
 	ctx_init(&ctx, db, &o);
-	ctx.db_path = dbfile;
+	ctx.ses->db_path = dbfile;
 	{
 		char err[IM_ERRLEN];
 		if (ctx_load_chemistry(&ctx, err))
@@ -81,16 +82,16 @@ static void compose(void **state)
 	(void)state;
 	ok("solution bath; add NaCl 140; add KCl 5 mM; add CaCl2.2H2O 2");
 	ok("add NaCl 10");
-	assert_close(sol_find(ws_current(&ctx.ws), refdb_compound(db, "NaCl"))->mM, 150, 0, 0);
+	assert_close(sol_find(ws_current(&ctx.ses->ws), refdb_compound(db, "NaCl"))->mM, 150, 0, 0);
 	ok("set NaCl 0.14 M");
-	assert_close(sol_find(ws_current(&ctx.ws), refdb_compound(db, "NaCl"))->mM, 140, 1e-12, 0);
+	assert_close(sol_find(ws_current(&ctx.ses->ws), refdb_compound(db, "NaCl"))->mM, 140, 1e-12, 0);
 	ok("remove KCl");
-	assert_int_equal(ws_current(&ctx.ws)->n, 2);
+	assert_int_equal(ws_current(&ctx.ses->ws)->n, 2);
 	ok("solution copy from bath");
-	assert_string_equal(ws_current(&ctx.ws)->name, "copy");
-	assert_int_equal(ws_current(&ctx.ws)->n, 2);
+	assert_string_equal(ws_current(&ctx.ses->ws)->name, "copy");
+	assert_int_equal(ws_current(&ctx.ses->ws)->n, 2);
 	ok("temp 37");
-	assert_close(ctx.temp_C, 37, 0, 0);
+	assert_close(ctx.ses->temp_C, 37, 0, 0);
 	ok("# a comment line");
 	ok("");
 	ok("show; show bath; nernst copy bath; nernst copy bath activities; weigh 250");
@@ -116,22 +117,22 @@ static void bad_input_leaves_workspace(void **state)
 	(void)state;
 	ok("solution bath; add NaCl 140; add KCl 5");
 	for (size_t i = 0; i < IM_COUNT(bad); i++) {
-		ws_copy(&before, &ctx.ws);
+		ws_copy(&before, &ctx.ses->ws);
 		err[0] = '\0';
 		if (run(bad[i], err) == 0)
 			fail_msg("'%s' succeeded", bad[i]);
 		assert_true(strlen(err) > 0);
 		assert_null(strchr(err, '\n'));
-		assert_int_equal(before.n, ctx.ws.n);
+		assert_int_equal(before.n, ctx.ses->ws.n);
 		for (int k = 0; k < before.n; k++)
-			if (!sol_equal(before.sol[k], ctx.ws.sol[k]))
+			if (!sol_equal(before.sol[k], ctx.ses->ws.sol[k]))
 				fail_msg("'%s' changed the workspace", bad[i]);
-		assert_close(ctx.temp_C, 25, 0, 0);
+		assert_close(ctx.ses->temp_C, 25, 0, 0);
 		ws_free(&before);
 	}
 	/* in "a; b" a failing b leaves a's change standing, as two lines would */
 	assert_int_equal(run("add NaCl 10; add Bogus 1", err), -1);
-	assert_close(sol_find(ws_current(&ctx.ws), refdb_compound(db, "NaCl"))->mM, 150, 0, 0);
+	assert_close(sol_find(ws_current(&ctx.ses->ws), refdb_compound(db, "NaCl"))->mM, 150, 0, 0);
 	/* messages name the offending token */
 	run("add NaCll 10", err);
 	assert_non_null(strstr(err, "NaCll"));
@@ -173,8 +174,8 @@ static void script_stops_at_bad_line(void **state)
 	assert_string_equal(ctx.errfile, p);
 	assert_int_equal(ctx.errline, 4);
 	/* lines before the bad one stand; the one after never ran */
-	assert_non_null(ws_find(&ctx.ws, "bath"));
-	assert_int_equal(ws_find(&ctx.ws, "bath")->n, 1);
+	assert_non_null(ws_find(&ctx.ses->ws, "bath"));
+	assert_int_equal(ws_find(&ctx.ses->ws, "bath")->n, 1);
 }
 
 static void script_with_bom(void **state)
@@ -188,7 +189,7 @@ static void script_with_bom(void **state)
 	fclose(f);
 	snprintf(line, sizeof line, "run %s", p);
 	ok(line);
-	assert_int_equal(ws_find(&ctx.ws, "bom")->n, 1);
+	assert_int_equal(ws_find(&ctx.ses->ws, "bom")->n, 1);
 	ok("compounds salt");
 	{
 		char err[IM_ERRLEN];
@@ -207,11 +208,11 @@ static void export_then_run(void **state)
 	snprintf(p, sizeof p, "%s/pip.ionmix", dir);
 	snprintf(line, sizeof line, "export pip %s", p);
 	ok(line);
-	ws_copy(&before, &ctx.ws);
+	ws_copy(&before, &ctx.ses->ws);
 	ok("set KCl 50; add NaCl 3; solution other");
 	snprintf(line, sizeof line, "run %s", p);
 	ok(line);
-	assert_true(sol_equal(ws_find(&before, "pip"), ws_find(&ctx.ws, "pip")));
+	assert_true(sol_equal(ws_find(&before, "pip"), ws_find(&ctx.ses->ws, "pip")));
 	ws_free(&before);
 }
 
@@ -220,9 +221,9 @@ static void save_load(void **state)
 	workspace before;
 	(void)state;
 	ok("solution bath; add NaCl 140; add HEPES 10; save");
-	ws_copy(&before, &ctx.ws);
+	ws_copy(&before, &ctx.ses->ws);
 	ok("set NaCl 1; load bath");
-	assert_true(sol_equal(ws_find(&before, "bath"), ws_find(&ctx.ws, "bath")));
+	assert_true(sol_equal(ws_find(&before, "bath"), ws_find(&ctx.ses->ws, "bath")));
 	ok("list; delete bath");
 	ws_free(&before);
 }
@@ -244,6 +245,100 @@ static void json_show(void **state)
 	o.json = 0;
 }
 
+/* One description, two forms: the text and the JSON of a small result
+ * hold the same fields, the numbers with the digits the field asks for. */
+static void render_both(void **state)
+{
+	for (int json = 0; json < 2; json++) {
+		render *r;
+		o.json = json;
+		r = render_new(&o);
+		render_str(r, "solution", NULL, "pip");
+		render_text(r, "pip at 25.0 C");
+		render_num(r, "ionic_strength_mM", "ionic strength", "mM", 148.0987, UNITS_DEC(2));
+		render_num(r, "net_charge_mEq_L", "net charge", "mEq/L", -0.001, UNITS_DEC(2));
+		render_table(r, "ions", NULL);
+		render_row(r);
+		render_str(r, "ion", "ion", "K+");
+		render_charge(r, "z", "z", 1);
+		render_conc(r, "mM", "free", 140);
+		render_row(r);
+		render_str(r, "ion", "ion", "Ca2+");
+		render_charge(r, "z", "z", 2);
+		render_conc(r, "mM", "free", 5e-8);
+		render_table_end(r);
+		render_note(r, "a note");
+		render_done(r);
+		fflush(o.fp);
+	}
+	o.json = 0;
+	(void)state;
+	assert_string_equal(buf,
+			    "pip at 25.0 C\n"
+			    "  ionic strength  148.10 mM\n"
+			    "  net charge      0.00 mEq/L\n"
+			    "  ion    z    free\n"
+			    "  K+    +1  140 mM\n"
+			    "  Ca2+  +2   50 pM\n"
+			    "  note: a note\n"
+			    "{\"solution\":\"pip\",\"ionic_strength_mM\":148.0987,"
+			    "\"net_charge_mEq_L\":-0.001,\"ions\":[{\"ion\":\"K+\",\"z\":1,"
+			    "\"mM\":140},{\"ion\":\"Ca2+\",\"z\":2,\"mM\":5e-08}],"
+			    "\"notes\":[\"a note\"]}\n");
+}
+
+/* A message of any length reaches the output whole (no fixed buffer). */
+static void render_long_note(void **state)
+{
+	char *long_note = malloc(3001);
+	render *r;
+	(void)state;
+	memset(long_note, 'x', 3000);
+	long_note[3000] = '\0';
+	r = render_new(&o);
+	render_note(r, "%s", long_note);
+	render_done(r);
+	fflush(o.fp);
+	assert_int_equal(strlen(buf), strlen("  note: ") + 3000 + 1);
+	free(long_note);
+}
+
+/* The line loop: quit stops a script there; run, help and quit are
+ * commands of the table; a script run from the shell still stops at its
+ * first error while the shell goes on. */
+static void loop_rules(void **state)
+{
+	char p[160], err[IM_ERRLEN];
+	FILE *fp;
+	int line;
+	(void)state;
+	assert_non_null(cmd_lookup("run"));
+	assert_non_null(cmd_lookup("help"));
+	assert_non_null(cmd_lookup("quit"));
+	snprintf(p, sizeof p, "%s/q.ionmix", dir);
+	fp = fopen(p, "w");
+	fputs("solution q\r\nadd NaCl 1\nquit\nadd KCl 1\n", fp);
+	fclose(fp);
+	fp = fopen(p, "r");
+	assert_int_equal(cmd_run_stream(&ctx, fp, &line, err), 0);
+	fclose(fp);
+	assert_int_equal(line, 3);
+	assert_int_equal(ws_find(&ctx.ses->ws, "q")->n, 1);
+	assert_true(ctx.quit);
+	ctx.quit = 0;
+	/* interactive: an error is reported and the loop goes on */
+	fp = fopen(p, "w");
+	fputs("add Nope 1\nadd KCl 2\n", fp);
+	fclose(fp);
+	fp = fopen(p, "r");
+	ctx.interactive = 1;
+	assert_int_equal(cmd_run_stream(&ctx, fp, &line, err), 0);
+	ctx.interactive = 0;
+	fclose(fp);
+	assert_int_equal(line, 2);
+	assert_non_null(sol_find(ws_find(&ctx.ses->ws, "q"), refdb_compound(db, "KCl")));
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -255,6 +350,9 @@ int main(void)
 		cmocka_unit_test_setup_teardown(export_then_run, fresh, done),
 		cmocka_unit_test_setup_teardown(save_load, fresh, done),
 		cmocka_unit_test_setup_teardown(json_show, fresh, done),
+		cmocka_unit_test_setup_teardown(render_both, fresh, done),
+		cmocka_unit_test_setup_teardown(render_long_note, fresh, done),
+		cmocka_unit_test_setup_teardown(loop_rules, fresh, done),
 	};
 	return cmocka_run_group_tests(tests, setup, teardown);
 }

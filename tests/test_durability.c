@@ -625,7 +625,7 @@ static void put_copy(im_ctx *ctx, const char *name, int g, int nitems)
 	make_gen(&s, name, g, nitems);
 	sol_copy(t, &s, name);
 	sol_free(&s);
-	ws_put(&ctx->ws, t);
+	ws_put(&ctx->ses->ws, t);
 }
 
 /* The child: with the earlier content in place ("keep" saved, its recipe
@@ -651,9 +651,9 @@ static void full_disk_child(const char *sub, long limit_extra, const char *fille
 	snprintf(wal, sizeof wal, "%s-wal", path);
 	path_in(recipe, sizeof recipe, sub, "keep.ionmix");
 	ctx_init(&ctx, db, &o);
-	ctx.db_path = path;
+	ctx.ses->db_path = path;
 	rep.setup_rc = udb_open(path, 1, &u, rep.setup_err);
-	ctx.user = u;
+	ctx.ses->user = u;
 	if (rep.setup_rc == 0) {
 		make_gen(&s, "keep", 7, NITEMS);
 		rep.setup_rc = udb_save(u, &s, rep.setup_err);

@@ -43,7 +43,7 @@ static int fresh(void **state)
 	o.fp = open_memstream(&buf, &len);
 	o.errfp = stderr;
 	ctx_init(&ctx, db, &o);
-	ctx.db_path = "/nonexistent/ionmix-test.db";
+	ctx.ses->db_path = "/nonexistent/ionmix-test.db";
 	return ctx_load_chemistry(&ctx, err);
 }
 
@@ -73,10 +73,10 @@ static void run_all(const char *const *lines)
 static void state_of(const char *name, sol_state *st)
 {
 	char err[IM_ERRLEN];
-	solution *s = ws_find(&ctx.ws, name);
+	solution *s = ws_find(&ctx.ses->ws, name);
 	if (!s)
 		fail_msg("no solution %s", name);
-	if (sol_compute(s, ctx_env(&ctx), st, err))
+	if (sol_compute(s, ses_env(ctx.ses), st, err))
 		fail_msg("compute %s: %s", name, err);
 }
 

@@ -1,7 +1,7 @@
 /* test_malformed.c - every malformed command line of tests/malformed/
  * (lines.txt, one case a line, and the *.bin files: control bytes, NUL
  * bytes, invalid UTF-8, over-long lines) fails, both through cmd_exec and
- * as a script line through core_run_stream, with a one-line non-empty
+ * as a script line through cmd_run_stream, with a one-line non-empty
  * message, and leaves the workspace (solutions, current one, temperature,
  * activity model) exactly as it was; nothing is written to the database
  * directory or the working directory.  Run from the repository root. */
@@ -13,7 +13,7 @@
 #include <sys/stat.h>
 #include <unistd.h>
 
-#include "cmd_core.h"
+#include "command.h"
 #include "command.h"
 #include "common.h"
 
@@ -184,10 +184,10 @@ static int check_case(const mcase *c, int as_script)
 	o.fp = open_memstream(&text_out, &outn);
 	o.errfp = o.fp;
 	ctx_init(&ctx, db, &o);
-	ctx.db_path = dbfile;
+	ctx.ses->db_path = dbfile;
 	if (cmd_exec(&ctx, setup_line, err) != 0)
 		fail_msg("setup failed: %s", err);
-	ws_copy(&before, &ctx.ws);
+	ws_copy(&before, &ctx.ses->ws);
 	memset(err, 0, sizeof err);
 	if (as_script) {
 		/* the bytes as line 1 of a script, with its line end */
@@ -197,7 +197,7 @@ static int check_case(const mcase *c, int as_script)
 		text[c->n] = '\n';
 		fp = fmemopen(text, c->n + 1, "r");
 		assert_non_null(fp);
-		rc = core_run_stream(&ctx, fp, "case", &line, err);
+		rc = cmd_run_stream(&ctx, fp, &line, err);
 		fclose(fp);
 		free(text);
 	} else {
@@ -217,8 +217,8 @@ static int check_case(const mcase *c, int as_script)
 		print_error("%s: failure reported at script line %d, not 1\n", c->name, line);
 		bad++;
 	}
-	if (!same_workspace(&before, &ctx.ws) || ctx.temp_C != 25.0 ||
-	    ctx.model != ACT_DAVIES) {
+	if (!same_workspace(&before, &ctx.ses->ws) || ctx.ses->temp_C != 25.0 ||
+	    ctx.ses->model != ACT_DAVIES) {
 		print_error("%s [%s] changed the workspace: %s\n", c->name,
 			    as_script ? "script" : "cmd_exec", shown);
 		bad++;

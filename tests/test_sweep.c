@@ -42,7 +42,7 @@ static int fresh(void **state)
 	o.fp = open_memstream(&buf, &len);
 	o.errfp = stderr;
 	ctx_init(&ctx, db, &o);
-	ctx.db_path = "/nonexistent/ionmix-test.db";
+	ctx.ses->db_path = "/nonexistent/ionmix-test.db";
 	return ctx_load_chemistry(&ctx, err);
 }
 
@@ -77,7 +77,7 @@ static double shown_free_ca(const char *name)
 	char err[IM_ERRLEN];
 	sol_state st;
 	double v = 0;
-	if (sol_compute(ws_find(&ctx.ws, name), ctx_env(&ctx), &st, err))
+	if (sol_compute(ws_find(&ctx.ses->ws, name), ses_env(ctx.ses), &st, err))
 		fail_msg("compute: %s", err);
 	for (int i = 0; i < st.chem->nmetals; i++)
 		if (strcmp(st.chem->metals[i].symbol, "Ca2+") == 0)
@@ -97,7 +97,7 @@ static void free_ca_egta(void **state)
 	sweep_result r;
 	(void)state;
 	egta_pipette();
-	solution *s = ws_find(&ctx.ws, "egta");
+	solution *s = ws_find(&ctx.ses->ws, "egta");
 	solution before;
 	sol_copy(&before, s, "egta");
 	for (int keep = 0; keep <= 1; keep++) {
@@ -112,7 +112,7 @@ static void free_ca_egta(void **state)
 		sp.qty = SWQ_FREE;
 		sp.ion = refdb_ion(db, "Ca2+");
 		sp.keep_pH = keep;
-		if (sweep_run(&sp, ctx_env(&ctx), &r, err))
+		if (sweep_run(&sp, ses_env(ctx.ses), &r, err))
 			fail_msg("sweep: %s", err);
 		assert_int_equal(r.n, 10);
 		assert_int_equal(r.nfail, 0);
@@ -172,9 +172,9 @@ static void ljp_scales_with_T(void **state)
 	sp.to = 37;
 	sp.npts = 28;
 	sp.qty = SWQ_LJP;
-	sp.inside = ws_find(&ctx.ws, "pip");
-	sp.outside = ws_find(&ctx.ws, "bath");
-	if (sweep_run(&sp, ctx_env(&ctx), &r, err))
+	sp.inside = ws_find(&ctx.ses->ws, "pip");
+	sp.outside = ws_find(&ctx.ses->ws, "bath");
+	if (sweep_run(&sp, ses_env(ctx.ses), &r, err))
 		fail_msg("sweep: %s", err);
 	assert_int_equal(r.nfail, 0);
 	double k0 = r.y[0] / (r.x[0] + 273.15);
@@ -183,7 +183,7 @@ static void ljp_scales_with_T(void **state)
 		assert_close(r.y[i] / (r.x[i] + 273.15), k0, 1e-5, 0);
 	assert_close(r.y[r.n - 1] / r.y[0], 310.15 / 283.15, 1e-5, 0);
 	/* the context's temperature is not touched */
-	assert_close(ctx.temp_C, 25, 0, 0);
+	assert_close(ctx.ses->temp_C, 25, 0, 0);
 	sweep_free(&r);
 }
 
@@ -200,15 +200,15 @@ static void nernst_closed_form(void **state)
 	memset(&sp, 0, sizeof sp);
 	sp.var = SWEEP_AMOUNT;
 	sp.compound = refdb_compound(db, "KCl");
-	sp.target = ws_find(&ctx.ws, "bath");
+	sp.target = ws_find(&ctx.ses->ws, "bath");
 	sp.from = 1;
 	sp.to = 50;
 	sp.npts = 8;
 	sp.qty = SWQ_NERNST;
 	sp.ion = refdb_ion(db, "K+");
-	sp.inside = ws_find(&ctx.ws, "pip");
+	sp.inside = ws_find(&ctx.ses->ws, "pip");
 	sp.outside = sp.target;
-	if (sweep_run(&sp, ctx_env(&ctx), &r, err))
+	if (sweep_run(&sp, ses_env(ctx.ses), &r, err))
 		fail_msg("sweep: %s", err);
 	double rtf = 8.314462618 * 303.15 / 96485.33212 * 1e3;
 	for (int i = 0; i < r.n; i++)
@@ -228,13 +228,13 @@ static void ionic_strength_closed_form(void **state)
 	memset(&sp, 0, sizeof sp);
 	sp.var = SWEEP_AMOUNT;
 	sp.compound = refdb_compound(db, "NaCl");
-	sp.target = ws_find(&ctx.ws, "salt");
+	sp.target = ws_find(&ctx.ses->ws, "salt");
 	sp.sol = sp.target;
 	sp.from = 0;
 	sp.to = 200;
 	sp.npts = 5;
 	sp.qty = SWQ_IONIC_STRENGTH;
-	if (sweep_run(&sp, ctx_env(&ctx), &r, err))
+	if (sweep_run(&sp, ses_env(ctx.ses), &r, err))
 		fail_msg("sweep: %s", err);
 	for (int i = 0; i < r.n; i++)
 		assert_close(r.y[i], r.x[i], 0, 2e-4);
@@ -253,13 +253,13 @@ static void bad_specs(void **state)
 	memset(&sp, 0, sizeof sp);
 	sp.var = SWEEP_AMOUNT;
 	sp.compound = refdb_compound(db, "NaCl");
-	sp.target = ws_find(&ctx.ws, "a");
+	sp.target = ws_find(&ctx.ses->ws, "a");
 	sp.sol = sp.target;
 	sp.qty = SWQ_PH;
 	sp.npts = 5;
 	sp.from = 3;
 	sp.to = 3;
-	assert_int_equal(sweep_run(&sp, ctx_env(&ctx), &r, err), -1);
+	assert_int_equal(sweep_run(&sp, ses_env(ctx.ses), &r, err), -1);
 	assert_non_null(strstr(err, "covers nothing"));
 	assert_null(r.x);
 	sp.to = 1;
@@ -274,7 +274,7 @@ static void bad_specs(void **state)
 	sp.qty = SWQ_LJP;   /* a pair quantity without its pair */
 	assert_int_equal(sweep_check(&sp, err), -1);
 	assert_non_null(strstr(err, "needs a pair"));
-	sp.inside = ws_find(&ctx.ws, "b");
+	sp.inside = ws_find(&ctx.ses->ws, "b");
 	sp.outside = sp.inside;   /* the pair does not hold the varied solution */
 	assert_int_equal(sweep_check(&sp, err), -1);
 	assert_non_null(strstr(err, "changes nothing"));
@@ -324,12 +324,12 @@ static void command_files(void **state)
 	assert_int_equal(cmd_exec(&ctx, line, err), -1);
 	assert_int_not_equal(stat(csv, &sb), 0);
 	solution before;
-	sol_copy(&before, ws_find(&ctx.ws, "egta"), "egta");
+	sol_copy(&before, ws_find(&ctx.ses->ws, "egta"), "egta");
 	snprintf(line, sizeof line, "sweep CaCl2 0 to 9 mM show free Ca points 10 "
 		 "svg %s csv %s", svg, csv);
 	ok(line);
-	assert_true(sol_equal(&before, ws_find(&ctx.ws, "egta")));
-	assert_close(ctx.temp_C, 22, 0, 0);
+	assert_true(sol_equal(&before, ws_find(&ctx.ses->ws, "egta")));
+	assert_close(ctx.ses->temp_C, 22, 0, 0);
 	assert_int_equal(stat(svg, &sb), 0);
 	assert_true(sb.st_size > 500);
 	FILE *fp = fopen(csv, "r");

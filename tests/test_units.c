@@ -90,11 +90,43 @@ static void formatting(void **state)
 	assert_string_equal(b, "1235");
 }
 
+/* The one number formatter (issue 12): digits by quantity, no exponent
+ * for ordinary values, never a signed zero, concentrations switching
+ * M/mM/uM/nM/pM at the same places. */
+static void one_formatter(void **state)
+{
+	char b[64];
+	(void)state;
+	units_fmt_num(b, sizeof b, 289.816, UNITS_DEC(0));
+	assert_string_equal(b, "290");
+	units_fmt_num(b, sizeof b, -0.001, UNITS_DEC(2));
+	assert_string_equal(b, "0.00");
+	units_fmt_num(b, sizeof b, -0.0, UNITS_DEC(1));
+	assert_string_equal(b, "0.0");
+	units_fmt_num(b, sizeof b, -85.6129, UNITS_DEC(1));
+	assert_string_equal(b, "-85.6");
+	units_fmt_num(b, sizeof b, 0.0347294, UNITS_SIG(3));
+	assert_string_equal(b, "0.0347");
+	units_fmt_num(b, sizeof b, 1.0 / 0.0, UNITS_SIG(3));
+	assert_string_equal(b, "-");
+	units_fmt_conc(b, sizeof b, 2.0, 0); /* not "2e+06 nM" */
+	assert_string_equal(b, "2 mM");
+	units_fmt_conc(b, sizeof b, 0.05, 0);
+	assert_string_equal(b, "50 uM");
+	units_fmt_conc(b, sizeof b, 5e-5, 0);
+	assert_string_equal(b, "50 nM");
+	units_fmt_conc(b, sizeof b, 5e-8, 0);
+	assert_string_equal(b, "50 pM");
+	units_fmt_conc(b, sizeof b, 1500, 0);
+	assert_string_equal(b, "1.5 M");
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(numbers), cmocka_unit_test(amounts),
 		cmocka_unit_test(volumes), cmocka_unit_test(formatting),
+		cmocka_unit_test(one_formatter),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }

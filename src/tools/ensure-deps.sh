@@ -20,6 +20,8 @@ if [ "$what" = test ]; then
 	[ -x "$py" ] && "$py" -c 'import scipy' 2>/dev/null || pkgs="$pkgs python3-scipy"
 	[ -x "$py" ] && "$py" -c 'import h5py' 2>/dev/null || pkgs="$pkgs python3-h5py"
 	command -v pdftotext >/dev/null 2>&1 || pkgs="$pkgs poppler-utils"
+	# tests/ref/check_schemas.py: the JSON contract of every command (schemas/)
+	[ -x "$py" ] && "$py" -c 'import jsonschema' 2>/dev/null || pkgs="$pkgs python3-jsonschema"
 	command -v mawk >/dev/null 2>&1 || pkgs="$pkgs mawk"
 	command -v xmllint >/dev/null 2>&1 || pkgs="$pkgs libxml2-utils"
 	# robustness: `make check-valgrind`, and the libFuzzer targets of

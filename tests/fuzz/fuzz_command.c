@@ -50,7 +50,7 @@ int LLVMFuzzerInitialize(int *argc, char ***argv)
 	snprintf(dbpath, sizeof dbpath, "%s/user.db", fz_dir);
 	ctx_init(&ctx, ref, &o);
 	FZ_CHECK(cmd_exec(&ctx, setup_lines, err) == 0, "setup: %s", err);
-	ws_copy(&base, &ctx.ws);
+	ws_copy(&base, &ctx.ses->ws);
 	ctx_free(&ctx);
 	fclose(null);
 	return 0;
@@ -68,9 +68,9 @@ static int same_workspace(const workspace *a, const workspace *b)
 
 static void check_amounts(const im_ctx *ctx)
 {
-	FZ_CHECK(ctx->temp_C >= 0 && ctx->temp_C <= 60, "temperature %g", ctx->temp_C);
-	for (int i = 0; i < ctx->ws.n; i++) {
-		const solution *s = ctx->ws.sol[i];
+	FZ_CHECK(ctx->ses->temp_C >= 0 && ctx->ses->temp_C <= 60, "temperature %g", ctx->ses->temp_C);
+	for (int i = 0; i < ctx->ses->ws.n; i++) {
+		const solution *s = ctx->ses->ws.sol[i];
 		for (int k = 0; k < s->n; k++) {
 			double mM = s->items[k].mM, st = s->items[k].stock_mM;
 			FZ_CHECK(isfinite(mM) && mM > 0 && mM <= UNITS_MAX_mM, "%s: %s at %g mM",
@@ -85,7 +85,7 @@ static void run_line(const char *line, size_t n, int json)
 	char err[IM_ERRLEN];
 	char *buf = NULL;
 	size_t len = 0;
-	out o;
+	out o = {NULL, NULL, 0, 0, NULL, 0};
 	im_ctx ctx;
 	workspace before;
 	int rc;
@@ -95,22 +95,22 @@ static void run_line(const char *line, size_t n, int json)
 	o.utf8 = json;
 	FZ_CHECK(o.fp != NULL, "open_memstream");
 	ctx_init(&ctx, ref, &o);
-	ctx.db_path = dbpath;
-	ws_free(&ctx.ws);
-	ws_copy(&ctx.ws, &base);
-	ws_copy(&before, &ctx.ws);
+	ctx.ses->db_path = dbpath;
+	ws_free(&ctx.ses->ws);
+	ws_copy(&ctx.ses->ws, &base);
+	ws_copy(&before, &ctx.ses->ws);
 	err[0] = '\0';
 	rc = cmd_exec(&ctx, line, err);
 	FZ_CHECK(rc == 0 || rc == -1, "cmd_exec returned %d", rc);
 	if (rc) {
 		fz_check_err(err, "cmd_exec");
 		if (!memchr(line, ';', n) && !strstr(line, "run")) {
-			FZ_CHECK(same_workspace(&before, &ctx.ws), "a failed line changed the "
+			FZ_CHECK(same_workspace(&before, &ctx.ses->ws), "a failed line changed the "
 				 "workspace: %s", err);
-			FZ_CHECK(ctx.temp_C == 25.0 && ctx.model == ACT_DAVIES,
+			FZ_CHECK(ctx.ses->temp_C == 25.0 && ctx.ses->model == ACT_DAVIES,
 				 "a failed line changed the settings");
 		}
-		out_error(&o, ctx.errfile[0] ? ctx.errfile : NULL, ctx.errline, err);
+		out_error(&o, ctx.errfile, ctx.errline, err);
 	}
 	check_amounts(&ctx);
 	ctx_free(&ctx);

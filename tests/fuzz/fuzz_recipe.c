@@ -1,7 +1,7 @@
 /*
  * fuzz_recipe.c - libFuzzer target: the input is a script, written to a
  * file in a scratch directory and replayed with `run FILE` through
- * cmd_exec (core_run_stream: NUL bytes, over-long lines, nested `run`).
+ * cmd_exec (cmd_run_stream: NUL bytes, over-long lines, nested `run`).
  *
  * Checks, besides the sanitizers: a failure has a one-line message and a
  * line number within the script (or within a file it ran); amounts stay
@@ -46,7 +46,7 @@ static void run_script(const char *bytes, size_t n, int json)
 	char err[IM_ERRLEN];
 	char *buf = NULL;
 	size_t len = 0, lines = 1;
-	out o;
+	out o = {NULL, NULL, 0, 0, NULL, 0};
 	im_ctx ctx;
 	int rc;
 	FILE *f = fopen(script, "wb");
@@ -59,23 +59,23 @@ static void run_script(const char *bytes, size_t n, int json)
 	o.json = json;
 	o.utf8 = 0;
 	ctx_init(&ctx, ref, &o);
-	ctx.db_path = dbpath;
+	ctx.ses->db_path = dbpath;
 	err[0] = '\0';
 	rc = cmd_exec(&ctx, runline, err);
 	FZ_CHECK(rc == 0 || rc == -1, "cmd_exec returned %d", rc);
 	if (rc) {
 		fz_check_err(err, "run");
-		if (ctx.errfile[0] && strcmp(ctx.errfile, script) == 0)
+		if (ctx.errfile && strcmp(ctx.errfile, script) == 0)
 			FZ_CHECK(ctx.errline >= 1 && (size_t)ctx.errline <= lines,
 				 "error at line %d of a %zu-line script", ctx.errline, lines);
-		out_error(&o, ctx.errfile[0] ? ctx.errfile : NULL, ctx.errline, err);
+		out_error(&o, ctx.errfile, ctx.errline, err);
 	}
-	for (int i = 0; i < ctx.ws.n; i++)
-		for (int k = 0; k < ctx.ws.sol[i]->n; k++) {
-			double mM = ctx.ws.sol[i]->items[k].mM;
+	for (int i = 0; i < ctx.ses->ws.n; i++)
+		for (int k = 0; k < ctx.ses->ws.sol[i]->n; k++) {
+			double mM = ctx.ses->ws.sol[i]->items[k].mM;
 			FZ_CHECK(isfinite(mM) && mM > 0 && mM <= UNITS_MAX_mM, "amount %g", mM);
 		}
-	FZ_CHECK(ctx.temp_C >= 0 && ctx.temp_C <= 60, "temperature %g", ctx.temp_C);
+	FZ_CHECK(ctx.ses->temp_C >= 0 && ctx.ses->temp_C <= 60, "temperature %g", ctx.ses->temp_C);
 	ctx_free(&ctx);
 	fclose(o.fp);
 	if (json)

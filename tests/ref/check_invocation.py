@@ -69,6 +69,29 @@ r = run(["--db", db, "-e", "solution a; add NaCl 1; save"])
 check("save creates the database and its directory", r.returncode == 0 and os.path.exists(db))
 r = run(["--db", db, "-e", "load a; show"])
 check("a saved solution loads in a new process", r.returncode == 0 and "NaCl" in r.stdout)
+# getopt_long: --execute=CMD, -eCMD, unambiguous abbreviations, --db=
+r = run(["--db=" + db, "--execute=solution a; add NaCl 140", "-eshow"])
+check("--execute=CMD and -eCMD run", r.returncode == 0 and "ionic strength" in r.stdout)
+r = run(["--d", db, "--ex", "solution a", "--js", "-e", "temp"])
+check("unambiguous abbreviations (--d, --ex, --js)",
+      r.returncode == 0 and json.loads(r.stdout.splitlines()[-1]) == {"temperature_C": 25})
+r = run(["--db=", "-e", "temp"])
+check("an empty --db= is refused with exit 2", r.returncode == 2 and "--db" in r.stderr)
+r = run(["--db", db, "--help"])
+check("--help ends with a bug-report line",
+      r.returncode == 0 and r.stdout.strip().splitlines()[-1].startswith("Report bugs to"))
+script = os.path.join(tmp, "s.ionmix")
+with open(script, "w") as f:
+    f.write("temp 30\n")
+r = run(["--db", db, "-e", "temp 20", script, "-e", "temp"])
+check("scripts and -e keep their order among options",
+      r.returncode == 0 and r.stdout.splitlines()[-1] == "temperature 30.0 C")
+r = run(["--db", db, "-e", "quit", "-e", "temp 40", "-e", "temp"])
+check("quit stops: nothing after it runs", r.returncode == 0 and "40" not in r.stdout)
+r = run(["--db", db, "--json", "-e", "temp 31", "-e", "help", "-e", "solution a", "-e", "clear"])
+check("state-changing commands answer under --json, one object each",
+      r.returncode == 0 and len(r.stdout.splitlines()) == 4 and
+      json.loads(r.stdout.splitlines()[0]) == {"temperature_C": 31})
 os.environ["IONMIX_DB"] = db
 r = subprocess.run([binary, "-e", "list"], capture_output=True, text=True,
                    env=dict(os.environ, LC_ALL="C", HOME=tmp))

@@ -1,0 +1,567 @@
+/*
+ * render.c - one description of a result, written as text or as JSON.
+ */
+#include "render.h"
+
+#include <math.h>
+#include <stdarg.h>
+#include <stdio.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "common.h"
+
+typedef enum {
+	N_STR, N_NUM, N_CONC, N_INT, N_BOOL, N_NULL, N_LIST, N_RANGE, /* values */
+	N_TEXT, N_NOTE, N_TABLE, N_ROW, N_TEND, N_TEMPTY, N_OBJ, N_OEND
+} nkind;
+
+typedef struct node {
+	nkind k;
+	char *key, *label, *unit, *s; /* owned; any may be NULL */
+	double v, v2; /* v2: the high end of an N_RANGE */
+	long i;
+	int digits, jsig;
+	char **list; /* N_LIST: owned strings */
+	int nlist;
+} node;
+
+struct render {
+	out *o;
+	node *n;
+	int count, cap;
+	int in_table;
+};
+
+static char *dup(const char *s)
+{
+	return s ? im_xstrdup(s) : NULL;
+}
+
+/* printf into a new string of whatever length it needs. */
+static char *vfmt(const char *fmt, va_list ap)
+{
+	va_list aq;
+	int len;
+	char *s;
+	va_copy(aq, ap);
+	len = vsnprintf(NULL, 0, fmt, aq);
+	va_end(aq);
+	if (len < 0)
+		len = 0;
+	s = im_xmalloc((size_t)len + 1);
+	vsnprintf(s, (size_t)len + 1, fmt, ap);
+	return s;
+}
+
+static node *add(render *r, nkind k, const char *key, const char *label, const char *unit)
+{
+	node *x;
+	if (r->count == r->cap) {
+		r->cap = r->cap ? 2 * r->cap : 32;
+		r->n = im_xrealloc(r->n, (size_t)r->cap * sizeof *r->n);
+	}
+	x = &r->n[r->count++];
+	memset(x, 0, sizeof *x);
+	x->k = k;
+	x->key = dup(key);
+	x->label = dup(label);
+	x->unit = dup(unit);
+	x->jsig = 10;
+	return x;
+}
+
+render *render_new(out *o)
+{
+	render *r = im_xcalloc(1, sizeof *r);
+	r->o = o;
+	return r;
+}
+
+void render_str(render *r, const char *key, const char *label, const char *val)
+{
+	add(r, N_STR, key, label, NULL)->s = dup(val);
+}
+
+void render_numj(render *r, const char *key, const char *label, const char *unit,
+		 double v, int digits, int jsig)
+{
+	node *x = add(r, N_NUM, key, label, unit);
+	x->v = v;
+	x->digits = digits;
+	x->jsig = jsig;
+}
+
+void render_num(render *r, const char *key, const char *label, const char *unit,
+		double v, int digits)
+{
+	render_numj(r, key, label, unit, v, digits, 10);
+}
+
+void render_conc(render *r, const char *key, const char *label, double mM)
+{
+	add(r, N_CONC, key, label, NULL)->v = mM;
+}
+
+void render_int(render *r, const char *key, const char *label, long v)
+{
+	add(r, N_INT, key, label, NULL)->i = v;
+}
+
+void render_bool(render *r, const char *key, const char *label, int v)
+{
+	add(r, N_BOOL, key, label, NULL)->i = v != 0;
+}
+
+void render_charge(render *r, const char *key, const char *label, int z)
+{
+	node *x = add(r, N_INT, key, label, NULL);
+	x->i = z;
+	x->digits = 1;
+}
+
+void render_object(render *r, const char *key)
+{
+	add(r, N_OBJ, key, NULL, NULL);
+}
+
+void render_object_end(render *r)
+{
+	add(r, N_OEND, NULL, NULL, NULL);
+}
+
+void render_range(render *r, const char *key, const char *label, const char *unit, double lo,
+		  double hi, int digits)
+{
+	node *x = add(r, N_RANGE, key, label, unit);
+	x->v = lo;
+	x->v2 = hi;
+	x->digits = digits;
+	x->jsig = 6;
+}
+
+void render_null(render *r, const char *key, const char *label)
+{
+	add(r, N_NULL, key, label, NULL);
+}
+
+void render_list(render *r, const char *key, const char *label, const char *const *v, int n)
+{
+	node *x = add(r, N_LIST, key, label, NULL);
+	x->list = im_xcalloc(n > 0 ? (size_t)n : 1, sizeof *x->list);
+	for (int i = 0; i < n; i++)
+		x->list[i] = im_xstrdup(v[i]);
+	x->nlist = n;
+}
+
+void render_text(render *r, const char *fmt, ...)
+{
+	va_list ap;
+	va_start(ap, fmt);
+	add(r, N_TEXT, NULL, NULL, NULL)->s = vfmt(fmt, ap);
+	va_end(ap);
+}
+
+void render_note(render *r, const char *fmt, ...)
+{
+	va_list ap;
+	node *x = add(r, N_NOTE, "notes", "note: ", NULL);
+	va_start(ap, fmt);
+	x->s = vfmt(fmt, ap);
+	va_end(ap);
+}
+
+void render_note_as(render *r, const char *key, const char *prefix, const char *fmt, ...)
+{
+	va_list ap;
+	node *x = add(r, N_NOTE, key, prefix, NULL);
+	va_start(ap, fmt);
+	x->s = vfmt(fmt, ap);
+	va_end(ap);
+}
+
+void render_table(render *r, const char *key, const char *title)
+{
+	add(r, N_TABLE, key, title, NULL);
+	r->in_table = 1;
+}
+
+void render_row(render *r)
+{
+	add(r, N_ROW, NULL, NULL, NULL);
+}
+
+void render_table_end(render *r)
+{
+	add(r, N_TEND, NULL, NULL, NULL);
+	r->in_table = 0;
+}
+
+void render_table_empty(render *r, const char *text)
+{
+	add(r, N_TEMPTY, NULL, NULL, NULL)->s = dup(text);
+}
+
+void render_drop(render *r)
+{
+	if (!r)
+		return;
+	for (int i = 0; i < r->count; i++) {
+		node *x = &r->n[i];
+		free(x->key);
+		free(x->label);
+		free(x->unit);
+		free(x->s);
+		for (int j = 0; j < x->nlist; j++)
+			free(x->list[j]);
+		free(x->list);
+	}
+	free(r->n);
+	free(r);
+}
+
+/* ---- text ---- */
+
+static int is_value(nkind k)
+{
+	return k <= N_RANGE;
+}
+
+/* Columns a UTF-8 string takes (continuation bytes take none). */
+static int width(const char *s)
+{
+	int w = 0;
+	for (; *s; s++)
+		w += ((unsigned char)*s & 0xc0) != 0x80;
+	return w;
+}
+
+/* The text of a value, with its unit when with_unit; caller frees. */
+static char *value_text(const node *x, int utf8, int with_unit)
+{
+	char num[64];
+	size_t len = 0;
+	char *s;
+	switch (x->k) {
+	case N_STR:
+		return im_xstrdup(x->s ? x->s : "-");
+	case N_NUM:
+		units_fmt_num(num, sizeof num, x->v, x->digits);
+		break;
+	case N_CONC:
+		units_fmt_conc(num, sizeof num, x->v, utf8);
+		break;
+	case N_INT:
+		snprintf(num, sizeof num, x->digits ? "%+ld" : "%ld", x->i);
+		break;
+	case N_BOOL:
+		return im_xstrdup(x->i ? "yes" : "no");
+	case N_RANGE: {
+		char hi[64];
+		units_fmt_num(num, sizeof num, x->v, x->digits);
+		units_fmt_num(hi, sizeof hi, x->v2, x->digits);
+		s = im_xmalloc(strlen(num) + strlen(hi) + (x->unit ? strlen(x->unit) : 0) + 8);
+		sprintf(s, "%s to %s%s%s", num, hi, with_unit && x->unit ? " " : "",
+			with_unit && x->unit ? x->unit : "");
+		return s;
+	}
+	case N_LIST:
+		for (int j = 0; j < x->nlist; j++)
+			len += strlen(x->list[j]) + 2;
+		s = im_xcalloc(len + 2, 1);
+		for (int j = 0; j < x->nlist; j++) {
+			if (j)
+				strcat(s, ", ");
+			strcat(s, x->list[j]);
+		}
+		if (x->nlist == 0)
+			strcpy(s, "-");
+		return s;
+	default:
+		return im_xstrdup("-");
+	}
+	if (with_unit && x->unit && x->k == N_NUM && isfinite(x->v)) {
+		s = im_xmalloc(strlen(num) + strlen(x->unit) + 2);
+		sprintf(s, "%s %s", num, x->unit);
+		return s;
+	}
+	return im_xstrdup(num);
+}
+
+/* Print a line without trailing blanks. */
+static void put_line(FILE *fp, char *line)
+{
+	size_t n = strlen(line);
+	while (n > 0 && line[n - 1] == ' ')
+		line[--n] = '\0';
+	fputs(line, fp);
+	fputc('\n', fp);
+}
+
+/* Append to a growing line buffer. */
+typedef struct sbuf {
+	char *s;
+	size_t len, cap;
+} sbuf;
+
+static void sb_add(sbuf *b, const char *s, int pad_to, int right)
+{
+	int w = width(s), pad = pad_to > w ? pad_to - w : 0;
+	size_t need = b->len + strlen(s) + (size_t)pad + 1;
+	if (need > b->cap) {
+		b->cap = need * 2;
+		b->s = im_xrealloc(b->s, b->cap);
+	}
+	if (right) {
+		memset(b->s + b->len, ' ', (size_t)pad);
+		b->len += (size_t)pad;
+	}
+	memcpy(b->s + b->len, s, strlen(s));
+	b->len += strlen(s);
+	if (!right) {
+		memset(b->s + b->len, ' ', (size_t)pad);
+		b->len += (size_t)pad;
+	}
+	b->s[b->len] = '\0';
+}
+
+/* What makes cells one column: the key, or the label of a text-only cell. */
+static const char *colid(const node *x)
+{
+	return x->key ? x->key : x->label;
+}
+
+/* The text of the table that starts at node t (an N_TABLE); returns the
+ * index of its N_TEND. */
+static int text_table(const render *r, int t)
+{
+	FILE *fp = r->o->fp;
+	int end = t + 1, ncol = 0, nrow = 0, header = 0, utf8 = r->o->utf8;
+	const node **col;
+	int *w, *right;
+	char ***cell;
+	while (end < r->count && r->n[end].k != N_TEND)
+		end++;
+	/* columns: every labelled key, in the order of first appearance */
+	col = im_xcalloc((size_t)(end - t) + 1, sizeof *col);
+	for (int i = t + 1; i < end; i++) {
+		const node *x = &r->n[i];
+		int k = 0;
+		if (x->k == N_ROW)
+			nrow++;
+		if (!is_value(x->k) || !x->label)
+			continue;
+		while (k < ncol && strcmp(colid(col[k]), colid(x)) != 0)
+			k++;
+		if (k == ncol)
+			col[ncol++] = x;
+		else if (!col[k]->unit && x->unit) /* a null first: take the unit */
+			col[k] = x;
+	}
+	w = im_xcalloc((size_t)ncol + 1, sizeof *w);
+	right = im_xcalloc((size_t)ncol + 1, sizeof *right);
+	cell = im_xcalloc((size_t)nrow + 1, sizeof *cell);
+	for (int k = 0; k < ncol; k++) {
+		char *h = NULL;
+		if (col[k]->label[0])
+			header = 1;
+		if (col[k]->unit && col[k]->k == N_NUM) {
+			h = im_xmalloc(strlen(col[k]->label) + strlen(col[k]->unit) + 2);
+			sprintf(h, "%s%s%s", col[k]->label, col[k]->label[0] ? " " : "",
+				col[k]->unit);
+		}
+		w[k] = width(h ? h : col[k]->label);
+		free(h);
+		right[k] = col[k]->k != N_STR && col[k]->k != N_LIST;
+	}
+	for (int i = t + 1, row = -1; i < end; i++) {
+		const node *x = &r->n[i];
+		if (x->k == N_ROW) {
+			cell[++row] = im_xcalloc((size_t)ncol + 1, sizeof **cell);
+			continue;
+		}
+		if (!is_value(x->k) || !x->label || row < 0)
+			continue;
+		for (int k = 0; k < ncol; k++)
+			if (strcmp(colid(col[k]), colid(x)) == 0) {
+				free(cell[row][k]);
+				cell[row][k] = value_text(x, utf8, 0);
+				if (width(cell[row][k]) > w[k])
+					w[k] = width(cell[row][k]);
+				break;
+			}
+	}
+	if (r->n[t].label && nrow > 0 && ncol > 0)
+		fprintf(fp, "%s\n", r->n[t].label);
+	if (header && nrow > 0) {
+		sbuf b = {0};
+		sb_add(&b, "", 0, 0);
+		for (int k = 0; k < ncol; k++) {
+			char *h = NULL;
+			if (col[k]->unit && col[k]->k == N_NUM) {
+				h = im_xmalloc(strlen(col[k]->label) + strlen(col[k]->unit) + 2);
+				sprintf(h, "%s%s%s", col[k]->label, col[k]->label[0] ? " " : "",
+					col[k]->unit);
+			}
+			sb_add(&b, "  ", 0, 0);
+			sb_add(&b, h ? h : col[k]->label, w[k], right[k]);
+			free(h);
+		}
+		put_line(fp, b.s);
+		free(b.s);
+	}
+	for (int row = 0; row < nrow; row++) {
+		sbuf b = {0};
+		if (ncol == 0) { /* a table for the JSON only */
+			free(cell[row]);
+			continue;
+		}
+		sb_add(&b, "", 0, 0);
+		for (int k = 0; k < ncol; k++) {
+			sb_add(&b, "  ", 0, 0);
+			sb_add(&b, cell[row][k] ? cell[row][k] : "", w[k], right[k]);
+			free(cell[row][k]);
+		}
+		put_line(fp, b.s);
+		free(b.s);
+		free(cell[row]);
+	}
+	for (int i = t + 1; i < end; i++)
+		if (r->n[i].k == N_TEMPTY && (nrow == 0 || !r->n[i].s[0]))
+			fprintf(fp, "%s\n", r->n[i].s);
+	free(cell);
+	free(col);
+	free(w);
+	free(right);
+	return end;
+}
+
+static void emit_text(const render *r)
+{
+	FILE *fp = r->o->fp;
+	int lw = 0;
+	for (int i = 0; i < r->count; i++) {
+		const node *x = &r->n[i];
+		if (x->k == N_TABLE)
+			while (i < r->count && r->n[i].k != N_TEND)
+				i++;
+		else if (is_value(x->k) && x->label && width(x->label) > lw)
+			lw = width(x->label);
+	}
+	for (int i = 0; i < r->count; i++) {
+		const node *x = &r->n[i];
+		if (x->k == N_TABLE) {
+			i = text_table(r, i);
+		} else if (x->k == N_TEXT) {
+			fprintf(fp, "%s\n", x->s);
+		} else if (x->k == N_NOTE && x->label) {
+			fprintf(fp, "  %s%s\n", x->label, x->s);
+		} else if (x->k == N_NOTE) { /* no prefix: a line of its own, not indented */
+			fprintf(fp, "%s\n", x->s);
+		} else if (is_value(x->k) && x->label) {
+			char *v = value_text(x, r->o->utf8, 1);
+			int pad = lw - width(x->label);
+			fprintf(fp, "  %s%*s  %s\n", x->label, pad, "", v);
+			free(v);
+		}
+	}
+}
+
+/* ---- JSON ---- */
+
+static void json_value(jw *w, const node *x)
+{
+	switch (x->k) {
+	case N_STR:
+		jw_str(w, x->key, x->s);
+		break;
+	case N_NUM:
+		jw_num(w, x->key, x->v, x->jsig);
+		break;
+	case N_CONC:
+		jw_num(w, x->key, x->v, 10);
+		break;
+	case N_INT:
+		jw_int(w, x->key, x->i);
+		break;
+	case N_BOOL:
+		jw_bool(w, x->key, (int)x->i);
+		break;
+	case N_NULL:
+		jw_str(w, x->key, NULL);
+		break;
+	case N_RANGE:
+		jw_arr(w, x->key);
+		jw_num(w, NULL, x->v, x->jsig);
+		jw_num(w, NULL, x->v2, x->jsig);
+		jw_close(w);
+		break;
+	case N_LIST:
+		jw_arr(w, x->key);
+		for (int j = 0; j < x->nlist; j++)
+			jw_str(w, NULL, x->list[j]);
+		jw_close(w);
+		break;
+	default:
+		break;
+	}
+}
+
+static void emit_json(const render *r)
+{
+	jw w;
+	int row_open = 0;
+	jw_begin(&w, r->o);
+	for (int i = 0; i < r->count; i++) {
+		const node *x = &r->n[i];
+		if (is_value(x->k) && x->key) {
+			json_value(&w, x);
+		} else if (x->k == N_OBJ) {
+			jw_obj(&w, x->key);
+		} else if (x->k == N_OEND) {
+			jw_close(&w);
+		} else if (x->k == N_TABLE && !x->key) { /* a table for the text only */
+			while (i < r->count && r->n[i].k != N_TEND)
+				i++;
+		} else if (x->k == N_TABLE) {
+			jw_arr(&w, x->key);
+			row_open = 0;
+		} else if (x->k == N_ROW) {
+			if (row_open)
+				jw_close(&w);
+			jw_obj(&w, NULL);
+			row_open = 1;
+		} else if (x->k == N_TEND) {
+			if (row_open)
+				jw_close(&w);
+			jw_close(&w);
+			row_open = 0;
+		} else if (x->k == N_NOTE) {
+			/* all notes of one key, as one array where the first stands */
+			int first = 1;
+			for (int j = 0; j < i; j++)
+				if (r->n[j].k == N_NOTE && strcmp(r->n[j].key, x->key) == 0)
+					first = 0;
+			if (!first)
+				continue;
+			jw_arr(&w, x->key);
+			for (int j = i; j < r->count; j++)
+				if (r->n[j].k == N_NOTE && strcmp(r->n[j].key, x->key) == 0)
+					jw_str(&w, NULL, r->n[j].s);
+			jw_close(&w);
+		}
+	}
+	jw_end(&w);
+}
+
+int render_done(render *r)
+{
+	if (r->in_table)
+		render_table_end(r);
+	if (r->o->json)
+		emit_json(r);
+	else
+		emit_text(r);
+	render_drop(r);
+	return 0;
+}
