@@ -366,7 +366,7 @@ int udb_open(const char *path, int create, userdb **out, char *err)
 	u->path = im_xstrdup(path);
 	u->wait_max_s = UDB_WAIT_S;
 	u->notice_s = UDB_NOTICE_S;
-	u->seed = (unsigned)getpid() ^ (unsigned)(mono_s() * 1e6);
+	u->seed = (unsigned)getpid() ^ (unsigned)(unsigned long long)(mono_s() * 1e6);
 	rc = sqlite3_open_v2(name ? name : path, &u->db, flags, NULL);
 	free(name);
 	if (rc != SQLITE_OK) {
