@@ -156,7 +156,7 @@ static int side_open(im_ctx *ctx, const char *name, side *s, char *err)
 	memset(s, 0, sizeof *s);
 	if (ses_solution(ctx->ses, name, &s->sol, err))
 		return -1;
-	if (sol_compute(s->sol, ses_env(ctx->ses), &s->st, err))
+	if (ses_compute(ctx->ses, s->sol, &s->st, err))
 		return -1;
 	s->have = 1;
 	return 0;

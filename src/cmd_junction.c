@@ -150,9 +150,9 @@ int cmdj_henderson_mV(const sol_state *pip, const sol_state *bath, int act, doub
 static int states(im_ctx *ctx, const solution *a, const solution *b, sol_state *sa,
 		  sol_state *sb, char *err)
 {
-	if (sol_compute(a, ses_env(ctx->ses), sa, err))
+	if (ses_compute(ctx->ses, a, sa, err))
 		return -1;
-	if (sol_compute(b, ses_env(ctx->ses), sb, err)) {
+	if (ses_compute(ctx->ses, b, sb, err)) {
 		sol_state_free(sa);
 		return -1;
 	}

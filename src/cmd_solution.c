@@ -339,7 +339,7 @@ int cmd_show(im_ctx *ctx, int argc, char **argv, char *err)
 	sol_state st;
 	render *r;
 	if (ses_solution(ctx->ses, argc > 1 ? argv[1] : NULL, &s, err) ||
-	    sol_compute(s, ses_env(ctx->ses), &st, err))
+	    ses_compute(ctx->ses, s, &st, err))
 		return -1;
 	r = render_new(ctx->out);
 	render_str(r, "solution", NULL, s->name);

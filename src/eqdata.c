@@ -148,6 +148,7 @@ static const char *pair_comp(const spec_data *d, int m, int k)
  * protonation step that is not modelled). */
 int eqd_select_spec(spec_data *d, char *err)
 {
+	d->gen++;
 	for (int k = 0; k < d->nlig; k++) {
 		lig_def *L = &d->lig[k];
 		const char *comp = lig_comp(d, k);
@@ -658,6 +659,7 @@ static int sym_add(osm_data *d, const char *s, int *cap)
  * default row. */
 void eqd_select_osm(osm_data *d)
 {
+	d->gen++;
 	for (int i = 0; i < d->nsym * d->nsym; i++)
 		d->pair[i] = -1;
 	for (int r = 0; r < d->npz; r++) {

@@ -131,6 +131,8 @@ struct spec_data {
 	fit3 pkw, k0;
 	co2_app co2;
 	eqd_picks picks;
+	unsigned long gen;  /* bumped by every eqd_select_spec: results
+			     * computed under an older value are stale */
 };
 
 int eqd_find_lig(const spec_data *d, const char *name);
@@ -181,6 +183,7 @@ struct osm_data {
 	int nnz;
 	int *pair; /* nsym*nsym: active row or -1 */
 	eqd_picks picks;
+	unsigned long gen; /* bumped by every eqd_select_osm (see spec_data) */
 };
 
 int eqd_osm_sym(const osm_data *d, const char *s); /* index, or -1 */

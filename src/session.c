@@ -4,10 +4,124 @@
  */
 #include "session.h"
 
+#include <stddef.h>
+#include <stdlib.h>
 #include <string.h>
 
 #include "common.h"
+#include "eqdata.h"
 #include "userdb.h"
+
+/* ---- the cache of computed states ---- */
+
+#define SES_CACHE_N 8 /* solutions whose states are kept; oldest replaced */
+
+typedef struct ses_entry {
+	int used;
+	solution key;          /* a copy of the solution computed */
+	double t_C;
+	act_model model;
+	const spec_data *chem; /* the data and their revisions */
+	const osm_data *osm;
+	unsigned long chem_gen, osm_gen;
+	sol_state st;          /* the result, owned */
+} ses_entry;
+
+struct ses_cache {
+	ses_entry e[SES_CACHE_N];
+	int next; /* the entry replaced next */
+};
+
+static void entry_clear(ses_entry *x)
+{
+	if (x->used) {
+		sol_free(&x->key);
+		sol_state_free(&x->st);
+	}
+	memset(x, 0, sizeof *x);
+}
+
+static void cache_free(struct ses_cache *c)
+{
+	if (!c)
+		return;
+	for (int i = 0; i < SES_CACHE_N; i++)
+		entry_clear(&c->e[i]);
+	free(c);
+}
+
+/* Copy a speciation result, only the filled part of its arrays (the
+ * whole struct is about 20 kB, mostly empty slots); the scalars between
+ * and after the arrays are copied as one block each. */
+static void result_copy(spec_result *d, const spec_result *s)
+{
+	size_t a = offsetof(spec_result, t_C), b = offsetof(spec_result, warnings);
+	size_t c = offsetof(spec_result, nwarn);
+	memcpy(d->sp, s->sp, (size_t)s->n * sizeof s->sp[0]);
+	d->n = s->n;
+	memcpy(d->metals, s->metals, (size_t)s->nmetals * sizeof s->metals[0]);
+	d->nmetals = s->nmetals;
+	memcpy(d->ligands, s->ligands, (size_t)s->nligands * sizeof s->ligands[0]);
+	d->nligands = s->nligands;
+	memcpy((char *)d + a, (const char *)s + a, b - a);
+	memcpy(d->warnings, s->warnings, (size_t)s->nwarn * sizeof s->warnings[0]);
+	memcpy((char *)d + c, (const char *)s + c, sizeof *d - c);
+}
+
+/* A deep copy of a computed state (the species array and the speciation
+ * result are owned by each copy). */
+static void state_copy(sol_state *dst, const sol_state *src)
+{
+	*dst = *src;
+	dst->sp = NULL;
+	dst->chem = NULL;
+	if (src->n > 0) {
+		dst->sp = im_xmalloc((size_t)src->n * sizeof *dst->sp);
+		memcpy(dst->sp, src->sp, (size_t)src->n * sizeof *dst->sp);
+	}
+	if (src->chem) {
+		dst->chem = im_xmalloc(sizeof *dst->chem);
+		result_copy(dst->chem, src->chem);
+	}
+}
+
+static int entry_fits(const ses_entry *x, const solution *sol, const sol_env *env)
+{
+	return x->used && x->t_C == env->t_C && x->model == env->model &&
+	       x->chem == env->chem && x->osm == env->osm &&
+	       (!env->chem || x->chem_gen == env->chem->gen) &&
+	       (!env->osm || x->osm_gen == env->osm->gen) && sol_equal(&x->key, sol);
+}
+
+int ses_compute(session *s, const solution *sol, sol_state *st, char *err)
+{
+	const sol_env *env = ses_env(s);
+	struct ses_cache *c;
+	ses_entry *x;
+	if (!s->cache)
+		s->cache = im_xcalloc(1, sizeof *s->cache);
+	c = s->cache;
+	for (int i = 0; i < SES_CACHE_N; i++)
+		if (entry_fits(&c->e[i], sol, env)) {
+			state_copy(st, &c->e[i].st);
+			return 0;
+		}
+	if (sol_compute(sol, env, st, err))
+		return -1;
+	x = &c->e[c->next];
+	c->next = (c->next + 1) % SES_CACHE_N;
+	entry_clear(x);
+	sol_copy(&x->key, sol, sol->name);
+	x->t_C = env->t_C;
+	x->model = env->model;
+	x->chem = env->chem;
+	x->osm = env->osm;
+	x->chem_gen = env->chem ? env->chem->gen : 0;
+	x->osm_gen = env->osm ? env->osm->gen : 0;
+	state_copy(&x->st, st);
+	x->used = 1;
+	return 0;
+}
 
 void ses_init(session *s, refdb *ref)
 {
@@ -40,6 +154,8 @@ void ses_free(session *s)
 	s->chem = NULL;
 	s->osm = NULL;
 	ws_free(&s->ws);
+	cache_free(s->cache);
+	s->cache = NULL;
 	udb_close(s->user);
 	s->user = NULL;
 }

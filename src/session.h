@@ -15,6 +15,7 @@
 #include "solution.h"
 
 struct userdb;
+struct ses_cache;
 
 typedef struct session {
 	refdb *ref;             /* reference data; owned by the caller (main) */
@@ -28,6 +29,7 @@ typedef struct session {
 	workspace ws;           /* named solutions, one current */
 	double temp_C;          /* `temp`, default 25 degrees C */
 	act_model model;        /* `activity`, default Davies */
+	struct ses_cache *cache; /* computed states (ses_compute); owned */
 } session;
 
 /* What a failed command must not change: taken before each command and
@@ -50,6 +52,16 @@ void ses_free(session *s);
 /* The environment sol_compute needs; points into s, valid until the next
  * call. */
 const sol_env *ses_env(session *s);
+
+/* The computed state of sol under the session's environment, as
+ * sol_compute gives it, from a cache keyed by everything it depends on:
+ * the solution's contents (sol_equal), the temperature, the activity
+ * model and the revision of the equilibrium and Pitzer data (bumped by a
+ * compilation pick).  A repeated command on unchanged solutions reuses
+ * the result; any change computes afresh.  The caller owns *st (free with
+ * sol_state_free), exactly as after sol_compute.  -1 with err as
+ * sol_compute (failures are not cached). */
+int ses_compute(session *s, const solution *sol, sol_state *st, char *err);
 
 /* The user's database, opened on first use.  create = 1 creates the file;
  * create = 0 returns NULL with *failed == 0 when it does not exist yet.
