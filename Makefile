@@ -24,7 +24,14 @@ V          ?=
 HDF5_PC    := $(firstword $(foreach p,hdf5 hdf5-serial,$(shell $(PKG_CONFIG) --exists $(p) 2>/dev/null && echo $(p))))
 PKGS       := sqlite3 readline $(HDF5_PC)
 PKG_CFLAGS := $(shell $(PKG_CONFIG) --cflags $(PKGS) 2>/dev/null)
-PKG_LIBS   := $(shell $(PKG_CONFIG) --libs $(PKGS) 2>/dev/null)
+# HDF5 is not linked: src/h5lazy.c loads it on the first NWB command (its
+# 35 dependent libraries cost more than half of every start otherwise);
+# the run-time name comes from the library compiled against
+PKG_LIBS   := $(shell $(PKG_CONFIG) --libs sqlite3 readline 2>/dev/null) -ldl
+HDF5_LDIR  := $(patsubst -L%,%,$(filter -L%,$(shell $(PKG_CONFIG) --libs-only-L $(HDF5_PC) 2>/dev/null)))
+HDF5_DEV   := $(firstword $(wildcard $(addsuffix /libhdf5.so,$(HDF5_LDIR))) $(shell $(CC) -print-file-name=libhdf5.so))
+HDF5_SONAME := $(shell objdump -p $(HDF5_DEV) 2>/dev/null | awk '/SONAME/ { print $$2 }')
+H5_DEFS    := -DIM_HDF5_SONAME='"$(or $(HDF5_SONAME),libhdf5.so)"' -DIM_HDF5_DEVLIB='"$(HDF5_DEV)"'
 CMOCKA     := $(shell $(PKG_CONFIG) --cflags --libs cmocka 2>/dev/null)
 IM_CFLAGS  := -std=c11 -D_POSIX_C_SOURCE=200809L -D_DEFAULT_SOURCE \
               -Wall -Wextra -Wstrict-prototypes -MMD -MP \
@@ -48,7 +55,8 @@ VERSION    := $(shell cat VERSION 2>/dev/null || echo 0.0.0)
 # ---- what gets built ----
 SRC        := $(wildcard src/*.c)
 LIBSRC     := $(filter-out src/main.c,$(SRC))
-LIBOBJ     := $(patsubst src/%.c,$(BUILD)/obj/%.o,$(LIBSRC)) $(BUILD)/obj/refdata.o
+LIBOBJ     := $(patsubst src/%.c,$(BUILD)/obj/%.o,$(LIBSRC)) $(BUILD)/obj/refdata.o \
+              $(BUILD)/obj/reftables.o
 # reference data, embedded in this order: schema, sources, then the rest
 DATA_FIRST := data/schema.sql data/sources.sql data/ions.sql data/compounds.sql
 DATA_SQL   := $(DATA_FIRST) $(sort $(filter-out $(DATA_FIRST),$(wildcard data/*.sql)))
@@ -107,6 +115,8 @@ $(BUILD)/obj/%.o: src/%.c $(BUILD)/gen/version.h | $(BUILD)/obj
 	$(say) CC $<
 	$(Q)$(CC) $(ALL_CFLAGS) -c -o $@ $<
 
+$(BUILD)/obj/h5lazy.o: ALL_CFLAGS += $(H5_DEFS)
+
 $(BUILD)/obj/refdata.o: $(BUILD)/gen/refdata.c | $(BUILD)/obj
 	$(say) CC $<
 	$(Q)$(CC) $(ALL_CFLAGS) -c -o $@ $<
@@ -116,6 +126,26 @@ $(BUILD)/obj/refdata.o: $(BUILD)/gen/refdata.c | $(BUILD)/obj
 $(BUILD)/gen/refdata.c: $(BUILD)/embed $(DATA_SQL) | $(BUILD)/gen
 	$(say) EMBED "$(DATA_SQL)"
 	$(Q)$(BUILD)/embed $(DATA_SQL) > $@.tmp && mv $@.tmp $@
+
+# The reference data as C tables (src/reftab.h), so a start runs no SQL:
+# a host tool linked with the loaders themselves (refdb.c, eqdata.c with
+# IM_NO_TABLES) loads and checks the image above and writes what they
+# built.  A failing check of the data fails the build here.
+REFDUMP_SRC := src/tools/refdump.c src/refdb.c src/eqdata.c src/common.c
+
+$(BUILD)/gen/reftables.c: $(BUILD)/refdump | $(BUILD)/gen
+	$(say) GEN $@
+	$(Q)$(BUILD)/refdump > $@.tmp && mv $@.tmp $@
+
+$(BUILD)/refdump: $(REFDUMP_SRC) $(BUILD)/gen/refdata.c $(wildcard src/*.h) | $(BUILD)/gen
+	$(say) CC $@
+	$(Q)$(CC) -std=c11 -D_POSIX_C_SOURCE=200809L -D_DEFAULT_SOURCE -Wall -Wextra -O1 \
+		-DIM_NO_TABLES -Isrc -I$(BUILD)/gen $(CPPFLAGS) $(PKG_CFLAGS) -o $@ \
+		$(REFDUMP_SRC) $(BUILD)/gen/refdata.c $(PKG_LIBS) -lm
+
+$(BUILD)/obj/reftables.o: $(BUILD)/gen/reftables.c | $(BUILD)/obj
+	$(say) CC $<
+	$(Q)$(CC) $(ALL_CFLAGS) -c -o $@ $<
 
 $(BUILD)/embed: src/tools/embed.c | $(BUILD)/gen
 	$(say) CC $<

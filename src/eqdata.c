@@ -11,6 +11,7 @@
 #include <string.h>
 
 #include "common.h"
+#include "reftab.h"
 
 static const char *const cx_kind_name[] = {"ML", "MHL", "M2L", "ML2"};
 
@@ -571,11 +572,56 @@ static int resolve_enthalpies(spec_data *d, char *err)
 	return 0;
 }
 
+#ifndef IM_NO_TABLES
+/* A copy of n elements of size sz (at least one byte allocated). */
+static void *dup_rows(const void *src, size_t n, size_t sz)
+{
+	void *p = im_xmalloc(n ? n * sz : 1);
+	if (n)
+		memcpy(p, src, n * sz);
+	return p;
+}
+
+/* The tables built into the program (reftab.h): loaded, checked and
+ * selected at build time by the code below, copied here. */
+static spec_data *builtin_spec(void)
+{
+	spec_data *d = im_xmalloc(sizeof *d);
+	*d = *im_tab_spec;
+	d->lig = dup_rows(im_tab_lig, (size_t)d->nlig, sizeof *d->lig);
+	d->pka = dup_rows(im_tab_pka, (size_t)d->npka, sizeof *d->pka);
+	d->cx = dup_rows(im_tab_cx, (size_t)d->ncx, sizeof *d->cx);
+	memset(&d->picks, 0, sizeof d->picks);
+	d->gen = 0;
+	return d;
+}
+
+static osm_data *builtin_osm(void)
+{
+	osm_data *d = im_xmalloc(sizeof *d);
+	*d = *im_tab_osm;
+	d->sym = dup_rows(im_tab_osm_sym, (size_t)d->nsym, sizeof *d->sym);
+	d->v0_L_mol = dup_rows(im_tab_osm_v0, (size_t)d->nsym, sizeof *d->v0_L_mol);
+	d->pz = dup_rows(im_tab_pz, (size_t)d->npz, sizeof *d->pz);
+	d->nz = dup_rows(im_tab_nz, (size_t)d->nnz, sizeof *d->nz);
+	d->pair = dup_rows(im_tab_osm_pair, (size_t)d->nsym * (size_t)d->nsym, sizeof *d->pair);
+	memset(&d->picks, 0, sizeof d->picks);
+	d->gen = 0;
+	return d;
+}
+#endif
+
 int eqd_load_spec(sqlite3 *db, spec_data **out, char *err)
 {
 	*out = NULL;
-	if (!db)
+	if (!db) {
+#ifndef IM_NO_TABLES
+		*out = builtin_spec();
+		return 0;
+#else
 		return im_fail(err, "speciation: no database");
+#endif
+	}
 	spec_data *d = im_xcalloc(1, sizeof *d);
 	if (load_ligands(db, d, err) || load_pka(db, d, err) ||
 	    load_metals_complexes(db, d, err) || load_fits(db, d, err) ||
@@ -650,6 +696,8 @@ static int sym_add(osm_data *d, const char *s, int *cap)
 		d->v0_L_mol =
 			im_xrealloc(d->v0_L_mol, (size_t)*cap * sizeof *d->v0_L_mol);
 	}
+	/* zeroed first: the build writes these bytes into its tables */
+	memset(d->sym[d->nsym], 0, sizeof d->sym[d->nsym]);
 	snprintf(d->sym[d->nsym], EQD_SYMLEN, "%s", s);
 	d->v0_L_mol[d->nsym] = NAN;
 	return d->nsym++;
@@ -677,8 +725,14 @@ void eqd_select_osm(osm_data *d)
 int eqd_load_osm(sqlite3 *db, osm_data **out, char *err)
 {
 	*out = NULL;
-	if (!db)
+	if (!db) {
+#ifndef IM_NO_TABLES
+		*out = builtin_osm();
+		return 0;
+#else
 		return im_fail(err, "osmotic: no database");
+#endif
+	}
 	osm_data *d = im_xcalloc(1, sizeof *d);
 	int cap = 0, pcap = 0;
 	sqlite3_stmt *st = NULL;
@@ -733,6 +787,7 @@ int eqd_load_osm(sqlite3 *db, osm_data **out, char *err)
 			d->nz = im_xrealloc(d->nz, (size_t)ncap * sizeof *d->nz);
 		}
 		nz_row *z = &d->nz[d->nnz++];
+		memset(z, 0, sizeof *z);
 		z->sym = sym_add(d, col_text(st, 0), &cap);
 		z->lambda = sqlite3_column_double(st, 1);
 		z->mu = sqlite3_column_double(st, 2);

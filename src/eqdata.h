@@ -139,6 +139,8 @@ int eqd_find_lig(const spec_data *d, const char *name);
 int eqd_find_lig_ci(const spec_data *d, const char *name); /* any case */
 int eqd_find_metal(const spec_data *d, const char *sym);   /* 'Ca2+', 'Ca' */
 
+/* db NULL: the tables built into the program (reftab.h; loaded, checked
+ * and selected by this code at build time), with no SQL. */
 int eqd_load_spec(sqlite3 *db, spec_data **out, char *err);
 void eqd_free_spec(spec_data *d);
 /* Re-select the rows in use after d->picks changed; -1 when the picks

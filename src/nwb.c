@@ -8,7 +8,7 @@
 #include "common.h"
 #include "fileio.h"
 
-#include <hdf5.h>
+#include "h5lazy.h" /* <hdf5.h>, the library loaded on first use */
 
 #include <errno.h>
 #include <fcntl.h>
@@ -329,8 +329,10 @@ static int read_open(hid_t fid, const char *path, nwb_file *f, char *err)
 
 int nwb_read(const char *path, nwb_file *f, char *err)
 {
-	quiet();
 	memset(f, 0, sizeof *f);
+	if (im_h5_load(err))
+		return -1;
+	quiet();
 	hid_t fid = open_h5(path, H5F_ACC_RDONLY, err);
 	if (fid < 0)
 		return -1;

@@ -136,9 +136,10 @@ int ses_load_chemistry(session *s, char *err)
 {
 	spec_data *chem = NULL;
 	osm_data *osm = NULL;
-	if (spec_load(refdb_sqlite(s->ref), &chem, err))
+	/* NULL: the tables built into the program, no SQL (eqdata.h) */
+	if (spec_load(NULL, &chem, err))
 		return -1;
-	if (osm_load(refdb_sqlite(s->ref), &osm, err)) {
+	if (osm_load(NULL, &osm, err)) {
 		spec_data_free(chem);
 		return -1;
 	}
