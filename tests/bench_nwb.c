@@ -61,8 +61,9 @@ static int one(const char *dir, int samples, const char *label)
 	const char *py = getenv("PYTHON") ? getenv("PYTHON") : "/usr/bin/python3";
 	snprintf(path, sizeof path, "%s/ionmix_bench_nwb_%ld_%d.nwb", dir, (long)getpid(), samples);
 	snprintf(outp, sizeof outp, "%s.out.nwb", path);
-	/* -I: isolated from PYTHON* variables; the helper's folder by path */
-	snprintf(cmd, sizeof cmd, "%s -I -c 'import sys; sys.path.insert(0, \"tests/ref\"); import nwbfiles; "
+	/* -I: isolated from PYTHON* variables; the helper's folder by path;
+	 * -B: no __pycache__ left in tests/ref */
+	snprintf(cmd, sizeof cmd, "%s -I -B -c 'import sys; sys.path.insert(0, \"tests/ref\"); import nwbfiles; "
 		 "nwbfiles.write(\"%s\", nsamples=%d, extra_ccs=95)'", py, path, samples);
 	if (system(cmd) != 0) {
 		printf("bench|nwb correct, %s: could not write the test file|-|-|-\n", label);
