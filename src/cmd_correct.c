@@ -3,7 +3,6 @@
  * (given, or Henderson from two solutions), call correct.c, report.
  */
 #include "cmd_correct.h"
-#include "cmd_junction.h"
 
 #include <errno.h>
 #include <math.h>
@@ -19,6 +18,7 @@
 #include "fileio.h"
 #include "version.h"
 #include "junction.h"
+#include "ljp.h"
 #include "nwb.h"
 
 #include <time.h>
@@ -33,6 +33,7 @@ typedef struct ljp_src {
 	const char *pip, *bath;
 	double henderson_mV;   /* the unrounded Henderson value */
 	double lo_mV, hi_mV;   /* its interval from the mobility uncertainties */
+	char range[64];        /* "13.1 to 15.0 mV" (Henderson only; else "") */
 } ljp_src;
 
 /* The Henderson LJP of PIPETTE against BATH at the session temperature,
@@ -52,7 +53,7 @@ static int henderson(im_ctx *ctx, const char *pip, const char *bath, double *ljp
 		sol_state_free(&st[0]);
 		return -1;
 	}
-	rc = cmdj_ljp(&st[0], &st[1], 0, ctx->ses->temp_C, ljp_mV, lo_mV, hi_mV, e2);
+	rc = ljp_pair_mV(&st[0], &st[1], 0, ctx->ses->temp_C, ljp_mV, lo_mV, hi_mV, e2);
 	if (rc)
 		im_fail(err, "LJP of %s against %s: %s", pip, bath, e2);
 	sol_state_free(&st[0]);
@@ -76,6 +77,7 @@ static int get_ljp(im_ctx *ctx, const char *by, const char *pip, const char *bat
 	src->bath = bath;
 	if (henderson(ctx, pip, bath, &src->henderson_mV, &src->lo_mV, &src->hi_mV, err) < 0)
 		return -1;
+	snprintf(src->range, sizeof src->range, "%.1f to %.1f mV", src->lo_mV, src->hi_mV);
 	return corr_ljp_from_mV(src->henderson_mV, CMD_CORRECT_HENDERSON_DECIMALS,
 				&src->ljp, err);
 }
@@ -329,6 +331,9 @@ static int correct_nwb(im_ctx *ctx, int argc, char **argv, char *err)
 		.ljp_mV = corr_ljp_mV(&src.ljp),
 		.pipette = src.henderson ? pip : NULL,
 		.bath = src.henderson ? bath : NULL,
+		.has_range = src.henderson,
+		.lo_mV = src.lo_mV,
+		.hi_mV = src.hi_mV,
 		.has_temp = src.henderson,
 		.t_C = ctx->ses->temp_C,
 		.model = src.henderson ? "Henderson equation from concentrations, rounded to"
@@ -523,6 +528,7 @@ int cmd_correct(im_ctx *ctx, int argc, char **argv, char *err)
 		about.pipette = src.pip;
 		about.bath = src.bath;
 		about.model = "Henderson (concentrations), rounded to 0.1 mV";
+		about.range = src.range;
 		about.temperature_C = ctx->ses->temp_C;
 	}
 	corr_about_stamp(&about, date, sizeof date);
