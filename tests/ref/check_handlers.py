@@ -27,13 +27,6 @@ PENDING = {
     ("src/cmd_ghk.c", "json_head"),
     ("src/cmd_ghk.c", "cmd_ghk_ratio"),
     ("src/cmd_ghk.c", "cmd_ghk_iv"),
-    ("src/cmd_junction.c", "json_cautions"),
-    ("src/cmd_junction.c", "print_corrections"),
-    ("src/cmd_junction.c", "json_corrections"),
-    ("src/cmd_junction.c", "json_junction"),
-    ("src/cmd_junction.c", "print_model_line"),
-    ("src/cmd_junction.c", "text_junction"),
-    ("src/cmd_junction.c", "cmd_exchange"),
     ("src/cmd_sweep.c", "parse_quantity"),
     ("src/cmd_sweep.c", "cmd_sweep"),
 }
