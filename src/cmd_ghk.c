@@ -329,155 +329,173 @@ int cmd_ghk_erev(im_ctx *ctx, int argc, char **argv, char *err)
 
 /* ---- ratio ---- */
 
-int cmd_ghk_ratio(im_ctx *ctx, int argc, char **argv, char *err)
-{
+/* What `ratio` works with. */
+typedef struct ratio_work {
 	opts o;
 	side ins, outs, to;
 	ghk_ion x[MAX_PERM + 2];
-	double to_out[MAX_PERM + 2], mv, q;
-	int shift, first, rc = -1;
-	memset(&o, 0, sizeof o);
-	memset(&to, 0, sizeof to);
-	if (argc < 7)
-		return im_fail(err, "usage: ratio INSIDE OUTSIDE ION REF at MV [ION=P ...] "
-			       "| ... shift FROM_BATH TO_BATH by MV [ION=P ...]");
-	shift = strcmp(argv[5], "shift") == 0;
-	if (!shift && strcmp(argv[5], "at") != 0)
-		return im_fail(err, "expected 'at MV' or 'shift FROM_BATH TO_BATH by MV' "
-			       "after the two ions, got '%.40s'", argv[5]);
-	if (shift && (argc < 10 || strcmp(argv[8], "by") != 0))
-		return im_fail(err, "usage: ratio INSIDE OUTSIDE ION REF shift FROM_BATH "
-			       "TO_BATH by MV [ION=P ...]");
-	if (parse_num(argv[shift ? 9 : 6], shift ? "shift (mV)" : "reversal potential "
-		      "(mV)", &mv, err))
-		return -1;
-	first = shift ? 10 : 7;
-	const rd_ion *ion = refdb_ion(ctx->ses->ref, argv[3]);
-	const rd_ion *ref = refdb_ion(ctx->ses->ref, argv[4]);
-	if (!ion || !ref)
-		return im_fail(err, "unknown ion '%.40s'", !ion ? argv[3] : argv[4]);
-	if (ion->z == 0 || ref->z == 0)
-		return im_fail(err, "%s is neutral: it carries no current",
-			       ion->z == 0 ? ion->symbol : ref->symbol);
-	if (ion == ref)
-		return im_fail(err, "the ion and the reference are both %s", ion->symbol);
-	/* the sought ion first, the reference second (P 1 unless given) */
-	o.p[0].ion = ion;
-	o.p[0].P = 1.0;
-	o.p[1].ion = ref;
-	o.p[1].P = 1.0;
-	o.np = 2;
+	double to_out[MAX_PERM + 2], mv, q, E1, E2;
+	int shift, have_E;
+	const rd_ion *ion, *ref;
+} ratio_work;
+
+/* The sought ion first, the reference second (P 1 unless given), then the
+ * other permeabilities given from argv[first]. */
+static int ratio_perms(im_ctx *ctx, int argc, char **argv, int first, ratio_work *w,
+		       char *err)
+{
 	opts given;
+	w->ion = refdb_ion(ctx->ses->ref, argv[3]);
+	w->ref = refdb_ion(ctx->ses->ref, argv[4]);
+	if (!w->ion || !w->ref)
+		return im_fail(err, "unknown ion '%.40s'", !w->ion ? argv[3] : argv[4]);
+	if (w->ion->z == 0 || w->ref->z == 0)
+		return im_fail(err, "%s is neutral: it carries no current",
+			       w->ion->z == 0 ? w->ion->symbol : w->ref->symbol);
+	if (w->ion == w->ref)
+		return im_fail(err, "the ion and the reference are both %s", w->ion->symbol);
+	w->o.p[0] = (perm){w->ion, 1.0};
+	w->o.p[1] = (perm){w->ref, 1.0};
+	w->o.np = 2;
 	memset(&given, 0, sizeof given);
 	if (parse_rest(ctx, argc, argv, first, 0, &given, err))
 		return -1;
 	if (given.corrected)
-		return im_fail(err, "'corrected' belongs to erev; give ratio the "
-			       "LJP-corrected potential");
-	o.activities = given.activities;
+		return im_fail(err, "'corrected' belongs to erev; give ratio the LJP-corrected"
+			       " potential");
+	w->o.activities = given.activities;
 	for (int i = 0; i < given.np; i++) {
-		if (given.p[i].ion == ion)
+		if (given.p[i].ion == w->ion)
 			return im_fail(err, "P of %s is what ratio finds: leave it out",
-				       ion->symbol);
-		if (given.p[i].ion == ref) {
-			o.p[1].P = given.p[i].P;
+				       w->ion->symbol);
+		if (given.p[i].ion == w->ref) {
+			w->o.p[1].P = given.p[i].P;
 			continue;
 		}
-		if (o.np == MAX_PERM)
+		if (w->o.np == MAX_PERM)
 			return im_fail(err, "at most %d ions", MAX_PERM);
-		o.p[o.np++] = given.p[i];
+		w->o.p[w->o.np++] = given.p[i];
 	}
-	if (side_open(ctx, argv[1], &ins, err))
+	return 0;
+}
+
+/* ratio INSIDE OUTSIDE ION REF at MV | ... shift FROM TO by MV, [ION=P ...] */
+static int ratio_words(im_ctx *ctx, int argc, char **argv, ratio_work *w, char *err)
+{
+	if (argc < 7)
+		return im_fail(err, "usage: ratio INSIDE OUTSIDE ION REF at MV [ION=P ...] "
+			       "| ... shift FROM_BATH TO_BATH by MV [ION=P ...]");
+	w->shift = strcmp(argv[5], "shift") == 0;
+	if (!w->shift && strcmp(argv[5], "at") != 0)
+		return im_fail(err, "expected 'at MV' or 'shift FROM_BATH TO_BATH by MV' "
+			       "after the two ions, got '%.40s'", argv[5]);
+	if (w->shift && (argc < 10 || strcmp(argv[8], "by") != 0))
+		return im_fail(err, "usage: ratio INSIDE OUTSIDE ION REF shift FROM_BATH "
+			       "TO_BATH by MV [ION=P ...]");
+	if (parse_num(argv[w->shift ? 9 : 6], w->shift ? "shift (mV)" : "reversal potential "
+		      "(mV)", &w->mv, err))
 		return -1;
-	if (side_open(ctx, argv[shift ? 6 : 2], &outs, err))
-		goto done;
-	if (shift) {
-		if (!ws_find(&ctx->ses->ws, argv[2])) {
-			im_fail(err, "unknown solution '%.60s' (see `list`)", argv[2]);
-			goto done;
-		}
-		if (side_open(ctx, argv[7], &to, err))
-			goto done;
-	}
-	fill(&o, &ins, &outs, x);
-	if (shift) {
-		for (int i = 0; i < o.np; i++)
-			to_out[i] = conc(&to, o.p[i].ion, o.activities);
-		if (ghk_ratio_shift(x, o.np, to_out, 0, 1, mv, ctx->ses->temp_C, &q, err))
-			goto done;
-	} else if (ghk_ratio(x, o.np, 0, 1, mv, ctx->ses->temp_C, &q, err)) {
-		goto done;
+	return ratio_perms(ctx, argc, argv, w->shift ? 10 : 7, w, err);
+}
+
+/* Open the sides and find the ratio, and the reversal potentials at it. */
+static int ratio_compute(im_ctx *ctx, char **argv, ratio_work *w, char *err)
+{
+	double t_C = ctx->ses->temp_C;
+	if (side_open(ctx, argv[1], &w->ins, err) ||
+	    side_open(ctx, argv[w->shift ? 6 : 2], &w->outs, err))
+		return -1;
+	if (w->shift && !ws_find(&ctx->ses->ws, argv[2]))
+		return im_fail(err, "unknown solution '%.60s' (see `list`)", argv[2]);
+	if (w->shift && side_open(ctx, argv[7], &w->to, err))
+		return -1;
+	fill(&w->o, &w->ins, &w->outs, w->x);
+	if (w->shift) {
+		for (int i = 0; i < w->o.np; i++)
+			w->to_out[i] = conc(&w->to, w->o.p[i].ion, w->o.activities);
+		if (ghk_ratio_shift(w->x, w->o.np, w->to_out, 0, 1, w->mv, t_C, &w->q, err))
+			return -1;
+	} else if (ghk_ratio(w->x, w->o.np, 0, 1, w->mv, t_C, &w->q, err)) {
+		return -1;
 	}
 	/* the reversal potentials at the ratio found, for the record */
-	double E1 = 0, E2 = 0;
-	int have_E = 0;
-	x[0].P = q * x[1].P;
-	if (ghk_erev_present_mV(x, o.np, ctx->ses->temp_C, &E1, NULL) == 0) {
-		have_E = 1;
-		if (shift) {
-			for (int i = 0; i < o.np; i++)
-				x[i].out_mM = to_out[i];
-			have_E = ghk_erev_present_mV(x, o.np, ctx->ses->temp_C, &E2, NULL) == 0;
+	w->x[0].P = w->q * w->x[1].P;
+	if (ghk_erev_present_mV(w->x, w->o.np, t_C, &w->E1, NULL) == 0) {
+		w->have_E = 1;
+		if (w->shift) {
+			for (int i = 0; i < w->o.np; i++)
+				w->x[i].out_mM = w->to_out[i];
+			w->have_E = ghk_erev_present_mV(w->x, w->o.np, t_C, &w->E2, NULL) == 0;
 		}
 	}
-	if (ctx->out->json) {
-		jw w;
-		jw_begin(&w, ctx->out);
-		jw_str(&w, "inside", ins.sol->name);
-		jw_str(&w, "outside", outs.sol->name);
-		if (shift) {
-			jw_str(&w, "from_bath", outs.sol->name);
-			jw_str(&w, "to_bath", to.sol->name);
-		}
-		jw_num(&w, "temperature_C", ctx->ses->temp_C, 6);
-		jw_str(&w, "from", basis(&o));
-		jw_str(&w, "ion", ion->symbol);
-		jw_str(&w, "ref", ref->symbol);
-		jw_num(&w, "ratio", q, 8);
-		jw_str(&w, "method", shift ? "shift" : "reversal potential");
-		jw_num(&w, "measured_mV", mv, 8);
-		jw_obj(&w, "held_permeabilities");
-		for (int i = 1; i < o.np; i++)
-			jw_num(&w, o.p[i].ion->symbol, o.p[i].P, 10);
-		jw_close(&w);
-		if (have_E && shift) {
-			jw_num(&w, "E_rev_from_mV", E1, 8);
-			jw_num(&w, "E_rev_to_mV", E2, 8);
-		}
-		jw_str(&w, "convention", CONVENTION);
-		jw_end(&w);
-	} else {
-		if (shift)
-			out_printf(ctx->out, "permeability ratio from a reversal-potential "
-				   "shift: %s inside, bath %s -> %s, %.1f C, from %s\n",
-				   ins.sol->name, outs.sol->name, to.sol->name, ctx->ses->temp_C,
-				   basis(&o));
-		else
-			out_printf(ctx->out, "permeability ratio from a reversal potential: "
-				   "%s inside, %s outside, %.1f C, from %s\n",
-				   ins.sol->name, outs.sol->name, ctx->ses->temp_C, basis(&o));
-		out_printf(ctx->out, "  P(%s)/P(%s) = %.4g\n", ion->symbol, ref->symbol, q);
-		if (shift)
-			out_printf(ctx->out, "  measured shift %+.2f mV", mv);
-		else
-			out_printf(ctx->out, "  measured E_rev %+.2f mV", mv);
-		out_printf(ctx->out, "; held: P(%s) = %g", ref->symbol, o.p[1].P);
-		for (int i = 2; i < o.np; i++)
-			out_printf(ctx->out, ", P(%s) = %g", o.p[i].ion->symbol, o.p[i].P);
-		out_printf(ctx->out, "\n");
-		if (shift && have_E)
-			out_printf(ctx->out, "  at this ratio E_rev is %+.2f mV in %s and "
-				   "%+.2f mV in %s\n", E1, outs.sol->name, E2, to.sol->name);
-		if (shift && strcmp(argv[2], argv[6]) != 0 && strcmp(argv[2], argv[7]) != 0)
-			out_printf(ctx->out, "  note: %s is not used in the shift form (the "
-				   "baths are %s and %s)\n", argv[2], argv[6], argv[7]);
-		out_printf(ctx->out, "  sign: %s\n", CONVENTION);
+	return 0;
+}
+
+static void ratio_json(render *r, double t_C, const ratio_work *w)
+{
+	render_str(r, "inside", NULL, w->ins.sol->name);
+	render_str(r, "outside", NULL, w->outs.sol->name);
+	if (w->shift) {
+		render_str(r, "from_bath", NULL, w->outs.sol->name);
+		render_str(r, "to_bath", NULL, w->to.sol->name);
 	}
-	rc = 0;
-done:
-	side_close(&ins);
-	side_close(&outs);
-	side_close(&to);
+	render_numj(r, "temperature_C", NULL, NULL, t_C, 0, 6);
+	render_str(r, "from", NULL, basis(&w->o));
+	render_str(r, "ion", NULL, w->ion->symbol);
+	render_str(r, "ref", NULL, w->ref->symbol);
+	render_numj(r, "ratio", NULL, NULL, w->q, 0, 8);
+	render_str(r, "method", NULL, w->shift ? "shift" : "reversal potential");
+	render_numj(r, "measured_mV", NULL, NULL, w->mv, 0, 8);
+	render_object(r, "held_permeabilities");
+	for (int i = 1; i < w->o.np; i++)
+		render_numj(r, w->o.p[i].ion->symbol, NULL, NULL, w->o.p[i].P, 0, 10);
+	render_object_end(r);
+	if (w->have_E && w->shift) {
+		render_numj(r, "E_rev_from_mV", NULL, NULL, w->E1, 0, 8);
+		render_numj(r, "E_rev_to_mV", NULL, NULL, w->E2, 0, 8);
+	}
+	render_str(r, "convention", NULL, CONVENTION);
+}
+
+static void ratio_text(render *r, double t_C, char **argv, const ratio_work *w)
+{
+	const char *in = w->ins.sol->name, *out = w->outs.sol->name;
+	if (w->shift)
+		render_text(r, "permeability ratio from a reversal-potential shift: %s inside,"
+			    " bath %s -> %s, %.1f C, from %s", in, out, w->to.sol->name, t_C,
+			    basis(&w->o));
+	else
+		render_text(r, "permeability ratio from a reversal potential: %s inside, %s"
+			    " outside, %.1f C, from %s", in, out, t_C, basis(&w->o));
+	render_text(r, "  P(%s)/P(%s) = %.4g", w->ion->symbol, w->ref->symbol, w->q);
+	render_text(r, "  measured %s %+.2f mV; held: P(%s) = %g", w->shift ? "shift" : "E_rev",
+		    w->mv, w->ref->symbol, w->o.p[1].P);
+	for (int i = 2; i < w->o.np; i++)
+		render_text_more(r, ", P(%s) = %g", w->o.p[i].ion->symbol, w->o.p[i].P);
+	if (w->shift && w->have_E)
+		render_text(r, "  at this ratio E_rev is %+.2f mV in %s and %+.2f mV in %s", w->E1,
+			    out, w->E2, w->to.sol->name);
+	if (w->shift && strcmp(argv[2], argv[6]) != 0 && strcmp(argv[2], argv[7]) != 0)
+		render_text(r, "  note: %s is not used in the shift form (the baths are %s and"
+			    " %s)", argv[2], argv[6], argv[7]);
+	render_text(r, "  sign: %s", CONVENTION);
+}
+
+int cmd_ghk_ratio(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	ratio_work w;
+	int rc = -1;
+	memset(&w, 0, sizeof w);
+	if (ratio_words(ctx, argc, argv, &w, err) == 0 && ratio_compute(ctx, argv, &w, err) == 0) {
+		render *r = render_new(ctx->out);
+		ratio_text(r, ctx->ses->temp_C, argv, &w);
+		ratio_json(r, ctx->ses->temp_C, &w);
+		render_done(r);
+		rc = 0;
+	}
+	side_close(&w.ins);
+	side_close(&w.outs);
+	side_close(&w.to);
 	return rc;
 }
 
