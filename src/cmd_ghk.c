@@ -4,7 +4,6 @@
  * through output.h (human text or one JSON object).
  */
 #include "cmd_ghk.h"
-#include "cmd_junction.h"
 
 #include <errno.h>
 #include <math.h>
