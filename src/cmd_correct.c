@@ -259,11 +259,11 @@ static void report(out *o, const ljp_src *src, double t_C, const char *in,
 		render_bool(rd, "unit_assumed", NULL, r->cols[i].unit_assumed);
 	}
 	render_table_end(rd);
-	render_done(rd);
-	for (int i = 0; !o->json && i < r->ncols; i++)
+	for (int i = 0; i < r->ncols; i++)
 		if (r->cols[i].unit_assumed)
-			out_note(o, "note: column %d has no unit in its header; its values were"
-				 " taken as mV", r->cols[i].index);
+			render_note(rd, "column %d has no unit in its header; its values were taken"
+				    " as mV", r->cols[i].index);
+	render_done(rd);
 }
 
 /* ---- NWB recordings: the logic is in nwb.c ---- */
