@@ -17,6 +17,7 @@
 #include "ljp.h"
 #include "output.h"
 #include "refdb.h"
+#include "render.h"
 #include "session.h"
 #include "solution.h"
 #include "units.h"
@@ -60,20 +61,6 @@ static void cautions_free(cautions *c)
 	free(c->msg);
 	c->msg = NULL;
 	c->n = 0;
-}
-
-static void print_cautions(im_ctx *ctx, const cautions *c)
-{
-	for (int i = 0; i < c->n; i++)
-		out_note(ctx->out, "%s", c->msg[i]);
-}
-
-static void json_cautions(jw *w, const cautions *c)
-{
-	jw_arr(w, "cautions");
-	for (int i = 0; i < c->n; i++)
-		jw_str(w, NULL, c->msg[i]);
-	jw_close(w);
 }
 
 static int find_solution(im_ctx *ctx, const char *name, solution **res, char *err)
@@ -202,53 +189,45 @@ static int parse_junction_opts(int argc, char **argv, int *act, int *models, cha
 	return 0;
 }
 
-static void print_corrections(im_ctx *ctx, const ljp_result *r)
+static void text_corrections(render *rd, const ljp_result *r)
 {
-	out_printf(ctx->out,
-		   "sign: the LJP is the potential of the bath relative to the pipette "
-		   "solution\n");
-	out_printf(ctx->out,
-		   "correction, after zeroing with the pipette in this bath:\n");
-	out_printf(ctx->out,
-		   "  whole-cell, outside-out: Vm = Vpipette - LJP; a command of %.0f mV "
-		   "is really %.1f mV\n",
-		   r->wc_example_cmd_mV, r->wc_example_true_mV);
-	out_printf(ctx->out,
-		   "  cell-attached: once sealed there is no junction at the tip, but "
-		   "the offset keeps the LJP:\n    the pipette is truly at Vpipette - "
-		   "LJP and the patch at Vrest - (Vpipette - LJP)\n");
-	out_printf(ctx->out,
-		   "  inside-out: the bath faces the inner side, so Vm = -(Vpipette - "
-		   "LJP0), with LJP0 the junction\n    when you zeroed (this one only if "
-		   "you zeroed in this bath); %+.0f mV in the pipette is\n    %.1f mV "
-		   "here. The patch closes the tip, so a bath change adds no tip "
-		   "junction,\n    only the ground's shift (see `exchange`) (Neher 1992, "
-		   "Methods Enzymol 207:123)\n",
-		   r->io_example_cmd_mV, r->io_example_true_mV);
-	out_printf(ctx->out,
-		   "  perforated patch: Vm = Vpipette - LJP as for whole-cell, but this "
-		   "ignores the Donnan\n    potential between pipette and cytoplasm "
-		   "across the perforated patch\n");
+	render_text(rd, "sign: the LJP is the potential of the bath relative to the pipette "
+		    "solution");
+	render_text(rd, "correction, after zeroing with the pipette in this bath:");
+	render_text(rd, "  whole-cell, outside-out: Vm = Vpipette - LJP; a command of %.0f mV "
+		    "is really %.1f mV", r->wc_example_cmd_mV, r->wc_example_true_mV);
+	render_text(rd, "  cell-attached: once sealed there is no junction at the tip, but "
+		    "the offset keeps the LJP:\n    the pipette is truly at Vpipette - "
+		    "LJP and the patch at Vrest - (Vpipette - LJP)");
+	render_text(rd, "  inside-out: the bath faces the inner side, so Vm = -(Vpipette - "
+		    "LJP0), with LJP0 the junction\n    when you zeroed (this one only if "
+		    "you zeroed in this bath); %+.0f mV in the pipette is\n    %.1f mV "
+		    "here. The patch closes the tip, so a bath change adds no tip "
+		    "junction,\n    only the ground's shift (see `exchange`) (Neher 1992, "
+		    "Methods Enzymol 207:123)", r->io_example_cmd_mV, r->io_example_true_mV);
+	render_text(rd, "  perforated patch: Vm = Vpipette - LJP as for whole-cell, but this "
+		    "ignores the Donnan\n    potential between pipette and cytoplasm "
+		    "across the perforated patch");
 }
 
-static void json_corrections(jw *w, const ljp_result *r)
+static void json_corrections(render *rd, const ljp_result *r)
 {
-	jw_obj(w, "correction");
-	jw_str(w, "whole_cell", "Vm = Vpipette - LJP");
-	jw_str(w, "outside_out", "Vm = Vpipette - LJP");
-	jw_num(w, "example_command_mV", r->wc_example_cmd_mV, 6);
-	jw_num(w, "example_true_mV", r->wc_example_true_mV, 6);
-	jw_str(w, "cell_attached",
-	       "pipette truly at Vpipette - LJP; Vpatch = Vrest - (Vpipette - LJP)");
-	jw_str(w, "inside_out",
-	       "Vm = -(Vpipette - LJP0), LJP0 the junction at zeroing; a bath change "
-	       "adds no tip junction, only the ground's shift");
-	jw_num(w, "inside_out_example_command_mV", r->io_example_cmd_mV, 6);
-	jw_num(w, "inside_out_example_true_mV", r->io_example_true_mV, 6);
-	jw_str(w, "perforated",
-	       "Vm = Vpipette - LJP; ignores the Donnan potential between pipette and "
-	       "cytoplasm across the perforated patch");
-	jw_close(w);
+	render_object(rd, "correction");
+	render_str(rd, "whole_cell", NULL, "Vm = Vpipette - LJP");
+	render_str(rd, "outside_out", NULL, "Vm = Vpipette - LJP");
+	render_numj(rd, "example_command_mV", NULL, NULL, r->wc_example_cmd_mV, 0, 6);
+	render_numj(rd, "example_true_mV", NULL, NULL, r->wc_example_true_mV, 0, 6);
+	render_str(rd, "cell_attached", NULL,
+		   "pipette truly at Vpipette - LJP; Vpatch = Vrest - (Vpipette - LJP)");
+	render_str(rd, "inside_out", NULL,
+		   "Vm = -(Vpipette - LJP0), LJP0 the junction at zeroing; a bath change "
+		   "adds no tip junction, only the ground's shift");
+	render_numj(rd, "inside_out_example_command_mV", NULL, NULL, r->io_example_cmd_mV, 0, 6);
+	render_numj(rd, "inside_out_example_true_mV", NULL, NULL, r->io_example_true_mV, 0, 6);
+	render_str(rd, "perforated", NULL,
+		   "Vm = Vpipette - LJP; ignores the Donnan potential between pipette and "
+		   "cytoplasm across the perforated patch");
+	render_object_end(rd);
 }
 
 static const char *range_method =
@@ -256,180 +235,184 @@ static const char *range_method =
 	"vertex method on the Henderson equation, the same offsets for the other "
 	"models";
 
-static void json_junction(im_ctx *ctx, const char *pn, const char *bn, int act,
-			  const ljp_result *r)
+/* The symbols of the species whose mobility is unknown (how == LJP_NO_SIZE,
+ * by 0) or estimated (by 1), as a JSON list under key. */
+static void json_mobility_list(render *rd, const char *key, const ljp_result *r, int est)
 {
-	jw w;
-	jw_begin(&w, ctx->out);
-	jw_str(&w, "pipette", pn);
-	jw_str(&w, "bath", bn);
-	jw_num(&w, "temperature_C", r->t_C, 6);
-	jw_str(&w, "from", act ? "activities" : "concentrations");
-	jw_str(&w, "model", r->models_asked > 1 ? "all" : model_name[r->main_model]);
-	jw_num(&w, "ljp_mV", r->ljp_mV, 6);
-	jw_arr(&w, "ljp_range_mV");
-	jw_num(&w, NULL, r->lo_mV, 6);
-	jw_num(&w, NULL, r->hi_mV, 6);
-	jw_close(&w);
-	jw_arr(&w, "henderson_range_mV");
-	jw_num(&w, NULL, r->henderson_lo_mV, 6);
-	jw_num(&w, NULL, r->henderson_hi_mV, 6);
-	jw_close(&w);
-	jw_str(&w, "range_method", range_method);
-	jw_obj(&w, "mobility_sources");
-	jw_int(&w, "measured", r->count[RD_MOB_MEASURED]);
-	jw_int(&w, "from_memory", r->count[RD_MOB_MEMORY]);
-	jw_int(&w, "estimated", r->count[RD_MOB_ESTIMATED]);
-	jw_close(&w);
-	/* species with no mobility and no size in the data (bounded widely),
-	 * and those whose mobility is estimated: whole lists */
-	jw_arr(&w, "mobility_unknown");
+	const char **v = im_xcalloc((size_t)r->n + 1, sizeof *v);
+	int n = 0;
 	for (int k = 0; k < r->n; k++)
-		if (r->sp[k].mob.how == LJP_NO_SIZE)
-			jw_str(&w, NULL, r->sp[k].ion->symbol);
-	jw_close(&w);
-	jw_arr(&w, "mobility_estimated");
-	for (int k = 0; k < r->n; k++)
-		if (r->sp[k].mob.cls == RD_MOB_ESTIMATED)
-			jw_str(&w, NULL, r->sp[k].ion->symbol);
-	jw_close(&w);
-	if (r->driver >= 0) {
-		jw_obj(&w, "range_driver");
-		jw_str(&w, "ion", r->sp[r->driver].ion->symbol);
-		jw_num(&w, "width_share", r->driver_share, 3);
-		jw_close(&w);
-	}
-	jw_str(&w, "sign", "potential of the bath relative to the pipette solution");
-	jw_bool(&w, "identical", r->identical);
-	jw_obj(&w, "models");
-	for (int m = 0; m < LJP_NMODELS; m++)
-		if (r->model[m].asked && r->model[m].ok)
-			jw_num(&w, model_name[m], r->model[m].ljp_mV, 9);
-	jw_close(&w);
-	if (r->models_ok < r->models_asked) {
-		jw_obj(&w, "not_applicable");
-		for (int m = 0; m < LJP_NMODELS; m++)
-			if (r->model[m].asked && !r->model[m].ok)
-				jw_str(&w, model_name[m], r->model[m].why);
-		jw_close(&w);
-	}
-	jw_int(&w, "models_asked", r->models_asked);
-	jw_int(&w, "models_ok", r->models_ok);
-	if (r->models_asked > 1)
-		jw_num(&w, "spread_mV", r->spread_mV, 6);
-	if (r->model[LJP_DIFFUSION].asked && r->model[LJP_DIFFUSION].ok &&
-	    r->diffusion.grid_points > 0) {
-		jw_obj(&w, "diffusion_solver");
-		jw_int(&w, "grid_points", r->diffusion.grid_points);
-		jw_int(&w, "grids", r->diffusion.grids);
-		jw_int(&w, "steps", r->diffusion.newton_its);
-		jw_int(&w, "continuation_steps", r->diffusion.continuation);
-		jw_num(&w, "error_estimate_mV", r->diffusion.grid_err_mV, 3);
-		jw_close(&w);
-	}
-	jw_arr(&w, "contributions");
-	for (int k = 0; k < r->n; k++) {
-		const ljp_species *s = &r->sp[k];
-		jw_obj(&w, NULL);
-		jw_str(&w, "ion", s->x.symbol);
-		jw_int(&w, "z", s->x.z);
-		jw_num(&w, "D_1e9_m2_s", s->x.D_m2_s * 1e9, 10);
-		jw_num(&w, "pipette_mM", s->x.pip_mM, 10);
-		jw_num(&w, "bath_mM", s->x.bath_mM, 10);
-		jw_num(&w, "share_mV", s->share_mV, 5);
-		jw_str(&w, "mobility_class", ljp_class_name(s->mob.cls));
-		jw_num(&w, "mobility_rel_unc", s->mob.rel_unc, 3);
-		jw_str(&w, "mobility_source", s->mob.source ? s->mob.source->id : NULL);
-		jw_num(&w, "range_width_share", s->width_share, 3);
-		jw_close(&w);
-	}
-	jw_close(&w);
-	json_corrections(&w, r);
-	jw_arr(&w, "cautions");
-	for (int i = 0; i < r->ncaution; i++)
-		jw_str(&w, NULL, r->caution[i]);
-	jw_close(&w);
-	jw_end(&w);
+		if (est ? r->sp[k].mob.cls == RD_MOB_ESTIMATED : r->sp[k].mob.how == LJP_NO_SIZE)
+			v[n++] = r->sp[k].ion->symbol;
+	render_list(rd, key, NULL, v, n);
+	free(v);
 }
 
-static void print_model_line(im_ctx *ctx, const ljp_result *r, int m)
+/* The head of the JSON: the pair, the value, its range and where the
+ * mobilities came from. */
+static void json_head(render *rd, const char *pn, const char *bn, int act, const ljp_result *r)
+{
+	render_str(rd, "pipette", NULL, pn);
+	render_str(rd, "bath", NULL, bn);
+	render_numj(rd, "temperature_C", NULL, NULL, r->t_C, 0, 6);
+	render_str(rd, "from", NULL, act ? "activities" : "concentrations");
+	render_str(rd, "model", NULL, r->models_asked > 1 ? "all" : model_name[r->main_model]);
+	render_numj(rd, "ljp_mV", NULL, NULL, r->ljp_mV, 0, 6);
+	render_range(rd, "ljp_range_mV", NULL, "mV", r->lo_mV, r->hi_mV, UNITS_DEC(1));
+	render_range(rd, "henderson_range_mV", NULL, "mV", r->henderson_lo_mV,
+		     r->henderson_hi_mV, UNITS_DEC(1));
+	render_str(rd, "range_method", NULL, range_method);
+	render_object(rd, "mobility_sources");
+	render_int(rd, "measured", NULL, r->count[RD_MOB_MEASURED]);
+	render_int(rd, "from_memory", NULL, r->count[RD_MOB_MEMORY]);
+	render_int(rd, "estimated", NULL, r->count[RD_MOB_ESTIMATED]);
+	render_object_end(rd);
+	/* species with no mobility and no size in the data (bounded widely),
+	 * and those whose mobility is estimated: whole lists */
+	json_mobility_list(rd, "mobility_unknown", r, 0);
+	json_mobility_list(rd, "mobility_estimated", r, 1);
+	if (r->driver >= 0) {
+		render_object(rd, "range_driver");
+		render_str(rd, "ion", NULL, r->sp[r->driver].ion->symbol);
+		render_numj(rd, "width_share", NULL, NULL, r->driver_share, 0, 3);
+		render_object_end(rd);
+	}
+	render_str(rd, "sign", NULL, "potential of the bath relative to the pipette solution");
+	render_bool(rd, "identical", NULL, r->identical);
+}
+
+/* The models asked, their values and the diffusion solver's figures. */
+static void json_models(render *rd, const ljp_result *r)
+{
+	render_object(rd, "models");
+	for (int m = 0; m < LJP_NMODELS; m++)
+		if (r->model[m].asked && r->model[m].ok)
+			render_numj(rd, model_name[m], NULL, NULL, r->model[m].ljp_mV, 0, 9);
+	render_object_end(rd);
+	if (r->models_ok < r->models_asked) {
+		render_object(rd, "not_applicable");
+		for (int m = 0; m < LJP_NMODELS; m++)
+			if (r->model[m].asked && !r->model[m].ok)
+				render_str(rd, model_name[m], NULL, r->model[m].why);
+		render_object_end(rd);
+	}
+	render_int(rd, "models_asked", NULL, r->models_asked);
+	render_int(rd, "models_ok", NULL, r->models_ok);
+	if (r->models_asked > 1)
+		render_numj(rd, "spread_mV", NULL, NULL, r->spread_mV, 0, 6);
+	if (r->model[LJP_DIFFUSION].asked && r->model[LJP_DIFFUSION].ok &&
+	    r->diffusion.grid_points > 0) {
+		render_object(rd, "diffusion_solver");
+		render_int(rd, "grid_points", NULL, r->diffusion.grid_points);
+		render_int(rd, "grids", NULL, r->diffusion.grids);
+		render_int(rd, "steps", NULL, r->diffusion.newton_its);
+		render_int(rd, "continuation_steps", NULL, r->diffusion.continuation);
+		render_numj(rd, "error_estimate_mV", NULL, NULL, r->diffusion.grid_err_mV, 0, 3);
+		render_object_end(rd);
+	}
+}
+
+/* Each ion's part: a JSON-only table (the text shows the ranked bars). */
+static void json_contributions(render *rd, const ljp_result *r)
+{
+	render_table(rd, "contributions", NULL);
+	for (int k = 0; k < r->n; k++) {
+		const ljp_species *s = &r->sp[k];
+		render_row(rd);
+		render_str(rd, "ion", NULL, s->x.symbol);
+		render_int(rd, "z", NULL, s->x.z);
+		render_numj(rd, "D_1e9_m2_s", NULL, NULL, s->x.D_m2_s * 1e9, 0, 10);
+		render_numj(rd, "pipette_mM", NULL, NULL, s->x.pip_mM, 0, 10);
+		render_numj(rd, "bath_mM", NULL, NULL, s->x.bath_mM, 0, 10);
+		render_numj(rd, "share_mV", NULL, NULL, s->share_mV, 0, 5);
+		render_str(rd, "mobility_class", NULL, ljp_class_name(s->mob.cls));
+		render_numj(rd, "mobility_rel_unc", NULL, NULL, s->mob.rel_unc, 0, 3);
+		render_str(rd, "mobility_source", NULL, s->mob.source ? s->mob.source->id : NULL);
+		render_numj(rd, "range_width_share", NULL, NULL, s->width_share, 0, 3);
+	}
+	render_table_end(rd);
+}
+
+static void json_junction(render *rd, const char *pn, const char *bn, int act,
+			  const ljp_result *r)
+{
+	json_head(rd, pn, bn, act, r);
+	json_models(rd, r);
+	json_contributions(rd, r);
+	json_corrections(rd, r);
+	render_list(rd, "cautions", NULL, (const char *const *)r->caution, r->ncaution);
+}
+
+static void text_model_line(render *rd, const ljp_result *r, int m)
 {
 	const ljp_model_run *x = &r->model[m];
 	if (!x->ok) {
-		out_printf(ctx->out, "  %-16s %8s   no value: %s\n", model_title[m], "-",
-			   x->why);
+		render_text(rd, "  %-16s %8s   no value: %s", model_title[m], "-", x->why);
 		return;
 	}
-	out_printf(ctx->out, "  %-16s %+8.2f   (%.1f to %.1f)", model_title[m], x->ljp_mV,
-		   x->lo_mV, x->hi_mV);
+	render_text(rd, "  %-16s %+8.2f   (%.1f to %.1f)", model_title[m], x->ljp_mV, x->lo_mV,
+		    x->hi_mV);
 	if (m == LJP_DIFFUSION && r->diffusion.grid_points > 0)
-		out_printf(ctx->out, "   grid %d points, error ~%.1g mV",
-			   r->diffusion.grid_points, fmax(r->diffusion.grid_err_mV, 1e-6));
-	out_printf(ctx->out, "\n");
+		render_text_more(rd, "   grid %d points, error ~%.1g mV", r->diffusion.grid_points,
+				 fmax(r->diffusion.grid_err_mV, 1e-6));
 }
 
-static void text_junction(im_ctx *ctx, const char *pn, const char *bn, int act,
-			  const ljp_result *r)
+/* The models compared (model all), or the Henderson value beside another. */
+static void text_models(render *rd, const ljp_result *r)
 {
-	out_printf(ctx->out,
-		   "Liquid junction potential: pipette %s | bath %s, %.1f C, from %s\n", pn,
-		   bn, r->t_C, act ? "activities" : "concentrations");
-	if (r->identical) {
-		out_printf(ctx->out,
-			   "  pipette and bath are identical: there is no liquid junction "
-			   "potential (LJP = 0 mV)\n  no correction: Vm = Vpipette\n");
-		return;
-	}
-	out_printf(ctx->out,
-		   "  LJP = %+.1f mV (%.1f to %.1f), %s: the bath is %.1f mV %s to the "
-		   "pipette solution\n",
-		   r->ljp_mV, r->lo_mV, r->hi_mV, model_title[r->main_model], fabs(r->ljp_mV),
-		   r->ljp_mV >= 0 ? "positive" : "negative");
-	out_printf(ctx->out,
-		   "  range: every mobility within its uncertainty (interval, vertex "
-		   "method); mobilities\n    %d measured, %d from memory, %d estimated",
-		   r->count[RD_MOB_MEASURED], r->count[RD_MOB_MEMORY],
-		   r->count[RD_MOB_ESTIMATED]);
-	if (r->driver >= 0 && r->driver_share >= 0.4)
-		out_printf(ctx->out, "; %s alone makes %.0f %% of the width",
-			   r->sp[r->driver].ion->symbol, 100.0 * r->driver_share);
-	out_printf(ctx->out, "\n");
 	if (r->models_asked > 1) {
-		out_printf(ctx->out, "  %-16s %8s   %s\n", "model", "LJP mV", "range mV");
+		render_text(rd, "  %-16s %8s   %s", "model", "LJP mV", "range mV");
 		for (int m = 0; m < LJP_NMODELS; m++)
 			if (r->model[m].asked)
-				print_model_line(ctx, r, m);
+				text_model_line(rd, r, m);
 		if (r->models_ok >= 2)
-			out_printf(ctx->out,
-				   "  %-16s %8.2f   (largest minus smallest, over %d of %d "
-				   "models)\n",
-				   "spread", r->spread_mV, r->models_ok, r->models_asked);
+			render_text(rd, "  %-16s %8.2f   (largest minus smallest, over %d of %d "
+				    "models)", "spread", r->spread_mV, r->models_ok,
+				    r->models_asked);
 		else
-			out_printf(ctx->out,
-				   "  %-16s %8s   (only %d of %d models gave a value)\n",
-				   "spread", "-", r->models_ok, r->models_asked);
+			render_text(rd, "  %-16s %8s   (only %d of %d models gave a value)",
+				    "spread", "-", r->models_ok, r->models_asked);
 	} else if (r->main_model != LJP_HENDERSON) {
-		out_printf(ctx->out, "  (Henderson gives %+.2f mV", r->henderson_mV);
+		render_text(rd, "  (Henderson gives %+.2f mV", r->henderson_mV);
 		if (r->main_model == LJP_DIFFUSION && r->diffusion.grid_points > 0)
-			out_printf(ctx->out,
-				   "; free diffusion solved on a grid of %d points, "
-				   "estimated error ~%.1g mV",
-				   r->diffusion.grid_points,
-				   fmax(r->diffusion.grid_err_mV, 1e-6));
-		out_printf(ctx->out, ")\n");
+			render_text_more(rd, "; free diffusion solved on a grid of %d points, "
+					 "estimated error ~%.1g mV", r->diffusion.grid_points,
+					 fmax(r->diffusion.grid_err_mV, 1e-6));
+		render_text_more(rd, ")");
 	}
-	{
-		char *bd = ljp_breakdown_text(r, "  ");
-		out_printf(ctx->out,
-			   "what drives it: each ion's share of the Henderson LJP, largest "
-			   "first (bar to scale;\nbath-positive shares to the right of |; "
-			   "all data per ion: --json or `info ION`):\n%s",
-			   bd);
-		free(bd);
+}
+
+static void text_junction(render *rd, const char *pn, const char *bn, int act,
+			  const ljp_result *r)
+{
+	render_text(rd, "Liquid junction potential: pipette %s | bath %s, %.1f C, from %s", pn,
+		    bn, r->t_C, act ? "activities" : "concentrations");
+	if (r->identical) {
+		render_text(rd, "  pipette and bath are identical: there is no liquid junction "
+			    "potential (LJP = 0 mV)\n  no correction: Vm = Vpipette");
+		return;
 	}
-	print_corrections(ctx, r);
+	render_text(rd, "  LJP = %+.1f mV (%.1f to %.1f), %s: the bath is %.1f mV %s to the "
+		    "pipette solution", r->ljp_mV, r->lo_mV, r->hi_mV, model_title[r->main_model],
+		    fabs(r->ljp_mV), r->ljp_mV >= 0 ? "positive" : "negative");
+	render_text(rd, "  range: every mobility within its uncertainty (interval, vertex "
+		    "method); mobilities\n    %d measured, %d from memory, %d estimated",
+		    r->count[RD_MOB_MEASURED], r->count[RD_MOB_MEMORY], r->count[RD_MOB_ESTIMATED]);
+	if (r->driver >= 0 && r->driver_share >= 0.4)
+		render_text_more(rd, "; %s alone makes %.0f %% of the width",
+				 r->sp[r->driver].ion->symbol, 100.0 * r->driver_share);
+	text_models(rd, r);
+	char *bd = ljp_breakdown_text(r, "  ");
+	size_t n = strlen(bd);
+	if (n && bd[n - 1] == '\n')
+		bd[n - 1] = '\0';
+	render_text(rd, "what drives it: each ion's share of the Henderson LJP, largest "
+		    "first (bar to scale;\nbath-positive shares to the right of |; "
+		    "all data per ion: --json or `info ION`):%s%s", n > 1 ? "\n" : "", bd);
+	free(bd);
+	text_corrections(rd, r);
 	for (int i = 0; i < r->ncaution; i++)
-		out_note(ctx->out, "%s", r->caution[i]);
+		render_text(rd, "%s", r->caution[i]);
 }
 
 int cmd_junction(im_ctx *ctx, int argc, char **argv, char *err)
@@ -453,10 +436,10 @@ int cmd_junction(im_ctx *ctx, int argc, char **argv, char *err)
 		sol_state_free(&st_b);
 		return -1;
 	}
-	if (ctx->out->json)
-		json_junction(ctx, sp->name, sb->name, act, &r);
-	else
-		text_junction(ctx, sp->name, sb->name, act, &r);
+	render *rd = render_new(ctx->out);
+	text_junction(rd, sp->name, sb->name, act, &r);
+	json_junction(rd, sp->name, sb->name, act, &r);
+	render_done(rd);
 	ljp_free(&r);
 	sol_state_free(&st_p);
 	sol_state_free(&st_b);
@@ -583,193 +566,206 @@ static int bridge_state(im_ctx *ctx, xargs *x, sol_state *st, char *err)
 	return 0;
 }
 
-int cmd_exchange(im_ctx *ctx, int argc, char **argv, char *err)
-{
+/* Everything an exchange works with; exch_free releases what was made. */
+typedef struct exch {
 	xargs xa;
-	solution *so, *sn, *spp = NULL;
+	solution *so, *sn, *spp;
 	sol_state st_o, st_n, st_p, st_b;
 	pair tip_o, tip_n, br_o, br_n;
 	el_exchange_in in;
 	el_exchange x;
 	cautions cw;
-	int have_p = 0, have_b = 0, rc = -1;
-	const char *gname;
+	int have_on, have_p, have_b;
+} exch;
+
+static void exch_free(exch *e)
+{
+	cautions_free(&e->cw);
+	pair_free(&e->tip_o);
+	pair_free(&e->tip_n);
+	pair_free(&e->br_o);
+	pair_free(&e->br_n);
+	if (e->have_p)
+		sol_state_free(&e->st_p);
+	if (e->have_b)
+		sol_state_free(&e->st_b);
+	if (e->have_on) {
+		sol_state_free(&e->st_o);
+		sol_state_free(&e->st_n);
+	}
+}
+
+/* The tip junctions of the pipette against the old and the new bath. */
+static int exch_tip(im_ctx *ctx, exch *e, char *err)
+{
+	if (sol_compute(e->spp, ses_env(ctx->ses), &e->st_p, err))
+		return -1;
+	e->have_p = 1;
+	if (need_ions(&e->st_p, e->spp->name, err) ||
+	    build_pair(ctx, &e->st_p, &e->st_o, ctx->ses->temp_C, &e->tip_o, err) ||
+	    build_pair(ctx, &e->st_p, &e->st_n, ctx->ses->temp_C, &e->tip_n, err))
+		return -1;
+	e->in.tip_old = e->tip_o.ions;
+	e->in.n_tip_old = e->tip_o.n;
+	e->in.tip_new = e->tip_n.ions;
+	e->in.n_tip_new = e->tip_n.n;
+	mobility_caution(&e->tip_o, &e->cw);
+	return 0;
+}
+
+/* The junctions of a salt bridge against the old and the new bath. */
+static int exch_bridge(im_ctx *ctx, exch *e, char *err)
+{
+	if (bridge_state(ctx, &e->xa, &e->st_b, err))
+		return -1;
+	e->have_b = 1;
+	if (build_pair(ctx, &e->st_b, &e->st_o, ctx->ses->temp_C, &e->br_o, err) ||
+	    build_pair(ctx, &e->st_b, &e->st_n, ctx->ses->temp_C, &e->br_n, err))
+		return -1;
+	e->in.bridge_old = e->br_o.ions;
+	e->in.n_bridge_old = e->br_o.n;
+	e->in.bridge_new = e->br_n.ions;
+	e->in.n_bridge_new = e->br_n.n;
+	if (!e->spp)
+		mobility_caution(&e->br_o, &e->cw);
+	return 0;
+}
+
+/* The shift of an exchange (electrode.c), with its cautions. */
+static int exch_compute(im_ctx *ctx, exch *e, char *err)
+{
+	if (need_ions(&e->st_o, e->so->name, err) || need_ions(&e->st_n, e->sn->name, err))
+		return -1;
+	e->in.ground = e->xa.ground;
+	e->in.a_cl_old_mM = cl_activity(ctx, &e->st_o);
+	e->in.a_cl_new_mM = cl_activity(ctx, &e->st_n);
+	if (e->xa.ground == EL_GROUND_AGCL && (e->in.a_cl_old_mM <= 0 || e->in.a_cl_new_mM <= 0))
+		return im_fail(err, "bath '%.60s' has no Cl-: a bare Ag/AgCl ground has no defined"
+			       " potential there; use a salt bridge (e.g. `ground bridge KCl 3 M`)",
+			       e->in.a_cl_old_mM <= 0 ? e->so->name : e->sn->name);
+	if (e->spp && exch_tip(ctx, e, err))
+		return -1;
+	if (e->xa.ground == EL_GROUND_BRIDGE && exch_bridge(ctx, e, err))
+		return -1;
+	if (el_exchange_shift_mV(&e->in, ctx->ses->temp_C, &e->x, err))
+		return -1;
+	if (e->x.bridge_advised && e->xa.ground == EL_GROUND_AGCL)
+		caution(&e->cw, "the Ag/AgCl term is %.1f mV, above %.0f mV: a salt-bridge ground"
+			" (e.g. 3 M KCl in agar) is advisable (common practice)", e->x.agcl_mV,
+			EL_BRIDGE_ADVISE_mV);
+	return 0;
+}
+
+static void exch_json(render *r, double t_C, const exch *e)
+{
+	const el_exchange *x = &e->x;
+	render_str(r, "from", NULL, e->so->name);
+	render_str(r, "to", NULL, e->sn->name);
+	render_str(r, "ground", NULL, e->xa.ground == EL_GROUND_AGCL ? "agcl" : "bridge");
+	render_numj(r, "temperature_C", NULL, NULL, t_C, 0, 6);
+	render_numj(r, "shift_mV", NULL, NULL, x->shift_mV, 0, 6);
+	render_bool(r, "includes_tip", NULL, x->have_tip);
+	render_numj(r, "ground_term_mV", NULL, NULL, x->ground_mV, 0, 6);
+	render_str(r, "sign", NULL, "shift: open-tip reading (pipette minus ground) in the new"
+		   " bath after zeroing in the old; ground term: change of the bath against the"
+		   " ground wire");
+	render_numj(r, "a_cl_old_mM", NULL, NULL, e->in.a_cl_old_mM, 0, 6);
+	render_numj(r, "a_cl_new_mM", NULL, NULL, e->in.a_cl_new_mM, 0, 6);
+	if (x->have_agcl)
+		render_numj(r, "agcl_term_mV", NULL, NULL, x->agcl_mV, 0, 6);
+	render_bool(r, "bridge_advised", NULL, x->bridge_advised);
+	if (e->xa.ground == EL_GROUND_BRIDGE) {
+		render_object(r, "bridge");
+		render_str(r, "salt", NULL, e->xa.salt_c ? e->xa.salt_c->name : e->xa.salt);
+		render_numj(r, "conc_mM", NULL, NULL, e->xa.salt_mM, 0, 6);
+		render_numj(r, "old_ljp_mV", NULL, NULL, x->bridge_old_mV, 0, 6);
+		render_numj(r, "new_ljp_mV", NULL, NULL, x->bridge_new_mV, 0, 6);
+		render_object_end(r);
+	}
+	render_str(r, "pipette", NULL, e->spp ? e->spp->name : NULL);
+	if (x->have_tip) {
+		render_numj(r, "tip_old_mV", NULL, NULL, x->tip_old_mV, 0, 6);
+		render_numj(r, "tip_new_mV", NULL, NULL, x->tip_new_mV, 0, 6);
+		render_numj(r, "tip_change_mV", NULL, NULL, x->tip_new_mV - x->tip_old_mV, 0, 6);
+	}
+	render_str(r, "correction", NULL, "whole-cell, outside-out in the new bath: Vm ="
+		   " Vpipette - LJP(pipette|old) - ground_term; inside-out: Vm = -(Vpipette -"
+		   " LJP0 - ground_term)");
+	render_numj(r, "erev_add_mV", NULL, NULL, 0.0 - x->ground_mV, 0, 6);
+	render_list(r, "cautions", NULL, (const char *const *)e->cw.msg, e->cw.n);
+}
+
+/* The electrode lines: a bare Ag/AgCl wire or a salt bridge. */
+static void exch_text_ground(render *r, const exch *e)
+{
+	const el_exchange *x = &e->x;
+	if (x->have_agcl && e->xa.ground == EL_GROUND_AGCL)
+		render_text(r, "  Ag/AgCl in the bath: Cl- activity %.4g -> %.4g mM: electrode"
+			    " %+.1f mV,\n    so the bath %+.1f mV against it", e->in.a_cl_old_mM,
+			    e->in.a_cl_new_mM, 0.0 - x->agcl_mV, x->agcl_mV);
+	if (e->xa.ground != EL_GROUND_BRIDGE)
+		return;
+	render_text(r, "  bridge %s %.4g mM: junction to the old bath %+.2f mV, to the new"
+		    " %+.2f mV\n    (bath relative to bridge, Henderson with concentrations)",
+		    e->xa.salt_c ? e->xa.salt_c->name : e->xa.salt, e->xa.salt_mM,
+		    x->bridge_old_mV, x->bridge_new_mV);
+	if (x->have_agcl)
+		render_text(r, "  for comparison, a bare Ag/AgCl ground would move the bath"
+			    " %+.1f mV\n    (Cl- activity %.4g -> %.4g mM)", x->agcl_mV,
+			    e->in.a_cl_old_mM, e->in.a_cl_new_mM);
+}
+
+static void exch_text(render *r, double t_C, const exch *e)
+{
+	const el_exchange *x = &e->x;
+	const char *o = e->so->name, *n = e->sn->name;
+	render_text(r, "Bath exchange %s -> %s, %.1f C, ground: %s", o, n, t_C,
+		    e->xa.ground == EL_GROUND_AGCL ? "bare Ag/AgCl" : "salt bridge");
+	if (e->so == e->sn || sol_equal(e->so, e->sn))
+		render_text(r, "  the two baths are identical: nothing shifts (0 mV)");
+	exch_text_ground(r, e);
+	render_text(r, "  ground term g = %+.2f mV: the bath moves this much against the ground"
+		    " wire", x->ground_mV);
+	if (x->have_tip)
+		render_text(r, "  tip junction: pipette %s | old %+.2f mV, | new %+.2f mV (change"
+			    " %+.2f mV)", e->spp->name, x->tip_old_mV, x->tip_new_mV,
+			    x->tip_new_mV - x->tip_old_mV);
+	render_text(r, "  shift = %+.2f mV: the open-tip reading in the new bath after zeroing"
+		    " in the old\n    %s", x->shift_mV, x->have_tip ?
+		    "(g minus the change of the tip junction)" :
+		    "(ground term only: give `pipette NAME` for the tip term)");
+	render_text(r, "correction, zeroed in %s, recording in %s:", o, n);
+	render_text(r, "  whole-cell, outside-out: Vm = Vpipette - LJP(pipette|%s) - g; the"
+		    " sealed tip has no junction,\n    so the bath's shift appears with the"
+		    " opposite sign in Vm: a reversal potential read\n    in %s is truly Erev ="
+		    " read - LJP(pipette|%s) %+.2f mV", o, n, o, 0.0 - x->ground_mV);
+	render_text(r, "  inside-out: Vm = -(Vpipette - LJP0 - g)");
+	for (int i = 0; i < e->cw.n; i++)
+		render_text(r, "%s", e->cw.msg[i]);
+}
+
+int cmd_exchange(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	exch e;
+	int rc = -1;
+	memset(&e, 0, sizeof e);
 	if (argc < 3)
-		return im_fail(err,
-			       "usage: exchange OLD NEW [pipette NAME] [ground "
-			       "agcl|bridge SALT CONC]");
-	if (parse_exchange_opts(argc, argv, &xa, err) ||
-	    find_solution(ctx, argv[1], &so, err) ||
-	    find_solution(ctx, argv[2], &sn, err) ||
-	    (xa.pipette && find_solution(ctx, xa.pipette, &spp, err)))
+		return im_fail(err, "usage: exchange OLD NEW [pipette NAME] [ground agcl|bridge"
+			       " SALT CONC]");
+	if (parse_exchange_opts(argc, argv, &e.xa, err) ||
+	    find_solution(ctx, argv[1], &e.so, err) || find_solution(ctx, argv[2], &e.sn, err) ||
+	    (e.xa.pipette && find_solution(ctx, e.xa.pipette, &e.spp, err)))
 		return -1;
-	if (states(ctx, so, sn, &st_o, &st_n, err))
+	if (states(ctx, e.so, e.sn, &e.st_o, &e.st_n, err))
 		return -1;
-	memset(&tip_o, 0, sizeof tip_o);
-	memset(&tip_n, 0, sizeof tip_n);
-	memset(&br_o, 0, sizeof br_o);
-	memset(&br_n, 0, sizeof br_n);
-	memset(&in, 0, sizeof in);
-	memset(&cw, 0, sizeof cw);
-	if (need_ions(&st_o, so->name, err) || need_ions(&st_n, sn->name, err))
-		goto done;
-	in.ground = xa.ground;
-	in.a_cl_old_mM = cl_activity(ctx, &st_o);
-	in.a_cl_new_mM = cl_activity(ctx, &st_n);
-	if (xa.ground == EL_GROUND_AGCL && (in.a_cl_old_mM <= 0 || in.a_cl_new_mM <= 0)) {
-		im_fail(err,
-			"bath '%.60s' has no Cl-: a bare Ag/AgCl ground has no defined "
-			"potential there; use a salt bridge (e.g. `ground bridge KCl 3 "
-			"M`)",
-			in.a_cl_old_mM <= 0 ? so->name : sn->name);
-		goto done;
+	e.have_on = 1;
+	if (exch_compute(ctx, &e, err) == 0) {
+		render *r = render_new(ctx->out);
+		exch_text(r, ctx->ses->temp_C, &e);
+		exch_json(r, ctx->ses->temp_C, &e);
+		render_done(r);
+		rc = 0;
 	}
-	if (spp) {
-		if (sol_compute(spp, ses_env(ctx->ses), &st_p, err))
-			goto done;
-		have_p = 1;
-		if (need_ions(&st_p, spp->name, err) ||
-		    build_pair(ctx, &st_p, &st_o, ctx->ses->temp_C, &tip_o, err) ||
-		    build_pair(ctx, &st_p, &st_n, ctx->ses->temp_C, &tip_n, err))
-			goto done;
-		in.tip_old = tip_o.ions;
-		in.n_tip_old = tip_o.n;
-		in.tip_new = tip_n.ions;
-		in.n_tip_new = tip_n.n;
-		mobility_caution(&tip_o, &cw);
-	}
-	if (xa.ground == EL_GROUND_BRIDGE) {
-		if (bridge_state(ctx, &xa, &st_b, err))
-			goto done;
-		have_b = 1;
-		if (build_pair(ctx, &st_b, &st_o, ctx->ses->temp_C, &br_o, err) ||
-		    build_pair(ctx, &st_b, &st_n, ctx->ses->temp_C, &br_n, err))
-			goto done;
-		in.bridge_old = br_o.ions;
-		in.n_bridge_old = br_o.n;
-		in.bridge_new = br_n.ions;
-		in.n_bridge_new = br_n.n;
-		if (!spp)
-			mobility_caution(&br_o, &cw);
-	}
-	if (el_exchange_shift_mV(&in, ctx->ses->temp_C, &x, err))
-		goto done;
-	gname = xa.ground == EL_GROUND_AGCL ? "agcl" : "bridge";
-	if (x.bridge_advised && xa.ground == EL_GROUND_AGCL)
-		caution(&cw,
-			"the Ag/AgCl term is %.1f mV, above %.0f mV: a salt-bridge "
-			"ground (e.g. 3 M KCl in agar) is advisable (common practice)",
-			x.agcl_mV, EL_BRIDGE_ADVISE_mV);
-	if (ctx->out->json) {
-		jw w;
-		jw_begin(&w, ctx->out);
-		jw_str(&w, "from", so->name);
-		jw_str(&w, "to", sn->name);
-		jw_str(&w, "ground", gname);
-		jw_num(&w, "temperature_C", ctx->ses->temp_C, 6);
-		jw_num(&w, "shift_mV", x.shift_mV, 6);
-		jw_bool(&w, "includes_tip", x.have_tip);
-		jw_num(&w, "ground_term_mV", x.ground_mV, 6);
-		jw_str(&w, "sign",
-		       "shift: open-tip reading (pipette minus ground) in the new bath "
-		       "after zeroing in the old; ground term: change of the bath "
-		       "against the ground wire");
-		jw_num(&w, "a_cl_old_mM", in.a_cl_old_mM, 6);
-		jw_num(&w, "a_cl_new_mM", in.a_cl_new_mM, 6);
-		if (x.have_agcl)
-			jw_num(&w, "agcl_term_mV", x.agcl_mV, 6);
-		jw_bool(&w, "bridge_advised", x.bridge_advised);
-		if (xa.ground == EL_GROUND_BRIDGE) {
-			jw_obj(&w, "bridge");
-			jw_str(&w, "salt", xa.salt_c ? xa.salt_c->name : xa.salt);
-			jw_num(&w, "conc_mM", xa.salt_mM, 6);
-			jw_num(&w, "old_ljp_mV", x.bridge_old_mV, 6);
-			jw_num(&w, "new_ljp_mV", x.bridge_new_mV, 6);
-			jw_close(&w);
-		}
-		jw_str(&w, "pipette", spp ? spp->name : NULL);
-		if (x.have_tip) {
-			jw_num(&w, "tip_old_mV", x.tip_old_mV, 6);
-			jw_num(&w, "tip_new_mV", x.tip_new_mV, 6);
-			jw_num(&w, "tip_change_mV", x.tip_new_mV - x.tip_old_mV, 6);
-		}
-		jw_str(&w, "correction",
-		       "whole-cell, outside-out in the new bath: Vm = Vpipette - "
-		       "LJP(pipette|old) - ground_term; inside-out: Vm = -(Vpipette - "
-		       "LJP0 - ground_term)");
-		jw_num(&w, "erev_add_mV", 0.0 - x.ground_mV, 6);
-		json_cautions(&w, &cw);
-		jw_end(&w);
-	} else {
-		out_printf(ctx->out, "Bath exchange %s -> %s, %.1f C, ground: %s\n",
-			   so->name, sn->name, ctx->ses->temp_C,
-			   xa.ground == EL_GROUND_AGCL ? "bare Ag/AgCl" : "salt bridge");
-		if (so == sn || sol_equal(so, sn))
-			out_printf(ctx->out,
-				   "  the two baths are identical: nothing shifts (0 "
-				   "mV)\n");
-		if (x.have_agcl && xa.ground == EL_GROUND_AGCL)
-			out_printf(ctx->out,
-				   "  Ag/AgCl in the bath: Cl- activity %.4g -> %.4g mM: "
-				   "electrode %+.1f mV,\n    so the bath %+.1f mV against "
-				   "it\n",
-				   in.a_cl_old_mM, in.a_cl_new_mM, 0.0 - x.agcl_mV,
-				   x.agcl_mV);
-		if (xa.ground == EL_GROUND_BRIDGE) {
-			out_printf(ctx->out,
-				   "  bridge %s %.4g mM: junction to the old bath %+.2f mV, "
-				   "to the new %+.2f mV\n    (bath relative to bridge, "
-				   "Henderson with concentrations)\n",
-				   xa.salt_c ? xa.salt_c->name : xa.salt, xa.salt_mM,
-				   x.bridge_old_mV, x.bridge_new_mV);
-			if (x.have_agcl)
-				out_printf(ctx->out,
-					   "  for comparison, a bare Ag/AgCl ground would "
-					   "move the bath %+.1f mV\n    (Cl- activity %.4g "
-					   "-> %.4g mM)\n",
-					   x.agcl_mV, in.a_cl_old_mM, in.a_cl_new_mM);
-		}
-		out_printf(ctx->out,
-			   "  ground term g = %+.2f mV: the bath moves this much against "
-			   "the ground wire\n",
-			   x.ground_mV);
-		if (x.have_tip)
-			out_printf(ctx->out,
-				   "  tip junction: pipette %s | old %+.2f mV, | new "
-				   "%+.2f mV (change %+.2f mV)\n",
-				   spp->name, x.tip_old_mV, x.tip_new_mV,
-				   x.tip_new_mV - x.tip_old_mV);
-		out_printf(ctx->out,
-			   "  shift = %+.2f mV: the open-tip reading in the new bath "
-			   "after zeroing in the old\n    %s\n",
-			   x.shift_mV,
-			   x.have_tip ? "(g minus the change of the tip junction)"
-				      : "(ground term only: give `pipette NAME` for the tip "
-					"term)");
-		out_printf(ctx->out, "correction, zeroed in %s, recording in %s:\n",
-			   so->name, sn->name);
-		out_printf(ctx->out,
-			   "  whole-cell, outside-out: Vm = Vpipette - LJP(pipette|%s) - "
-			   "g; the sealed tip has no junction,\n    so the bath's shift "
-			   "appears with the opposite sign in Vm: a reversal potential "
-			   "read\n    in %s is truly Erev = read - LJP(pipette|%s) %+.2f "
-			   "mV\n",
-			   so->name, sn->name, so->name, 0.0 - x.ground_mV);
-		out_printf(ctx->out, "  inside-out: Vm = -(Vpipette - LJP0 - g)\n");
-		print_cautions(ctx, &cw);
-	}
-	rc = 0;
-done:
-	cautions_free(&cw);
-	pair_free(&tip_o);
-	pair_free(&tip_n);
-	pair_free(&br_o);
-	pair_free(&br_n);
-	if (have_p)
-		sol_state_free(&st_p);
-	if (have_b)
-		sol_state_free(&st_b);
-	sol_state_free(&st_o);
-	sol_state_free(&st_n);
+	exch_free(&e);
 	return rc;
 }

@@ -6,7 +6,7 @@
  * (a copy, with the compound set to the point's amount, or removed at 0)
  * goes through sol_compute, and the quantity is read from the state as
  * `show` reads it, or computed by the calculator `nernst`, `junction`
- * (cmdj_henderson_mV, the one way solutions become a junction) or `erev`
+ * (ljp_pair_mV, the one way solutions become a junction) or `erev`
  * use.
  */
 #include "sweep.h"
@@ -16,7 +16,7 @@
 #include <stdlib.h>
 #include <string.h>
 
-#include "cmd_junction.h"
+#include "ljp.h"
 #include "common.h"
 #include "ghk.h"
 
@@ -206,7 +206,7 @@ int sweep_value(const sweep_spec *sp, const sol_state *a, const sol_state *b,
 		return ghk_nernst_mV(sp->ion->z, conc(a, sp->ion, sp->activities),
 				     conc(b, sp->ion, sp->activities), t_C, y, err);
 	case SWQ_LJP:
-		return cmdj_henderson_mV(a, b, sp->activities, t_C, y, err);
+		return ljp_pair_mV(a, b, sp->activities, t_C, y, NULL, NULL, err);
 	case SWQ_EREV:
 		for (int i = 0; i < sp->nperm; i++) {
 			g[i].symbol = sp->perm_ion[i]->symbol;

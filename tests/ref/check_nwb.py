@@ -15,7 +15,8 @@ What is checked, and against what:
    for whole-cell recording with the LJP of the bath relative to the
    pipette solution);
  - the LJP of `for PIPETTE BATH` is the one `correct value 0 for ...`
-   subtracts (the program's one Henderson path);
+   subtracts (the program's one Henderson path), and the record carries
+   the range `junction` gives for the same pair;
  - a second correction refused, `again` accepted; NWB 2.4 (no offset)
    refused with a message naming 2.5; truncated and non-HDF5 files, a
    missing series, a series of another kind and a read-only file without
@@ -124,6 +125,12 @@ try:
     check(r.returncode == 0, "correct value for the demo pair: %s" % r.stderr)
     ljp = [json.loads(x) for x in r.stdout.splitlines() if '"ljp_mV"' in x][-1]["ljp_mV"]
     check(abs(ljp) > 1, "the demo pair has a sizeable LJP (%r mV)" % ljp)
+    # its range: the one `junction` reports for the same pair (ljp_pair_mV)
+    r = run("run k-pipette.ionmix", "run bath-saline.ionmix",
+            "junction k-pipette bath", json_out=True)
+    lo, hi = [json.loads(x) for x in r.stdout.splitlines() if '"ljp_range_mV"' in x][-1][
+        "ljp_range_mV"]
+    check(lo < ljp < hi, "the junction range %r..%r holds the LJP %r" % (lo, hi, ljp))
 
     # -- correct a.nwb for the pair, to b.nwb
     r = run("run k-pipette.ionmix", "run bath-saline.ionmix",
@@ -152,7 +159,7 @@ try:
         check(c.count("ionmix LJP correction:") == 1, "%s comments hold one record" % s)
         for needle in ("pipette solution k-pipette", "bath solution bath", "22.0 C",
                        "Henderson", "ionmix ", "2026-01-01T10:00:00Z", "LJP %+.1f mV" % ljp,
-                       "range"):
+                       "range %.1f to %.1f mV" % (lo, hi)):
             check(needle in c, "%s record names %r: %r" % (s, needle, c))
     for s in (VCS, CCSS):
         check(attrs(B, s) == before[s], "%s (a current) untouched" % s)
