@@ -138,8 +138,8 @@ int cmd_ph(im_ctx *ctx, int argc, char **argv, char *err)
 	if (stock > 0) {
 		render_numj(r, "stock_mM", NULL, "mM", stock, UNITS_SIG(4), 8);
 		render_numj(r, "stock_mL_per_L", NULL, "mL/L", 1000.0 * amount / stock, UNITS_SIG(3), 8);
-		render_text(r, "  from the %g mM stock: %.3g mL per litre of final solution (`weigh` "
-			       "gives it for your volume)", stock, 1000.0 * amount / stock);
+		render_text(r, "  from the %s stock: %.3g mL per litre of final solution (`weigh` "
+			       "gives it for your volume)", conc(ctx, b, stock), 1000.0 * amount / stock);
 	}
 	render_text(r, "  a target: solved again after every change; start from this amount and "
 		       "finish with a calibrated pH meter (it reads -log a(H+))");

@@ -368,7 +368,7 @@ static void show_charge(render *r, const sol_state *st)
  * temperature beside a target set at another ("titrated to pH 7.30 at
  * 22.0 C; 7.14 at 35.0 C").  Also the targets command's list. */
 static int show_targets(render *r, session *ses, const solution *s, const sol_state *st,
-			char *err)
+			int utf8, char *err)
 {
 	render_table(r, "targets", NULL);
 	for (int k = 0; k < s->ntg; k++) {
@@ -392,19 +392,25 @@ static int show_targets(render *r, session *ses, const solution *s, const sol_st
 		render_numj(r, "value", NULL, NULL, t->value, UNITS_SIG(4), 10);
 		render_str(r, "unit", NULL, tg_unit(t));
 		render_str(r, "with", NULL, t->with->name);
+		render_conc(r, "with_mM", NULL, sol_find((solution *)s, t->with)
+						    ? sol_find((solution *)s, t->with)->mM : 0);
 		render_numj(r, "at_C", NULL, NULL, t->at_C, UNITS_DEC(1), 6);
 		render_bool(r, "met", NULL, met);
 		render_numj(r, "now", NULL, NULL, now, UNITS_SIG(4), 8);
 		tg_describe(t, d, sizeof d);
 		if (st && t->at_C != st->t_C && t->kind == SOL_TG_PH)
 			snprintf(h, sizeof h, "; %.2f at %.1f C", here, st->t_C);
-		else if (st && t->at_C != st->t_C && t->kind == SOL_TG_FREE)
-			snprintf(h, sizeof h, "; %.3g mM at %.1f C", here, st->t_C);
+		else if (st && t->at_C != st->t_C && t->kind == SOL_TG_FREE) {
+			char c[48];
+			units_fmt_conc(c, sizeof c, here, utf8);
+			snprintf(h, sizeof h, "; %s at %.1f C", c, st->t_C);
+		}
 		else if (st && t->at_C != st->t_C)
 			snprintf(h, sizeof h, "; %.0f mOsm/kg at %.1f C", here, st->t_C);
 		render_str(r, NULL, "target", d);
 		render_str(r, NULL, "", met ? "met" : "NOT met");
-		render_str(r, NULL, st ? "at the recording temperature" : "", h[0] ? h + 2 : "");
+		if (st)
+			render_str(r, NULL, "at the recording temperature", h[0] ? h + 2 : "");
 	}
 	render_table_end(r);
 	return 0;
@@ -432,7 +438,7 @@ int cmd_targets(im_ctx *ctx, int argc, char **argv, char *err)
 	}
 	if (s->ntg == 0)
 		render_text(r, "%s: no targets (`ph`, `free` and `osmo` set them)", s->name);
-	if (show_targets(r, ctx->ses, s, NULL, err)) {
+	if (show_targets(r, ctx->ses, s, NULL, ctx->out->utf8, err)) {
 		render_drop(r);
 		return -1;
 	}
@@ -466,7 +472,7 @@ int cmd_show(im_ctx *ctx, int argc, char **argv, char *err)
 			show_chemistry(r, s, &st);
 		if (st.chem)
 			render_numj(r, "pH_at_temperature", NULL, NULL, st.pH, UNITS_DEC(2), 6);
-		if (s->ntg && show_targets(r, ctx->ses, s, &st, err)) {
+		if (s->ntg && show_targets(r, ctx->ses, s, &st, ctx->out->utf8, err)) {
 			render_drop(r);
 			sol_state_free(&st);
 			return -1;

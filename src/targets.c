@@ -213,8 +213,9 @@ static int solve_osmo(solution *s, const sol_target *t, const sol_env *env, char
 	if (osmo_at(&e, 0, &f0, why))
 		return cannot(t, why, err);
 	if (f0 > t->value + TG_TOL_OSMO) {
-		snprintf(why, sizeof why, "the rest of %s alone gives %.1f mOsm/kg (add water or "
-			 "lower a main salt)", s->name, f0);
+		snprintf(why, sizeof why, "the rest of %s alone gives %.1f mOsm/kg, above it "
+			 "(about %.0f mL of water per litre, or less of a main salt)", s->name, f0,
+			 1000.0 * (f0 / t->value - 1.0));
 		return cannot(t, why, err);
 	}
 	for (int k = 0; k < t->with->nyields; k++)
