@@ -36,6 +36,13 @@ static int done_caution(render *r, const rd_compound *c)
 	return render_done(r);
 }
 
+/* The amount of c in s, mM (0 when absent). */
+static double have(solution *s, const rd_compound *c)
+{
+	sol_item *it = sol_find(s, c);
+	return it ? it->mM : 0;
+}
+
 /* A concentration with its unit, into b (48 bytes). */
 static const char *conc(im_ctx *ctx, char *b, double mM)
 {
@@ -119,11 +126,11 @@ int cmd_ph(im_ctx *ctx, int argc, char **argv, char *err)
 				    "compound or remove it", t.with->name, s->name);
 	if (hold(ctx, s, &t, &now, err))
 		return -1;
-	amount = sol_find(s, t.with)->mM;
+	amount = have(s, t.with);
 	if (stock > 0 && stock <= amount)
 		return im_fail(err, "a stock of %g mM %s is weaker than the %g mM needed", stock,
 			       t.with->name, amount);
-	if (stock > 0)
+	if (stock > 0 && sol_find(s, t.with))
 		sol_find(s, t.with)->stock_mM = stock;
 	r = render_new(ctx->out);
 	render_str(r, "solution", NULL, s->name);
@@ -277,11 +284,11 @@ int cmd_free(im_ctx *ctx, int argc, char **argv, char *err)
 	render_conc(r, "target_mM", NULL, t.value);
 	render_num(r, "at_C", NULL, "C", t.at_C, UNITS_DEC(1));
 	render_str(r, "compound", NULL, t.with->name);
-	render_conc(r, "added_mM", NULL, sol_find(s, t.with)->mM);
+	render_conc(r, "added_mM", NULL, have(s, t.with));
 	render_conc(r, "free_mM", NULL, got);
 	render_numj(r, "pH", NULL, NULL, st.pH, UNITS_DEC(2), 6);
 	render_text(r, "%s: %s %s in all gives free %s %s at pH %.2f, %.1f C", s->name,
-		    conc(ctx, b, sol_find(s, t.with)->mM), t.with->name,
+		    conc(ctx, b, have(s, t.with)), t.with->name,
 		    t.metal->symbol, conc(ctx, b2, got), st.pH, t.at_C);
 	if (isfinite(s->ph_target))
 		render_text(r, "  (the titrant was recomputed to hold pH %.2f)", s->ph_target);
@@ -321,11 +328,11 @@ int cmd_osmo(im_ctx *ctx, int argc, char **argv, char *err)
 	render_numj(r, "target_mOsm_kg", NULL, "mOsm/kg", t.value, UNITS_DEC(1), 8);
 	render_num(r, "at_C", NULL, "C", t.at_C, UNITS_DEC(1));
 	render_str(r, "compound", NULL, t.with->name);
-	render_conc(r, "added_mM", NULL, sol_find(s, t.with)->mM);
+	render_conc(r, "added_mM", NULL, have(s, t.with));
 	render_numj(r, "after_mOsm_kg", NULL, "mOsm/kg", after, UNITS_DEC(1), 8);
 	render_range(r, "osmolality_range_mOsm_kg", NULL, "mOsm/kg", lo, hi, UNITS_DEC(0));
 	render_text(r, "%s: %s %s in all gives %.1f mOsm/kg at %.1f C (Pitzer estimate)",
-		    s->name, conc(ctx, b, sol_find(s, t.with)->mM), t.with->name,
+		    s->name, conc(ctx, b, have(s, t.with)), t.with->name,
 		    after, t.at_C);
 	if (lround(lo) != lround(hi))
 		render_text(r, "  aimed at the central estimate; the osmotic data allow %.0f to %.0f "

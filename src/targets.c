@@ -77,6 +77,15 @@ static double amount_of(solution *s, const rd_compound *c)
 	return it ? it->mM : 0;
 }
 
+/* The amount of c the solve found: in, or out when none is needed. */
+static void put(solution *s, const rd_compound *c, double mM)
+{
+	if (mM > 0)
+		sol_set(s, c, mM);
+	else
+		sol_remove(s, c);
+}
+
 /* s->ph_target and the titrant flags follow the pH target */
 static void sync_ph(solution *s)
 {
@@ -144,7 +153,7 @@ static int solve_ph(solution *s, const sol_target *t, const sol_env *env, char *
 	free(r);
 	if (rc)
 		return cannot(t, why, err);
-	sol_set(s, t->with, amt > 0 ? amt : 0);
+	put(s, t->with, amt);
 	return 0;
 }
 
@@ -180,7 +189,7 @@ static int solve_free(solution *s, const sol_target *t, const sol_env *env, char
 	free(r);
 	if (rc)
 		return cannot(t, why, err);
-	sol_set(s, t->with, amt > 0 ? amt : 0);
+	put(s, t->with, amt);
 	return 0;
 }
 
