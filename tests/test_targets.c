@@ -15,6 +15,9 @@
 #include "command.h"
 #include "common.h"
 #include "targets.h"
+#include "userdb.h"
+
+#include <sqlite3.h>
 
 static refdb *db;
 static im_ctx ctx;
@@ -230,6 +233,94 @@ static void bench_and_rig_temperature(void **state)
 	assert_true(strstr(buf, "at 35.0 C") != NULL);
 }
 
+/* A saved solution keeps its targets with their temperatures; loaded, it
+ * holds them again (a change re-solves them). */
+static void saved_targets(void **state)
+{
+	char dir[] = "/tmp/ionmix-tgdb-XXXXXX", path[96];
+	solution before;
+	double pH, ca;
+	(void)state;
+	assert_non_null(mkdtemp(dir));
+	snprintf(path, sizeof path, "%s/user.db", dir);
+	ctx.ses->db_path = path;
+	ok("temp 22; " INTERNAL "; ph 7.3 with KOH stock 1 M; free Ca 100 nM at 22; "
+	   "osmo 330 with sucrose at 30");
+	sol_copy(&before, ws_find(&ctx.ses->ws, "kin"), NULL);
+	ok("save kin; solution kin; clear; temp 35; load kin");
+	assert_true(sol_equal(&before, ws_find(&ctx.ses->ws, "kin")));
+	assert_int_equal(ws_find(&ctx.ses->ws, "kin")->ntg, 3);
+	assert_close(ws_find(&ctx.ses->ws, "kin")->tg[2].at_C, 30, 0, 0);
+	ok("add EGTA 1");
+	forward_at("kin", 22, &pH, &ca);
+	assert_close(pH, 7.3, 0, TG_TOL_PH);
+	assert_close(ca, 100e-6, TG_TOL_FREE, 0);
+	sol_free(&before);
+	ctx_free(&ctx); /* closes the database before it is removed */
+	ctx_init(&ctx, db, &o);
+	ctx.ses->db_path = "/nonexistent/ionmix-test.db";
+	snprintf(path, sizeof path, "rm -rf %s", dir);
+	assert_int_equal(system(path), 0);
+}
+
+/* A database of schema version 1 (before targets) is upgraded on open, in
+ * one transaction, after a copy is kept beside it; its solutions load as
+ * they were (a titrated one with its target pH, without a target rule). */
+static void old_database_upgraded(void **state)
+{
+	char dir[] = "/tmp/ionmix-tgdb-XXXXXX", path[96], copy[128], err[IM_ERRLEN];
+	sqlite3 *h;
+	userdb *u;
+	solution s;
+	int v = 0;
+	sqlite3_stmt *st;
+	(void)state;
+	assert_non_null(mkdtemp(dir));
+	snprintf(path, sizeof path, "%s/user.db", dir);
+	snprintf(copy, sizeof copy, "%s.v1-backup", path);
+	assert_int_equal(sqlite3_open(path, &h), SQLITE_OK);
+	assert_int_equal(sqlite3_exec(h,
+		"CREATE TABLE solutions (name TEXT PRIMARY KEY, saved_at TEXT NOT NULL DEFAULT"
+		" (strftime('%Y-%m-%dT%H:%M:%SZ','now')), ph_target REAL, co2_frac REAL NOT NULL"
+		" DEFAULT 0, co2_p_atm REAL NOT NULL DEFAULT 1, co2_dry INTEGER NOT NULL DEFAULT 0);"
+		"CREATE TABLE solution_items (solution TEXT NOT NULL REFERENCES solutions(name) ON"
+		" DELETE CASCADE, position INTEGER NOT NULL, compound TEXT NOT NULL, mM REAL NOT NULL"
+		" CHECK (mM > 0), stock_mM REAL NOT NULL DEFAULT 0, titrant INTEGER NOT NULL DEFAULT"
+		" 0, PRIMARY KEY (solution, position));"
+		"CREATE TABLE user_compounds (name TEXT PRIMARY KEY, formula TEXT NOT NULL,"
+		" fw_g_mol REAL NOT NULL, yields TEXT NOT NULL, note TEXT);"
+		"INSERT INTO solutions(name, ph_target) VALUES ('h', 7.3);"
+		"INSERT INTO solution_items VALUES ('h', 0, 'HEPES', 10, 0, 0);"
+		"INSERT INTO solution_items VALUES ('h', 1, 'KOH', 3.68, 0, 1);"
+		"PRAGMA user_version = 1;", NULL, NULL, NULL), SQLITE_OK);
+	sqlite3_close(h);
+	if (udb_open(path, 0, &u, err) != 0)
+		fail_msg("open: %s", err);
+	assert_int_equal(access(copy, F_OK), 0);
+	assert_int_equal(udb_load(u, db, "h", &s, err), 0);
+	assert_int_equal(s.n, 2);
+	assert_int_equal(s.ntg, 0);
+	assert_close(s.ph_target, 7.3, 0, 0);
+	sol_free(&s);
+	udb_close(u);
+	/* the upgraded file says 2; the copy still says 1 */
+	assert_int_equal(sqlite3_open(path, &h), SQLITE_OK);
+	assert_int_equal(sqlite3_prepare_v2(h, "PRAGMA user_version", -1, &st, NULL), SQLITE_OK);
+	assert_int_equal(sqlite3_step(st), SQLITE_ROW);
+	v = sqlite3_column_int(st, 0);
+	sqlite3_finalize(st);
+	sqlite3_close(h);
+	assert_int_equal(v, UDB_SCHEMA_VERSION);
+	assert_int_equal(sqlite3_open(copy, &h), SQLITE_OK);
+	assert_int_equal(sqlite3_prepare_v2(h, "PRAGMA user_version", -1, &st, NULL), SQLITE_OK);
+	assert_int_equal(sqlite3_step(st), SQLITE_ROW);
+	assert_int_equal(sqlite3_column_int(st, 0), 1);
+	sqlite3_finalize(st);
+	sqlite3_close(h);
+	snprintf(path, sizeof path, "rm -rf %s", dir);
+	assert_int_equal(system(path), 0);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -238,6 +329,8 @@ int main(void)
 		cmocka_unit_test_setup_teardown(impossible_targets, fresh, done),
 		cmocka_unit_test_setup_teardown(drop_keeps_amount, fresh, done),
 		cmocka_unit_test_setup_teardown(bench_and_rig_temperature, fresh, done),
+		cmocka_unit_test_setup_teardown(saved_targets, fresh, done),
+		cmocka_unit_test_setup_teardown(old_database_upgraded, fresh, done),
 	};
 	return cmocka_run_group_tests(tests, setup, teardown);
 }
