@@ -344,114 +344,105 @@ int cmd_osmo(im_ctx *ctx, int argc, char **argv, char *err)
 
 #define MAX_CONST 160
 
-int cmd_constants(im_ctx *ctx, int argc, char **argv, char *err)
+/* One stored constant as a row: the JSON keys of every row (the value
+ * under "value", the key "pKa" or "log_K" as null naming its kind) and
+ * the text columns. */
+static void constant_row(render *r, const refdb *ref, const spec_const *c)
 {
-	char comp[32][32];
-	int nc, picked = 0, n;
-	spec_const *rows;
-	if (need_chem(ctx, err))
-		return -1;
-	nc = spec_compilations(ctx->ses->chem, ctx->ses->osm, comp, 32);
-	if (argc == 1) {
-		if (ctx->out->json) {
-			jw w;
-			jw_begin(&w, ctx->out);
-			jw_arr(&w, "compilations");
-			for (int i = 0; i < nc; i++)
-				jw_str(&w, NULL, comp[i]);
-			jw_end(&w);
-			return 0;
-		}
-		out_printf(ctx->out, "compilations of constants (pick one with `constants NAME`, "
-				     "`constants default` to go back):\n");
-		for (int i = 0; i < nc; i++)
-			out_printf(ctx->out, "  %s\n", comp[i]);
-		out_printf(ctx->out, "list the constants of a ligand or metal with `constants EGTA`, "
-				     "`constants Ca2+`\n");
-		return 0;
-	}
-	if (strcmp(argv[1], "default") == 0) {
-		if (spec_pick_compilation(ctx->ses->chem, ctx->ses->osm, "default", err))
-			return -1;
-		render *r = render_new(ctx->out);
-		render_str(r, "name", NULL, "default");
-		render_bool(r, "picked", NULL, 0);
-		render_text(r, "constants: every default in use again");
-		return render_done(r);
-	}
-	for (int i = 0; i < nc; i++)
-		if (strcmp(comp[i], argv[1]) == 0) {
-			if (spec_pick_compilation(ctx->ses->chem, ctx->ses->osm, argv[1], err))
-				return -1;
-			picked = 1;
-		}
-	rows = im_xcalloc(MAX_CONST, sizeof *rows);
-	n = spec_constants(ctx->ses->chem, argv[1], rows, MAX_CONST, err);
-	if (n < 0 && !picked) {
-		free(rows);
-		return -1;
-	}
-	if (ctx->out->json) {
-		jw w;
-		jw_begin(&w, ctx->out);
-		jw_str(&w, "name", argv[1]);
-		jw_bool(&w, "picked", picked);
-		jw_arr(&w, "constants");
-		for (int i = 0; i < n; i++) {
-			const rd_source *src = refdb_source(ctx->ses->ref, rows[i].source);
-			jw_obj(&w, NULL);
-			jw_str(&w, "species", rows[i].what);
-			jw_str(&w, "reaction", rows[i].reaction);
-			jw_str(&w, rows[i].is_pka ? "pKa" : "log_K", NULL);
-			jw_num(&w, "value", rows[i].value, 6);
-			jw_num(&w, "t_ref_C", rows[i].t_ref_C, 6);
-			jw_num(&w, "i_ref_M", rows[i].i_ref_M, 6);
-			jw_num(&w, "dH_kJ_mol", rows[i].dh_kJ_mol, 6);
-			jw_str(&w, "dH_analogue", rows[i].dh_analogue[0] ? rows[i].dh_analogue : NULL);
-			{
-				const rd_source *ds = rows[i].dh_source[0]
-							      ? refdb_source(ctx->ses->ref, rows[i].dh_source)
-							      : NULL;
-				jw_str(&w, "dH_source", ds ? ds->citation : NULL);
-			}
-			jw_str(&w, "compilation", rows[i].compilation);
-			jw_bool(&w, "in_use", rows[i].in_use);
-			jw_str(&w, "source", src ? src->citation : rows[i].source);
-			jw_close(&w);
-		}
-		jw_end(&w);
-		free(rows);
-		return 0;
-	}
-	if (picked)
-		out_printf(ctx->out, "constants: using %s where it has a value (the others keep "
-				     "their defaults)\n", argv[1]);
-	out_printf(ctx->out, "  %-14s %-30s %8s %6s %6s %-18s %-16s %s\n", "species", "reaction",
-		   "value", "t C", "I M", "dH kJ/mol", "compilation", "in use");
-	for (int i = 0; i < n; i++) {
-		char dh[40] = "-";
-		if (isfinite(rows[i].dh_kJ_mol))
-			snprintf(dh, sizeof dh, "%+.1f%s%s", rows[i].dh_kJ_mol,
-				 rows[i].dh_analogue[0] ? " as " : "", rows[i].dh_analogue);
-		else if (isfinite(rows[i].dpka_dt_per_K))
-			snprintf(dh, sizeof dh, "dpKa/dT %+.4f", rows[i].dpka_dt_per_K);
-		out_printf(ctx->out, "  %-14s %-30s %5s %5.2f %6.1f %6.3f %-18s %-16s %s\n",
-			   rows[i].what, rows[i].reaction, rows[i].is_pka ? "pKa" : "logK",
-			   rows[i].value, rows[i].t_ref_C, rows[i].i_ref_M, dh,
-			   rows[i].compilation, rows[i].in_use ? "*" : "");
-	}
-	out_printf(ctx->out, "  (dH 'as X': estimated, taken from the analogous reaction X)\n");
-	/* every source once: the constants', then the enthalpies' */
+	const rd_source *src = refdb_source(ref, c->source);
+	const rd_source *ds = c->dh_source[0] ? refdb_source(ref, c->dh_source) : NULL;
+	char dh[48] = "-", val[24];
+	if (isfinite(c->dh_kJ_mol))
+		snprintf(dh, sizeof dh, "%+.1f%s%s", c->dh_kJ_mol, c->dh_analogue[0] ? " as " : "",
+			 c->dh_analogue);
+	else if (isfinite(c->dpka_dt_per_K))
+		snprintf(dh, sizeof dh, "dpKa/dT %+.4f", c->dpka_dt_per_K);
+	snprintf(val, sizeof val, "%s %5.2f", c->is_pka ? "pKa" : "logK", c->value);
+	render_row(r);
+	render_str(r, "species", "species", c->what);
+	render_str(r, "reaction", "reaction", c->reaction);
+	render_str(r, c->is_pka ? "pKa" : "log_K", NULL, NULL);
+	render_numj(r, "value", NULL, NULL, c->value, UNITS_DEC(2), 6);
+	render_str(r, NULL, "value", val);
+	render_numj(r, "t_ref_C", "t C", NULL, c->t_ref_C, UNITS_DEC(1), 6);
+	render_numj(r, "i_ref_M", "I M", NULL, c->i_ref_M, UNITS_DEC(3), 6);
+	render_numj(r, "dH_kJ_mol", NULL, NULL, c->dh_kJ_mol, UNITS_DEC(1), 6);
+	render_str(r, NULL, "dH kJ/mol", dh);
+	render_str(r, "dH_analogue", NULL, c->dh_analogue[0] ? c->dh_analogue : NULL);
+	render_str(r, "dH_source", NULL, ds ? ds->citation : NULL);
+	render_str(r, "compilation", "compilation", c->compilation);
+	render_bool(r, "in_use", NULL, c->in_use);
+	render_str(r, NULL, "in use", c->in_use ? "*" : "");
+	render_str(r, "source", NULL, src ? src->citation : c->source);
+}
+
+/* Every source of rows once, the constants' then the enthalpies'. */
+static void constant_sources(render *r, const refdb *ref, const spec_const *rows, int n)
+{
 	for (int i = 0; i < 2 * n; i++) {
 		const char *key = i < n ? rows[i].source : rows[i - n].dh_source;
-		const rd_source *src = *key ? refdb_source(ctx->ses->ref, key) : NULL;
+		const rd_source *src = *key ? refdb_source(ref, key) : NULL;
 		int dup = 0;
 		for (int j = 0; j < i; j++)
 			dup |= strcmp(j < n ? rows[j].source : rows[j - n].dh_source, key) == 0;
 		if (!dup && src)
-			out_printf(ctx->out, "  [%s] %s%s\n", src->id, src->citation,
-				   src->from_memory ? " [from memory]" : "");
+			render_text(r, "  [%s] %s%s", src->id, src->citation,
+				    src->from_memory ? " [from memory]" : "");
+	}
+}
+
+/* `constants`: the compilations; `constants default`; `constants NAME`:
+ * pick a compilation and/or list the constants of a ligand or metal. */
+int cmd_constants(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	char comp[32][32];
+	const char *names[32];
+	int nc, picked = 0, n;
+	spec_const *rows;
+	render *r;
+	if (need_chem(ctx, err))
+		return -1;
+	nc = spec_compilations(ctx->ses->chem, ctx->ses->osm, comp, 32);
+	for (int i = 0; i < nc; i++) {
+		names[i] = comp[i];
+		picked |= argc > 1 && strcmp(comp[i], argv[1]) == 0;
+	}
+	if (argc > 1 && (picked || strcmp(argv[1], "default") == 0) &&
+	    spec_pick_compilation(ctx->ses->chem, ctx->ses->osm, argv[1], err))
+		return -1;
+	rows = im_xcalloc(MAX_CONST, sizeof *rows);
+	n = argc > 1 && strcmp(argv[1], "default") != 0
+		    ? spec_constants(ctx->ses->chem, argv[1], rows, MAX_CONST, err) : 0;
+	if (n < 0 && !picked) {
+		free(rows);
+		return -1;
+	}
+	r = render_new(ctx->out);
+	if (argc == 1) {
+		render_text(r, "compilations of constants (pick one with `constants NAME`, "
+			       "`constants default` to go back):");
+		for (int i = 0; i < nc; i++)
+			render_text(r, "  %s", comp[i]);
+		render_list(r, "compilations", NULL, names, nc);
+		render_text(r, "list the constants of a ligand or metal with `constants EGTA`, "
+			       "`constants Ca2+`");
+	} else {
+		render_str(r, "name", NULL, argv[1]);
+		render_bool(r, "picked", NULL, picked);
+	}
+	if (argc > 1 && strcmp(argv[1], "default") == 0)
+		render_text(r, "constants: every default in use again");
+	else if (picked)
+		render_text(r, "constants: using %s where it has a value (the others keep their "
+			       "defaults)", argv[1]);
+	if (argc > 1 && strcmp(argv[1], "default") != 0) {
+		render_table(r, "constants", NULL);
+		for (int i = 0; i < n; i++)
+			constant_row(r, ctx->ses->ref, &rows[i]);
+		render_table_end(r);
+		render_text(r, "  (dH 'as X': estimated, taken from the analogous reaction X)");
+		constant_sources(r, ctx->ses->ref, rows, n > 0 ? n : 0);
 	}
 	free(rows);
-	return 0;
+	return render_done(r);
 }
