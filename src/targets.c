@@ -219,6 +219,10 @@ static int solve_osmo(solution *s, const sol_target *t, const sol_env *env, char
 	char why[IM_ERRLEN];
 	double f0, x, after, parts = 0;
 	e.env.t_C = t->at_C;
+	x = amount_of(s, t->with);
+	/* already there (the later passes of a joint solve): keep it */
+	if (x > 0 && osmo_at(&e, x, &after, why) == 0 && fabs(after - t->value) <= 1e-6)
+		return 0;
 	if (osmo_at(&e, 0, &f0, why))
 		return cannot(t, why, err);
 	if (f0 > t->value + TG_TOL_OSMO) {
@@ -229,7 +233,6 @@ static int solve_osmo(solution *s, const sol_target *t, const sol_env *env, char
 	}
 	for (int k = 0; k < t->with->nyields; k++)
 		parts += t->with->yields[k].count;
-	x = amount_of(s, t->with);
 	if (!(x > 0))
 		x = (t->value - f0) / (parts > 0 ? parts : 1);
 	if (osm_target_solve(osmo_at, &e, t->value, f0, x, &x, &after, why))
