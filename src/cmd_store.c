@@ -5,6 +5,7 @@
  */
 #include "cmd_store.h"
 
+#include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <time.h>
@@ -151,6 +152,9 @@ static void write_recipe(FILE *fp, const solution *s)
 		const sol_item *it = &s->items[i];
 		if (tg_of_compound(s, it->c) >= 0)
 			continue;
+		if (it->titrant && isfinite(s->ph_target)) /* without its rule: an older save */
+			fprintf(fp, "# %s: the titrant to pH %.2f, kept as it was (no target)\n",
+				it->c->name, s->ph_target);
 		fprintf(fp, "set \"%s\" %.10g mM\n", it->c->name, it->mM);
 		if (it->stock_mM > 0)
 			fprintf(fp, "stock \"%s\" %.10g mM\n", it->c->name, it->stock_mM);
