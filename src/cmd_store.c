@@ -5,6 +5,7 @@
  */
 #include "cmd_store.h"
 
+#include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <time.h>
@@ -13,6 +14,7 @@
 #include "common.h"
 #include "fileio.h"
 #include "render.h"
+#include "targets.h"
 #include "userdb.h"
 #include "version.h"
 
@@ -116,7 +118,28 @@ int cmd_delete(im_ctx *ctx, int argc, char **argv, char *err)
 	return render_done(r);
 }
 
-/* Write the recipe of s to fp: a commented script that rebuilds it. */
+/* One target as the command that sets it again when the recipe runs. */
+static void write_target(FILE *fp, const solution *s, const sol_target *t)
+{
+	const sol_item *it = sol_find((solution *)s, t->with);
+	fprintf(fp, "# %s: %.10g mM when exported\n", t->with->name, it ? it->mM : 0);
+	if (t->kind == SOL_TG_PH)
+		fprintf(fp, "ph %.10g with \"%s\"", t->value, t->with->name);
+	else if (t->kind == SOL_TG_FREE)
+		fprintf(fp, "free %s %.10g mM with \"%s\"", t->metal->symbol, t->value,
+			t->with->name);
+	else
+		fprintf(fp, "osmo %.10g with \"%s\"", t->value, t->with->name);
+	if (t->kind == SOL_TG_PH && it && it->stock_mM > 0)
+		fprintf(fp, " stock %.10g mM", it->stock_mM);
+	fprintf(fp, " at %.10g\n", t->at_C);
+	if (t->kind != SOL_TG_PH && it && it->stock_mM > 0)
+		fprintf(fp, "stock \"%s\" %.10g mM\n", t->with->name, it->stock_mM);
+}
+
+/* Write the recipe of s to fp: a commented script that rebuilds it, the
+ * targets as commands (each holds at its own temperature, so the recipe
+ * gives the same amounts at any `temp`). */
 static void write_recipe(FILE *fp, const solution *s)
 {
 	char stamp[32];
@@ -127,27 +150,21 @@ static void write_recipe(FILE *fp, const solution *s)
 	fprintf(fp, "solution %s\nclear\ngas off\n", s->name);
 	for (int i = 0; i < s->n; i++) {
 		const sol_item *it = &s->items[i];
-		if (it->titrant)
+		if (tg_of_compound(s, it->c) >= 0)
 			continue;
+		if (it->titrant && isfinite(s->ph_target)) /* without its rule: an older save */
+			fprintf(fp, "# %s: the titrant to pH %.2f, kept as it was (no target)\n",
+				it->c->name, s->ph_target);
 		fprintf(fp, "set \"%s\" %.10g mM\n", it->c->name, it->mM);
 		if (it->stock_mM > 0)
 			fprintf(fp, "stock \"%s\" %.10g mM\n", it->c->name, it->stock_mM);
 	}
-	/* the titrant is computed again by `ph` when the recipe runs */
-	for (int i = 0; i < s->n; i++) {
-		const sol_item *it = &s->items[i];
-		if (!it->titrant)
-			continue;
-		fprintf(fp, "# %s: %.10g mM when exported\n", it->c->name, it->mM);
-		if (it->stock_mM > 0)
-			fprintf(fp, "ph %.10g with \"%s\" stock %.10g mM\n", s->ph_target,
-				it->c->name, it->stock_mM);
-		else
-			fprintf(fp, "ph %.10g with \"%s\"\n", s->ph_target, it->c->name);
-	}
 	if (s->co2_frac > 0)
 		fprintf(fp, "gas co2 %.10g%%%s pressure %.10g\n", 100 * s->co2_frac,
 			s->co2_dry ? " dry" : "", s->co2_p_atm);
+	/* the targets' amounts are solved again when the recipe runs */
+	for (int k = 0; k < s->ntg; k++)
+		write_target(fp, s, &s->tg[k]);
 }
 
 int cmd_export(im_ctx *ctx, int argc, char **argv, char *err)

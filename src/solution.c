@@ -33,6 +33,8 @@ void sol_copy(solution *dst, const solution *src, const char *name)
 	dst->co2_frac = src->co2_frac;
 	dst->co2_p_atm = src->co2_p_atm;
 	dst->co2_dry = src->co2_dry;
+	memcpy(dst->tg, src->tg, sizeof dst->tg);
+	dst->ntg = src->ntg;
 	if (src->n) {
 		dst->items = im_xmalloc(src->n * sizeof *dst->items);
 		memcpy(dst->items, src->items, src->n * sizeof *dst->items);
@@ -89,8 +91,13 @@ int sol_equal(const solution *a, const solution *b)
 {
 	if (strcmp(a->name, b->name) != 0 || a->n != b->n ||
 	    !same_num(a->ph_target, b->ph_target) || a->co2_frac != b->co2_frac ||
-	    a->co2_p_atm != b->co2_p_atm || a->co2_dry != b->co2_dry)
+	    a->co2_p_atm != b->co2_p_atm || a->co2_dry != b->co2_dry || a->ntg != b->ntg)
 		return 0;
+	for (int k = 0; k < a->ntg; k++)
+		if (a->tg[k].kind != b->tg[k].kind || a->tg[k].value != b->tg[k].value ||
+		    a->tg[k].with != b->tg[k].with || a->tg[k].metal != b->tg[k].metal ||
+		    a->tg[k].at_C != b->tg[k].at_C)
+			return 0;
 	for (int i = 0; i < a->n; i++)
 		if (a->items[i].c != b->items[i].c || a->items[i].mM != b->items[i].mM ||
 		    a->items[i].stock_mM != b->items[i].stock_mM ||

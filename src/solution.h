@@ -21,6 +21,22 @@ typedef struct sol_item {
 	int titrant;     /* 1: added by `ph` to reach ph_target */
 } sol_item;
 
+/* A target the solution holds (targets.h solves them): what is added
+ * (`with`, its whole amount belongs to the target) so that, at at_C, the
+ * pH (kind SOL_TG_PH), the free concentration of metal (SOL_TG_FREE, mM)
+ * or the osmolality (SOL_TG_OSMO, mOsm/kg) is value. */
+typedef enum { SOL_TG_PH = 0, SOL_TG_FREE = 1, SOL_TG_OSMO = 2 } sol_tg_kind;
+
+typedef struct sol_target {
+	sol_tg_kind kind;
+	double value;             /* pH; free metal, mM; osmolality, mOsm/kg */
+	const rd_compound *with;  /* the compound added to reach it (refdb's) */
+	const rd_ion *metal;      /* SOL_TG_FREE: the metal; else NULL */
+	double at_C;              /* the temperature at which it holds */
+} sol_target;
+
+#define SOL_TG_MAX 8
+
 typedef struct solution {
 	char name[SOL_NAME_MAX];
 	sol_item *items; /* in the order they were added; owned */
@@ -29,6 +45,8 @@ typedef struct solution {
 	double co2_frac;  /* > 0: equilibrated with a gas of this CO2 fraction */
 	double co2_p_atm; /* total pressure of that gas, atm (1 by default) */
 	int co2_dry;      /* 1: the gas is dry; 0: humidified at the temperature */
+	sol_target tg[SOL_TG_MAX]; /* targets, in the order they were set */
+	int ntg;
 } solution;
 
 /* Activity-coefficient model (see activity.h). */

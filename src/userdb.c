@@ -215,8 +215,7 @@ static int create_schema(userdb *u, char *err)
 	if (v != 0)
 		return sqlite3_exec(u->db, "COMMIT", NULL, NULL, NULL) == SQLITE_OK
 			       ? 0 : fail_db(u, err, "opening");
-	snprintf(sql, sizeof sql, "%s PRAGMA user_version = %d; COMMIT;", schema_sql,
-		 UDB_SCHEMA_VERSION);
+	snprintf(sql, sizeof sql, "%s PRAGMA user_version = 1; COMMIT;", schema_sql);
 	if (sqlite3_exec(u->db, sql, NULL, NULL, NULL) != SQLITE_OK) {
 		fail_db(u, err, "creating the tables");
 		sqlite3_exec(u->db, "ROLLBACK", NULL, NULL, NULL);
@@ -335,6 +334,73 @@ static char *immutable_uri(const char *path)
 	return u;
 }
 
+/* ---- migration steps: each brings the schema from version N - 1 to N ---- */
+
+/* Version 2: the targets a solution holds (solution.h sol_target), each
+ * with the compound it adds and the temperature at which it holds. */
+static const char migrate_targets_sql[] =
+	"CREATE TABLE IF NOT EXISTS solution_targets ("
+	"  solution TEXT NOT NULL REFERENCES solutions(name) ON DELETE CASCADE,"
+	"  position INTEGER NOT NULL,"
+	"  kind TEXT NOT NULL CHECK (kind IN ('ph', 'free', 'osmo')),"
+	"  value REAL NOT NULL,"             /* pH; free metal, mM; mOsm/kg */
+	"  compound TEXT NOT NULL,"          /* what is added to reach it */
+	"  metal TEXT,"                      /* 'free': the ion's symbol */
+	"  at_C REAL NOT NULL,"              /* where it holds */
+	"  PRIMARY KEY (solution, position));";
+
+static int migrate_targets(userdb *u)
+{
+	return sqlite3_exec(u->db, migrate_targets_sql, NULL, NULL, NULL);
+}
+
+/* The steps, index N - 2 for version N. */
+static int (*const migrate_step[])(userdb *u) = {migrate_targets};
+
+/* Keep a copy of the file as it is beside it (PATH.vV-backup), then run
+ * the missing steps and set the version in one transaction (a file just
+ * created, keep_copy 0, has nothing to keep); the version
+ * is read again under the write lock, so a second process finds the work
+ * done.  A failure rolls back and leaves the file as it was. */
+static int migrate(userdb *u, int keep_copy, char *err)
+{
+	int v = 0, rc = SQLITE_OK;
+	char *copy, *sql;
+	if (user_version(u, &v) != SQLITE_OK)
+		return fail_db(u, err, "reading");
+	if (v >= UDB_SCHEMA_VERSION)
+		return 0;
+	copy = im_xmalloc(strlen(u->path) + 32);
+	sprintf(copy, "%s.v%d-backup", u->path, v);
+	sql = sqlite3_mprintf("VACUUM INTO %Q", copy);
+	if (keep_copy && access(copy, F_OK) != 0 &&
+	    sqlite3_exec(u->db, sql, NULL, NULL, NULL) != SQLITE_OK) {
+		sqlite3_free(sql);
+		im_fail(err, "%s: could not keep a copy as %s before upgrading it (%s); it was "
+			     "left untouched", u->path, copy, sqlite3_errmsg(u->db));
+		free(copy);
+		return -1;
+	}
+	sqlite3_free(sql);
+	free(copy);
+	if (sqlite3_exec(u->db, "BEGIN IMMEDIATE", NULL, NULL, NULL) != SQLITE_OK)
+		return fail_db(u, err, "upgrading");
+	if (user_version(u, &v) != SQLITE_OK)
+		rc = SQLITE_ERROR;
+	for (; rc == SQLITE_OK && v < UDB_SCHEMA_VERSION; v++)
+		rc = migrate_step[v - 1](u);
+	if (rc == SQLITE_OK) {
+		char set[48];
+		snprintf(set, sizeof set, "PRAGMA user_version = %d", UDB_SCHEMA_VERSION);
+		rc = sqlite3_exec(u->db, set, NULL, NULL, NULL);
+	}
+	if (rc == SQLITE_OK && sqlite3_exec(u->db, "COMMIT", NULL, NULL, NULL) == SQLITE_OK)
+		return 0;
+	fail_db(u, err, "upgrading");
+	sqlite3_exec(u->db, "ROLLBACK", NULL, NULL, NULL);
+	return -1;
+}
+
 int udb_open(const char *path, int create, userdb **out, char *err)
 {
 	userdb *u;
@@ -418,6 +484,10 @@ int udb_open(const char *path, int create, userdb **out, char *err)
 		udb_close(u);
 		return -1;
 	}
+	if (!(flags & SQLITE_OPEN_READONLY) && migrate(u, v != 0, err)) {
+		udb_close(u);
+		return -1;
+	}
 	sqlite3_exec(u->db, "PRAGMA foreign_keys = ON", NULL, NULL, NULL);
 	*out = u;
 	return 0;
@@ -437,6 +507,37 @@ static int step_done(sqlite3_stmt *st)
 	int rc = sqlite3_step(st);
 	sqlite3_reset(st);
 	return rc == SQLITE_DONE ? 0 : -1;
+}
+
+static const char *const target_kind[] = {"ph", "free", "osmo"};
+
+/* The targets of s as rows of solution_targets (inside udb_save's
+ * transaction; the rows of an older save went with its solutions row). */
+static int save_targets(userdb *u, const solution *s)
+{
+	sqlite3_stmt *st;
+	int rc = 0;
+	if (sqlite3_prepare_v2(u->db, "INSERT INTO solution_targets(solution, position, kind,"
+			       " value, compound, metal, at_C) VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7)",
+			       -1, &st, NULL) != SQLITE_OK)
+		return -1;
+	for (int k = 0; k < s->ntg && !rc; k++) {
+		const sol_target *t = &s->tg[k];
+		sqlite3_bind_text(st, 1, s->name, -1, SQLITE_STATIC);
+		sqlite3_bind_int(st, 2, k);
+		sqlite3_bind_text(st, 3, target_kind[t->kind], -1, SQLITE_STATIC);
+		sqlite3_bind_double(st, 4, t->value);
+		sqlite3_bind_text(st, 5, t->with->name, -1, SQLITE_STATIC);
+		if (t->metal)
+			sqlite3_bind_text(st, 6, t->metal->symbol, -1, SQLITE_STATIC);
+		else
+			sqlite3_bind_null(st, 6);
+		sqlite3_bind_double(st, 7, t->at_C);
+		rc = step_done(st);
+		sqlite3_clear_bindings(st);
+	}
+	sqlite3_finalize(st);
+	return rc;
 }
 
 int udb_save(userdb *u, const solution *s, char *err)
@@ -475,7 +576,8 @@ int udb_save(userdb *u, const solution *s, char *err)
 		if (step_done(item))
 			goto done;
 	}
-	ok = sqlite3_exec(u->db, "COMMIT", NULL, NULL, NULL) == SQLITE_OK;
+	ok = save_targets(u, s) == 0 &&
+	     sqlite3_exec(u->db, "COMMIT", NULL, NULL, NULL) == SQLITE_OK;
 done:
 	if (!ok) {
 		fail_db(u, err, "saving");
@@ -627,6 +729,68 @@ static int load_item(userdb *u, const refdb *ref, sqlite3_stmt *st, solution *ou
 	return 0;
 }
 
+/* One solution_targets row into out, checked as the commands check what
+ * is typed: 0, or -1 with err. */
+static int load_target(userdb *u, const refdb *ref, sqlite3_stmt *st, solution *out,
+		       char *err)
+{
+	const char *kind = (const char *)sqlite3_column_text(st, 0);
+	const char *cname = (const char *)sqlite3_column_text(st, 2);
+	const char *metal = (const char *)sqlite3_column_text(st, 3);
+	sol_target t = {0};
+	char why[96] = "";
+	int k;
+	for (k = 0; k < 3 && !(kind && strcmp(kind, target_kind[k]) == 0); k++)
+		;
+	t.kind = (sol_tg_kind)k;
+	if (k == 3)
+		snprintf(why, sizeof why, "a target of unknown kind '%.20s'", kind ? kind : "");
+	else if (out->ntg == SOL_TG_MAX)
+		snprintf(why, sizeof why, "more than %d targets", SOL_TG_MAX);
+	else if (col_number(st, 1, &t.value, why, sizeof why) ||
+		 col_number(st, 4, &t.at_C, why, sizeof why))
+		;
+	else if (!cname || !(t.with = refdb_compound(ref, cname)))
+		snprintf(why, sizeof why, "a target adds '%.40s', unknown", cname ? cname : "");
+	else if (k == SOL_TG_FREE && (!metal || !(t.metal = refdb_ion(ref, metal))))
+		snprintf(why, sizeof why, "a target of the free '%.20s', unknown", metal ? metal : "");
+	else if (!(t.at_C >= 0 && t.at_C <= 60))
+		snprintf(why, sizeof why, "a target at %g C, outside 0 to 60 C", t.at_C);
+	else if ((k == SOL_TG_PH && !(t.value >= PH_MIN && t.value <= PH_MAX)) ||
+		 (k == SOL_TG_FREE && !(t.value > 0 && t.value <= UNITS_MAX_mM)) ||
+		 (k == SOL_TG_OSMO && !(t.value > 0 && t.value <= 2000)))
+		snprintf(why, sizeof why, "a %s target of %g, out of range", target_kind[k], t.value);
+	if (why[0])
+		return im_fail(err, "%s: saved solution '%s': %s; nothing was loaded (was the file "
+				    "edited?)", u->path, out->name, why);
+	out->tg[out->ntg++] = t;
+	return 0;
+}
+
+/* The targets of out's saved row (none in a file of schema version 1,
+ * read where it stands). */
+static int load_targets(userdb *u, const refdb *ref, solution *out, char *err)
+{
+	sqlite3_stmt *st;
+	int v = 0, rc;
+	if (user_version(u, &v) != SQLITE_OK)
+		return fail_db(u, err, "loading");
+	if (v < 2)
+		return 0;
+	if (sqlite3_prepare_v2(u->db, "SELECT kind, value, compound, metal, at_C FROM"
+			       " solution_targets WHERE solution = ?1 ORDER BY position", -1, &st,
+			       NULL) != SQLITE_OK)
+		return fail_db(u, err, "loading");
+	sqlite3_bind_text(st, 1, out->name, -1, SQLITE_STATIC);
+	while ((rc = sqlite3_step(st)) == SQLITE_ROW)
+		if (load_target(u, ref, st, out, err)) {
+			sqlite3_finalize(st);
+			return -1;
+		}
+	sqlite3_finalize(st);
+	return rc == SQLITE_DONE ? 0 : fail_db(u, err, "loading");
+}
+
 int udb_load(userdb *u, const refdb *ref, const char *name, solution *out, char *err)
 {
 	sqlite3_stmt *st;
@@ -656,6 +820,10 @@ int udb_load(userdb *u, const refdb *ref, const char *name, solution *out, char 
 	if (rc != SQLITE_DONE) {
 		sol_free(out);
 		return fail_db(u, err, "loading");
+	}
+	if (load_targets(u, ref, out, err)) {
+		sol_free(out);
+		return -1;
 	}
 	return 0;
 }

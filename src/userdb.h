@@ -13,7 +13,11 @@
 #include "refdb.h"
 #include "solution.h"
 
-#define UDB_SCHEMA_VERSION 1
+/* The schema: version 1 is schema_sql in userdb.c (what a new file is
+ * created with), each later version one migration step run on open, in
+ * one transaction, after a copy of the file is kept beside it
+ * (PATH.vN-backup).  2: solution_targets (the targets of issue 11). */
+#define UDB_SCHEMA_VERSION 2
 /* Seconds a statement waits for another process holding the database's
  * lock, and after how long an interactive user is told so. */
 #define UDB_WAIT_S 30.0
