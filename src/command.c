@@ -221,22 +221,25 @@ static int exec_one(im_ctx *ctx, char *cmd, char *err)
 	int argc = cmd_split(cmd, argv, CMD_ARGS_MAX, err), nargs, rc;
 	const cmd_def *d;
 	ses_mark mark;
+	char w[48];
 	if (argc <= 0)
 		return argc;
 	d = cmd_lookup(argv[0]);
 	if (!d) {
 		const char *near = nearest_command(argv[0]);
+		out_clip(w, sizeof w, argv[0]);
 		if (near)
-			return im_fail(err, "unknown command '%.40s'; did you mean %s?", argv[0], near);
-		return im_fail(err, "unknown command '%.40s' (type `help`)", argv[0]);
+			return im_fail(err, "unknown command '%s'; did you mean %s?", w, near);
+		return im_fail(err, "unknown command '%s' (type `help`)", w);
 	}
 	nargs = argc - 1;
 	if (nargs < d->min_args)
 		return im_fail(err, "%s: missing argument (usage: %s %s)", d->name, d->name,
 			       d->synopsis);
 	if (d->max_args != ANY && nargs > d->max_args)
-		return im_fail(err, "%s: unexpected '%.40s' (usage: %s %s)", d->name,
-			       argv[d->max_args + 1], d->name, d->synopsis);
+		return im_fail(err, "%s: unexpected '%s' (usage: %s %s)", d->name,
+			       out_clip(w, sizeof w, argv[d->max_args + 1]), d->name,
+			       d->synopsis);
 	ses_mark_take(ctx->ses, &mark);
 	rc = d->fn(ctx, argc, argv, err);
 	if (rc == 0 && out_failed(ctx->out))
@@ -257,7 +260,8 @@ int cmd_exec(im_ctx *ctx, const char *line, char *err)
 	char *start;
 	char q = 0;
 	if (n > CMD_LINE_MAX)
-		return im_fail(err, "line is longer than %d bytes", CMD_LINE_MAX);
+		return im_fail(err, "line is longer than %d bytes, the limit of one line",
+			       CMD_LINE_MAX);
 	for (size_t i = 0; i < n; i++) {
 		unsigned char c = (unsigned char)line[i];
 		if ((c < 0x20 && c != '\t' && c != '\n' && c != '\r') || c == 0x7f)
@@ -283,23 +287,49 @@ int cmd_exec(im_ctx *ctx, const char *line, char *err)
 
 /* ---- the one line loop ---- */
 
+/* A stdio reader with bounded memory: a line is read into a buffer of
+ * CMD_LINE_MAX + 1 bytes, never more; a longer line is handed over cut at
+ * that length (the loop refuses it by its length) and the rest of it is
+ * skipped on the next call; past CMD_SCRIPT_MAX bytes the reader stops
+ * (-2), so /dev/zero or an endless stream ends instead of growing. */
 typedef struct file_reader {
 	FILE *fp;
-	char *buf;
-	size_t cap;
+	char buf[CMD_LINE_MAX + 2];
+	unsigned long long total; /* bytes read so far */
+	int skip;                 /* 1: the rest of an overlong line is due */
 } file_reader;
 
 static int file_next(void *arg, char **line, size_t *len)
 {
 	file_reader *f = arg;
-	ssize_t n;
+	size_t n = 0;
+	int c = 0;
 	errno = 0;
-	n = getline(&f->buf, &f->cap, f->fp);
-	if (n < 0)
+	while (f->skip) {
+		c = getc_unlocked(f->fp);
+		if (c == EOF)
+			break;
+		if (++f->total > CMD_SCRIPT_MAX)
+			return -2;
+		if (c == '\n')
+			f->skip = 0;
+	}
+	if (!f->skip || c != EOF) {
+		while (n < CMD_LINE_MAX + 1 && (c = getc_unlocked(f->fp)) != EOF) {
+			if (++f->total > CMD_SCRIPT_MAX)
+				return -2;
+			f->buf[n++] = (char)c;
+			if (c == '\n')
+				break;
+		}
+	}
+	if (n == 0)
 		/* a directory opens but does not read (EISDIR): not an empty script */
 		return ferror(f->fp) ? (errno ? -1 : (errno = EIO, -1)) : 0;
+	f->skip = n == CMD_LINE_MAX + 1 && f->buf[n - 1] != '\n';
+	f->buf[n] = '\0';
 	*line = f->buf;
-	*len = (size_t)n;
+	*len = n;
 	return 1;
 }
 
@@ -313,10 +343,7 @@ void cmd_reader_file(cmd_reader *r, FILE *fp)
 
 void cmd_reader_file_done(cmd_reader *r)
 {
-	file_reader *f = r->arg;
-	if (f)
-		free(f->buf);
-	free(f);
+	free(r->arg);
 	r->arg = NULL;
 }
 
@@ -343,7 +370,8 @@ int cmd_loop(im_ctx *ctx, const cmd_reader *rd, int *line_out, char *err)
 		}
 		set_errfile(ctx, NULL, 0);
 		if (len > CMD_LINE_MAX)
-			rc = im_fail(err, "line is longer than %d bytes", CMD_LINE_MAX);
+			rc = im_fail(err, "line is longer than %d bytes, the limit of one line",
+				     CMD_LINE_MAX);
 		else if (memchr(line, '\0', len))
 			rc = im_fail(err, "line holds a NUL byte: not a text script");
 		else
@@ -355,6 +383,11 @@ int cmd_loop(im_ctx *ctx, const cmd_reader *rd, int *line_out, char *err)
 			return -1;
 		}
 		out_error(ctx->out, ctx->errfile, ctx->errline, err);
+	}
+	if (!ctx->quit && r == -2) {
+		*line_out = lineno + 1;
+		return im_fail(err, "input is longer than %d bytes, the limit of one script "
+			       "(an endless stream?)", CMD_SCRIPT_MAX);
 	}
 	if (!ctx->quit && r < 0) {
 		*line_out = lineno + 1;
@@ -413,8 +446,10 @@ static int cmd_help(im_ctx *ctx, int argc, char **argv, char *err)
 	if (argc > 1) {
 		const cmd_def *d = cmd_lookup(argv[1]);
 		if (!d) {
+			char w[48];
 			render_drop(r);
-			return im_fail(err, "no command '%.40s' (type `help` for the list)", argv[1]);
+			return im_fail(err, "no command '%s' (type `help` for the list)",
+				       out_clip(w, sizeof w, argv[1]));
 		}
 		render_str(r, "command", NULL, d->name);
 		render_str(r, "synopsis", NULL, d->synopsis);
