@@ -369,13 +369,18 @@ int cmd_loop(im_ctx *ctx, const cmd_reader *rd, int *line_out, char *err)
 			len -= 3;
 		}
 		set_errfile(ctx, NULL, 0);
+		/* the limit is on what the line says, not on its line end */
+		if (len > 0 && line[len - 1] == '\n')
+			len--;
+		if (len > 0 && line[len - 1] == '\r')
+			len--;
 		if (len > CMD_LINE_MAX)
 			rc = im_fail(err, "line is longer than %d bytes, the limit of one line",
 				     CMD_LINE_MAX);
 		else if (memchr(line, '\0', len))
 			rc = im_fail(err, "line holds a NUL byte: not a text script");
 		else
-			rc = cmd_exec(ctx, line, err);
+			rc = (line[len] = '\0', cmd_exec(ctx, line, err));
 		if (rc == 0)
 			continue;
 		if (!ctx->interactive || out_failed(ctx->out)) {

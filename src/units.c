@@ -59,11 +59,11 @@ int units_number(const char *s, double *v, char *err)
 	out_clip(w, sizeof w, s);
 	if (nonfinite_word(s))
 		return im_fail(err, "'%s' is not a finite number: give a value", w);
-	if (n == 0 || ndig == 0 || s[n] != '\0')
-		return im_fail(err, "'%s' is not a number", w);
 	if (ndig > UNITS_DIGITS_MAX)
 		return im_fail(err, "'%s' has too many digits (%zu; at most %d)", w, ndig,
 			       UNITS_DIGITS_MAX);
+	if (n == 0 || ndig == 0 || s[n] != '\0')
+		return im_fail(err, "'%s' is not a number", w);
 	x = strtod(s, &end);
 	if (end != s + n)
 		return im_fail(err, "'%s' is not a number", w);
