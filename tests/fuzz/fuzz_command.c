@@ -40,7 +40,7 @@ int LLVMFuzzerInitialize(int *argc, char ***argv)
 {
 	char err[IM_ERRLEN];
 	FILE *null = fopen("/dev/null", "w");
-	out o = {null, null, 0, 0};
+	out o = {0};
 	im_ctx ctx;
 	(void)argc;
 	(void)argv;
