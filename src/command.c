@@ -423,8 +423,12 @@ static int cmd_run(im_ctx *ctx, int argc, char **argv, char *err)
 	if (ctx->run_depth >= 8)
 		return im_fail(err, "run: scripts nested more than 8 deep (a script runs itself?)");
 	fp = strcmp(argv[1], "-") == 0 ? stdin : fopen(argv[1], "r");
-	if (!fp)
-		return im_fail(err, "cannot open %s: %s", argv[1], strerror(errno));
+	if (!fp) {
+		char w[128];
+		int e = errno;
+		return im_fail(err, "cannot open %s: %s", out_clip(w, sizeof w, argv[1]),
+			       strerror(e));
+	}
 	ctx->run_depth++;
 	before = ctx->interactive;
 	ctx->interactive = 0; /* a script stops at its first error, even run from the shell */

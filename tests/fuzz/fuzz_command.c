@@ -44,6 +44,7 @@ int LLVMFuzzerInitialize(int *argc, char ***argv)
 	im_ctx ctx;
 	(void)argc;
 	(void)argv;
+	o.fp = o.errfp = null;
 	FZ_CHECK(refdb_open(&ref, err) == 0, "%s", err);
 	fz_scratch("fuzz-command");
 	FZ_CHECK(chdir(fz_dir) == 0, "chdir %s", fz_dir);
