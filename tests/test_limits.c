@@ -134,6 +134,25 @@ static void words_cut_and_escaped(void **state)
 	free(txt);
 }
 
+/* A message longer than its buffer is cut between characters with "...". */
+static void long_messages_cut_whole(void **state)
+{
+	char err[IM_ERRLEN], *word = im_xmalloc(3 * IM_ERRLEN + 1);
+	size_t n;
+	(void)state;
+	for (int i = 0; i < IM_ERRLEN; i++)
+		memcpy(word + 3 * i, "\xe2\x82\xac", 3); /* the euro sign, 3 bytes */
+	word[3 * IM_ERRLEN] = '\0';
+	assert_int_equal(im_fail(err, "x%s", word), -1);
+	n = strlen(err);
+	assert_true(n <= IM_ERRLEN - 1 && n > IM_ERRLEN - 8);
+	assert_string_equal(err + n - 3, "...");
+	/* what precedes "..." is "x" and whole euro signs */
+	assert_int_equal((n - 4) % 3, 0);
+	assert_memory_equal(err + n - 6, "\xe2\x82\xac", 3);
+	free(word);
+}
+
 /* A stream of `len` bytes of `fill` with a newline every `every` bytes (0:
  * none), through cmd_run_stream.  Returns the loop's result; *pos is how
  * far the reader got. */
@@ -203,6 +222,7 @@ int main(void)
 		cmocka_unit_test(digits_nan_and_infinity),
 		cmocka_unit_test(bounds),
 		cmocka_unit_test(words_cut_and_escaped),
+		cmocka_unit_test(long_messages_cut_whole),
 		cmocka_unit_test(reader_stops_at_the_limits),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);

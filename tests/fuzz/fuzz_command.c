@@ -104,7 +104,7 @@ static void run_line(const char *line, size_t n, int json)
 	rc = cmd_exec(&ctx, line, err);
 	FZ_CHECK(rc == 0 || rc == -1, "cmd_exec returned %d", rc);
 	if (rc) {
-		fz_check_err(err, "cmd_exec");
+		fz_check_err(err, "cmd_exec", n);
 		if (!memchr(line, ';', n) && !strstr(line, "run")) {
 			FZ_CHECK(same_workspace(&before, &ctx.ses->ws), "a failed line changed the "
 				 "workspace: %s", err);

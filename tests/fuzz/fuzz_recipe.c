@@ -82,7 +82,7 @@ static void run_script(const char *bytes, size_t n, int json)
 	fclose(in);
 	FZ_CHECK(rc == 0 || rc == -1, "cmd_run_stream returned %d", rc);
 	if (rc) {
-		fz_check_err(err, "the script");
+		fz_check_err(err, "the script", n);
 		if (!ctx.errfile)
 			FZ_CHECK(line >= 1 && (size_t)line <= lines,
 				 "error at line %d of a %zu-line script", line, lines);

@@ -80,12 +80,15 @@ static inline void fz_confine_paths(char *s, size_t n)
 	}
 }
 
-/* An error message: non-empty, one line. */
-static inline void fz_check_err(const char *err, const char *what)
+/* An error message: non-empty, one line, and bounded: under 256 bytes
+ * of its own beside what it echoes of the input (in_n bytes; a file name
+ * as typed is echoed whole, other words are cut short). */
+static inline void fz_check_err(const char *err, const char *what, size_t in_n)
 {
 	FZ_CHECK(err[0] != '\0', "%s failed with an empty message", what);
 	FZ_CHECK(strchr(err, '\n') == NULL, "%s: message has a newline: %s", what, err);
-	FZ_CHECK(strlen(err) < 256, "%s: message too long", what);
+	FZ_CHECK(strlen(err) < 256 + in_n, "%s: message too long (%zu bytes from %zu)", what,
+		 strlen(err), in_n);
 }
 
 static inline int fz_word(unsigned char c)
