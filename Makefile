@@ -4,6 +4,9 @@
 PREFIX     ?= /usr/local
 BINDIR     ?= $(PREFIX)/bin
 MANDIR     ?= $(PREFIX)/share/man
+DATADIR    ?= $(PREFIX)/share
+# bash-completion's directory for files loaded on demand
+COMPLDIR   ?= $(DATADIR)/bash-completion/completions
 DESTDIR    ?=
 CC         ?= cc
 CFLAGS     ?= -O2 -g
@@ -67,7 +70,7 @@ BENCHBIN   := $(patsubst tests/%.c,$(BUILD)/tests/%,$(BENCHSRC))
 
 .PHONY: all run check test bench install uninstall clean deps deps-test help
 
-all: $(BUILD)/ionmix
+all: $(BUILD)/ionmix $(BUILD)/ionmix.bash
 
 help:
 	@echo "make            build $(BUILD)/ionmix"
@@ -94,8 +97,9 @@ check: deps-test
 	@$(MAKE) --no-print-directory test BUILD=build/san SAN=1 CFLAGS="-O1 -g"
 	@$(MAKE) --no-print-directory fuzz-smoke
 
-test: $(BUILD)/ionmix $(TESTBIN)
+test: $(BUILD)/ionmix $(BUILD)/ionmix.bash $(TESTBIN)
 	@IONMIX=$(BUILD)/ionmix PYTHON=$(PYTHON) TESTBIN_DIR=$(BUILD)/tests \
+		IONMIX_BUILD=$(BUILD) IONMIX_SAN=$(SAN) \
 		sh tests/run.sh "$(BUILD)" $(TESTBIN)
 
 bench: deps-test
@@ -161,13 +165,38 @@ $(BUILD)/tests/%: tests/%.c $(BUILD)/libionmix.a tests/testutil.h | $(BUILD)/tes
 $(BUILD)/obj $(BUILD)/gen $(BUILD)/tests:
 	$(Q)mkdir -p $@
 
-install: $(BUILD)/ionmix
-	install -d $(DESTDIR)$(BINDIR) $(DESTDIR)$(MANDIR)/man1
+# The bash completion file, generated from the command table by a small
+# tool linked with the library, and the options the binary's --help names.
+$(BUILD)/mkcompletion: src/tools/mkcompletion.c $(BUILD)/libionmix.a
+	$(say) CC $<
+	$(Q)$(CC) $(ALL_CFLAGS) $(IM_LDFLAGS) $(LDFLAGS) -o $@ $< $(BUILD)/libionmix.a $(IM_LIBS)
+
+$(BUILD)/ionmix.bash: $(BUILD)/mkcompletion $(BUILD)/ionmix
+	$(say) GEN $@
+	$(Q)opts=$$($(BUILD)/ionmix --help | grep -E '^  +-' | \
+		grep -oE -- '--?[a-z][a-z-]*' | sort -u) && [ -n "$$opts" ] && \
+		$(BUILD)/mkcompletion $$opts > $@.tmp && mv $@.tmp $@
+
+# Installed: the binary, the man page (its examples name the installed
+# recipes), the bash completion file and the demo recipes.
+RECIPES    := $(wildcard recipes/*.ionmix)
+install: $(BUILD)/ionmix $(BUILD)/ionmix.bash
+	install -d $(DESTDIR)$(BINDIR) $(DESTDIR)$(MANDIR)/man1 $(DESTDIR)$(COMPLDIR) \
+		$(DESTDIR)$(DATADIR)/ionmix/recipes
 	install -m 755 $(BUILD)/ionmix $(DESTDIR)$(BINDIR)/ionmix
-	install -m 644 src/ionmix.1 $(DESTDIR)$(MANDIR)/man1/ionmix.1
+	sed -e 's|/usr/local/share/ionmix/recipes|$(DATADIR)/ionmix/recipes|g' \
+		-e 's|/usr/local/share/bash-completion/completions|$(COMPLDIR)|g' src/ionmix.1 \
+		> $(BUILD)/ionmix.1.tmp
+	install -m 644 $(BUILD)/ionmix.1.tmp $(DESTDIR)$(MANDIR)/man1/ionmix.1
+	rm -f $(BUILD)/ionmix.1.tmp
+	install -m 644 $(BUILD)/ionmix.bash $(DESTDIR)$(COMPLDIR)/ionmix
+	install -m 644 $(RECIPES) $(DESTDIR)$(DATADIR)/ionmix/recipes
 
 uninstall:
-	rm -f $(DESTDIR)$(BINDIR)/ionmix $(DESTDIR)$(MANDIR)/man1/ionmix.1
+	rm -f $(DESTDIR)$(BINDIR)/ionmix $(DESTDIR)$(MANDIR)/man1/ionmix.1 \
+		$(DESTDIR)$(COMPLDIR)/ionmix
+	rm -f $(addprefix $(DESTDIR)$(DATADIR)/ionmix/recipes/,$(notdir $(RECIPES)))
+	-rmdir $(DESTDIR)$(DATADIR)/ionmix/recipes $(DESTDIR)$(DATADIR)/ionmix 2>/dev/null
 
 # Only the build directory: BUILD=out makes `make clean` remove out/, and a
 # BUILD that is empty, the source tree or a parent of it is refused.

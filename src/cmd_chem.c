@@ -168,8 +168,8 @@ static int gas_args(int argc, char **argv, double *frac, double *p_atm, int *dry
 		num[strlen(num) - 1] = '\0';
 	if (units_number(num, &pct, err))
 		return -1;
-	if (!(pct > 0 && pct <= 100))
-		return im_fail(err, "CO2 fraction %s %% must be above 0 and at most 100", num);
+	if (units_in_range(num, pct, 0.01, 100, "CO2 fraction", "%", err))
+		return -1;
 	for (int i = 3; i < argc; i++) {
 		if (strcmp(argv[i], "dry") == 0) {
 			*dry = 1;

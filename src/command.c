@@ -223,22 +223,25 @@ static int exec_one(im_ctx *ctx, char *cmd, char *err)
 	int argc = cmd_split(cmd, argv, CMD_ARGS_MAX, err), nargs, rc;
 	const cmd_def *d;
 	ses_mark mark;
+	char w[48];
 	if (argc <= 0)
 		return argc;
 	d = cmd_lookup(argv[0]);
 	if (!d) {
 		const char *near = nearest_command(argv[0]);
+		out_clip(w, sizeof w, argv[0]);
 		if (near)
-			return im_fail(err, "unknown command '%.40s'; did you mean %s?", argv[0], near);
-		return im_fail(err, "unknown command '%.40s' (type `help`)", argv[0]);
+			return im_fail(err, "unknown command '%s'; did you mean %s?", w, near);
+		return im_fail(err, "unknown command '%s' (type `help`)", w);
 	}
 	nargs = argc - 1;
 	if (nargs < d->min_args)
 		return im_fail(err, "%s: missing argument (usage: %s %s)", d->name, d->name,
 			       d->synopsis);
 	if (d->max_args != ANY && nargs > d->max_args)
-		return im_fail(err, "%s: unexpected '%.40s' (usage: %s %s)", d->name,
-			       argv[d->max_args + 1], d->name, d->synopsis);
+		return im_fail(err, "%s: unexpected '%s' (usage: %s %s)", d->name,
+			       out_clip(w, sizeof w, argv[d->max_args + 1]), d->name,
+			       d->synopsis);
 	ses_mark_take(ctx->ses, &mark);
 	rc = d->fn(ctx, argc, argv, err);
 	if (rc == 0 && out_failed(ctx->out))
@@ -259,7 +262,8 @@ int cmd_exec(im_ctx *ctx, const char *line, char *err)
 	char *start;
 	char q = 0;
 	if (n > CMD_LINE_MAX)
-		return im_fail(err, "line is longer than %d bytes", CMD_LINE_MAX);
+		return im_fail(err, "line is longer than %d bytes, the limit of one line",
+			       CMD_LINE_MAX);
 	for (size_t i = 0; i < n; i++) {
 		unsigned char c = (unsigned char)line[i];
 		if ((c < 0x20 && c != '\t' && c != '\n' && c != '\r') || c == 0x7f)
@@ -285,23 +289,49 @@ int cmd_exec(im_ctx *ctx, const char *line, char *err)
 
 /* ---- the one line loop ---- */
 
+/* A stdio reader with bounded memory: a line is read into a buffer of
+ * CMD_LINE_MAX + 1 bytes, never more; a longer line is handed over cut at
+ * that length (the loop refuses it by its length) and the rest of it is
+ * skipped on the next call; past CMD_SCRIPT_MAX bytes the reader stops
+ * (-2), so /dev/zero or an endless stream ends instead of growing. */
 typedef struct file_reader {
 	FILE *fp;
-	char *buf;
-	size_t cap;
+	char buf[CMD_LINE_MAX + 2];
+	unsigned long long total; /* bytes read so far */
+	int skip;                 /* 1: the rest of an overlong line is due */
 } file_reader;
 
 static int file_next(void *arg, char **line, size_t *len)
 {
 	file_reader *f = arg;
-	ssize_t n;
+	size_t n = 0;
+	int c = 0;
 	errno = 0;
-	n = getline(&f->buf, &f->cap, f->fp);
-	if (n < 0)
+	while (f->skip) {
+		c = getc_unlocked(f->fp);
+		if (c == EOF)
+			break;
+		if (++f->total > CMD_SCRIPT_MAX)
+			return -2;
+		if (c == '\n')
+			f->skip = 0;
+	}
+	if (!f->skip || c != EOF) {
+		while (n < CMD_LINE_MAX + 1 && (c = getc_unlocked(f->fp)) != EOF) {
+			if (++f->total > CMD_SCRIPT_MAX)
+				return -2;
+			f->buf[n++] = (char)c;
+			if (c == '\n')
+				break;
+		}
+	}
+	if (n == 0)
 		/* a directory opens but does not read (EISDIR): not an empty script */
 		return ferror(f->fp) ? (errno ? -1 : (errno = EIO, -1)) : 0;
+	f->skip = n == CMD_LINE_MAX + 1 && f->buf[n - 1] != '\n';
+	f->buf[n] = '\0';
 	*line = f->buf;
-	*len = (size_t)n;
+	*len = n;
 	return 1;
 }
 
@@ -315,10 +345,7 @@ void cmd_reader_file(cmd_reader *r, FILE *fp)
 
 void cmd_reader_file_done(cmd_reader *r)
 {
-	file_reader *f = r->arg;
-	if (f)
-		free(f->buf);
-	free(f);
+	free(r->arg);
 	r->arg = NULL;
 }
 
@@ -344,12 +371,18 @@ int cmd_loop(im_ctx *ctx, const cmd_reader *rd, int *line_out, char *err)
 			len -= 3;
 		}
 		set_errfile(ctx, NULL, 0);
+		/* the limit is on what the line says, not on its line end */
+		if (len > 0 && line[len - 1] == '\n')
+			len--;
+		if (len > 0 && line[len - 1] == '\r')
+			len--;
 		if (len > CMD_LINE_MAX)
-			rc = im_fail(err, "line is longer than %d bytes", CMD_LINE_MAX);
+			rc = im_fail(err, "line is longer than %d bytes, the limit of one line",
+				     CMD_LINE_MAX);
 		else if (memchr(line, '\0', len))
 			rc = im_fail(err, "line holds a NUL byte: not a text script");
 		else
-			rc = cmd_exec(ctx, line, err);
+			rc = (line[len] = '\0', cmd_exec(ctx, line, err));
 		if (rc == 0)
 			continue;
 		if (!ctx->interactive || out_failed(ctx->out)) {
@@ -357,6 +390,11 @@ int cmd_loop(im_ctx *ctx, const cmd_reader *rd, int *line_out, char *err)
 			return -1;
 		}
 		out_error(ctx->out, ctx->errfile, ctx->errline, err);
+	}
+	if (!ctx->quit && r == -2) {
+		*line_out = lineno + 1;
+		return im_fail(err, "input is longer than %d bytes, the limit of one script "
+			       "(an endless stream?)", CMD_SCRIPT_MAX);
 	}
 	if (!ctx->quit && r < 0) {
 		*line_out = lineno + 1;
@@ -387,8 +425,12 @@ static int cmd_run(im_ctx *ctx, int argc, char **argv, char *err)
 	if (ctx->run_depth >= 8)
 		return im_fail(err, "run: scripts nested more than 8 deep (a script runs itself?)");
 	fp = strcmp(argv[1], "-") == 0 ? stdin : fopen(argv[1], "r");
-	if (!fp)
-		return im_fail(err, "cannot open %s: %s", argv[1], strerror(errno));
+	if (!fp) {
+		char w[128];
+		int e = errno;
+		return im_fail(err, "cannot open %s: %s", out_clip(w, sizeof w, argv[1]),
+			       strerror(e));
+	}
 	ctx->run_depth++;
 	before = ctx->interactive;
 	ctx->interactive = 0; /* a script stops at its first error, even run from the shell */
@@ -415,8 +457,10 @@ static int cmd_help(im_ctx *ctx, int argc, char **argv, char *err)
 	if (argc > 1) {
 		const cmd_def *d = cmd_lookup(argv[1]);
 		if (!d) {
+			char w[48];
 			render_drop(r);
-			return im_fail(err, "no command '%.40s' (type `help` for the list)", argv[1]);
+			return im_fail(err, "no command '%s' (type `help` for the list)",
+				       out_clip(w, sizeof w, argv[1]));
 		}
 		render_str(r, "command", NULL, d->name);
 		render_str(r, "synopsis", NULL, d->synopsis);

@@ -450,6 +450,10 @@ static int ratio_setup(ratio_ctx *r, const ghk_ion *ions, int n, int ion_idx,
 		return im_fail(err, "the ion and the reference ion are the same");
 	if (!isfinite(target_mV))
 		return im_fail(err, "measured potential is not a finite number");
+	if (fabs(target_mV) > GHK_MEASURED_MAX_mV)
+		return im_fail(err, "a measured potential of %.4g mV is outside -%g to +%g mV, "
+			       "where a reversal potential or its shift can lie", target_mV,
+			       GHK_MEASURED_MAX_mV, GHK_MEASURED_MAX_mV);
 	double Pref = ions[ref_idx].P;
 	if (!isfinite(Pref) || !(Pref > 0)) {
 		char b[32];

@@ -35,6 +35,9 @@ typedef struct ghk_ion {
 #define GHK_TOL_REL 1e-13      /* relative tolerance */
 #define GHK_MAX_ITER 200       /* iterations of one root search */
 #define GHK_BRACKET_MAX_MV 1e5 /* a bracket is never widened past +-100 V */
+/* |measured E_rev| or its shift, mV, that ghk_ratio and ghk_ratio_shift
+ * take: beyond it no ratio can fit and the arithmetic loses the range */
+#define GHK_MEASURED_MAX_mV 1000.0
 #define GHK_RATIO_MIN 1e-6     /* permeability ratios are sought in (MIN, MAX) */
 #define GHK_RATIO_MAX 1e6
 

@@ -94,14 +94,17 @@ static double now_s(void)
 }
 
 /* Generation g of a solution: item k is compound k at g + k + 1 mM, from
- * a stock of 1000 + g + k mM, so old and new items cannot be confused. */
+ * a stock of STOCK_OF(g, k) mM, so old and new items cannot be confused;
+ * the stock wraps so that it stays within the 5 M a load accepts however
+ * many generations a busy machine lets the writer reach. */
+#define STOCK_OF(g, k) (1000.0 + (double)(((g) + (k)) % 3000))
 static void make_gen(solution *s, const char *name, int g, int nitems)
 {
 	sol_init(s, name);
 	for (int k = 0; k < nitems; k++) {
 		const rd_compound *c = refdb_compound_at(db, k);
 		sol_set(s, c, g + k + 1.0);
-		sol_find(s, c)->stock_mM = 1000.0 + g + k;
+		sol_find(s, c)->stock_mM = STOCK_OF(g, k);
 	}
 }
 
@@ -114,7 +117,7 @@ static int gen_of(const solution *s, int nitems)
 	g = (int)s->items[0].mM - 1;
 	for (int k = 0; k < nitems; k++)
 		if (s->items[k].c != refdb_compound_at(db, k) || s->items[k].mM != g + k + 1.0 ||
-		    s->items[k].stock_mM != 1000.0 + g + k)
+		    s->items[k].stock_mM != STOCK_OF(g, k))
 			return -1;
 	return g;
 }

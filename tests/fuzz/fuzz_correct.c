@@ -106,7 +106,7 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
 	rc = pass((const char *)data + 1, size - 1, s, s->ljp, &r, &out, &outn, err);
 	FZ_CHECK(rc == 0 || rc == -1, "corr_stream returned %d", rc);
 	if (rc) {
-		fz_check_err(err, "corr_stream");
+		fz_check_err(err, "corr_stream", 0);
 	} else {
 		FZ_CHECK(r.rows >= 0 && r.corrected >= 0 && r.skipped >= r.bad && r.bad >= 0 &&
 			 r.ragged >= 0 && r.blank >= 0, "negative counts");
