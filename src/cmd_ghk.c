@@ -392,10 +392,9 @@ int cmd_ghk_ratio(im_ctx *ctx, int argc, char **argv, char *err)
 	if (side_open(ctx, argv[shift ? 6 : 2], &outs, err))
 		goto done;
 	if (shift) {
-		if (!ws_find(&ctx->ses->ws, argv[2])) {
-			im_fail(err, "unknown solution '%.60s' (see `list`)", argv[2]);
+		solution *from;
+		if (ses_solution(ctx->ses, argv[2], &from, err)) /* saved ones too */
 			goto done;
-		}
 		if (side_open(ctx, argv[7], &to, err))
 			goto done;
 	}

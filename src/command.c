@@ -99,8 +99,12 @@ static const cmd_def table[] = {
 	 2, 3, cmd_stock, COMPL_COMPOUND, COMPL_NONE, 0},
 	{"save", "[NAME]", "save a solution to the database",
 	 0, 1, cmd_save, COMPL_SOLUTION, COMPL_NONE, 0},
-	{"load", "NAME", "load a saved solution and make it current",
+	{"load", "NAME[@VERSION]", "load a saved solution (or one of its versions) and make it current",
 	 1, 1, cmd_load, COMPL_SAVED, COMPL_NONE, 0},
+	{"versions", "NAME", "the saved versions of a solution, with date and summary",
+	 1, 1, cmd_versions, COMPL_SAVED, COMPL_NONE, 0},
+	{"undo", "", "take back the last change to the workspace (several levels)",
+	 0, 0, cmd_undo, COMPL_NONE, COMPL_NONE, 0},
 	{"list", "[FILE.nwb]", "solutions in the workspace and in the database, or the series of an NWB file",
 	 0, 1, cmd_list, COMPL_FILE, COMPL_NONE, 0},
 	{"delete", "NAME", "delete a saved solution from the database",
@@ -237,16 +241,21 @@ static int exec_one(im_ctx *ctx, char *cmd, char *err)
 	if (d->max_args != ANY && nargs > d->max_args)
 		return im_fail(err, "%s: unexpected '%.40s' (usage: %s %s)", d->name,
 			       argv[d->max_args + 1], d->name, d->synopsis);
-	ses_mark_take(ctx->ses, &mark);
+	/* `run` takes no mark: each of its lines takes its own, and its
+	 * earlier lines stand when a later one fails */
+	if (!d->keep_on_fail)
+		ses_mark_take(ctx->ses, &mark);
 	rc = d->fn(ctx, argc, argv, err);
 	if (rc == 0 && out_failed(ctx->out))
 		rc = im_fail(err, "cannot write the result of %s to %s: %s", d->name,
 			     ctx->out->name ? ctx->out->name : "standard output",
 			     strerror(ctx->out->werrno ? ctx->out->werrno : EIO));
-	if (rc != 0 && !d->keep_on_fail)
+	if (d->keep_on_fail)
+		return rc;
+	if (rc != 0)
 		ses_mark_restore(ctx->ses, &mark);
 	else
-		ses_mark_drop(&mark);
+		ses_mark_drop(ctx->ses, &mark);
 	return rc;
 }
 

@@ -11,10 +11,24 @@
 
 #include <stdio.h>
 
+#include "common.h"
 #include "refdb.h"
 #include "solution.h"
 
 struct userdb;
+
+/* What a failed command must not change: taken before each command and
+ * put back when it fails (command.c's rollback).  It records only what
+ * the command touches (ws_journal), so it costs in proportion to that,
+ * not to the size of the workspace.  A kept mark is one level of `undo`. */
+typedef struct ses_mark {
+	ws_journal jr;
+	double temp_C;
+	act_model model;
+	int nested;      /* 1: taken inside another command's mark: inert */
+} ses_mark;
+
+#define SES_UNDO_MAX 50 /* levels of `undo` */
 
 typedef struct session {
 	refdb *ref;             /* reference data; owned by the caller (main) */
@@ -28,15 +42,17 @@ typedef struct session {
 	workspace ws;           /* named solutions, one current */
 	double temp_C;          /* `temp`, default 25 degrees C */
 	act_model model;        /* `activity`, default Davies */
+	ses_mark *undo;         /* changes `undo` takes back, oldest first; owned */
+	int nundo;
+	int undoing;            /* set by ses_undo: the command is not undoable */
+	/* Keeping the workspace in the user database (the shell): after each
+	 * command that changed it, the changed solutions and the temperature
+	 * are written (ses_keep_changes).  keep_err: the last failure, printed
+	 * once by the shell; "" when none. */
+	int keep_ws;
+	char keep_err[IM_ERRLEN];
 } session;
 
-/* What a failed command must not change: taken before each command and
- * put back when it fails (command.c's rollback). */
-typedef struct ses_mark {
-	workspace ws;
-	double temp_C;
-	act_model model;
-} ses_mark;
 
 /* Start a session on ref (not owned): 25 C, Davies, empty workspace, no
  * chemistry data until ses_load_chemistry. */
@@ -57,8 +73,11 @@ const sol_env *ses_env(session *s);
 struct userdb *ses_userdb(session *s, int create, char *err, int *failed);
 
 /* The named solution of the workspace, or the current one when name is
- * NULL.  -1 with err ("unknown solution 'X' ..." / "no current solution")
- * when absent. */
+ * NULL.  A name not in the workspace is looked for among the saved
+ * solutions: found there, it is loaded into the workspace (not made
+ * current) and a note saying so goes to s->wait_notice, or stderr.  -1
+ * with err ("unknown solution 'X' ..." / "no current solution") when
+ * absent from both. */
 int ses_solution(session *s, const char *name, solution **out, char *err);
 /* A compound by name or alias; the error suggests the nearest names. */
 int ses_compound(const session *s, const char *name, const rd_compound **out, char *err);
@@ -77,9 +96,28 @@ int ses_set_model(session *s, const char *word, char *err);
 const char *ses_model_key(act_model m);
 const char *ses_model_text(act_model m);
 
-/* Mark the state, put it back (freeing what changed), or drop the mark. */
-void ses_mark_take(const session *s, ses_mark *m);
+/* Mark the state before a command; put it back (freeing what changed);
+ * or keep what the command did: ses_mark_drop makes the change one level
+ * of `undo` (unless the command was `undo`) and, with keep_ws, writes the
+ * changed solutions to the user database.  A mark taken while another is
+ * active (a command inside `run`, which takes none) is inert. */
+void ses_mark_take(session *s, ses_mark *m);
 void ses_mark_restore(session *s, ses_mark *m);
-void ses_mark_drop(ses_mark *m);
+void ses_mark_drop(session *s, ses_mark *m);
+
+/* Take back the last kept change: 0 with *what (static text: the names
+ * it concerned, or the temperature), or -1 with err when there is
+ * nothing to undo. */
+int ses_undo(session *s, char *what, size_t n, char *err);
+
+/* The workspace kept in the user database: restore it at start (0 with
+ * *count solutions restored, 1 when nothing was kept, -1 with err), and
+ * write a set of changed names now (used by ses_mark_drop). */
+int ses_restore_kept(session *s, int *count, char *err);
+
+/* Is the named workspace solution unsaved (never saved, or different
+ * from its saved content)?  1 yes, 0 no, -1 with err when the database
+ * cannot be read. */
+int ses_unsaved(session *s, const solution *sol, char *err);
 
 #endif

@@ -7,12 +7,14 @@
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/select.h>
 #include <sys/stat.h>
 
 #include <readline/history.h>
 #include <readline/readline.h>
 
 #include "common.h"
+#include "signals.h"
 #include "userdb.h"
 
 static im_ctx *sh_ctx; /* readline's callbacks take no user pointer */
@@ -154,26 +156,85 @@ static void make_parent(const char *path)
 		}
 }
 
+/* ---- reading a line: readline's callback interface, so that Ctrl-C at
+ * the prompt clears the line being typed and keeps the shell ---- */
+
+static char *cb_line;
+static int cb_done;
+
+static void on_line(char *line)
+{
+	cb_line = line;
+	cb_done = 1;
+	rl_callback_handler_remove();
+}
+
+/* A line from the terminal (caller frees), or NULL at end of input. */
+static char *read_line(const char *prompt)
+{
+	FILE *in = rl_instream ? rl_instream : stdin;
+	cb_done = 0;
+	cb_line = NULL;
+	rl_callback_handler_install(prompt, on_line);
+	while (!cb_done) {
+		fd_set fds;
+		int rc;
+		FD_ZERO(&fds);
+		FD_SET(fileno(in), &fds);
+		rc = select(fileno(in) + 1, &fds, NULL, NULL, NULL);
+		if (sig_cancelled()) { /* Ctrl-C: drop what was typed, a new prompt */
+			sig_clear();
+			rl_free_line_state();
+			rl_callback_sigcleanup();
+			rl_replace_line("", 0);
+			rl_point = rl_end = 0;
+			fputs("^C", rl_outstream ? rl_outstream : stdout);
+			rl_crlf();
+			rl_on_new_line();
+			rl_redisplay();
+			continue;
+		}
+		if (rc < 0 && errno == EINTR)
+			continue;
+		if (rc < 0) {
+			rl_callback_handler_remove();
+			return NULL;
+		}
+		rl_callback_read_char();
+	}
+	return cb_line;
+}
+
 /* The readline reader of cmd_loop: a prompt naming the current
  * solution and the temperature, history kept in history_path. */
 typedef struct rl_reader {
 	im_ctx *ctx;
 	const char *history_path;
 	char *line;
+	int eof;      /* 1: Ctrl-D (end of input) ended the loop */
 } rl_reader;
 
 static int rl_next(void *arg, char **line, size_t *len)
 {
 	rl_reader *r = arg;
 	char prompt[128];
-	solution *s = ws_current(&r->ctx->ses->ws);
+	session *ses = r->ctx->ses;
+	solution *s = ses->ws.current >= 0 ? ses->ws.sol[ses->ws.current] : NULL;
+	if (ses->keep_ws && ses->keep_err[0]) { /* said once; then no more tries */
+		out_printf(r->ctx->out, "note: the workspace is no longer kept for the next "
+			   "start: %s\n", ses->keep_err);
+		ses->keep_ws = 0;
+	}
 	fflush(r->ctx->out->fp);
 	free(r->line);
 	snprintf(prompt, sizeof prompt, "ionmix [%s, %.1f C]> ", s ? s->name : "no solution",
-		 r->ctx->ses->temp_C);
-	r->line = readline(prompt);
-	if (!r->line)
+		 ses->temp_C);
+	r->line = read_line(prompt);
+	sig_clear(); /* a Ctrl-C before this command is not for it */
+	if (!r->line) {
+		r->eof = 1;
 		return 0;
+	}
 	if (r->line[strspn(r->line, " \t")] != '\0') {
 		add_history(r->line);
 		if (r->history_path) {
@@ -187,23 +248,104 @@ static int rl_next(void *arg, char **line, size_t *len)
 	return 1;
 }
 
+/* The names of the workspace solutions that differ from what is saved,
+ * comma-separated into buf; returns how many. */
+static int unsaved_names(im_ctx *ctx, char *buf, size_t n)
+{
+	char err[IM_ERRLEN];
+	size_t len = 0;
+	int count = 0;
+	buf[0] = '\0';
+	for (int i = 0; i < ctx->ses->ws.n; i++) {
+		const solution *s = ctx->ses->ws.sol[i];
+		if (ses_unsaved(ctx->ses, s, err) == 0)
+			continue;
+		count++;
+		if (len < n)
+			len += snprintf(buf + len, n - len, "%s%s", len ? ", " : "", s->name);
+	}
+	if (len >= n && n > 4)
+		strcpy(buf + n - 4, "...");
+	return count;
+}
+
+/* Leaving with unsaved solutions: name them and ask once.  1: leave. */
+static int confirm_leave(im_ctx *ctx)
+{
+	char names[512], *answer;
+	int n = unsaved_names(ctx, names, sizeof names), yes;
+	if (n == 0)
+		return 1;
+	out_printf(ctx->out, "\nnot saved: %s%s\n", names,
+		   ctx->ses->keep_ws ? " (the workspace is kept for the next start; `save NAME` "
+				       "keeps a solution for good)" : "");
+	fflush(ctx->out->fp);
+	answer = read_line("leave anyway? [y/N] ");
+	sig_clear();
+	if (!answer) /* a second Ctrl-D: leave */
+		return 1;
+	yes = answer[0] == 'y' || answer[0] == 'Y';
+	free(answer);
+	return yes;
+}
+
+/* Restore the workspace kept by the last session, saying so in one line. */
+static void restore_kept(im_ctx *ctx)
+{
+	char err[IM_ERRLEN], names[256];
+	size_t len = 0;
+	int n;
+	session *s = ctx->ses;
+	if (!s->db_path)
+		return;
+	n = 0;
+	if (ses_restore_kept(s, &n, err) < 0) {
+		out_printf(ctx->out, "note: the workspace of the last session was not restored: "
+			   "%s\n", err);
+		return;
+	}
+	s->keep_ws = 1;
+	if (n == 0)
+		return;
+	names[0] = '\0';
+	for (int i = 0; i < s->ws.n && len < sizeof names; i++)
+		len += snprintf(names + len, sizeof names - len, "%s%s", i ? ", " : "",
+				s->ws.sol[i]->name);
+	if (len >= sizeof names)
+		strcpy(names + sizeof names - 4, "...");
+	out_printf(ctx->out, "restored the workspace of the last session: %d solution%s (%s), "
+		   "%.1f C%s%s\n", n, n == 1 ? "" : "s", names, s->temp_C,
+		   s->ws.current >= 0 ? ", current " : "",
+		   s->ws.current >= 0 ? s->ws.sol[s->ws.current]->name : "");
+}
+
 int shell_run(im_ctx *ctx, const char *history_path)
 {
 	char err[IM_ERRLEN];
 	int line;
-	rl_reader rr = {ctx, history_path, NULL};
+	rl_reader rr = {ctx, history_path, NULL, 0};
 	cmd_reader rd = {rl_next, &rr};
 	sh_ctx = ctx;
 	rl_readline_name = "ionmix";
 	rl_attempted_completion_function = complete;
 	rl_basic_word_break_characters = " \t\n\"';";
+	rl_catch_signals = 0; /* SIGINT is signals.c's: a flag read_line polls */
 	using_history();
 	stifle_history(2000);
 	if (history_path)
 		read_history(history_path);
 	out_printf(ctx->out, "ionmix: type `help` for the commands, `quit` or Ctrl-D to leave\n");
-	if (cmd_loop(ctx, &rd, &line, err)) /* only when the output fails */
-		out_error(ctx->out, NULL, 0, err);
+	restore_kept(ctx);
+	for (;;) {
+		rr.eof = 0;
+		if (cmd_loop(ctx, &rd, &line, err)) { /* only when the output fails */
+			out_error(ctx->out, NULL, 0, err);
+			break;
+		}
+		if (confirm_leave(ctx))
+			break;
+		ctx->quit = 0;
+	}
 	free(rr.line);
 	if (history_path)
 		history_truncate_file(history_path, 2000);
