@@ -493,6 +493,8 @@ void ws_journal_undo(workspace *w, ws_journal *jr)
 void ws_journal_free(ws_journal *jr)
 {
 	for (int j = 0; j < jr->n; j++) {
+		if (!jr->e[j].old)
+			continue;
 		sol_free(jr->e[j].old);
 		free(jr->e[j].old);
 	}
