@@ -18,6 +18,7 @@
 #include "cmd_bench.h"
 #include "cmd_chem.h"
 #include "cmd_correct.h"
+#include "cmd_define.h"
 #include "cmd_ephys.h"
 #include "cmd_ghk.h"
 #include "cmd_junction.h"
@@ -118,6 +119,9 @@ static const cmd_def table[] = {
 	 "CSV options: column N|NAME, skip N, skip-bad, whole-cell|outside-out|inside-out|cell-attached, to -; "
 	 "NWB options: series NAME..., again",
 	 1, ANY, cmd_correct, COMPL_FILE, COMPL_FILE, 0},
+	{"define", "COMPOUND formula FORMULA [yields ION N ...] [hazard TEXT] [source TEXT] | ion SYMBOL charge Z [mobility D source TEXT] [formula FORMULA]",
+	 "a compound or ion of your own, kept in the user database (D in 1e-9 m2/s at 25 C)",
+	 2, ANY, cmd_define, COMPL_NONE, COMPL_NONE, 0},
 	{"info", "COMPOUND|ION", "reference data of a compound or ion, with sources",
 	 1, 1, cmd_info, COMPL_COMPOUND, COMPL_NONE, 0},
 	{"compounds", "[KIND]", "the compounds ionmix knows",

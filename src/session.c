@@ -9,6 +9,7 @@
 #include <string.h>
 
 #include "common.h"
+#include "usercomp.h"
 #include "userdb.h"
 
 void ses_init(session *s, refdb *ref)
@@ -49,6 +50,35 @@ void ses_free(session *s)
 	s->nundo = 0;
 	udb_close(s->user);
 	s->user = NULL;
+	uc_free(s->uc);
+	s->uc = NULL;
+	s->uc_loaded = 0;
+}
+
+static const rd_compound *lookup_defined(void *arg, const char *name)
+{
+	char err[IM_ERRLEN];
+	return uc_compound(ses_defs(arg, err), name);
+}
+
+struct usercomp *ses_defs(session *s, char *err)
+{
+	struct userdb *u;
+	int failed = 0;
+	err[0] = '\0';
+	if (!s->uc)
+		s->uc = uc_new();
+	if (s->uc_loaded)
+		return s->uc;
+	s->uc_loaded = 1;
+	if (!s->db_path)
+		return s->uc;
+	u = ses_userdb(s, 0, err, &failed);
+	if (u && udb_defined_read(u, s->ref, s->uc, err) < 0) {
+		uc_free(s->uc); /* half read: none */
+		s->uc = uc_new();
+	}
+	return s->uc;
 }
 
 const sol_env *ses_env(session *s)
@@ -71,6 +101,8 @@ struct userdb *ses_userdb(session *s, int create, char *err, int *failed)
 		*failed = 1;
 	else if (s->user && s->wait_notice) /* after 2 s of waiting, say so */
 		udb_set_patience(s->user, UDB_WAIT_S, UDB_NOTICE_S, s->wait_notice);
+	if (s->user)
+		udb_set_lookup(s->user, lookup_defined, s);
 	return s->user;
 }
 
@@ -107,13 +139,20 @@ int ses_solution(session *s, const char *name, solution **out, char *err)
 			    "`list`)", name);
 }
 
-int ses_compound(const session *s, const char *name, const rd_compound **out, char *err)
+int ses_compound(session *s, const char *name, const rd_compound **out, char *err)
 {
 	const char *sug[3];
+	char derr[IM_ERRLEN];
 	int n;
 	*out = refdb_compound(s->ref, name);
 	if (*out)
 		return 0;
+	*out = uc_compound(ses_defs(s, derr), name);
+	if (*out)
+		return 0;
+	if (derr[0])
+		return im_fail(err, "unknown compound '%.60s' (and the compounds you defined could "
+				    "not be read: %s)", name, derr);
 	n = refdb_suggest(s->ref, name, sug, 3);
 	if (n == 0)
 		return im_fail(err, "unknown compound '%.60s' (see `compounds`)", name);
@@ -122,9 +161,13 @@ int ses_compound(const session *s, const char *name, const rd_compound **out, ch
 		       n > 2 ? " or " : "", n > 2 ? sug[2] : "");
 }
 
-int ses_ion(const session *s, const char *name, const rd_ion **out, char *err)
+int ses_ion(session *s, const char *name, const rd_ion **out, char *err)
 {
+	char derr[IM_ERRLEN];
 	*out = refdb_ion(s->ref, name);
+	if (*out)
+		return 0;
+	*out = uc_ion(ses_defs(s, derr), name);
 	if (*out)
 		return 0;
 	return im_fail(err, "unknown ion '%.40s' (`info ION` shows one; symbols like Na+, Ca2+, Cl-)",

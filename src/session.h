@@ -51,6 +51,10 @@ typedef struct session {
 	 * once by the shell; "" when none. */
 	int keep_ws;
 	char keep_err[IM_ERRLEN];
+	/* user-defined compounds and ions, read from the user database on the
+	 * first lookup the reference data cannot answer; owned */
+	struct usercomp *uc;
+	int uc_loaded;
 } session;
 
 
@@ -79,10 +83,17 @@ struct userdb *ses_userdb(session *s, int create, char *err, int *failed);
  * with err ("unknown solution 'X' ..." / "no current solution") when
  * absent from both. */
 int ses_solution(session *s, const char *name, solution **out, char *err);
-/* A compound by name or alias; the error suggests the nearest names. */
-int ses_compound(const session *s, const char *name, const rd_compound **out, char *err);
-/* An ion by symbol (with or without its sign); -1 with err when unknown. */
-int ses_ion(const session *s, const char *name, const rd_ion **out, char *err);
+/* A compound by name or alias: the shipped ones, then those the user
+ * defined (read from the user database the first time one is needed);
+ * the error suggests the nearest names. */
+int ses_compound(session *s, const char *name, const rd_compound **out, char *err);
+/* An ion by symbol (with or without its sign), shipped or user-defined;
+ * -1 with err when unknown. */
+int ses_ion(session *s, const char *name, const rd_ion **out, char *err);
+/* The user-defined compounds and ions (read on first use; never NULL).
+ * err gets a message when the database could not be read (the set is
+ * then empty) and is "" otherwise. */
+struct usercomp *ses_defs(session *s, char *err);
 /* 0 when name may name a solution (1 to SOL_NAME_MAX - 1 of letters,
  * digits, '-', '_', '.'), else -1 with err. */
 int ses_valid_name(const char *name, char *err);

@@ -181,12 +181,18 @@ static int speciate(const solution *s, const sol_env *env, sol_state *st, char *
 		free(r);
 		return -1;
 	}
-	free(st->sp);
+	sol_species *given = st->sp;
+	int ngiven = st->n;
 	st->sp = im_xcalloc(r->n ? r->n : 1, sizeof *st->sp);
 	st->n = 0;
 	for (int i = 0; i < r->n; i++) {
 		const rd_ion *ion = refdb_ion_exact(env->ref, r->sp[i].symbol);
+		/* a user-defined ion passes through as it was given */
+		for (int j = 0; !ion && j < ngiven; j++)
+			if (strcmp(given[j].ion->symbol, r->sp[i].symbol) == 0)
+				ion = given[j].ion;
 		if (!ion) {
+			free(given);
 			im_fail(err, "speciation produced %s, which the reference data do not name",
 				r->sp[i].symbol);
 			free(r);
@@ -197,6 +203,7 @@ static int speciate(const solution *s, const sol_env *env, sol_state *st, char *
 		st->sp[st->n].ion = ion;
 		st->sp[st->n++].mM = r->sp[i].mM;
 	}
+	free(given);
 	st->chem = r;
 	st->pH = r->pH;
 	if (env->osm) {

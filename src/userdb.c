@@ -66,7 +66,14 @@ static const char schema2_sql[] =
 	"  compound TEXT NOT NULL, mM REAL NOT NULL CHECK (mM > 0),"
 	"  stock_mM REAL NOT NULL DEFAULT 0, titrant INTEGER NOT NULL DEFAULT 0,"
 	"  PRIMARY KEY (solution, position));"
-	"CREATE TABLE IF NOT EXISTS kept_state (key TEXT PRIMARY KEY, value);";
+	"CREATE TABLE IF NOT EXISTS kept_state (key TEXT PRIMARY KEY, value);"
+	/* user-defined ions and compounds (`define`), re-read at start */
+	"CREATE TABLE IF NOT EXISTS defined_ions ("
+	"  symbol TEXT PRIMARY KEY, z INTEGER NOT NULL, D_1e9_m2_s REAL, source TEXT,"
+	"  mass_g_mol REAL);"
+	"CREATE TABLE IF NOT EXISTS defined_compounds ("
+	"  name TEXT PRIMARY KEY, formula TEXT NOT NULL, yields TEXT NOT NULL DEFAULT '',"
+	"  hazard TEXT, source TEXT);";
 
 /* Where a solution's rows live: saved (the latest), a saved version, or
  * the kept workspace.  The head and item tables share their columns. */
@@ -92,6 +99,9 @@ struct userdb {
 	int noticed;         /* the notice was given for the current wait */
 	unsigned seed;       /* jitter */
 	int schema;          /* the file's schema version */
+	/* compounds the reference data do not know (user-defined) */
+	const rd_compound *(*lookup)(void *arg, const char *name);
+	void *lookup_arg;
 };
 
 static double mono_s(void)
@@ -888,7 +898,9 @@ static int load_item(userdb *u, const refdb *ref, sqlite3_stmt *st, solution *ou
 	if (!cname || !*cname)
 		return im_fail(err, "%s: saved solution '%s' has a compound without a name; "
 				    "nothing was loaded (was the file edited?)", u->path, out->name);
-	if (!(c = refdb_compound(ref, cname)))
+	if (!(c = refdb_compound(ref, cname)) && u->lookup)
+		c = u->lookup(u->lookup_arg, cname);
+	if (!c)
 		return im_fail(err, "%s: saved solution '%s' uses '%.40s', which this ionmix does "
 				    "not know; nothing was loaded", u->path, out->name, cname);
 	if (sol_find(out, c))
@@ -1013,6 +1025,134 @@ void udb_versions_free(udb_version *v, int n)
 	for (int i = 0; i < n; i++)
 		free(v[i].summary);
 	free(v);
+}
+
+/* ---- user-defined ions and compounds ---- */
+
+void udb_set_lookup(userdb *u, const rd_compound *(*fn)(void *arg, const char *name),
+		    void *arg)
+{
+	u->lookup = fn;
+	u->lookup_arg = arg;
+}
+
+static int exec_bound(userdb *u, const char *sql, const char *what, const char *const *text,
+		      int ntext, const double *num, int nnum, char *err)
+{
+	sqlite3_stmt *st;
+	int ok;
+	if (need_v2(u, what, err))
+		return -1;
+	if (sqlite3_exec(u->db, "BEGIN IMMEDIATE", NULL, NULL, NULL) != SQLITE_OK)
+		return fail_db(u, err, what);
+	if (sqlite3_prepare_v2(u->db, sql, -1, &st, NULL) != SQLITE_OK) {
+		fail_db(u, err, what);
+		sqlite3_exec(u->db, "ROLLBACK", NULL, NULL, NULL);
+		return -1;
+	}
+	for (int i = 0; i < ntext; i++)
+		if (text[i])
+			sqlite3_bind_text(st, i + 1, text[i], -1, SQLITE_STATIC);
+		else
+			sqlite3_bind_null(st, i + 1);
+	for (int i = 0; i < nnum; i++)
+		if (isfinite(num[i]))
+			sqlite3_bind_double(st, ntext + i + 1, num[i]);
+		else
+			sqlite3_bind_null(st, ntext + i + 1);
+	ok = sqlite3_step(st) == SQLITE_DONE;
+	sqlite3_finalize(st);
+	if (ok)
+		ok = sqlite3_exec(u->db, "COMMIT", NULL, NULL, NULL) == SQLITE_OK;
+	if (!ok) {
+		fail_db(u, err, what);
+		sqlite3_exec(u->db, "ROLLBACK", NULL, NULL, NULL);
+		return -1;
+	}
+	return 0;
+}
+
+int udb_define_ion(userdb *u, const rd_ion *ion, char *err)
+{
+	const char *text[] = {ion->symbol, ion->mobility_source ? ion->mobility_source->citation
+							    : NULL};
+	double num[] = {ion->z, ion->D_1e9_m2_s, ion->mass_g_mol};
+	return exec_bound(u, "INSERT INTO defined_ions(symbol, source, z, D_1e9_m2_s, mass_g_mol)"
+			  " VALUES (?1, ?2, ?3, ?4, ?5)", "defining an ion", text, 2, num, 3, err);
+}
+
+int udb_define_compound(userdb *u, const rd_compound *c, const char *source, char *err)
+{
+	char yields[512];
+	const char *text[] = {c->name, c->formula, yields, c->hazard, source};
+	uc_yields_text(c, yields, sizeof yields);
+	if (c->nyields == 1 && c->yields[0].ion->z == 0 &&
+	    strcmp(c->yields[0].ion->symbol, c->name) == 0)
+		yields[0] = '\0'; /* a neutral solute of itself */
+	return exec_bound(u, "INSERT INTO defined_compounds(name, formula, yields, hazard, source)"
+			  " VALUES (?1, ?2, ?3, ?4, ?5)", "defining a compound", text, 5, NULL, 0,
+			  err);
+}
+
+int udb_defined_read(userdb *u, const refdb *ref, usercomp *uc, char *err)
+{
+	sqlite3_stmt *st;
+	int rc, n = 0;
+	char why[IM_ERRLEN];
+	if (u->schema < 2)
+		return 0;
+	if (sqlite3_prepare_v2(u->db, "SELECT symbol, z, D_1e9_m2_s, source, mass_g_mol FROM"
+			       " defined_ions ORDER BY rowid", -1, &st, NULL))
+		return fail_db(u, err, "reading the defined ions");
+	while ((rc = sqlite3_step(st)) == SQLITE_ROW) {
+		const char *sym = (const char *)sqlite3_column_text(st, 0);
+		uc_ion_def d = {sym ? sym : "", sqlite3_column_int(st, 1), NAN,
+				(const char *)sqlite3_column_text(st, 3), NAN};
+		if (sqlite3_column_type(st, 2) == SQLITE_FLOAT)
+			d.D_1e9_m2_s = sqlite3_column_double(st, 2);
+		if (sqlite3_column_type(st, 4) == SQLITE_FLOAT)
+			d.mass_g_mol = sqlite3_column_double(st, 4);
+		if (uc_ion(uc, d.symbol))
+			continue; /* a neutral solute's own particle, added with it */
+		if (uc_add_ion(uc, ref, &d, NULL, why)) {
+			sqlite3_finalize(st);
+			return im_fail(err, "%s: defined ion '%.40s': %s", u->path, d.symbol, why);
+		}
+		n++;
+	}
+	sqlite3_finalize(st);
+	if (rc != SQLITE_DONE)
+		return fail_db(u, err, "reading the defined ions");
+	if (sqlite3_prepare_v2(u->db, "SELECT name, formula, yields, hazard, source FROM"
+			       " defined_compounds ORDER BY rowid", -1, &st, NULL))
+		return fail_db(u, err, "reading the defined compounds");
+	while ((rc = sqlite3_step(st)) == SQLITE_ROW) {
+		const char *name = (const char *)sqlite3_column_text(st, 0);
+		const char *yields = (const char *)sqlite3_column_text(st, 2);
+		char ybuf[512], *save = NULL, *w;
+		uc_compound_def d;
+		memset(&d, 0, sizeof d);
+		d.name = name ? name : "";
+		d.formula = sqlite3_column_text(st, 1) ? (const char *)sqlite3_column_text(st, 1) : "";
+		d.hazard = (const char *)sqlite3_column_text(st, 3);
+		d.source = (const char *)sqlite3_column_text(st, 4);
+		snprintf(ybuf, sizeof ybuf, "%s", yields ? yields : "");
+		for (w = strtok_r(ybuf, " ", &save); w && d.nyields < UC_MAX_YIELDS;
+		     w = strtok_r(NULL, " ", &save)) {
+			char *cnt = strtok_r(NULL, " ", &save);
+			d.yield_sym[d.nyields] = w;
+			d.yield_n[d.nyields++] = cnt ? strtod(cnt, NULL) : NAN;
+		}
+		if (uc_add_compound(uc, ref, &d, NULL, why)) {
+			sqlite3_finalize(st);
+			return im_fail(err, "%s: defined compound '%.40s': %s", u->path, d.name, why);
+		}
+		n++;
+	}
+	sqlite3_finalize(st);
+	if (rc != SQLITE_DONE)
+		return fail_db(u, err, "reading the defined compounds");
+	return n;
 }
 
 /* ---- the kept workspace ---- */

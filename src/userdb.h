@@ -12,6 +12,7 @@
 
 #include "refdb.h"
 #include "solution.h"
+#include "usercomp.h"
 
 #define UDB_SCHEMA_VERSION 2 /* 2: versions, the kept workspace */
 /* Seconds a statement waits for another process holding the database's
@@ -69,6 +70,17 @@ int udb_kept_write(userdb *u, const workspace *w, const char *const *names, int 
  * *temp_C: the count of solutions restored, or -1 with err (a bad row is
  * named as udb_load does). */
 int udb_kept_read(userdb *u, const refdb *ref, workspace *w, double *temp_C, char *err);
+
+/* User-defined ions and compounds (`define`): store one (in one
+ * transaction; a name already stored fails), or read them all into uc
+ * (the count, or -1 with err naming a bad row).  source: the text given
+ * with the compound, NULL when none. */
+int udb_define_ion(userdb *u, const rd_ion *ion, char *err);
+int udb_define_compound(userdb *u, const rd_compound *c, const char *source, char *err);
+int udb_defined_read(userdb *u, const refdb *ref, usercomp *uc, char *err);
+/* Where loading finds a compound the reference data do not know. */
+void udb_set_lookup(userdb *u, const rd_compound *(*fn)(void *arg, const char *name),
+		    void *arg);
 
 /* Load a saved solution into out.  Every value is checked as typed input
  * is (finite; amounts and stocks within 1 fM to 5 M, stock 0 meaning
