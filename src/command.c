@@ -223,9 +223,35 @@ static const char *nearest_command(const char *name)
 	return hits == 1 ? best : NULL;
 }
 
+/* A compound name with spaces typed without quotes (`add QX-314 chloride
+ * 5`): when the first argument of a command that takes a compound is not
+ * one, and it and the next words (up to three more) are, the words become
+ * one argument in buf.  The longest such name wins; a name is looked up
+ * exactly (by name or alias), so the joining is never a guess. */
+static void join_compound_words(im_ctx *ctx, const cmd_def *d, char **argv, int *argc,
+				char *buf, size_t n)
+{
+	const rd_compound *c;
+	char scratch[IM_ERRLEN];
+	if (d->compl != COMPL_COMPOUND || *argc < 3 ||
+	    ses_compound(ctx->ses, argv[1], &c, scratch) == 0)
+		return;
+	for (int last = *argc - 1 < 4 ? *argc - 1 : 4; last >= 2; last--) {
+		size_t len = 0;
+		for (int i = 1; i <= last && len < n; i++)
+			len += snprintf(buf + len, n - len, "%s%s", i > 1 ? " " : "", argv[i]);
+		if (len >= n || ses_compound(ctx->ses, buf, &c, scratch) != 0)
+			continue;
+		argv[1] = buf;
+		memmove(&argv[2], &argv[last + 1], (size_t)(*argc - last - 1) * sizeof *argv);
+		*argc -= last - 1;
+		return;
+	}
+}
+
 static int exec_one(im_ctx *ctx, char *cmd, char *err)
 {
-	char *argv[CMD_ARGS_MAX];
+	char *argv[CMD_ARGS_MAX], joined[CMD_LINE_MAX + 1];
 	int argc = cmd_split(cmd, argv, CMD_ARGS_MAX, err), nargs, rc;
 	const cmd_def *d;
 	ses_mark mark;
@@ -238,6 +264,7 @@ static int exec_one(im_ctx *ctx, char *cmd, char *err)
 			return im_fail(err, "unknown command '%.40s'; did you mean %s?", argv[0], near);
 		return im_fail(err, "unknown command '%.40s' (type `help`)", argv[0]);
 	}
+	join_compound_words(ctx, d, argv, &argc, joined, sizeof joined);
 	nargs = argc - 1;
 	if (nargs < d->min_args)
 		return im_fail(err, "%s: missing argument (usage: %s %s)", d->name, d->name,

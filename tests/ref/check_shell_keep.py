@@ -138,6 +138,14 @@ check("the restored bath holds KCl 3 mM and not the line typed at the kill",
       out is not None and "3 mM" in out and "53 mM" not in out, repr(out))
 check("the restored temperature is 32 C", out is not None and "32.0 C" in out, repr(out))
 
+# ---- completion on the terminal: the typed prefix completes, not eaten ----
+sh.send("info k-gluc\t")
+time.sleep(0.5)
+sh.send("\r")
+out = sh.expect("]> ")
+check("Tab completes 'k-gluc' to K-gluconate and the command runs",
+      out is not None and "K-gluconate" in out and "formula" in out, repr(out))
+
 # ---- quit with unsaved solutions: named, asked once ----
 sh.send("quit\r")
 out = sh.expect("[y/N] ")
