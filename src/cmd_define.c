@@ -171,6 +171,41 @@ static int define_compound(im_ctx *ctx, usercomp *uc, int argc, char **argv, cha
 	return render_done(r);
 }
 
+int cmd_fw(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	const rd_compound *c;
+	solution *s;
+	sol_item *it;
+	double fw = 0;
+	render *r;
+	(void)argc;
+	if (ses_solution(ctx->ses, NULL, &s, err) || ses_compound(ctx->ses, argv[1], &c, err))
+		return -1;
+	if (!(it = sol_find(s, c)))
+		return im_fail(err, "%s is not in %s: add it first", c->name, s->name);
+	if (strcmp(argv[2], "off") != 0) {
+		if (units_number(argv[2], &fw, err))
+			return -1;
+		if (!(fw >= 1 && fw <= 5000))
+			return im_fail(err, "formula weight %s g/mol is outside 1 to 5000 g/mol", argv[2]);
+	}
+	it->fw_g_mol = fw;
+	r = render_new(ctx->out);
+	render_str(r, "solution", NULL, s->name);
+	render_str(r, "compound", NULL, c->name);
+	render_numj(r, "fw_g_mol", NULL, "g/mol", fw > 0 ? fw : c->fw_g_mol, UNITS_SIG(8), 8);
+	render_numj(r, "table_fw_g_mol", NULL, "g/mol", c->fw_g_mol, UNITS_SIG(8), 8);
+	render_bool(r, "from_bottle", NULL, fw > 0);
+	if (fw > 0)
+		render_text(r, "%s: %s weighed with %.4g g/mol from the bottle (the table has %.4g "
+			    "g/mol%s)", s->name, c->name, fw, c->fw_g_mol,
+			    fabs(fw / c->fw_g_mol - 1) > 0.2 ? "; a different hydrate or salt?" : "");
+	else
+		render_text(r, "%s: %s weighed with the table's %.4g g/mol", s->name, c->name,
+			    c->fw_g_mol);
+	return render_done(r);
+}
+
 int cmd_define(im_ctx *ctx, int argc, char **argv, char *err)
 {
 	char uerr[IM_ERRLEN];

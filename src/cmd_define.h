@@ -12,5 +12,8 @@
  * define ion SYMBOL charge Z [mobility D source TEXT] [formula FORMULA]
  * (cmd_fn) */
 int cmd_define(im_ctx *ctx, int argc, char **argv, char *err);
+/* fw COMPOUND GRAMS_PER_MOL|off: the bottle's formula weight for the
+ * current solution (weigh uses it). */
+int cmd_fw(im_ctx *ctx, int argc, char **argv, char *err);
 
 #endif

@@ -122,6 +122,8 @@ static const cmd_def table[] = {
 	{"define", "COMPOUND formula FORMULA [yields ION N ...] [hazard TEXT] [source TEXT] | ion SYMBOL charge Z [mobility D source TEXT] [formula FORMULA]",
 	 "a compound or ion of your own, kept in the user database (D in 1e-9 m2/s at 25 C)",
 	 2, ANY, cmd_define, COMPL_NONE, COMPL_NONE, 0},
+	{"fw", "COMPOUND GRAMS_PER_MOL|off", "the formula weight on the bottle (hydrate, lot) for weighing in the current solution",
+	 2, 2, cmd_fw, COMPL_COMPOUND, COMPL_NONE, 0},
 	{"info", "COMPOUND|ION", "reference data of a compound or ion, with sources",
 	 1, 1, cmd_info, COMPL_COMPOUND, COMPL_NONE, 0},
 	{"compounds", "[KIND]", "the compounds ionmix knows",

@@ -54,7 +54,7 @@ static sol_item *append(solution *s, const rd_compound *c)
 		s->cap = s->cap ? 2 * s->cap : 8;
 		s->items = im_xrealloc(s->items, s->cap * sizeof *s->items);
 	}
-	s->items[s->n] = (sol_item){c, 0.0, 0.0, 0};
+	s->items[s->n] = (sol_item){c, 0.0, 0.0, 0, 0.0};
 	return &s->items[s->n++];
 }
 
@@ -94,7 +94,8 @@ int sol_equal(const solution *a, const solution *b)
 	for (int i = 0; i < a->n; i++)
 		if (a->items[i].c != b->items[i].c || a->items[i].mM != b->items[i].mM ||
 		    a->items[i].stock_mM != b->items[i].stock_mM ||
-		    a->items[i].titrant != b->items[i].titrant)
+		    a->items[i].titrant != b->items[i].titrant ||
+		    a->items[i].fw_g_mol != b->items[i].fw_g_mol)
 			return 0;
 	return 1;
 }

@@ -19,6 +19,8 @@ typedef struct sol_item {
 	double mM;       /* final concentration in the solution, mmol/L */
 	double stock_mM; /* > 0: comes from a stock of this concentration */
 	int titrant;     /* 1: added by `ph` to reach ph_target */
+	double fw_g_mol; /* > 0: the formula weight on the bottle (`fw`: hydrate,
+			  * lot), used to weigh; 0: the compound's */
 } sol_item;
 
 typedef struct solution {

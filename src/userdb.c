@@ -54,6 +54,7 @@ static const char schema2_sql[] =
 	"  solution TEXT NOT NULL, version INTEGER NOT NULL, position INTEGER NOT NULL,"
 	"  compound TEXT NOT NULL, mM REAL NOT NULL CHECK (mM > 0),"
 	"  stock_mM REAL NOT NULL DEFAULT 0, titrant INTEGER NOT NULL DEFAULT 0,"
+	"  fw_g_mol REAL NOT NULL DEFAULT 0,"
 	"  PRIMARY KEY (solution, version, position));"
 	"CREATE TABLE IF NOT EXISTS kept_solutions ("
 	"  name TEXT PRIMARY KEY, version INTEGER NOT NULL DEFAULT 0,"
@@ -65,7 +66,10 @@ static const char schema2_sql[] =
 	"  position INTEGER NOT NULL,"
 	"  compound TEXT NOT NULL, mM REAL NOT NULL CHECK (mM > 0),"
 	"  stock_mM REAL NOT NULL DEFAULT 0, titrant INTEGER NOT NULL DEFAULT 0,"
+	"  fw_g_mol REAL NOT NULL DEFAULT 0,"
 	"  PRIMARY KEY (solution, position));"
+	/* the bottle's formula weight of an item (`fw`); 0: the table's */
+	"ALTER TABLE solution_items ADD COLUMN fw_g_mol REAL NOT NULL DEFAULT 0;"
 	"CREATE TABLE IF NOT EXISTS kept_state (key TEXT PRIMARY KEY, value);"
 	/* user-defined ions and compounds (`define`), re-read at start */
 	"CREATE TABLE IF NOT EXISTS defined_ions ("
@@ -562,12 +566,12 @@ static int save_rows(userdb *u, rows_kind k, const solution *s, int version)
 		" ?5, ?6)",
 	};
 	static const char *const item_cols[] = {
-		"(solution, position, compound, mM, stock_mM, titrant) VALUES (?1, ?3, ?4, ?5, ?6,"
-		" ?7)",
-		"(solution, version, position, compound, mM, stock_mM, titrant) VALUES (?1, ?2, ?3,"
-		" ?4, ?5, ?6, ?7)",
-		"(solution, position, compound, mM, stock_mM, titrant) VALUES (?1, ?3, ?4, ?5, ?6,"
-		" ?7)",
+		"(solution, position, compound, mM, stock_mM, titrant, fw_g_mol) VALUES (?1, ?3, ?4,"
+		" ?5, ?6, ?7, ?8)",
+		"(solution, version, position, compound, mM, stock_mM, titrant, fw_g_mol) VALUES"
+		" (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8)",
+		"(solution, position, compound, mM, stock_mM, titrant, fw_g_mol) VALUES (?1, ?3, ?4,"
+		" ?5, ?6, ?7, ?8)",
 	};
 	const char *vcond = k == ROWS_VERSION ? " AND version = ?2" : "";
 	char sql[256];
@@ -611,6 +615,7 @@ static int save_rows(userdb *u, rows_kind k, const solution *s, int version)
 		sqlite3_bind_double(item, 5, s->items[i].mM);
 		sqlite3_bind_double(item, 6, s->items[i].stock_mM);
 		sqlite3_bind_int(item, 7, s->items[i].titrant);
+		sqlite3_bind_double(item, 8, s->items[i].fw_g_mol);
 		if (step_done(item))
 			goto done;
 	}
@@ -645,8 +650,8 @@ static int same_as_saved(userdb *u, const solution *s)
 	    sqlite3_column_double(st, 2) != s->co2_p_atm || sqlite3_column_int(st, 3) != s->co2_dry)
 		same = 0;
 	sqlite3_finalize(st);
-	if (sqlite3_prepare_v2(u->db, "SELECT compound, mM, stock_mM, titrant FROM solution_items"
-			       " WHERE solution = ?1 ORDER BY position", -1, &st, NULL))
+	if (sqlite3_prepare_v2(u->db, "SELECT compound, mM, stock_mM, titrant, fw_g_mol FROM"
+			       " solution_items WHERE solution = ?1 ORDER BY position", -1, &st, NULL))
 		return -1;
 	sqlite3_bind_text(st, 1, s->name, -1, SQLITE_STATIC);
 	while ((rc = sqlite3_step(st)) == SQLITE_ROW) {
@@ -654,7 +659,8 @@ static int same_as_saved(userdb *u, const solution *s)
 		if (n >= s->n || !c || strcmp(c, s->items[n].c->name) != 0 ||
 		    sqlite3_column_double(st, 1) != s->items[n].mM ||
 		    sqlite3_column_double(st, 2) != s->items[n].stock_mM ||
-		    sqlite3_column_int(st, 3) != s->items[n].titrant)
+		    sqlite3_column_int(st, 3) != s->items[n].titrant ||
+		    sqlite3_column_double(st, 4) != s->items[n].fw_g_mol)
 			same = 0;
 		n++;
 	}
@@ -708,8 +714,9 @@ static int adopt_unversioned(userdb *u, const char *name)
 			       " co2_dry FROM solutions WHERE name = ?1", -1, &a, NULL) == SQLITE_OK &&
 	    sqlite3_prepare_v2(u->db,
 			       "INSERT INTO solution_version_items(solution, version, position,"
-			       " compound, mM, stock_mM, titrant) SELECT solution, 1, position,"
-			       " compound, mM, stock_mM, titrant FROM solution_items WHERE"
+			       " compound, mM, stock_mM, titrant, fw_g_mol) SELECT solution, 1,"
+			       " position, compound, mM, stock_mM, titrant, fw_g_mol FROM"
+			       " solution_items WHERE"
 			       " solution = ?1", -1, &b, NULL) == SQLITE_OK) {
 		sqlite3_bind_text(a, 1, name, -1, SQLITE_STATIC);
 		sqlite3_bind_text(b, 1, name, -1, SQLITE_STATIC);
@@ -893,7 +900,7 @@ static int load_item(userdb *u, const refdb *ref, sqlite3_stmt *st, solution *ou
 	const char *cname = (const char *)sqlite3_column_text(st, 0), *col = NULL;
 	const rd_compound *c;
 	char why[96];
-	double mM = 0, stock = 0;
+	double mM = 0, stock = 0, fw = 0;
 	int titrant = 0;
 	if (!cname || !*cname)
 		return im_fail(err, "%s: saved solution '%s' has a compound without a name; "
@@ -918,12 +925,18 @@ static int load_item(userdb *u, const refdb *ref, sqlite3_stmt *st, solution *ou
 			 UNITS_MAX_mM / 1000), col = "stock";
 	else if (col_flag(st, 3, &titrant, why, sizeof why))
 		col = "titrant flag";
+	else if (col_number(st, 4, &fw, why, sizeof why))
+		col = "formula weight";
+	else if (fw != 0 && !(fw >= 1 && fw <= 5000))
+		snprintf(why, sizeof why, "%g g/mol, neither 0 (the table's) nor 1 to 5000", fw),
+			col = "formula weight";
 	if (col)
 		return im_fail(err, "%s: saved solution '%s', %s: %s is %s; nothing was loaded "
 				    "(was the file edited?)", u->path, out->name, c->name, col, why);
 	sol_set(out, c, mM);
 	sol_find(out, c)->stock_mM = stock;
 	sol_find(out, c)->titrant = titrant;
+	sol_find(out, c)->fw_g_mol = fw;
 	return 0;
 }
 
@@ -944,8 +957,9 @@ static int load_rows(userdb *u, const refdb *ref, rows_kind k, const char *name,
 		sol_free(out);
 		return -1;
 	}
-	snprintf(sql, sizeof sql, "SELECT compound, mM, stock_mM, titrant FROM %s WHERE"
-		 " solution = ?1%s ORDER BY position", rows_tab[k].items,
+	snprintf(sql, sizeof sql, "SELECT compound, mM, stock_mM, titrant, %s FROM %s WHERE"
+		 " solution = ?1%s ORDER BY position", u->schema >= 2 ? "fw_g_mol" : "0",
+		 rows_tab[k].items,
 		 k == ROWS_VERSION ? " AND version = ?2" : "");
 	if (sqlite3_prepare_v2(u->db, sql, -1, &st, NULL) != SQLITE_OK) {
 		sol_free(out);

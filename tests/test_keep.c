@@ -68,6 +68,8 @@ static void ten_versions(void **state)
 			s.ph_target = 7.3;
 		if (i == 8)
 			sol_find(&s, cmp("KCl"))->stock_mM = 3000;
+		if (i == 9) /* the bottle's formula weight (`fw`) */
+			sol_find(&s, cmp("NaCl"))->fw_g_mol = 58.45;
 		if (udb_save_v(u, &s, &version, &sup, err))
 			fail_msg("%s", err);
 		assert_int_equal(version, i + 1);

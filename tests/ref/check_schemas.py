@@ -87,6 +87,7 @@ EXAMPLES = [
     ([], "define ion Zq2- charge -2 mobility 0.7 source \"an invented example\""),
     (["define Testdrug2 formula C13H20N2O2.HCl"], "compounds mine"),
     (["define Testdrug3 formula C13H20N2O2.HCl"], "info Testdrug3"),
+    (["solution k-pipette"], "fw KCl 74.6"),
     ([], "info KCl"),
     ([], "info Ca2+"),
     ([], "compounds"),
