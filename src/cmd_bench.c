@@ -89,7 +89,8 @@ static double weigh_row(render *r, const bs_line *l)
 	render_str(r, "compound", NULL, l->c->name);
 	render_numj(r, "mM", NULL, "mM", l->mM, UNITS_SIG(10), 10);
 	render_numj(r, "fw_g_mol", NULL, "g/mol", l->fw_g_mol, UNITS_SIG(8), 8);
-	render_bool(r, "fw_from_bottle", NULL, l->fw_g_mol != l->c->fw_g_mol);
+	if (l->fw_g_mol != l->c->fw_g_mol) /* only then: the shipped sheet's keys stay */
+		render_bool(r, "fw_from_bottle", NULL, 1);
 	render_numj(r, "grams", NULL, "g", l->grams, UNITS_SIG(6), 6);
 	render_str(r, "action", NULL, l->how == BS_WEIGH ? "weigh" : titrant ? "titrate" : "pipette");
 	render_str(r, "amount", NULL, l->amount);

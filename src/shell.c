@@ -350,6 +350,7 @@ static void on_line(char *line)
 static char *read_line(const char *prompt)
 {
 	FILE *in = rl_instream ? rl_instream : stdin;
+	sig_clear(); /* a Ctrl-C during the last command was for it, not for this line */
 	cb_done = 0;
 	cb_line = NULL;
 	rl_callback_handler_install(prompt, on_line);
