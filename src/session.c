@@ -319,7 +319,8 @@ int ses_undo(session *s, char *what, size_t n, char *err)
 		 * is emptied */
 		ws_journal names = m.jr;
 		ws_entry *e = im_xmalloc((size_t)(m.jr.n + 1) * sizeof *e);
-		memcpy(e, m.jr.e, (size_t)m.jr.n * sizeof *e);
+		if (m.jr.n)
+			memcpy(e, m.jr.e, (size_t)m.jr.n * sizeof *e);
 		names.e = e;
 		ws_journal_undo(&s->ws, &m.jr);
 		s->temp_C = m.temp_C;

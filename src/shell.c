@@ -5,6 +5,7 @@
 
 #include <ctype.h>
 #include <errno.h>
+#include <signal.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
@@ -350,6 +351,12 @@ static void on_line(char *line)
 static char *read_line(const char *prompt)
 {
 	FILE *in = rl_instream ? rl_instream : stdin;
+	sigset_t block, orig;
+	/* SIGINT is let in only while waiting (pselect), so that one arriving
+	 * between the check of the flag and the wait is not slept through */
+	sigemptyset(&block);
+	sigaddset(&block, SIGINT);
+	sigprocmask(SIG_BLOCK, &block, &orig);
 	sig_clear(); /* a Ctrl-C during the last command was for it, not for this line */
 	cb_done = 0;
 	cb_line = NULL;
@@ -359,7 +366,7 @@ static char *read_line(const char *prompt)
 		int rc;
 		FD_ZERO(&fds);
 		FD_SET(fileno(in), &fds);
-		rc = select(fileno(in) + 1, &fds, NULL, NULL, NULL);
+		rc = sig_cancelled() ? 0 : pselect(fileno(in) + 1, &fds, NULL, NULL, NULL, &orig);
 		if (sig_cancelled()) { /* Ctrl-C: drop what was typed, a new prompt */
 			sig_clear();
 			rl_free_line_state();
@@ -376,10 +383,12 @@ static char *read_line(const char *prompt)
 			continue;
 		if (rc < 0) {
 			rl_callback_handler_remove();
+			sigprocmask(SIG_SETMASK, &orig, NULL);
 			return NULL;
 		}
 		rl_callback_read_char();
 	}
+	sigprocmask(SIG_SETMASK, &orig, NULL);
 	return cb_line;
 }
 
