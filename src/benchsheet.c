@@ -124,7 +124,8 @@ int bs_build(const solution *s, const sol_state *st, const refdb *ref, double vo
 		bs_line *l = &b->lines[i];
 		l->c = it->c;
 		l->mM = it->mM;
-		l->grams = weigh_grams(it->mM, it->c->fw_g_mol, volume_mL);
+		l->fw_g_mol = it->fw_g_mol > 0 ? it->fw_g_mol : it->c->fw_g_mol;
+		l->grams = weigh_grams(it->mM, l->fw_g_mol, volume_mL);
 		l->mmol = it->mM * volume_mL * 1e-3;
 		if (it->titrant) {
 			l->how = it->stock_mM > 0 ? BS_TITRANT_STOCK : BS_TITRANT_SUGGEST;
@@ -399,7 +400,7 @@ void bs_write_html(FILE *fp, const bs_sheet *b, const char *version)
 			fputs("</td><td class=\"num\">", fp);
 			esc(fp, conc);
 			fprintf(fp, "</td><td class=\"num\">%.2f</td><td class=\"num amt\">",
-				l->c->fw_g_mol);
+				l->fw_g_mol);
 			esc_amount(fp, l->amount);
 			fputs("</td><td>", fp);
 			esc(fp, how_note(l, note, sizeof note));
@@ -473,7 +474,7 @@ void bs_write_csv(FILE *fp, const bs_sheet *b)
 		snprintf(step, sizeof step, "%d", l->step + 1);
 		/* a titrant's amount is an estimate: four figures */
 		snprintf(mM, sizeof mM, l->how >= BS_TITRANT_STOCK ? "%.4g" : "%.10g", l->mM);
-		snprintf(fw, sizeof fw, "%.2f", l->c->fw_g_mol);
+		snprintf(fw, sizeof fw, "%.2f", l->fw_g_mol);
 		snprintf(st, sizeof st, "%.10g", l->stock_mM);
 		snprintf(mmol, sizeof mmol, "%.4g", l->mmol);
 		csv_field(fp, b->name, 0);

@@ -38,6 +38,7 @@ typedef enum bs_how {
 
 typedef struct bs_line {
 	const rd_compound *c;  /* borrowed from the refdb */
+	double fw_g_mol;       /* used to weigh: the bottle's (`fw`) or the compound's */
 	double mM;             /* final concentration */
 	bs_how how;
 	double grams;          /* the mass in the final volume (also for stocks) */

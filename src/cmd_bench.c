@@ -88,7 +88,9 @@ static double weigh_row(render *r, const bs_line *l)
 	render_row(r);
 	render_str(r, "compound", NULL, l->c->name);
 	render_numj(r, "mM", NULL, "mM", l->mM, UNITS_SIG(10), 10);
-	render_numj(r, "fw_g_mol", NULL, "g/mol", l->c->fw_g_mol, UNITS_SIG(8), 8);
+	render_numj(r, "fw_g_mol", NULL, "g/mol", l->fw_g_mol, UNITS_SIG(8), 8);
+	if (l->fw_g_mol != l->c->fw_g_mol) /* only then: the shipped sheet's keys stay */
+		render_bool(r, "fw_from_bottle", NULL, 1);
 	render_numj(r, "grams", NULL, "g", l->grams, UNITS_SIG(6), 6);
 	render_str(r, "action", NULL, l->how == BS_WEIGH ? "weigh" : titrant ? "titrate" : "pipette");
 	render_str(r, "amount", NULL, l->amount);
@@ -130,22 +132,22 @@ static void weigh_text(render *r, const bs_sheet *b, int utf8)
 			switch (l->how) {
 			case BS_WEIGH:
 				render_text(r, "       %-22s %12s %10.2f  %s%s", l->c->name, conc,
-					    l->c->fw_g_mol, l->amount, l->grams < WEIGH_MIN_GOOD_g ?
+					    l->fw_g_mol, l->amount, l->grams < WEIGH_MIN_GOOD_g ?
 					    "  (under 10 mg: better from a stock)" : "");
 				break;
 			case BS_STOCK:
 				render_text(r, "       %-22s %12s %10.2f  %s of %s stock", l->c->name,
-					    conc, l->c->fw_g_mol, v, l->stock);
+					    conc, l->fw_g_mol, v, l->stock);
 				break;
 			case BS_TITRANT_STOCK:
 				render_text(r, "       %-22s %12s %10.2f  %s of %s stock to start "
 					    "(titrant: %.3g mmol; finish with the pH meter)", l->c->name,
-					    conc, l->c->fw_g_mol, v, l->stock, l->mmol);
+					    conc, l->fw_g_mol, v, l->stock, l->mmol);
 				break;
 			case BS_TITRANT_SUGGEST:
 				render_text(r, "       %-22s %12s %10.2f  %.3g mmol: %s of a %s stock, "
 					    "suggested (titrant; finish with the pH meter)", l->c->name,
-					    conc, l->c->fw_g_mol, l->mmol, v, l->stock);
+					    conc, l->fw_g_mol, l->mmol, v, l->stock);
 				break;
 			}
 		}
@@ -189,6 +191,11 @@ int cmd_weigh(im_ctx *ctx, int argc, char **argv, char *err)
 	for (int k = 0; k < b.n; k++)
 		total += weigh_row(r, &b.lines[k]);
 	render_table_end(r);
+	for (int k = 0; k < b.n; k++)
+		if (b.lines[k].fw_g_mol != b.lines[k].c->fw_g_mol)
+			render_note(r, "%s weighed with the bottle's formula weight %.2f g/mol (`fw`), "
+				    "not the table's %.2f g/mol", b.lines[k].c->name,
+				    b.lines[k].fw_g_mol, b.lines[k].c->fw_g_mol);
 	render_numj(r, "total_grams", NULL, "g", total, UNITS_SIG(6), 6);
 	render_list(r, "steps", NULL, (const char *const *)b.steps, b.nsteps);
 	render_str(r, "html", NULL, a.html);

@@ -388,8 +388,9 @@ static int ratio_compute(im_ctx *ctx, char **argv, ratio_work *w, char *err)
 	if (side_open(ctx, argv[1], &w->ins, err) ||
 	    side_open(ctx, argv[w->shift ? 6 : 2], &w->outs, err))
 		return -1;
-	if (w->shift && !ws_find(&ctx->ses->ws, argv[2]))
-		return im_fail(err, "unknown solution '%.60s' (see `list`)", argv[2]);
+	solution *from;
+	if (w->shift && ses_solution(ctx->ses, argv[2], &from, err)) /* saved ones too */
+		return -1;
 	if (w->shift && side_open(ctx, argv[7], &w->to, err))
 		return -1;
 	fill(&w->o, &w->ins, &w->outs, w->x);

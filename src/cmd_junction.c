@@ -65,13 +65,7 @@ static void cautions_free(cautions *c)
 
 static int find_solution(im_ctx *ctx, const char *name, solution **res, char *err)
 {
-	*res = ws_find(&ctx->ses->ws, name);
-	if (*res)
-		return 0;
-	return im_fail(err,
-		       "unknown solution '%.60s' (see `list`; `load NAME` brings a saved "
-		       "one)",
-		       name);
+	return ses_solution(ctx->ses, name, res, err); /* saved ones too */
 }
 
 /* Count the charged species of a state; 0 is an error naming the solution. */

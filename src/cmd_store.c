@@ -8,6 +8,7 @@
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
+#include <string.h>
 #include <time.h>
 
 #include "cmd_correct.h"
@@ -22,25 +23,102 @@ int cmd_save(im_ctx *ctx, int argc, char **argv, char *err)
 {
 	solution *s;
 	userdb *u;
-	int failed = 0;
+	int failed = 0, version = 0, superseded = 0;
 	render *r;
 	if (ses_solution(ctx->ses, argc > 1 ? argv[1] : NULL, &s, err))
 		return -1;
-	if (!(u = ses_userdb(ctx->ses, 1, err, &failed)) || udb_save(u, s, err))
+	if (!(u = ses_userdb(ctx->ses, 1, err, &failed)) ||
+	    udb_save_v(u, s, &version, &superseded, err))
 		return -1;
 	r = render_new(ctx->out);
 	render_str(r, "saved", NULL, s->name);
 	render_str(r, "database", NULL, ctx->ses->db_path);
 	render_int(r, "compounds", NULL, s->n);
-	render_text(r, "saved %s (%d compounds) to %s", s->name, s->n, ctx->ses->db_path);
+	render_int(r, "version", NULL, version);
+	render_int(r, "superseded", NULL, superseded);
+	if (superseded)
+		render_text(r, "saved %s (%d compounds) to %s as version %d; it supersedes version "
+			    "%d, which differs (`versions %s`, `load %s@%d`)", s->name, s->n,
+			    ctx->ses->db_path, version, superseded, s->name, s->name, superseded);
+	else if (version > 0)
+		render_text(r, "saved %s (%d compounds) to %s as version %d", s->name, s->n,
+			    ctx->ses->db_path, version);
+	else
+		render_text(r, "saved %s (%d compounds) to %s", s->name, s->n, ctx->ses->db_path);
 	return render_done(r);
+}
+
+/* "NAME" or "NAME@N": the name into name (checked), the version into
+ * *version (0: the latest). */
+static int parse_ref(const char *arg, char *name, size_t n, int *version, char *err)
+{
+	const char *at = strchr(arg, '@');
+	*version = 0;
+	if (!at) {
+		snprintf(name, n, "%s", arg);
+		return ses_valid_name(name, err);
+	}
+	snprintf(name, n, "%.*s", (int)(at - arg < (long)n - 1 ? at - arg : (long)n - 1), arg);
+	if (ses_valid_name(name, err))
+		return -1;
+	if (!at[1] || strspn(at + 1, "0123456789") != strlen(at + 1) || strlen(at + 1) > 6 ||
+	    (*version = atoi(at + 1)) < 1)
+		return im_fail(err, "'%.60s': a version is a number from 1 (see `versions %s`)",
+			       arg, name);
+	return 0;
 }
 
 int cmd_load(im_ctx *ctx, int argc, char **argv, char *err)
 {
 	userdb *u;
-	solution *s;
-	int failed = 0;
+	solution *s, *open;
+	char name[SOL_NAME_MAX + 8];
+	int failed = 0, version, unsaved = 0;
+	render *r;
+	(void)argc;
+	if (parse_ref(argv[1], name, sizeof name, &version, err))
+		return -1;
+	u = ses_userdb(ctx->ses, 0, err, &failed);
+	if (!u)
+		return failed ? -1 : im_fail(err, "no saved solution named '%s' (no database yet "
+						   "at %s)", name, ctx->ses->db_path);
+	/* the workspace copy, if it has changes that were never saved */
+	if (ws_index_of(&ctx->ses->ws, name) >= 0) {
+		open = ctx->ses->ws.sol[ws_index_of(&ctx->ses->ws, name)];
+		unsaved = ses_unsaved(ctx->ses, open, err);
+		if (unsaved < 0)
+			return -1;
+	}
+	s = im_xmalloc(sizeof *s);
+	if (version ? udb_load_version(u, ctx->ses->ref, name, version, s, err)
+		    : udb_load(u, ctx->ses->ref, name, s, err)) {
+		free(s);
+		return -1;
+	}
+	ws_put(&ctx->ses->ws, s);
+	ws_open(&ctx->ses->ws, name);
+	r = render_new(ctx->out);
+	render_str(r, "loaded", NULL, name);
+	render_str(r, "database", NULL, ctx->ses->db_path);
+	render_int(r, "compounds", NULL, s->n);
+	if (version)
+		render_int(r, "version", NULL, version);
+	render_bool(r, "replaced_unsaved", NULL, unsaved);
+	if (version)
+		render_text(r, "loaded %s version %d (%d compounds)", name, version, s->n);
+	else
+		render_text(r, "loaded %s (%d compounds)", name, s->n);
+	if (unsaved)
+		render_note(r, "the workspace copy of %s had changes that were not saved; `undo` "
+			    "brings them back", name);
+	return render_done(r);
+}
+
+int cmd_versions(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	userdb *u;
+	udb_version *v = NULL;
+	int failed = 0, n;
 	render *r;
 	(void)argc;
 	if (ses_valid_name(argv[1], err))
@@ -49,18 +127,44 @@ int cmd_load(im_ctx *ctx, int argc, char **argv, char *err)
 	if (!u)
 		return failed ? -1 : im_fail(err, "no saved solution named '%s' (no database yet "
 						   "at %s)", argv[1], ctx->ses->db_path);
-	s = im_xmalloc(sizeof *s);
-	if (udb_load(u, ctx->ses->ref, argv[1], s, err)) {
-		free(s);
+	if ((n = udb_versions(u, argv[1], &v, err)) < 0)
 		return -1;
+	if (n == 0) {
+		udb_versions_free(v, n);
+		return im_fail(err, "no saved versions of '%s' (see `list`)", argv[1]);
 	}
-	ws_put(&ctx->ses->ws, s);
-	ws_open(&ctx->ses->ws, argv[1]);
 	r = render_new(ctx->out);
-	render_str(r, "loaded", NULL, argv[1]);
-	render_str(r, "database", NULL, ctx->ses->db_path);
-	render_int(r, "compounds", NULL, s->n);
-	render_text(r, "loaded %s (%d compounds)", argv[1], s->n);
+	render_str(r, "solution", NULL, argv[1]);
+	render_text(r, "versions of %s (`load %s@N` brings one back):", argv[1], argv[1]);
+	render_table(r, "versions", NULL);
+	for (int i = 0; i < n; i++) {
+		render_row(r);
+		render_int(r, "version", "version", v[i].version);
+		render_str(r, "saved_at", "saved (UTC)", v[i].saved_at);
+		render_str(r, "summary", "summary", v[i].summary);
+	}
+	render_table_end(r);
+	udb_versions_free(v, n);
+	return render_done(r);
+}
+
+int cmd_undo(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	char what[512];
+	render *r;
+	solution *cur;
+	(void)argc;
+	(void)argv;
+	if (ses_undo(ctx->ses, what, sizeof what, err))
+		return -1;
+	r = render_new(ctx->out);
+	render_str(r, "undone", NULL, what);
+	render_int(r, "levels_left", NULL, ctx->ses->nundo);
+	cur = ctx->ses->ws.current >= 0 ? ctx->ses->ws.sol[ctx->ses->ws.current] : NULL;
+	if (cur)
+		render_str(r, "current", NULL, cur->name);
+	render_text(r, "undid the last change (%s); %d more level%s", what, ctx->ses->nundo,
+		    ctx->ses->nundo == 1 ? "" : "s");
 	return render_done(r);
 }
 

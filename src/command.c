@@ -18,6 +18,7 @@
 #include "cmd_bench.h"
 #include "cmd_chem.h"
 #include "cmd_correct.h"
+#include "cmd_define.h"
 #include "cmd_ephys.h"
 #include "cmd_ghk.h"
 #include "cmd_junction.h"
@@ -101,8 +102,12 @@ static const cmd_def table[] = {
 	 2, 3, cmd_stock, COMPL_COMPOUND, COMPL_NONE, 0},
 	{"save", "[NAME]", "save a solution to the database",
 	 0, 1, cmd_save, COMPL_SOLUTION, COMPL_NONE, 0},
-	{"load", "NAME", "load a saved solution and make it current",
+	{"load", "NAME[@VERSION]", "load a saved solution (or one of its versions) and make it current",
 	 1, 1, cmd_load, COMPL_SAVED, COMPL_NONE, 0},
+	{"versions", "NAME", "the saved versions of a solution, with date and summary",
+	 1, 1, cmd_versions, COMPL_SAVED, COMPL_NONE, 0},
+	{"undo", "", "take back the last change to the workspace (several levels)",
+	 0, 0, cmd_undo, COMPL_NONE, COMPL_NONE, 0},
 	{"list", "[FILE.nwb]", "solutions in the workspace and in the database, or the series of an NWB file",
 	 0, 1, cmd_list, COMPL_FILE, COMPL_NONE, 0},
 	{"delete", "NAME", "delete a saved solution from the database",
@@ -116,6 +121,11 @@ static const cmd_def table[] = {
 	 "CSV options: column N|NAME, skip N, skip-bad, whole-cell|outside-out|inside-out|cell-attached, to -; "
 	 "NWB options: series NAME..., again",
 	 1, ANY, cmd_correct, COMPL_FILE, COMPL_FILE, 0},
+	{"define", "COMPOUND formula FORMULA [yields ION N ...] [hazard TEXT] [source TEXT] | ion SYMBOL charge Z [mobility D source TEXT] [formula FORMULA]",
+	 "a compound or ion of your own, kept in the user database (D in 1e-9 m2/s at 25 C)",
+	 2, ANY, cmd_define, COMPL_NONE, COMPL_NONE, 0},
+	{"fw", "COMPOUND GRAMS_PER_MOL|off", "the formula weight on the bottle (hydrate, lot) for weighing in the current solution",
+	 2, 2, cmd_fw, COMPL_COMPOUND, COMPL_NONE, 0},
 	{"info", "COMPOUND|ION", "reference data of a compound or ion, with sources",
 	 1, 1, cmd_info, COMPL_COMPOUND, COMPL_NONE, 0},
 	{"compounds", "[KIND]", "the compounds ionmix knows",
@@ -217,9 +227,35 @@ static const char *nearest_command(const char *name)
 	return hits == 1 ? best : NULL;
 }
 
+/* A compound name with spaces typed without quotes (`add QX-314 chloride
+ * 5`): when the first argument of a command that takes a compound is not
+ * one, and it and the next words (up to three more) are, the words become
+ * one argument in buf.  The longest such name wins; a name is looked up
+ * exactly (by name or alias), so the joining is never a guess. */
+static void join_compound_words(im_ctx *ctx, const cmd_def *d, char **argv, int *argc,
+				char *buf, size_t n)
+{
+	const rd_compound *c;
+	char scratch[IM_ERRLEN];
+	if (d->compl != COMPL_COMPOUND || *argc < 3 ||
+	    ses_compound(ctx->ses, argv[1], &c, scratch) == 0)
+		return;
+	for (int last = *argc - 1 < 4 ? *argc - 1 : 4; last >= 2; last--) {
+		size_t len = 0;
+		for (int i = 1; i <= last && len < n; i++)
+			len += snprintf(buf + len, n - len, "%s%s", i > 1 ? " " : "", argv[i]);
+		if (len >= n || ses_compound(ctx->ses, buf, &c, scratch) != 0)
+			continue;
+		argv[1] = buf;
+		memmove(&argv[2], &argv[last + 1], (size_t)(*argc - last - 1) * sizeof *argv);
+		*argc -= last - 1;
+		return;
+	}
+}
+
 static int exec_one(im_ctx *ctx, char *cmd, char *err)
 {
-	char *argv[CMD_ARGS_MAX];
+	char *argv[CMD_ARGS_MAX], joined[CMD_LINE_MAX + 1];
 	int argc = cmd_split(cmd, argv, CMD_ARGS_MAX, err), nargs, rc;
 	const cmd_def *d;
 	ses_mark mark;
@@ -234,6 +270,7 @@ static int exec_one(im_ctx *ctx, char *cmd, char *err)
 			return im_fail(err, "unknown command '%s'; did you mean %s?", w, near);
 		return im_fail(err, "unknown command '%s' (type `help`)", w);
 	}
+	join_compound_words(ctx, d, argv, &argc, joined, sizeof joined);
 	nargs = argc - 1;
 	if (nargs < d->min_args)
 		return im_fail(err, "%s: missing argument (usage: %s %s)", d->name, d->name,
@@ -242,16 +279,21 @@ static int exec_one(im_ctx *ctx, char *cmd, char *err)
 		return im_fail(err, "%s: unexpected '%s' (usage: %s %s)", d->name,
 			       out_clip(w, sizeof w, argv[d->max_args + 1]), d->name,
 			       d->synopsis);
-	ses_mark_take(ctx->ses, &mark);
+	/* `run` takes no mark: each of its lines takes its own, and its
+	 * earlier lines stand when a later one fails */
+	if (!d->keep_on_fail)
+		ses_mark_take(ctx->ses, &mark);
 	rc = d->fn(ctx, argc, argv, err);
 	if (rc == 0 && out_failed(ctx->out))
 		rc = im_fail(err, "cannot write the result of %s to %s: %s", d->name,
 			     ctx->out->name ? ctx->out->name : "standard output",
 			     strerror(ctx->out->werrno ? ctx->out->werrno : EIO));
-	if (rc != 0 && !d->keep_on_fail)
+	if (d->keep_on_fail)
+		return rc;
+	if (rc != 0)
 		ses_mark_restore(ctx->ses, &mark);
 	else
-		ses_mark_drop(&mark);
+		ses_mark_drop(ctx->ses, &mark);
 	return rc;
 }
 

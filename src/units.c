@@ -96,6 +96,7 @@ static const unit_def units[] = {
 	{"M", 1000.0, 0},     {"mM", 1.0, 0},      {"uM", 1e-3, 0},
 	{"\xc2\xb5M", 1e-3, 0}, {"\xce\xbcM", 1e-3, 0}, {"nM", 1e-6, 0},
 	{"g/L", 1.0, 1},      {"mg/mL", 1.0, 1},   {"mg/L", 1e-3, 1},
+	{"%", 10.0, 1}, /* w/v: 1 g per 100 mL = 10 g/L (common practice) */
 };
 
 static const unit_def *find_unit(const char *s)
@@ -132,7 +133,7 @@ int units_amount_mM(const char *num, const char *unit, double fw_g_mol,
 		return -1;
 	u = find_unit(unit ? unit : "mM");
 	if (!u)
-		return im_fail(err, "unknown unit '%.20s' (use M, mM, uM, nM, g/L, mg/mL or mg/L)",
+		return im_fail(err, "unknown unit '%.20s' (use M, mM, uM, nM, g/L, mg/mL, mg/L or %% (w/v))",
 			       unit);
 	if (v <= 0)
 		return im_fail(err, "amount %s %s: must be greater than zero", num,

@@ -35,7 +35,7 @@ int units_in_range(const char *text, double v, double lo, double hi,
 
 /* Parse an amount: num is the number, unit may be NULL (then mM), or the
  * number may carry its unit ('140mM', '100nM').  Units: M, mM, uM, µM, nM,
- * g/L, mg/mL (both need fw_g_mol > 0), mg/L.  The result must be > 0 and
+ * g/L, mg/mL, mg/L, % (w/v: g per 100 mL) (the last four need fw_g_mol > 0).  The result must be > 0 and
  * at most UNITS_MAX_mM.  what names the thing for messages. */
 int units_amount_mM(const char *num, const char *unit, double fw_g_mol,
 		    double *mM, char *err);

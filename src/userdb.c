@@ -39,6 +39,57 @@ static const char schema_sql[] =
 	"  name TEXT PRIMARY KEY, formula TEXT NOT NULL, fw_g_mol REAL NOT NULL,"
 	"  yields TEXT NOT NULL, note TEXT);";
 
+/* Schema version 3 (migrate_keep): every saved version of a solution, and
+ * the shell's workspace kept as it changes.  The same columns as solutions and
+ * solution_items, keyed further by version. */
+static const char schema_keep_sql[] =
+	"CREATE TABLE IF NOT EXISTS solution_versions ("
+	"  name TEXT NOT NULL, version INTEGER NOT NULL,"
+	"  saved_at TEXT NOT NULL DEFAULT (strftime('%Y-%m-%dT%H:%M:%SZ','now')),"
+	"  summary TEXT NOT NULL DEFAULT '',"
+	"  ph_target REAL, co2_frac REAL NOT NULL DEFAULT 0,"
+	"  co2_p_atm REAL NOT NULL DEFAULT 1, co2_dry INTEGER NOT NULL DEFAULT 0,"
+	"  PRIMARY KEY (name, version));"
+	"CREATE TABLE IF NOT EXISTS solution_version_items ("
+	"  solution TEXT NOT NULL, version INTEGER NOT NULL, position INTEGER NOT NULL,"
+	"  compound TEXT NOT NULL, mM REAL NOT NULL CHECK (mM > 0),"
+	"  stock_mM REAL NOT NULL DEFAULT 0, titrant INTEGER NOT NULL DEFAULT 0,"
+	"  fw_g_mol REAL NOT NULL DEFAULT 0,"
+	"  PRIMARY KEY (solution, version, position));"
+	"CREATE TABLE IF NOT EXISTS kept_solutions ("
+	"  name TEXT PRIMARY KEY, version INTEGER NOT NULL DEFAULT 0,"
+	"  position INTEGER NOT NULL,"
+	"  ph_target REAL, co2_frac REAL NOT NULL DEFAULT 0,"
+	"  co2_p_atm REAL NOT NULL DEFAULT 1, co2_dry INTEGER NOT NULL DEFAULT 0);"
+	"CREATE TABLE IF NOT EXISTS kept_items ("
+	"  solution TEXT NOT NULL, version INTEGER NOT NULL DEFAULT 0,"
+	"  position INTEGER NOT NULL,"
+	"  compound TEXT NOT NULL, mM REAL NOT NULL CHECK (mM > 0),"
+	"  stock_mM REAL NOT NULL DEFAULT 0, titrant INTEGER NOT NULL DEFAULT 0,"
+	"  fw_g_mol REAL NOT NULL DEFAULT 0,"
+	"  PRIMARY KEY (solution, position));"
+	/* the bottle's formula weight of an item (`fw`); 0: the table's */
+	"ALTER TABLE solution_items ADD COLUMN fw_g_mol REAL NOT NULL DEFAULT 0;"
+	"CREATE TABLE IF NOT EXISTS kept_state (key TEXT PRIMARY KEY, value);"
+	/* user-defined ions and compounds (`define`), re-read at start */
+	"CREATE TABLE IF NOT EXISTS defined_ions ("
+	"  symbol TEXT PRIMARY KEY, z INTEGER NOT NULL, D_1e9_m2_s REAL, source TEXT,"
+	"  mass_g_mol REAL);"
+	"CREATE TABLE IF NOT EXISTS defined_compounds ("
+	"  name TEXT PRIMARY KEY, formula TEXT NOT NULL, yields TEXT NOT NULL DEFAULT '',"
+	"  hazard TEXT, source TEXT);";
+
+/* Where a solution's rows live: saved (the latest), a saved version, or
+ * the kept workspace.  The head and item tables share their columns. */
+typedef enum { ROWS_SAVED, ROWS_VERSION, ROWS_KEPT } rows_kind;
+static const struct {
+	const char *head, *items;
+} rows_tab[] = {
+	{"solutions", "solution_items"},
+	{"solution_versions", "solution_version_items"},
+	{"kept_solutions", "kept_items"},
+};
+
 /* Backoff between retries: doubles from 1 ms up to this, with jitter. */
 #define BACKOFF_MAX_MS 100
 
@@ -51,6 +102,10 @@ struct userdb {
 	double busy_t0;      /* monotonic time the current wait began, s */
 	int noticed;         /* the notice was given for the current wait */
 	unsigned seed;       /* jitter */
+	int schema;          /* the file's schema version */
+	/* compounds the reference data do not know (user-defined) */
+	const rd_compound *(*lookup)(void *arg, const char *name);
+	void *lookup_arg;
 };
 
 static double mono_s(void)
@@ -192,7 +247,7 @@ static int user_version(userdb *u, int *v)
  * version is read again under it, so the second finds the work done. */
 static int create_schema(userdb *u, char *err)
 {
-	char sql[sizeof schema_sql + 64];
+	char sql[sizeof schema_sql + sizeof schema_keep_sql + 64];
 	int v = 0;
 	/* switching the journal can report busy without calling the busy
 	 * handler: retry it here, as long as a writer would wait */
@@ -223,6 +278,7 @@ static int create_schema(userdb *u, char *err)
 	}
 	return 0;
 }
+
 
 /* What kind of file st is, for "is a directory, not a database file". */
 static const char *file_kind(const struct stat *st)
@@ -340,14 +396,16 @@ static char *immutable_uri(const char *path)
  * with the compound it adds and the temperature at which it holds. */
 static const char migrate_targets_sql[] =
 	"CREATE TABLE IF NOT EXISTS solution_targets ("
-	"  solution TEXT NOT NULL REFERENCES solutions(name) ON DELETE CASCADE,"
+	"  scope INTEGER NOT NULL DEFAULT 0,"   /* 0 saved, 1 a saved version, 2 kept */
+	"  solution TEXT NOT NULL,"
+	"  version INTEGER NOT NULL DEFAULT 0," /* the version (scope 1), else 0 */
 	"  position INTEGER NOT NULL,"
 	"  kind TEXT NOT NULL CHECK (kind IN ('ph', 'free', 'osmo')),"
 	"  value REAL NOT NULL,"             /* pH; free metal, mM; mOsm/kg */
 	"  compound TEXT NOT NULL,"          /* what is added to reach it */
 	"  metal TEXT,"                      /* 'free': the ion's symbol */
 	"  at_C REAL NOT NULL,"              /* where it holds */
-	"  PRIMARY KEY (solution, position));";
+	"  PRIMARY KEY (scope, solution, version, position));";
 
 static int migrate_targets(userdb *u)
 {
@@ -355,7 +413,15 @@ static int migrate_targets(userdb *u)
 }
 
 /* The steps, index N - 2 for version N. */
-static int (*const migrate_step[])(userdb *u) = {migrate_targets};
+/* Version 3: every saved version, the shell's kept workspace, defined
+ * ions and compounds, the bottle's formula weight of an item
+ * (schema_keep_sql). */
+static int migrate_keep(userdb *u)
+{
+	return sqlite3_exec(u->db, schema_keep_sql, NULL, NULL, NULL);
+}
+
+static int (*const migrate_step[])(userdb *u) = {migrate_targets, migrate_keep};
 
 /* Keep a copy of the file as it is beside it (PATH.vV-backup), then run
  * the missing steps and set the version in one transaction (a file just
@@ -484,9 +550,16 @@ int udb_open(const char *path, int create, userdb **out, char *err)
 		udb_close(u);
 		return -1;
 	}
-	if (!(flags & SQLITE_OPEN_READONLY) && migrate(u, v != 0, err)) {
-		udb_close(u);
-		return -1;
+	u->schema = v ? v : 1;
+	/* an older file (or one just created at version 1) is upgraded when it
+	 * may be written; read-only, it is read as it stands (no targets, no
+	 * versions, no kept workspace) */
+	if (!(flags & SQLITE_OPEN_READONLY)) {
+		if (migrate(u, v != 0, err)) {
+			udb_close(u);
+			return -1;
+		}
+		u->schema = UDB_SCHEMA_VERSION;
 	}
 	sqlite3_exec(u->db, "PRAGMA foreign_keys = ON", NULL, NULL, NULL);
 	*out = u;
@@ -511,18 +584,33 @@ static int step_done(sqlite3_stmt *st)
 
 static const char *const target_kind[] = {"ph", "free", "osmo"};
 
-/* The targets of s as rows of solution_targets (inside udb_save's
- * transaction; the rows of an older save went with its solutions row). */
-static int save_targets(userdb *u, const solution *s)
+/* The targets of s as rows of solution_targets under scope (a saved
+ * solution, a saved version, the kept workspace) and version, replacing
+ * what was there (inside the caller's transaction). */
+static int save_targets(userdb *u, const solution *s, int scope, int version)
 {
-	sqlite3_stmt *st;
+	sqlite3_stmt *st, *del;
 	int rc = 0;
+	if (u->schema < 2)
+		return 0;
+	if (sqlite3_prepare_v2(u->db, "DELETE FROM solution_targets WHERE scope = ?1 AND"
+			       " solution = ?2 AND version = ?3", -1, &del, NULL) != SQLITE_OK)
+		return -1;
+	sqlite3_bind_int(del, 1, scope);
+	sqlite3_bind_text(del, 2, s->name, -1, SQLITE_STATIC);
+	sqlite3_bind_int(del, 3, version);
+	rc = step_done(del);
+	sqlite3_finalize(del);
+	if (rc)
+		return -1;
 	if (sqlite3_prepare_v2(u->db, "INSERT INTO solution_targets(solution, position, kind,"
-			       " value, compound, metal, at_C) VALUES (?1, ?2, ?3, ?4, ?5, ?6, ?7)",
-			       -1, &st, NULL) != SQLITE_OK)
+			       " value, compound, metal, at_C, scope, version) VALUES (?1, ?2, ?3,"
+			       " ?4, ?5, ?6, ?7, ?8, ?9)", -1, &st, NULL) != SQLITE_OK)
 		return -1;
 	for (int k = 0; k < s->ntg && !rc; k++) {
 		const sol_target *t = &s->tg[k];
+		sqlite3_bind_int(st, 8, scope);
+		sqlite3_bind_int(st, 9, version);
 		sqlite3_bind_text(st, 1, s->name, -1, SQLITE_STATIC);
 		sqlite3_bind_int(st, 2, k);
 		sqlite3_bind_text(st, 3, target_kind[t->kind], -1, SQLITE_STATIC);
@@ -540,53 +628,241 @@ static int save_targets(userdb *u, const solution *s)
 	return rc;
 }
 
-int udb_save(userdb *u, const solution *s, char *err)
+/* Write s into the tables of kind k (inside the caller's transaction),
+ * replacing what was there under its name (and version: the version
+ * number, or the position in the kept workspace). */
+static int save_rows(userdb *u, rows_kind k, const solution *s, int version)
 {
-	sqlite3_stmt *del = NULL, *ins = NULL, *item = NULL;
+	static const char *const head_cols[] = {
+		"(name, ph_target, co2_frac, co2_p_atm, co2_dry) VALUES (?1, ?3, ?4, ?5, ?6)",
+		"(name, version, ph_target, co2_frac, co2_p_atm, co2_dry) VALUES (?1, ?2, ?3, ?4,"
+		" ?5, ?6)",
+		"(name, position, ph_target, co2_frac, co2_p_atm, co2_dry) VALUES (?1, ?2, ?3, ?4,"
+		" ?5, ?6)",
+	};
+	static const char *const item_cols[] = {
+		"(solution, position, compound, mM, stock_mM, titrant, fw_g_mol) VALUES (?1, ?3, ?4,"
+		" ?5, ?6, ?7, ?8)",
+		"(solution, version, position, compound, mM, stock_mM, titrant, fw_g_mol) VALUES"
+		" (?1, ?2, ?3, ?4, ?5, ?6, ?7, ?8)",
+		"(solution, position, compound, mM, stock_mM, titrant, fw_g_mol) VALUES (?1, ?3, ?4,"
+		" ?5, ?6, ?7, ?8)",
+	};
+	const char *vcond = k == ROWS_VERSION ? " AND version = ?2" : "";
+	char sql[256];
+	sqlite3_stmt *del = NULL, *deli = NULL, *ins = NULL, *item = NULL;
 	int ok = 0;
-	if (sqlite3_exec(u->db, "BEGIN IMMEDIATE", NULL, NULL, NULL) != SQLITE_OK)
-		return fail_db(u, err, "starting to save");
-	if (sqlite3_prepare_v2(u->db, "DELETE FROM solutions WHERE name = ?1", -1, &del, NULL) ||
-	    sqlite3_prepare_v2(u->db,
-			       "INSERT INTO solutions(name, ph_target, co2_frac, co2_p_atm, co2_dry)"
-			       " VALUES (?1, ?2, ?3, ?4, ?5)", -1, &ins, NULL) ||
-	    sqlite3_prepare_v2(u->db,
-			       "INSERT INTO solution_items(solution, position, compound, mM,"
-			       " stock_mM, titrant) VALUES (?1, ?2, ?3, ?4, ?5, ?6)", -1, &item,
-			       NULL))
+	snprintf(sql, sizeof sql, "DELETE FROM %s WHERE name = ?1%s", rows_tab[k].head, vcond);
+	if (sqlite3_prepare_v2(u->db, sql, -1, &del, NULL))
+		goto done;
+	snprintf(sql, sizeof sql, "DELETE FROM %s WHERE solution = ?1%s", rows_tab[k].items,
+		 vcond);
+	if (sqlite3_prepare_v2(u->db, sql, -1, &deli, NULL))
+		goto done;
+	snprintf(sql, sizeof sql, "INSERT INTO %s%s", rows_tab[k].head, head_cols[k]);
+	if (sqlite3_prepare_v2(u->db, sql, -1, &ins, NULL))
+		goto done;
+	snprintf(sql, sizeof sql, "INSERT INTO %s%s", rows_tab[k].items, item_cols[k]);
+	if (sqlite3_prepare_v2(u->db, sql, -1, &item, NULL))
 		goto done;
 	sqlite3_bind_text(del, 1, s->name, -1, SQLITE_STATIC);
+	sqlite3_bind_text(deli, 1, s->name, -1, SQLITE_STATIC);
 	sqlite3_bind_text(ins, 1, s->name, -1, SQLITE_STATIC);
+	if (k == ROWS_VERSION) {
+		sqlite3_bind_int(del, 2, version);
+		sqlite3_bind_int(deli, 2, version);
+	}
+	sqlite3_bind_int(ins, 2, version);
 	if (isfinite(s->ph_target))
-		sqlite3_bind_double(ins, 2, s->ph_target);
+		sqlite3_bind_double(ins, 3, s->ph_target);
 	else
-		sqlite3_bind_null(ins, 2);
-	sqlite3_bind_double(ins, 3, s->co2_frac);
-	sqlite3_bind_double(ins, 4, s->co2_p_atm);
-	sqlite3_bind_int(ins, 5, s->co2_dry);
-	if (step_done(del) || step_done(ins))
+		sqlite3_bind_null(ins, 3);
+	sqlite3_bind_double(ins, 4, s->co2_frac);
+	sqlite3_bind_double(ins, 5, s->co2_p_atm);
+	sqlite3_bind_int(ins, 6, s->co2_dry);
+	if (step_done(deli) || step_done(del) || step_done(ins))
 		goto done;
 	for (int i = 0; i < s->n; i++) {
 		sqlite3_bind_text(item, 1, s->name, -1, SQLITE_STATIC);
-		sqlite3_bind_int(item, 2, i);
-		sqlite3_bind_text(item, 3, s->items[i].c->name, -1, SQLITE_STATIC);
-		sqlite3_bind_double(item, 4, s->items[i].mM);
-		sqlite3_bind_double(item, 5, s->items[i].stock_mM);
-		sqlite3_bind_int(item, 6, s->items[i].titrant);
+		sqlite3_bind_int(item, 2, version);
+		sqlite3_bind_int(item, 3, i);
+		sqlite3_bind_text(item, 4, s->items[i].c->name, -1, SQLITE_STATIC);
+		sqlite3_bind_double(item, 5, s->items[i].mM);
+		sqlite3_bind_double(item, 6, s->items[i].stock_mM);
+		sqlite3_bind_int(item, 7, s->items[i].titrant);
+		sqlite3_bind_double(item, 8, s->items[i].fw_g_mol);
 		if (step_done(item))
 			goto done;
 	}
-	ok = save_targets(u, s) == 0 &&
-	     sqlite3_exec(u->db, "COMMIT", NULL, NULL, NULL) == SQLITE_OK;
+	if (save_targets(u, s, (int)k, k == ROWS_KEPT ? 0 : version))
+		goto done;
+	ok = 1;
+done:
+	sqlite3_finalize(del);
+	sqlite3_finalize(deli);
+	sqlite3_finalize(ins);
+	sqlite3_finalize(item);
+	return ok ? 0 : -1;
+}
+
+/* Do the saved rows of name equal s (compounds by name, numbers
+ * exactly)?  1 yes, 0 no or nothing saved, -1 on a database error. */
+static int same_as_saved(userdb *u, const solution *s)
+{
+	sqlite3_stmt *st;
+	int same = 1, n = 0, rc;
+	if (sqlite3_prepare_v2(u->db, "SELECT ph_target, co2_frac, co2_p_atm, co2_dry FROM"
+			       " solutions WHERE name = ?1", -1, &st, NULL))
+		return -1;
+	sqlite3_bind_text(st, 1, s->name, -1, SQLITE_STATIC);
+	rc = sqlite3_step(st);
+	if (rc != SQLITE_ROW) {
+		sqlite3_finalize(st);
+		return rc == SQLITE_DONE ? 0 : -1;
+	}
+	if (sqlite3_column_type(st, 0) == SQLITE_NULL ? isfinite(s->ph_target)
+	    : sqlite3_column_double(st, 0) != s->ph_target)
+		same = 0;
+	if (sqlite3_column_double(st, 1) != s->co2_frac ||
+	    sqlite3_column_double(st, 2) != s->co2_p_atm || sqlite3_column_int(st, 3) != s->co2_dry)
+		same = 0;
+	sqlite3_finalize(st);
+	if (sqlite3_prepare_v2(u->db, "SELECT compound, mM, stock_mM, titrant, fw_g_mol FROM"
+			       " solution_items WHERE solution = ?1 ORDER BY position", -1, &st, NULL))
+		return -1;
+	sqlite3_bind_text(st, 1, s->name, -1, SQLITE_STATIC);
+	while ((rc = sqlite3_step(st)) == SQLITE_ROW) {
+		const char *c = (const char *)sqlite3_column_text(st, 0);
+		if (n >= s->n || !c || strcmp(c, s->items[n].c->name) != 0 ||
+		    sqlite3_column_double(st, 1) != s->items[n].mM ||
+		    sqlite3_column_double(st, 2) != s->items[n].stock_mM ||
+		    sqlite3_column_int(st, 3) != s->items[n].titrant ||
+		    sqlite3_column_double(st, 4) != s->items[n].fw_g_mol)
+			same = 0;
+		n++;
+	}
+	sqlite3_finalize(st);
+	if (rc != SQLITE_DONE)
+		return -1;
+	return same && n == s->n;
+}
+
+/* The one-line summary of a version: its compounds with amounts (the
+ * first four), the target pH. */
+static void summarize(const solution *s, char *buf, size_t n)
+{
+	size_t len = 0;
+	buf[0] = '\0';
+	len += snprintf(buf, n, "%d compound%s", s->n, s->n == 1 ? "" : "s");
+	for (int i = 0; i < s->n && i < 4 && len < n; i++)
+		len += snprintf(buf + len, n - len, "%s %s %.4g mM", i ? "," : ":",
+				s->items[i].c->name, s->items[i].mM);
+	if (s->n > 4 && len < n)
+		len += snprintf(buf + len, n - len, ", ...");
+	if (isfinite(s->ph_target) && len < n)
+		snprintf(buf + len, n - len, "; pH %.2f", s->ph_target);
+}
+
+/* The highest version of name (0: none), or -1 on error. */
+static int last_version(userdb *u, const char *name)
+{
+	sqlite3_stmt *st;
+	int v = -1;
+	if (sqlite3_prepare_v2(u->db, "SELECT coalesce(max(version), 0) FROM solution_versions"
+			       " WHERE name = ?1", -1, &st, NULL))
+		return -1;
+	sqlite3_bind_text(st, 1, name, -1, SQLITE_STATIC);
+	if (sqlite3_step(st) == SQLITE_ROW)
+		v = sqlite3_column_int(st, 0);
+	sqlite3_finalize(st);
+	return v;
+}
+
+/* A solution saved before versions were kept becomes version 1: 1 when
+ * there was one, 0 when not, -1 on error. */
+static int adopt_unversioned(userdb *u, const char *name)
+{
+	sqlite3_stmt *a = NULL, *b = NULL;
+	int rc = -1;
+	if (sqlite3_prepare_v2(u->db,
+			       "INSERT INTO solution_versions(name, version, saved_at, summary,"
+			       " ph_target, co2_frac, co2_p_atm, co2_dry) SELECT name, 1, saved_at,"
+			       " '(saved before versions were kept)', ph_target, co2_frac, co2_p_atm,"
+			       " co2_dry FROM solutions WHERE name = ?1", -1, &a, NULL) == SQLITE_OK &&
+	    sqlite3_prepare_v2(u->db,
+			       "INSERT INTO solution_version_items(solution, version, position,"
+			       " compound, mM, stock_mM, titrant, fw_g_mol) SELECT solution, 1,"
+			       " position, compound, mM, stock_mM, titrant, fw_g_mol FROM"
+			       " solution_items WHERE"
+			       " solution = ?1", -1, &b, NULL) == SQLITE_OK) {
+		sqlite3_bind_text(a, 1, name, -1, SQLITE_STATIC);
+		sqlite3_bind_text(b, 1, name, -1, SQLITE_STATIC);
+		if (step_done(a) == 0) {
+			rc = sqlite3_changes(u->db) > 0;
+			if (step_done(b))
+				rc = -1;
+		}
+	}
+	sqlite3_finalize(a);
+	sqlite3_finalize(b);
+	return rc;
+}
+
+int udb_save_v(userdb *u, const solution *s, int *version, int *superseded, char *err)
+{
+	int ok = 0, same = 0, last = 0, v = 0, sup = 0;
+	char summary[256];
+	if (sqlite3_exec(u->db, "BEGIN IMMEDIATE", NULL, NULL, NULL) != SQLITE_OK)
+		return fail_db(u, err, "starting to save");
+	if (u->schema >= 3) {
+		if ((same = same_as_saved(u, s)) < 0 || (last = last_version(u, s->name)) < 0)
+			goto done;
+		if (last == 0 && (last = adopt_unversioned(u, s->name)) < 0)
+			goto done;
+		if (same && last > 0) { /* nothing new to keep */
+			v = last;
+			ok = sqlite3_exec(u->db, "COMMIT", NULL, NULL, NULL) == SQLITE_OK;
+			goto done;
+		}
+		sup = same ? 0 : last;
+		v = last + 1;
+	}
+	if (save_rows(u, ROWS_SAVED, s, 0))
+		goto done;
+	if (u->schema >= 3) {
+		sqlite3_stmt *st;
+		if (save_rows(u, ROWS_VERSION, s, v))
+			goto done;
+		summarize(s, summary, sizeof summary);
+		if (sqlite3_prepare_v2(u->db, "UPDATE solution_versions SET summary = ?3 WHERE"
+				       " name = ?1 AND version = ?2", -1, &st, NULL))
+			goto done;
+		sqlite3_bind_text(st, 1, s->name, -1, SQLITE_STATIC);
+		sqlite3_bind_int(st, 2, v);
+		sqlite3_bind_text(st, 3, summary, -1, SQLITE_STATIC);
+		if (step_done(st)) {
+			sqlite3_finalize(st);
+			goto done;
+		}
+		sqlite3_finalize(st);
+	}
+	ok = sqlite3_exec(u->db, "COMMIT", NULL, NULL, NULL) == SQLITE_OK;
 done:
 	if (!ok) {
 		fail_db(u, err, "saving");
 		sqlite3_exec(u->db, "ROLLBACK", NULL, NULL, NULL);
+		return -1;
 	}
-	sqlite3_finalize(del);
-	sqlite3_finalize(ins);
-	sqlite3_finalize(item);
-	return ok ? 0 : -1;
+	if (version)
+		*version = v;
+	if (superseded)
+		*superseded = sup;
+	return 0;
+}
+
+int udb_save(userdb *u, const solution *s, char *err)
+{
+	return udb_save_v(u, s, NULL, NULL, err);
 }
 
 /* ---- loading: a saved row is checked like typed input ---- */
@@ -637,17 +913,21 @@ static int col_flag(sqlite3_stmt *st, int i, int *v, char *buf, size_t n)
 }
 
 /* The solutions row of name, checked; 1 when there is none. */
-static int load_head(userdb *u, const char *name, solution *out, char *err)
+static int load_head(userdb *u, rows_kind k, const char *name, int version, solution *out,
+		     char *err)
 {
 	sqlite3_stmt *st;
-	char why[96];
+	char why[96], sql[160];
 	const char *col = NULL;
 	double v;
 	int rc;
-	if (sqlite3_prepare_v2(u->db, "SELECT ph_target, co2_frac, co2_p_atm, co2_dry FROM"
-			       " solutions WHERE name = ?1", -1, &st, NULL) != SQLITE_OK)
+	snprintf(sql, sizeof sql, "SELECT ph_target, co2_frac, co2_p_atm, co2_dry FROM %s WHERE"
+		 " name = ?1%s", rows_tab[k].head, k == ROWS_VERSION ? " AND version = ?2" : "");
+	if (sqlite3_prepare_v2(u->db, sql, -1, &st, NULL) != SQLITE_OK)
 		return fail_db(u, err, "loading");
 	sqlite3_bind_text(st, 1, name, -1, SQLITE_STATIC);
+	if (k == ROWS_VERSION)
+		sqlite3_bind_int(st, 2, version);
 	rc = sqlite3_step(st);
 	if (rc != SQLITE_ROW) {
 		sqlite3_finalize(st);
@@ -697,12 +977,14 @@ static int load_item(userdb *u, const refdb *ref, sqlite3_stmt *st, solution *ou
 	const char *cname = (const char *)sqlite3_column_text(st, 0), *col = NULL;
 	const rd_compound *c;
 	char why[96];
-	double mM = 0, stock = 0;
+	double mM = 0, stock = 0, fw = 0;
 	int titrant = 0;
 	if (!cname || !*cname)
 		return im_fail(err, "%s: saved solution '%s' has a compound without a name; "
 				    "nothing was loaded (was the file edited?)", u->path, out->name);
-	if (!(c = refdb_compound(ref, cname)))
+	if (!(c = refdb_compound(ref, cname)) && u->lookup)
+		c = u->lookup(u->lookup_arg, cname);
+	if (!c)
 		return im_fail(err, "%s: saved solution '%s' uses '%.40s', which this ionmix does "
 				    "not know; nothing was loaded", u->path, out->name, cname);
 	if (sol_find(out, c))
@@ -720,12 +1002,18 @@ static int load_item(userdb *u, const refdb *ref, sqlite3_stmt *st, solution *ou
 			 UNITS_MAX_mM / 1000), col = "stock";
 	else if (col_flag(st, 3, &titrant, why, sizeof why))
 		col = "titrant flag";
+	else if (col_number(st, 4, &fw, why, sizeof why))
+		col = "formula weight";
+	else if (fw != 0 && !(fw >= 1 && fw <= 5000))
+		snprintf(why, sizeof why, "%g g/mol, neither 0 (the table's) nor 1 to 5000", fw),
+			col = "formula weight";
 	if (col)
 		return im_fail(err, "%s: saved solution '%s', %s: %s is %s; nothing was loaded "
 				    "(was the file edited?)", u->path, out->name, c->name, col, why);
 	sol_set(out, c, mM);
 	sol_find(out, c)->stock_mM = stock;
 	sol_find(out, c)->titrant = titrant;
+	sol_find(out, c)->fw_g_mol = fw;
 	return 0;
 }
 
@@ -767,21 +1055,22 @@ static int load_target(userdb *u, const refdb *ref, sqlite3_stmt *st, solution *
 	return 0;
 }
 
-/* The targets of out's saved row (none in a file of schema version 1,
- * read where it stands). */
-static int load_targets(userdb *u, const refdb *ref, solution *out, char *err)
+/* The targets of out under scope and version (none in a file of schema
+ * version 1, read where it stands). */
+static int load_targets(userdb *u, const refdb *ref, solution *out, int scope, int version,
+			char *err)
 {
 	sqlite3_stmt *st;
-	int v = 0, rc;
-	if (user_version(u, &v) != SQLITE_OK)
-		return fail_db(u, err, "loading");
-	if (v < 2)
+	int rc;
+	if (u->schema < 2)
 		return 0;
 	if (sqlite3_prepare_v2(u->db, "SELECT kind, value, compound, metal, at_C FROM"
-			       " solution_targets WHERE solution = ?1 ORDER BY position", -1, &st,
-			       NULL) != SQLITE_OK)
+			       " solution_targets WHERE solution = ?1 AND scope = ?2 AND version = ?3"
+			       " ORDER BY position", -1, &st, NULL) != SQLITE_OK)
 		return fail_db(u, err, "loading");
 	sqlite3_bind_text(st, 1, out->name, -1, SQLITE_STATIC);
+	sqlite3_bind_int(st, 2, scope);
+	sqlite3_bind_int(st, 3, version);
 	while ((rc = sqlite3_step(st)) == SQLITE_ROW)
 		if (load_target(u, ref, st, out, err)) {
 			sqlite3_finalize(st);
@@ -791,25 +1080,34 @@ static int load_targets(userdb *u, const refdb *ref, solution *out, char *err)
 	return rc == SQLITE_DONE ? 0 : fail_db(u, err, "loading");
 }
 
-int udb_load(userdb *u, const refdb *ref, const char *name, solution *out, char *err)
+/* Load the rows of kind k (and version) into out, checked. */
+static int load_rows(userdb *u, const refdb *ref, rows_kind k, const char *name, int version,
+		     solution *out, char *err)
 {
 	sqlite3_stmt *st;
+	char sql[200];
 	int rc;
 	sol_init(out, name);
-	rc = load_head(u, name, out, err);
-	if (rc == 1)
+	rc = load_head(u, k, name, version, out, err);
+	if (rc == 1 && k == ROWS_VERSION)
+		rc = im_fail(err, "no version %d of '%s' (see `versions %s`)", version, name, name);
+	else if (rc == 1)
 		rc = im_fail(err, "no saved solution named '%s' (see `list`)", name);
 	if (rc) {
 		sol_free(out);
 		return -1;
 	}
-	if (sqlite3_prepare_v2(u->db,
-			       "SELECT compound, mM, stock_mM, titrant FROM solution_items"
-			       " WHERE solution = ?1 ORDER BY position", -1, &st, NULL) != SQLITE_OK) {
+	snprintf(sql, sizeof sql, "SELECT compound, mM, stock_mM, titrant, %s FROM %s WHERE"
+		 " solution = ?1%s ORDER BY position", u->schema >= 3 ? "fw_g_mol" : "0",
+		 rows_tab[k].items,
+		 k == ROWS_VERSION ? " AND version = ?2" : "");
+	if (sqlite3_prepare_v2(u->db, sql, -1, &st, NULL) != SQLITE_OK) {
 		sol_free(out);
 		return fail_db(u, err, "loading");
 	}
 	sqlite3_bind_text(st, 1, name, -1, SQLITE_STATIC);
+	if (k == ROWS_VERSION)
+		sqlite3_bind_int(st, 2, version);
 	while ((rc = sqlite3_step(st)) == SQLITE_ROW)
 		if (load_item(u, ref, st, out, err)) {
 			sqlite3_finalize(st);
@@ -821,11 +1119,305 @@ int udb_load(userdb *u, const refdb *ref, const char *name, solution *out, char 
 		sol_free(out);
 		return fail_db(u, err, "loading");
 	}
-	if (load_targets(u, ref, out, err)) {
+	if (load_targets(u, ref, out, (int)k, k == ROWS_KEPT ? 0 : version, err)) {
 		sol_free(out);
 		return -1;
 	}
 	return 0;
+}
+
+int udb_load(userdb *u, const refdb *ref, const char *name, solution *out, char *err)
+{
+	return load_rows(u, ref, ROWS_SAVED, name, 0, out, err);
+}
+
+static int need_v2(userdb *u, const char *what, char *err)
+{
+	if (u->schema >= 3)
+		return 0;
+	return im_fail(err, "%s: %s needs schema version 2; this file (version %d) could not be "
+			    "upgraded because it is read-only", u->path, what, u->schema);
+}
+
+int udb_load_version(userdb *u, const refdb *ref, const char *name, int version,
+		     solution *out, char *err)
+{
+	if (need_v2(u, "loading a version", err))
+		return -1;
+	return load_rows(u, ref, ROWS_VERSION, name, version, out, err);
+}
+
+int udb_versions(userdb *u, const char *name, udb_version **out, char *err)
+{
+	sqlite3_stmt *st;
+	int n = 0, cap = 8, rc;
+	*out = NULL;
+	if (need_v2(u, "versions", err))
+		return -1;
+	if (sqlite3_prepare_v2(u->db, "SELECT version, saved_at, summary FROM solution_versions"
+			       " WHERE name = ?1 ORDER BY version", -1, &st, NULL) != SQLITE_OK)
+		return fail_db(u, err, "listing versions");
+	sqlite3_bind_text(st, 1, name, -1, SQLITE_STATIC);
+	*out = im_xmalloc((size_t)cap * sizeof **out);
+	while ((rc = sqlite3_step(st)) == SQLITE_ROW) {
+		const char *at = (const char *)sqlite3_column_text(st, 1);
+		const char *sum = (const char *)sqlite3_column_text(st, 2);
+		if (n == cap)
+			*out = im_xrealloc(*out, (size_t)(cap *= 2) * sizeof **out);
+		(*out)[n].version = sqlite3_column_int(st, 0);
+		snprintf((*out)[n].saved_at, sizeof (*out)[n].saved_at, "%s", at ? at : "");
+		(*out)[n].summary = im_xstrdup(sum ? sum : "");
+		n++;
+	}
+	sqlite3_finalize(st);
+	if (rc != SQLITE_DONE) {
+		udb_versions_free(*out, n);
+		*out = NULL;
+		return fail_db(u, err, "listing versions");
+	}
+	return n;
+}
+
+void udb_versions_free(udb_version *v, int n)
+{
+	for (int i = 0; i < n; i++)
+		free(v[i].summary);
+	free(v);
+}
+
+/* ---- user-defined ions and compounds ---- */
+
+void udb_set_lookup(userdb *u, const rd_compound *(*fn)(void *arg, const char *name),
+		    void *arg)
+{
+	u->lookup = fn;
+	u->lookup_arg = arg;
+}
+
+static int exec_bound(userdb *u, const char *sql, const char *what, const char *const *text,
+		      int ntext, const double *num, int nnum, char *err)
+{
+	sqlite3_stmt *st;
+	int ok;
+	if (need_v2(u, what, err))
+		return -1;
+	if (sqlite3_exec(u->db, "BEGIN IMMEDIATE", NULL, NULL, NULL) != SQLITE_OK)
+		return fail_db(u, err, what);
+	if (sqlite3_prepare_v2(u->db, sql, -1, &st, NULL) != SQLITE_OK) {
+		fail_db(u, err, what);
+		sqlite3_exec(u->db, "ROLLBACK", NULL, NULL, NULL);
+		return -1;
+	}
+	for (int i = 0; i < ntext; i++)
+		if (text[i])
+			sqlite3_bind_text(st, i + 1, text[i], -1, SQLITE_STATIC);
+		else
+			sqlite3_bind_null(st, i + 1);
+	for (int i = 0; i < nnum; i++)
+		if (isfinite(num[i]))
+			sqlite3_bind_double(st, ntext + i + 1, num[i]);
+		else
+			sqlite3_bind_null(st, ntext + i + 1);
+	ok = sqlite3_step(st) == SQLITE_DONE;
+	sqlite3_finalize(st);
+	if (ok)
+		ok = sqlite3_exec(u->db, "COMMIT", NULL, NULL, NULL) == SQLITE_OK;
+	if (!ok) {
+		fail_db(u, err, what);
+		sqlite3_exec(u->db, "ROLLBACK", NULL, NULL, NULL);
+		return -1;
+	}
+	return 0;
+}
+
+int udb_define_ion(userdb *u, const rd_ion *ion, char *err)
+{
+	const char *text[] = {ion->symbol, ion->mobility_source ? ion->mobility_source->citation
+							    : NULL};
+	double num[] = {ion->z, ion->D_1e9_m2_s, ion->mass_g_mol};
+	return exec_bound(u, "INSERT INTO defined_ions(symbol, source, z, D_1e9_m2_s, mass_g_mol)"
+			  " VALUES (?1, ?2, ?3, ?4, ?5)", "defining an ion", text, 2, num, 3, err);
+}
+
+int udb_define_compound(userdb *u, const rd_compound *c, const char *source, char *err)
+{
+	char yields[512];
+	const char *text[] = {c->name, c->formula, yields, c->hazard, source};
+	uc_yields_text(c, yields, sizeof yields);
+	if (c->nyields == 1 && c->yields[0].ion->z == 0 &&
+	    strcmp(c->yields[0].ion->symbol, c->name) == 0)
+		yields[0] = '\0'; /* a neutral solute of itself */
+	return exec_bound(u, "INSERT INTO defined_compounds(name, formula, yields, hazard, source)"
+			  " VALUES (?1, ?2, ?3, ?4, ?5)", "defining a compound", text, 5, NULL, 0,
+			  err);
+}
+
+int udb_defined_read(userdb *u, const refdb *ref, usercomp *uc, char *err)
+{
+	sqlite3_stmt *st;
+	int rc, n = 0;
+	char why[IM_ERRLEN];
+	if (u->schema < 3)
+		return 0;
+	if (sqlite3_prepare_v2(u->db, "SELECT symbol, z, D_1e9_m2_s, source, mass_g_mol FROM"
+			       " defined_ions ORDER BY rowid", -1, &st, NULL))
+		return fail_db(u, err, "reading the defined ions");
+	while ((rc = sqlite3_step(st)) == SQLITE_ROW) {
+		const char *sym = (const char *)sqlite3_column_text(st, 0);
+		uc_ion_def d = {sym ? sym : "", sqlite3_column_int(st, 1), NAN,
+				(const char *)sqlite3_column_text(st, 3), NAN};
+		if (sqlite3_column_type(st, 2) == SQLITE_FLOAT)
+			d.D_1e9_m2_s = sqlite3_column_double(st, 2);
+		if (sqlite3_column_type(st, 4) == SQLITE_FLOAT)
+			d.mass_g_mol = sqlite3_column_double(st, 4);
+		if (uc_ion(uc, d.symbol))
+			continue; /* a neutral solute's own particle, added with it */
+		if (uc_add_ion(uc, ref, &d, NULL, why)) {
+			sqlite3_finalize(st);
+			return im_fail(err, "%s: defined ion '%.40s': %s", u->path, d.symbol, why);
+		}
+		n++;
+	}
+	sqlite3_finalize(st);
+	if (rc != SQLITE_DONE)
+		return fail_db(u, err, "reading the defined ions");
+	if (sqlite3_prepare_v2(u->db, "SELECT name, formula, yields, hazard, source FROM"
+			       " defined_compounds ORDER BY rowid", -1, &st, NULL))
+		return fail_db(u, err, "reading the defined compounds");
+	while ((rc = sqlite3_step(st)) == SQLITE_ROW) {
+		const char *name = (const char *)sqlite3_column_text(st, 0);
+		const char *yields = (const char *)sqlite3_column_text(st, 2);
+		char ybuf[512], *save = NULL, *w;
+		uc_compound_def d;
+		memset(&d, 0, sizeof d);
+		d.name = name ? name : "";
+		d.formula = sqlite3_column_text(st, 1) ? (const char *)sqlite3_column_text(st, 1) : "";
+		d.hazard = (const char *)sqlite3_column_text(st, 3);
+		d.source = (const char *)sqlite3_column_text(st, 4);
+		snprintf(ybuf, sizeof ybuf, "%s", yields ? yields : "");
+		for (w = strtok_r(ybuf, " ", &save); w && d.nyields < UC_MAX_YIELDS;
+		     w = strtok_r(NULL, " ", &save)) {
+			char *cnt = strtok_r(NULL, " ", &save);
+			d.yield_sym[d.nyields] = w;
+			d.yield_n[d.nyields++] = cnt ? strtod(cnt, NULL) : NAN;
+		}
+		if (uc_add_compound(uc, ref, &d, NULL, why)) {
+			sqlite3_finalize(st);
+			return im_fail(err, "%s: defined compound '%.40s': %s", u->path, d.name, why);
+		}
+		n++;
+	}
+	sqlite3_finalize(st);
+	if (rc != SQLITE_DONE)
+		return fail_db(u, err, "reading the defined compounds");
+	return n;
+}
+
+/* ---- the kept workspace ---- */
+
+int udb_kept_write(userdb *u, const workspace *w, const char *const *names, int n,
+		   double temp_C, char *err)
+{
+	sqlite3_stmt *del = NULL, *deli = NULL, *state = NULL;
+	int ok = 0;
+	if (need_v2(u, "keeping the workspace", err))
+		return -1;
+	/* a crash of the program cannot lose a WAL commit; only power loss
+	 * could, which costs at most the last commands of the workspace */
+	sqlite3_exec(u->db, "PRAGMA synchronous = NORMAL", NULL, NULL, NULL);
+	if (sqlite3_exec(u->db, "BEGIN IMMEDIATE", NULL, NULL, NULL) != SQLITE_OK) {
+		sqlite3_exec(u->db, "PRAGMA synchronous = FULL", NULL, NULL, NULL);
+		return fail_db(u, err, "keeping the workspace");
+	}
+	if (sqlite3_prepare_v2(u->db, "DELETE FROM kept_solutions WHERE name = ?1", -1, &del,
+			       NULL) ||
+	    sqlite3_prepare_v2(u->db, "DELETE FROM kept_items WHERE solution = ?1", -1, &deli,
+			       NULL) ||
+	    sqlite3_prepare_v2(u->db, "INSERT OR REPLACE INTO kept_state(key, value) VALUES"
+			       " (?1, ?2)", -1, &state, NULL))
+		goto done;
+	for (int j = 0; j < n; j++) {
+		int i = ws_index_of(w, names[j]);
+		if (i >= 0) {
+			if (save_rows(u, ROWS_KEPT, w->sol[i], i))
+				goto done;
+			continue;
+		}
+		sqlite3_bind_text(del, 1, names[j], -1, SQLITE_STATIC);
+		sqlite3_bind_text(deli, 1, names[j], -1, SQLITE_STATIC);
+		if (step_done(del) || step_done(deli))
+			goto done;
+	}
+	sqlite3_bind_text(state, 1, "temp_C", -1, SQLITE_STATIC);
+	sqlite3_bind_double(state, 2, temp_C);
+	if (step_done(state))
+		goto done;
+	sqlite3_bind_text(state, 1, "current", -1, SQLITE_STATIC);
+	if (w->current >= 0)
+		sqlite3_bind_text(state, 2, w->sol[w->current]->name, -1, SQLITE_STATIC);
+	else
+		sqlite3_bind_null(state, 2);
+	if (step_done(state))
+		goto done;
+	ok = sqlite3_exec(u->db, "COMMIT", NULL, NULL, NULL) == SQLITE_OK;
+done:
+	if (!ok) {
+		fail_db(u, err, "keeping the workspace");
+		sqlite3_exec(u->db, "ROLLBACK", NULL, NULL, NULL);
+	}
+	sqlite3_finalize(del);
+	sqlite3_finalize(deli);
+	sqlite3_finalize(state);
+	sqlite3_exec(u->db, "PRAGMA synchronous = FULL", NULL, NULL, NULL);
+	return ok ? 0 : -1;
+}
+
+int udb_kept_read(userdb *u, const refdb *ref, workspace *w, double *temp_C, char *err)
+{
+	sqlite3_stmt *st;
+	char current[SOL_NAME_MAX] = "";
+	int rc, n = 0;
+	if (u->schema < 3)
+		return 0;
+	if (sqlite3_prepare_v2(u->db, "SELECT key, value FROM kept_state", -1, &st, NULL))
+		return fail_db(u, err, "reading the kept workspace");
+	while ((rc = sqlite3_step(st)) == SQLITE_ROW) {
+		const char *k = (const char *)sqlite3_column_text(st, 0);
+		if (!k)
+			continue;
+		if (strcmp(k, "temp_C") == 0 && sqlite3_column_type(st, 1) == SQLITE_FLOAT) {
+			double t = sqlite3_column_double(st, 1);
+			if (t >= 0 && t <= 60) /* as `temp` accepts */
+				*temp_C = t;
+		} else if (strcmp(k, "current") == 0 && sqlite3_column_text(st, 1)) {
+			snprintf(current, sizeof current, "%s", sqlite3_column_text(st, 1));
+		}
+	}
+	sqlite3_finalize(st);
+	if (rc != SQLITE_DONE)
+		return fail_db(u, err, "reading the kept workspace");
+	if (sqlite3_prepare_v2(u->db, "SELECT name FROM kept_solutions ORDER BY position, name",
+			       -1, &st, NULL))
+		return fail_db(u, err, "reading the kept workspace");
+	while ((rc = sqlite3_step(st)) == SQLITE_ROW) {
+		const char *name = (const char *)sqlite3_column_text(st, 0);
+		solution *s;
+		if (!name || ws_index_of(w, name) >= 0)
+			continue;
+		s = im_xmalloc(sizeof *s);
+		if (load_rows(u, ref, ROWS_KEPT, name, 0, s, err)) {
+			free(s);
+			sqlite3_finalize(st);
+			return -1;
+		}
+		ws_put(w, s);
+		n++;
+	}
+	sqlite3_finalize(st);
+	if (rc != SQLITE_DONE)
+		return fail_db(u, err, "reading the kept workspace");
+	w->current = current[0] ? ws_index_of(w, current) : -1;
+	return n;
 }
 
 int udb_list(userdb *u, char ***names, char *err)

@@ -12,12 +12,15 @@
 
 #include "refdb.h"
 #include "solution.h"
+#include "usercomp.h"
 
 /* The schema: version 1 is schema_sql in userdb.c (what a new file is
  * created with), each later version one migration step run on open, in
  * one transaction, after a copy of the file is kept beside it
- * (PATH.vN-backup).  2: solution_targets (the targets of issue 11). */
-#define UDB_SCHEMA_VERSION 2
+ * (PATH.vN-backup).  2: solution_targets (the targets of issue 11);
+ * 3: saved versions, the kept workspace, defined ions and compounds, the
+ * bottle's formula weight of an item. */
+#define UDB_SCHEMA_VERSION 3
 /* Seconds a statement waits for another process holding the database's
  * lock, and after how long an interactive user is told so. */
 #define UDB_WAIT_S 30.0
@@ -41,6 +44,50 @@ void udb_close(userdb *u);
 
 /* Save (replace) a solution in one transaction. */
 int udb_save(userdb *u, const solution *s, char *err);
+/* Save and keep a version: when the saved content of the name differs
+ * from s (or nothing was saved), s becomes the next version (*version)
+ * and *superseded the one it replaced (0: none); when equal, nothing new
+ * is kept and *version is the existing one.  Either pointer may be NULL.
+ * A solution saved before versions were kept becomes version 1 first. */
+int udb_save_v(userdb *u, const solution *s, int *version, int *superseded, char *err);
+
+/* One saved version: number, UTC time "YYYY-MM-DDTHH:MM:SSZ", summary
+ * (owned). */
+typedef struct udb_version {
+	int version;
+	char saved_at[32];
+	char *summary;
+} udb_version;
+
+/* The versions of name, oldest first: the count (0: none) with *out
+ * (free with udb_versions_free), or -1 with err. */
+int udb_versions(userdb *u, const char *name, udb_version **out, char *err);
+void udb_versions_free(udb_version *v, int n);
+/* Load version `version` of name, checked as udb_load. */
+int udb_load_version(userdb *u, const refdb *ref, const char *name, int version,
+		     solution *out, char *err);
+
+/* The shell's workspace, kept as it changes: write the named solutions
+ * (those in w by their current content, the others removed), the
+ * temperature and the current solution, in one transaction. */
+int udb_kept_write(userdb *u, const workspace *w, const char *const *names, int n,
+		   double temp_C, char *err);
+/* Read the kept workspace into w (names already in w are skipped) and
+ * *temp_C: the count of solutions restored, or -1 with err (a bad row is
+ * named as udb_load does). */
+int udb_kept_read(userdb *u, const refdb *ref, workspace *w, double *temp_C, char *err);
+
+/* User-defined ions and compounds (`define`): store one (in one
+ * transaction; a name already stored fails), or read them all into uc
+ * (the count, or -1 with err naming a bad row).  source: the text given
+ * with the compound, NULL when none. */
+int udb_define_ion(userdb *u, const rd_ion *ion, char *err);
+int udb_define_compound(userdb *u, const rd_compound *c, const char *source, char *err);
+int udb_defined_read(userdb *u, const refdb *ref, usercomp *uc, char *err);
+/* Where loading finds a compound the reference data do not know. */
+void udb_set_lookup(userdb *u, const rd_compound *(*fn)(void *arg, const char *name),
+		    void *arg);
+
 /* Load a saved solution into out.  Every value is checked as typed input
  * is (finite; amounts and stocks within 1 fM to 5 M, stock 0 meaning
  * weighed; target pH 2 to 12; CO2 fraction 0 to 1, pressure 0.1 to 5 atm;
