@@ -35,6 +35,31 @@ static int store(im_ctx *ctx, usercomp *uc, int nc, int ni, const rd_compound *c
 	return -1;
 }
 
+/* A definition repeated as it stands (a recipe replayed in the same
+ * database) is no error: it says so. */
+static int same_again(im_ctx *ctx, const char *name, char *err)
+{
+	(void)err;
+	render *r = render_new(ctx->out);
+	render_str(r, "defined", NULL, name);
+	render_bool(r, "already", NULL, 1);
+	render_bool(r, "stored", NULL, 1);
+	render_text(r, "%s is already defined so (nothing changed)", name);
+	return render_done(r);
+}
+
+/* Does c have the formula and yields that d gives? */
+static int same_compound(const rd_compound *c, const uc_compound_def *d)
+{
+	if (strcmp(c->formula, d->formula) != 0 || c->nyields != (d->nyields ? d->nyields : 1))
+		return 0;
+	for (int i = 0; i < d->nyields; i++)
+		if (strcmp(c->yields[i].ion->symbol, d->yield_sym[i]) != 0 ||
+		    c->yields[i].count != d->yield_n[i])
+			return 0;
+	return 1;
+}
+
 /* The words of `define ion SYMBOL charge Z [mobility D source TEXT]
  * [formula FORMULA]` into d (and *formula, or NULL). */
 static int ion_words(int argc, char **argv, uc_ion_def *d, const char **formula, char *err)
@@ -59,9 +84,14 @@ static int ion_words(int argc, char **argv, uc_ion_def *d, const char **formula,
 			d->source = argv[i + 1];
 		} else if (strcmp(argv[i], "formula") == 0) {
 			*formula = argv[i + 1];
+		} else if (strcmp(argv[i], "mass") == 0) {
+			if (units_number(argv[i + 1], &d->mass_g_mol, err))
+				return -1;
+			if (!(d->mass_g_mol >= 1 && d->mass_g_mol <= 5000))
+				return im_fail(err, "molar mass %s g/mol is outside 1 to 5000", argv[i + 1]);
 		} else {
-			return im_fail(err, "unexpected '%.40s' (mobility D source TEXT, formula F)",
-				       argv[i]);
+			return im_fail(err, "unexpected '%.40s' (mobility D source TEXT, formula F, "
+				       "mass G)", argv[i]);
 		}
 	}
 	if (isfinite(d->D_1e9_m2_s) && !d->source)
@@ -104,8 +134,10 @@ static int define_ion(im_ctx *ctx, usercomp *uc, int argc, char **argv, char *er
 		return -1;
 	/* the molar mass, for the mobility estimate: the formula given, or
 	 * the symbol itself when it reads as one */
-	if (formula ? formula_parse(formula, &fi, err) == 0
-		    : formula_parse(d.symbol, &fi, err) == 0) {
+	if (isfinite(d.mass_g_mol) && !formula) {
+		/* a molar mass given as such (exported recipes) */
+	} else if (formula ? formula_parse(formula, &fi, err) == 0
+			   : formula_parse(d.symbol, &fi, err) == 0) {
 		if (fi.charge != 0 && fi.charge != d.z)
 			return im_fail(err, "%s has a charge of %+d, not %+d", formula ? formula
 				       : d.symbol, fi.charge, d.z);
@@ -113,6 +145,8 @@ static int define_ion(im_ctx *ctx, usercomp *uc, int argc, char **argv, char *er
 	} else if (formula) {
 		return -1;
 	}
+	if ((ion = uc_ion(uc, d.symbol)) != NULL && ion->z == d.z)
+		return same_again(ctx, ion->symbol, err); /* a recipe run twice */
 	if (uc_add_ion(uc, ctx->ses->ref, &d, &ion, err) ||
 	    store(ctx, uc, nc, ni, NULL, ion, NULL, &stored, err))
 		return -1;
@@ -124,18 +158,17 @@ static int define_ion(im_ctx *ctx, usercomp *uc, int argc, char **argv, char *er
 	return render_done(r);
 }
 
-static int define_compound(im_ctx *ctx, usercomp *uc, int argc, char **argv, char *err)
+/* The words of `define COMPOUND formula FORMULA [yields ION N ...]
+ * [hazard TEXT] [source TEXT]` into d. */
+static int compound_words(int argc, char **argv, uc_compound_def *d, char *err)
 {
-	uc_compound_def d;
-	const rd_compound *c;
-	int nc = uc_ncompounds(uc), ni = uc_nions(uc), stored, i = 4;
-	render *r;
-	memset(&d, 0, sizeof d);
-	d.name = argv[1];
+	int i = 4;
+	memset(d, 0, sizeof *d);
+	d->name = argv[1];
 	if (argc < 4 || strcmp(argv[2], "formula") != 0)
 		return im_fail(err, "usage: define COMPOUND formula FORMULA [yields ION N ...] "
 				    "[hazard TEXT] [source TEXT]");
-	d.formula = argv[3];
+	d->formula = argv[3];
 	while (i < argc) {
 		if (i + 1 >= argc)
 			return im_fail(err, "'%s' needs a value", argv[i]);
@@ -143,30 +176,43 @@ static int define_compound(im_ctx *ctx, usercomp *uc, int argc, char **argv, cha
 			i++;
 			while (i + 1 < argc && strcmp(argv[i], "hazard") != 0 &&
 			       strcmp(argv[i], "source") != 0) {
-				if (d.nyields == UC_MAX_YIELDS)
+				if (d->nyields == UC_MAX_YIELDS)
 					return im_fail(err, "at most %d yields", UC_MAX_YIELDS);
-				d.yield_sym[d.nyields] = argv[i];
-				if (units_number(argv[i + 1], &d.yield_n[d.nyields], err))
+				d->yield_sym[d->nyields] = argv[i];
+				if (units_number(argv[i + 1], &d->yield_n[d->nyields], err))
 					return im_fail(err, "yields: '%s' after %s is not a count",
 						       argv[i + 1], argv[i]);
-				d.nyields++;
+				d->nyields++;
 				i += 2;
 			}
 			if (i < argc && strcmp(argv[i], "hazard") != 0 &&
 			    strcmp(argv[i], "source") != 0)
 				return im_fail(err, "yields: %s has no count", argv[i]);
-			if (d.nyields == 0)
+			if (d->nyields == 0)
 				return im_fail(err, "yields: name the ions, e.g. `yields K+ 1 Cl- 1`");
 		} else if (strcmp(argv[i], "hazard") == 0) {
-			d.hazard = argv[i + 1];
+			d->hazard = argv[i + 1];
 			i += 2;
 		} else if (strcmp(argv[i], "source") == 0) {
-			d.source = argv[i + 1];
+			d->source = argv[i + 1];
 			i += 2;
 		} else {
 			return im_fail(err, "unexpected '%.40s' (yields, hazard, source)", argv[i]);
 		}
 	}
+	return 0;
+}
+
+static int define_compound(im_ctx *ctx, usercomp *uc, int argc, char **argv, char *err)
+{
+	uc_compound_def d;
+	const rd_compound *c;
+	int nc = uc_ncompounds(uc), ni = uc_nions(uc), stored;
+	render *r;
+	if (compound_words(argc, argv, &d, err))
+		return -1;
+	if ((c = uc_compound(uc, d.name)) != NULL && same_compound(c, &d))
+		return same_again(ctx, c->name, err); /* a recipe run twice */
 	if (uc_add_compound(uc, ctx->ses->ref, &d, &c, err) ||
 	    store(ctx, uc, nc, ni, c, NULL, d.source, &stored, err))
 		return -1;

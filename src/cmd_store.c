@@ -16,6 +16,7 @@
 #include "fileio.h"
 #include "render.h"
 #include "targets.h"
+#include "usercomp.h"
 #include "userdb.h"
 #include "version.h"
 
@@ -241,16 +242,53 @@ static void write_target(FILE *fp, const solution *s, const sol_target *t)
 		fprintf(fp, "stock \"%s\" %.10g mM\n", t->with->name, it->stock_mM);
 }
 
+/* The definitions a recipe needs before its first line: every
+ * user-defined ion the solution's user-defined compounds yield, then those
+ * compounds (a replay in a database that has them already finds them the
+ * same). */
+static void write_defines(FILE *fp, const solution *s, const usercomp *uc)
+{
+	for (int i = 0; uc && i < s->n; i++) {
+		const rd_compound *c = s->items[i].c;
+		if (!uc_owns_compound(uc, c))
+			continue;
+		for (int k = 0; k < c->nyields; k++) {
+			const rd_ion *ion = c->yields[k].ion;
+			if (!uc_owns_ion(uc, ion))
+				continue;
+			fprintf(fp, "define ion \"%s\" charge %d", ion->symbol, ion->z);
+			if (isfinite(ion->D_1e9_m2_s))
+				fprintf(fp, " mobility %.10g source \"%s\"", ion->D_1e9_m2_s,
+					ion->mobility_source ? ion->mobility_source->citation : "");
+			if (isfinite(ion->mass_g_mol))
+				fprintf(fp, " mass %.10g", ion->mass_g_mol);
+			fputc('\n', fp);
+		}
+		fprintf(fp, "define \"%s\" formula \"%s\"", c->name, c->formula);
+		if (c->nyields > 0 && !(c->nyields == 1 && c->yields[0].ion->z == 0))
+			fputs(" yields", fp);
+		for (int k = 0; k < c->nyields && !(c->nyields == 1 && c->yields[0].ion->z == 0); k++)
+			fprintf(fp, " \"%s\" %.10g", c->yields[k].ion->symbol, c->yields[k].count);
+		if (c->hazard)
+			fprintf(fp, " hazard \"%s\"", c->hazard);
+		const char *src = c->description ? strstr(c->description, "source: ") : NULL;
+		if (src && strcmp(src + 8, "none given") != 0)
+			fprintf(fp, " source \"%s\"", src + 8);
+		fputc('\n', fp);
+	}
+}
+
 /* Write the recipe of s to fp: a commented script that rebuilds it, the
  * targets as commands (each holds at its own temperature, so the recipe
  * gives the same amounts at any `temp`). */
-static void write_recipe(FILE *fp, const solution *s)
+static void write_recipe(FILE *fp, const solution *s, const usercomp *uc)
 {
 	char stamp[32];
 	time_t now = time(NULL);
 	strftime(stamp, sizeof stamp, "%Y-%m-%d", gmtime(&now));
 	fprintf(fp, "# ionmix recipe: %s\n# exported %s by ionmix %s; replay with "
 		    "`ionmix FILE` or `run FILE`\n", s->name, stamp, IONMIX_VERSION);
+	write_defines(fp, s, uc);
 	fprintf(fp, "solution %s\nclear\ngas off\n", s->name);
 	for (int i = 0; i < s->n; i++) {
 		const sol_item *it = &s->items[i];
@@ -269,6 +307,10 @@ static void write_recipe(FILE *fp, const solution *s)
 	/* the targets' amounts are solved again when the recipe runs */
 	for (int k = 0; k < s->ntg; k++)
 		write_target(fp, s, &s->tg[k]);
+	/* the bottles' formula weights, once every compound is in */
+	for (int i = 0; i < s->n; i++)
+		if (s->items[i].fw_g_mol > 0)
+			fprintf(fp, "fw \"%s\" %.10g\n", s->items[i].c->name, s->items[i].fw_g_mol);
 }
 
 int cmd_export(im_ctx *ctx, int argc, char **argv, char *err)
@@ -277,9 +319,15 @@ int cmd_export(im_ctx *ctx, int argc, char **argv, char *err)
 	fio_file *f;
 	render *r;
 	(void)argc;
-	if (ses_solution(ctx->ses, argv[1], &s, err) || fio_open(&f, argv[2], err))
+	char uerr[IM_ERRLEN];
+	if (ses_solution(ctx->ses, argv[1], &s, err))
 		return -1;
-	write_recipe(fio_stream(f), s);
+	const usercomp *uc = ses_defs(ctx->ses, uerr);
+	if (uerr[0])
+		return im_fail(err, "%s", uerr);
+	if (fio_open(&f, argv[2], err))
+		return -1;
+	write_recipe(fio_stream(f), s, uc);
 	if (fio_commit(f, err))
 		return -1;
 	r = render_new(ctx->out);

@@ -121,7 +121,7 @@ static const cmd_def table[] = {
 	 "CSV options: column N|NAME, skip N, skip-bad, whole-cell|outside-out|inside-out|cell-attached, to -; "
 	 "NWB options: series NAME..., again",
 	 1, ANY, cmd_correct, COMPL_FILE, COMPL_FILE, 0},
-	{"define", "COMPOUND formula FORMULA [yields ION N ...] [hazard TEXT] [source TEXT] | ion SYMBOL charge Z [mobility D source TEXT] [formula FORMULA]",
+	{"define", "COMPOUND formula FORMULA [yields ION N ...] [hazard TEXT] [source TEXT] | ion SYMBOL charge Z [mobility D source TEXT] [formula FORMULA | mass G]",
 	 "a compound or ion of your own, kept in the user database (D in 1e-9 m2/s at 25 C)",
 	 2, ANY, cmd_define, COMPL_NONE, COMPL_NONE, 0},
 	{"fw", "COMPOUND GRAMS_PER_MOL|off", "the formula weight on the bottle (hydrate, lot) for weighing in the current solution",

@@ -89,6 +89,7 @@ EXAMPLES = [
     ([], "define Testdrug formula C13H20N2O2.HCl source \"an invented example\""),
     (["define ion Tq+ charge 1 formula C8H20N"], "define TqBr formula C8H20NBr yields Tq+ 1 Br- 1"),
     ([], "define ion Zq2- charge -2 mobility 0.7 source \"an invented example\""),
+    (["define ion Zr+ charge 1 mass 150"], "define ion Zr+ charge 1 mass 150"),
     (["define Testdrug2 formula C13H20N2O2.HCl"], "compounds mine"),
     (["define Testdrug3 formula C13H20N2O2.HCl"], "info Testdrug3"),
     (["solution k-pipette"], "fw KCl 74.6"),
