@@ -191,6 +191,36 @@ int cmd_clear(im_ctx *ctx, int argc, char **argv, char *err)
 	return render_done(r);
 }
 
+/* `note [TEXT...|off]`: the solution's note (how and why it was made, a
+ * lot, a date), kept with saves, versions and exported recipes; without
+ * words it is shown. */
+int cmd_note(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	solution *s;
+	char buf[SOL_NOTE_MAX];
+	size_t len = 0;
+	render *r;
+	if (ses_solution(ctx->ses, NULL, &s, err))
+		return -1;
+	buf[0] = '\0';
+	for (int i = 1; i < argc; i++) {
+		size_t w = strlen(argv[i]);
+		if (len + w + 2 > sizeof buf)
+			return im_fail(err, "a note is at most %d bytes", SOL_NOTE_MAX - 1);
+		len += (size_t)snprintf(buf + len, sizeof buf - len, "%s%s", i > 1 ? " " : "",
+					argv[i]);
+	}
+	if (argc > 1)
+		snprintf(s->note, sizeof s->note, "%s", argc == 2 && strcmp(argv[1], "off") == 0
+			 ? "" : buf);
+	r = render_new(ctx->out);
+	render_str(r, "solution", NULL, s->name);
+	render_str(r, "note", NULL, s->note);
+	render_text(r, "%s: %s%s", s->name, s->note[0] ? "note: " : "no note",
+		    s->note[0] ? s->note : " (`note TEXT` writes one)");
+	return render_done(r);
+}
+
 /* ---- show ---- */
 
 /* Net charge this far from zero is reported as not electroneutral:
@@ -459,6 +489,10 @@ int cmd_show(im_ctx *ctx, int argc, char **argv, char *err)
 	render_str(r, "activity_model", NULL, ses_model_key(st.model));
 	render_text(r, "%s at %.1f C; activity coefficients: %s", s->name, st.t_C,
 		    st.model == ACT_DAVIES ? "Davies" : "extended Debye-Hueckel (Kielland)");
+	if (s->note[0]) {
+		render_str(r, "note", NULL, s->note);
+		render_text(r, "  note: %s", s->note);
+	}
 	if (s->n == 0)
 		render_text(r, "  (empty: add compounds with `add COMPOUND AMOUNT [UNIT]`)");
 	show_compounds(r, s);

@@ -19,5 +19,6 @@ int cmd_clear(im_ctx *ctx, int argc, char **argv, char *err);
  * each is met; drop removes the rule and keeps the amount. */
 int cmd_targets(im_ctx *ctx, int argc, char **argv, char *err);
 int cmd_show(im_ctx *ctx, int argc, char **argv, char *err);
+int cmd_note(im_ctx *ctx, int argc, char **argv, char *err);
 
 #endif

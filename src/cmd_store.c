@@ -290,6 +290,13 @@ static void write_recipe(FILE *fp, const solution *s, const usercomp *uc)
 		    "`ionmix FILE` or `run FILE`\n", s->name, stamp, IONMIX_VERSION);
 	write_defines(fp, s, uc);
 	fprintf(fp, "solution %s\nclear\ngas off\n", s->name);
+	if (s->note[0]) {
+		/* one quoted word; a double quote inside is written as a single one */
+		fputs("note \"", fp);
+		for (const char *p = s->note; *p; p++)
+			fputc(*p == '"' ? '\'' : *p, fp);
+		fputs("\"\n", fp);
+	}
 	for (int i = 0; i < s->n; i++) {
 		const sol_item *it = &s->items[i];
 		if (tg_of_compound(s, it->c) >= 0)

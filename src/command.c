@@ -50,6 +50,8 @@ static const cmd_def table[] = {
 	 1, 1, cmd_remove, COMPL_COMPOUND, COMPL_NONE, 0},
 	{"clear", "", "empty the current solution",
 	 0, 0, cmd_clear, COMPL_NONE, COMPL_NONE, 0},
+	{"note", "[TEXT...|off]", "a note on the current solution, kept with saves and recipes",
+	 0, ANY, cmd_note, COMPL_NONE, COMPL_NONE, 0},
 	{"show", "[NAME]", "free ions and activities, ionic strength, pH, free Ca2+/Mg2+, osmolality, charge",
 	 0, 1, cmd_show, COMPL_SOLUTION, COMPL_NONE, 0},
 	{"ph", "TARGET with TITRANT [stock CONC [UNIT]] [at C]",

@@ -34,6 +34,7 @@ void sol_copy(solution *dst, const solution *src, const char *name)
 	dst->co2_p_atm = src->co2_p_atm;
 	dst->co2_dry = src->co2_dry;
 	memcpy(dst->tg, src->tg, sizeof dst->tg);
+	memcpy(dst->note, src->note, sizeof dst->note);
 	dst->ntg = src->ntg;
 	if (src->n) {
 		dst->items = im_xmalloc(src->n * sizeof *dst->items);
@@ -91,7 +92,8 @@ int sol_equal(const solution *a, const solution *b)
 {
 	if (strcmp(a->name, b->name) != 0 || a->n != b->n ||
 	    !same_num(a->ph_target, b->ph_target) || a->co2_frac != b->co2_frac ||
-	    a->co2_p_atm != b->co2_p_atm || a->co2_dry != b->co2_dry || a->ntg != b->ntg)
+	    a->co2_p_atm != b->co2_p_atm || a->co2_dry != b->co2_dry || a->ntg != b->ntg ||
+	    strcmp(a->note, b->note) != 0)
 		return 0;
 	for (int k = 0; k < a->ntg; k++)
 		if (a->tg[k].kind != b->tg[k].kind || a->tg[k].value != b->tg[k].value ||

@@ -13,6 +13,7 @@
 #include "speciation.h"
 
 #define SOL_NAME_MAX 64
+#define SOL_NOTE_MAX 512 /* bytes of a solution's note, with the NUL */
 
 typedef struct sol_item {
 	const rd_compound *c;
@@ -49,6 +50,7 @@ typedef struct solution {
 	int co2_dry;      /* 1: the gas is dry; 0: humidified at the temperature */
 	sol_target tg[SOL_TG_MAX]; /* targets, in the order they were set */
 	int ntg;
+	char note[SOL_NOTE_MAX];   /* the user's note (`note TEXT`); "" when none */
 } solution;
 
 /* Activity-coefficient model (see activity.h). */

@@ -49,6 +49,7 @@ static const char schema_keep_sql[] =
 	"  summary TEXT NOT NULL DEFAULT '',"
 	"  ph_target REAL, co2_frac REAL NOT NULL DEFAULT 0,"
 	"  co2_p_atm REAL NOT NULL DEFAULT 1, co2_dry INTEGER NOT NULL DEFAULT 0,"
+	"  note TEXT NOT NULL DEFAULT '',"
 	"  PRIMARY KEY (name, version));"
 	"CREATE TABLE IF NOT EXISTS solution_version_items ("
 	"  solution TEXT NOT NULL, version INTEGER NOT NULL, position INTEGER NOT NULL,"
@@ -60,7 +61,8 @@ static const char schema_keep_sql[] =
 	"  name TEXT PRIMARY KEY, version INTEGER NOT NULL DEFAULT 0,"
 	"  position INTEGER NOT NULL,"
 	"  ph_target REAL, co2_frac REAL NOT NULL DEFAULT 0,"
-	"  co2_p_atm REAL NOT NULL DEFAULT 1, co2_dry INTEGER NOT NULL DEFAULT 0);"
+	"  co2_p_atm REAL NOT NULL DEFAULT 1, co2_dry INTEGER NOT NULL DEFAULT 0,"
+	"  note TEXT NOT NULL DEFAULT '');"
 	"CREATE TABLE IF NOT EXISTS kept_items ("
 	"  solution TEXT NOT NULL, version INTEGER NOT NULL DEFAULT 0,"
 	"  position INTEGER NOT NULL,"
@@ -70,6 +72,8 @@ static const char schema_keep_sql[] =
 	"  PRIMARY KEY (solution, position));"
 	/* the bottle's formula weight of an item (`fw`); 0: the table's */
 	"ALTER TABLE solution_items ADD COLUMN fw_g_mol REAL NOT NULL DEFAULT 0;"
+	/* the user's note on a solution (`note`) */
+	"ALTER TABLE solutions ADD COLUMN note TEXT NOT NULL DEFAULT '';"
 	"CREATE TABLE IF NOT EXISTS kept_state (key TEXT PRIMARY KEY, value);"
 	/* user-defined ions and compounds (`define`), re-read at start */
 	"CREATE TABLE IF NOT EXISTS defined_ions ("
@@ -634,11 +638,12 @@ static int save_targets(userdb *u, const solution *s, int scope, int version)
 static int save_rows(userdb *u, rows_kind k, const solution *s, int version)
 {
 	static const char *const head_cols[] = {
-		"(name, ph_target, co2_frac, co2_p_atm, co2_dry) VALUES (?1, ?3, ?4, ?5, ?6)",
-		"(name, version, ph_target, co2_frac, co2_p_atm, co2_dry) VALUES (?1, ?2, ?3, ?4,"
-		" ?5, ?6)",
-		"(name, position, ph_target, co2_frac, co2_p_atm, co2_dry) VALUES (?1, ?2, ?3, ?4,"
-		" ?5, ?6)",
+		"(name, ph_target, co2_frac, co2_p_atm, co2_dry, note) VALUES (?1, ?3, ?4, ?5, ?6,"
+		" ?7)",
+		"(name, version, ph_target, co2_frac, co2_p_atm, co2_dry, note) VALUES (?1, ?2, ?3,"
+		" ?4, ?5, ?6, ?7)",
+		"(name, position, ph_target, co2_frac, co2_p_atm, co2_dry, note) VALUES (?1, ?2, ?3,"
+		" ?4, ?5, ?6, ?7)",
 	};
 	static const char *const item_cols[] = {
 		"(solution, position, compound, mM, stock_mM, titrant, fw_g_mol) VALUES (?1, ?3, ?4,"
@@ -680,6 +685,7 @@ static int save_rows(userdb *u, rows_kind k, const solution *s, int version)
 	sqlite3_bind_double(ins, 4, s->co2_frac);
 	sqlite3_bind_double(ins, 5, s->co2_p_atm);
 	sqlite3_bind_int(ins, 6, s->co2_dry);
+	sqlite3_bind_text(ins, 7, s->note, -1, SQLITE_STATIC);
 	if (step_done(deli) || step_done(del) || step_done(ins))
 		goto done;
 	for (int i = 0; i < s->n; i++) {
@@ -711,7 +717,7 @@ static int same_as_saved(userdb *u, const solution *s)
 {
 	sqlite3_stmt *st;
 	int same = 1, n = 0, rc;
-	if (sqlite3_prepare_v2(u->db, "SELECT ph_target, co2_frac, co2_p_atm, co2_dry FROM"
+	if (sqlite3_prepare_v2(u->db, "SELECT ph_target, co2_frac, co2_p_atm, co2_dry, note FROM"
 			       " solutions WHERE name = ?1", -1, &st, NULL))
 		return -1;
 	sqlite3_bind_text(st, 1, s->name, -1, SQLITE_STATIC);
@@ -725,6 +731,9 @@ static int same_as_saved(userdb *u, const solution *s)
 		same = 0;
 	if (sqlite3_column_double(st, 1) != s->co2_frac ||
 	    sqlite3_column_double(st, 2) != s->co2_p_atm || sqlite3_column_int(st, 3) != s->co2_dry)
+		same = 0;
+	if (strcmp(sqlite3_column_text(st, 4) ? (const char *)sqlite3_column_text(st, 4) : "",
+		   s->note) != 0)
 		same = 0;
 	sqlite3_finalize(st);
 	if (sqlite3_prepare_v2(u->db, "SELECT compound, mM, stock_mM, titrant, fw_g_mol FROM"
@@ -921,8 +930,9 @@ static int load_head(userdb *u, rows_kind k, const char *name, int version, solu
 	const char *col = NULL;
 	double v;
 	int rc;
-	snprintf(sql, sizeof sql, "SELECT ph_target, co2_frac, co2_p_atm, co2_dry FROM %s WHERE"
-		 " name = ?1%s", rows_tab[k].head, k == ROWS_VERSION ? " AND version = ?2" : "");
+	snprintf(sql, sizeof sql, "SELECT ph_target, co2_frac, co2_p_atm, co2_dry, %s FROM %s"
+		 " WHERE name = ?1%s", u->schema >= 3 ? "note" : "''", rows_tab[k].head,
+		 k == ROWS_VERSION ? " AND version = ?2" : "");
 	if (sqlite3_prepare_v2(u->db, sql, -1, &st, NULL) != SQLITE_OK)
 		return fail_db(u, err, "loading");
 	sqlite3_bind_text(st, 1, name, -1, SQLITE_STATIC);
@@ -963,6 +973,14 @@ static int load_head(userdb *u, rows_kind k, const char *name, int version, solu
 	}
 	if (!col && col_flag(st, 3, &out->co2_dry, why, sizeof why))
 		col = "dry-gas flag";
+	if (!col) {
+		const char *note = (const char *)sqlite3_column_text(st, 4);
+		if (sqlite3_column_type(st, 4) != SQLITE_TEXT || strlen(note) >= SOL_NOTE_MAX)
+			snprintf(why, sizeof why, "not a text of at most %d bytes", SOL_NOTE_MAX - 1),
+				col = "note";
+		else
+			snprintf(out->note, sizeof out->note, "%s", note);
+	}
 	sqlite3_finalize(st);
 	if (col)
 		return im_fail(err, "%s: saved solution '%s': %s is %s; nothing was loaded (was "

@@ -37,6 +37,8 @@ EXAMPLES = [
     (["solution k-pipette"], "set KCl 12"),
     (["solution k-pipette"], "remove KCl"),
     (["solution extra"], "clear"),
+    (["solution k-pipette"], "note \"made for the invented rig, lot 7\""),
+    (["solution k-pipette"], "note"),
     ([], "show k-pipette"),
     ([], "show cs-pipette"),
     (["solution empty"], "show"),
