@@ -45,6 +45,8 @@ typedef struct cmd_def {
 	compl_kind compl_rest;  /* later arguments */
 	int keep_on_fail;       /* 1: do not roll the workspace back when the
 				 * handler fails (run: earlier lines stand) */
+	int reads_only;         /* 1: changes no state, so no mark is taken
+				 * for a rollback (show, nernst, ...) */
 } cmd_def;
 
 const cmd_def *cmd_table(int *n);
