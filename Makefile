@@ -4,6 +4,9 @@
 PREFIX     ?= /usr/local
 BINDIR     ?= $(PREFIX)/bin
 MANDIR     ?= $(PREFIX)/share/man
+DATADIR    ?= $(PREFIX)/share
+# bash-completion's directory for files loaded on demand
+COMPLDIR   ?= $(DATADIR)/bash-completion/completions
 DESTDIR    ?=
 CC         ?= cc
 CFLAGS     ?= -O2 -g
@@ -19,9 +22,19 @@ SAN        ?=
 V          ?=
 
 # ---- project flags, added on top of the user's ----
-PKGS       := sqlite3 readline
+# HDF5 (NWB recordings): Debian's pkg-config name is hdf5 (an alternative
+# for hdf5-serial); take whichever pkg-config finds
+HDF5_PC    := $(firstword $(foreach p,hdf5 hdf5-serial,$(shell $(PKG_CONFIG) --exists $(p) 2>/dev/null && echo $(p))))
+PKGS       := sqlite3 readline $(HDF5_PC)
 PKG_CFLAGS := $(shell $(PKG_CONFIG) --cflags $(PKGS) 2>/dev/null)
-PKG_LIBS   := $(shell $(PKG_CONFIG) --libs $(PKGS) 2>/dev/null)
+# HDF5 is not linked: src/h5lazy.c loads it on the first NWB command (its
+# 35 dependent libraries cost more than half of every start otherwise);
+# the run-time name comes from the library compiled against
+PKG_LIBS   := $(shell $(PKG_CONFIG) --libs sqlite3 readline 2>/dev/null) -ldl
+HDF5_LDIR  := $(patsubst -L%,%,$(filter -L%,$(shell $(PKG_CONFIG) --libs-only-L $(HDF5_PC) 2>/dev/null)))
+HDF5_DEV   := $(firstword $(wildcard $(addsuffix /libhdf5.so,$(HDF5_LDIR))) $(shell $(CC) -print-file-name=libhdf5.so))
+HDF5_SONAME := $(shell objdump -p $(HDF5_DEV) 2>/dev/null | awk '/SONAME/ { print $$2 }')
+H5_DEFS    := -DIM_HDF5_SONAME='"$(or $(HDF5_SONAME),libhdf5.so)"' -DIM_HDF5_DEVLIB='"$(HDF5_DEV)"'
 CMOCKA     := $(shell $(PKG_CONFIG) --cflags --libs cmocka 2>/dev/null)
 IM_CFLAGS  := -std=c11 -D_POSIX_C_SOURCE=200809L -D_DEFAULT_SOURCE \
               -Wall -Wextra -Wstrict-prototypes -MMD -MP \
@@ -45,7 +58,8 @@ VERSION    := $(shell cat VERSION 2>/dev/null || echo 0.0.0)
 # ---- what gets built ----
 SRC        := $(wildcard src/*.c)
 LIBSRC     := $(filter-out src/main.c,$(SRC))
-LIBOBJ     := $(patsubst src/%.c,$(BUILD)/obj/%.o,$(LIBSRC)) $(BUILD)/obj/refdata.o
+LIBOBJ     := $(patsubst src/%.c,$(BUILD)/obj/%.o,$(LIBSRC)) $(BUILD)/obj/refdata.o \
+              $(BUILD)/obj/reftables.o
 # reference data, embedded in this order: schema, sources, then the rest
 DATA_FIRST := data/schema.sql data/sources.sql data/ions.sql data/compounds.sql
 DATA_SQL   := $(DATA_FIRST) $(sort $(filter-out $(DATA_FIRST),$(wildcard data/*.sql)))
@@ -56,7 +70,7 @@ BENCHBIN   := $(patsubst tests/%.c,$(BUILD)/tests/%,$(BENCHSRC))
 
 .PHONY: all run check test bench install uninstall clean deps deps-test help
 
-all: $(BUILD)/ionmix
+all: $(BUILD)/ionmix $(BUILD)/ionmix.bash
 
 help:
 	@echo "make            build $(BUILD)/ionmix"
@@ -83,8 +97,9 @@ check: deps-test
 	@$(MAKE) --no-print-directory test BUILD=build/san SAN=1 CFLAGS="-O1 -g"
 	@$(MAKE) --no-print-directory fuzz-smoke
 
-test: $(BUILD)/ionmix $(TESTBIN)
+test: $(BUILD)/ionmix $(BUILD)/ionmix.bash $(TESTBIN)
 	@IONMIX=$(BUILD)/ionmix PYTHON=$(PYTHON) TESTBIN_DIR=$(BUILD)/tests \
+		IONMIX_BUILD=$(BUILD) IONMIX_SAN=$(SAN) \
 		sh tests/run.sh "$(BUILD)" $(TESTBIN)
 
 bench: deps-test
@@ -104,6 +119,8 @@ $(BUILD)/obj/%.o: src/%.c $(BUILD)/gen/version.h | $(BUILD)/obj
 	$(say) CC $<
 	$(Q)$(CC) $(ALL_CFLAGS) -c -o $@ $<
 
+$(BUILD)/obj/h5lazy.o: ALL_CFLAGS += $(H5_DEFS)
+
 $(BUILD)/obj/refdata.o: $(BUILD)/gen/refdata.c | $(BUILD)/obj
 	$(say) CC $<
 	$(Q)$(CC) $(ALL_CFLAGS) -c -o $@ $<
@@ -113,6 +130,26 @@ $(BUILD)/obj/refdata.o: $(BUILD)/gen/refdata.c | $(BUILD)/obj
 $(BUILD)/gen/refdata.c: $(BUILD)/embed $(DATA_SQL) | $(BUILD)/gen
 	$(say) EMBED "$(DATA_SQL)"
 	$(Q)$(BUILD)/embed $(DATA_SQL) > $@.tmp && mv $@.tmp $@
+
+# The reference data as C tables (src/reftab.h), so a start runs no SQL:
+# a host tool linked with the loaders themselves (refdb.c, eqdata.c with
+# IM_NO_TABLES) loads and checks the image above and writes what they
+# built.  A failing check of the data fails the build here.
+REFDUMP_SRC := src/tools/refdump.c src/refdb.c src/eqdata.c src/common.c
+
+$(BUILD)/gen/reftables.c: $(BUILD)/refdump | $(BUILD)/gen
+	$(say) GEN $@
+	$(Q)$(BUILD)/refdump > $@.tmp && mv $@.tmp $@
+
+$(BUILD)/refdump: $(REFDUMP_SRC) $(BUILD)/gen/refdata.c $(wildcard src/*.h) | $(BUILD)/gen
+	$(say) CC $@
+	$(Q)$(CC) -std=c11 -D_POSIX_C_SOURCE=200809L -D_DEFAULT_SOURCE -Wall -Wextra -O1 \
+		-DIM_NO_TABLES -Isrc -I$(BUILD)/gen $(CPPFLAGS) $(PKG_CFLAGS) -o $@ \
+		$(REFDUMP_SRC) $(BUILD)/gen/refdata.c $(PKG_LIBS) -lm
+
+$(BUILD)/obj/reftables.o: $(BUILD)/gen/reftables.c | $(BUILD)/obj
+	$(say) CC $<
+	$(Q)$(CC) $(ALL_CFLAGS) -c -o $@ $<
 
 $(BUILD)/embed: src/tools/embed.c | $(BUILD)/gen
 	$(say) CC $<
@@ -128,13 +165,38 @@ $(BUILD)/tests/%: tests/%.c $(BUILD)/libionmix.a tests/testutil.h | $(BUILD)/tes
 $(BUILD)/obj $(BUILD)/gen $(BUILD)/tests:
 	$(Q)mkdir -p $@
 
-install: $(BUILD)/ionmix
-	install -d $(DESTDIR)$(BINDIR) $(DESTDIR)$(MANDIR)/man1
+# The bash completion file, generated from the command table by a small
+# tool linked with the library, and the options the binary's --help names.
+$(BUILD)/mkcompletion: src/tools/mkcompletion.c $(BUILD)/libionmix.a
+	$(say) CC $<
+	$(Q)$(CC) $(ALL_CFLAGS) $(IM_LDFLAGS) $(LDFLAGS) -o $@ $< $(BUILD)/libionmix.a $(IM_LIBS)
+
+$(BUILD)/ionmix.bash: $(BUILD)/mkcompletion $(BUILD)/ionmix
+	$(say) GEN $@
+	$(Q)opts=$$($(BUILD)/ionmix --help | grep -E '^  +-' | \
+		grep -oE -- '--?[a-z][a-z-]*' | sort -u) && [ -n "$$opts" ] && \
+		$(BUILD)/mkcompletion $$opts > $@.tmp && mv $@.tmp $@
+
+# Installed: the binary, the man page (its examples name the installed
+# recipes), the bash completion file and the demo recipes.
+RECIPES    := $(wildcard recipes/*.ionmix)
+install: $(BUILD)/ionmix $(BUILD)/ionmix.bash
+	install -d $(DESTDIR)$(BINDIR) $(DESTDIR)$(MANDIR)/man1 $(DESTDIR)$(COMPLDIR) \
+		$(DESTDIR)$(DATADIR)/ionmix/recipes
 	install -m 755 $(BUILD)/ionmix $(DESTDIR)$(BINDIR)/ionmix
-	install -m 644 src/ionmix.1 $(DESTDIR)$(MANDIR)/man1/ionmix.1
+	sed -e 's|/usr/local/share/ionmix/recipes|$(DATADIR)/ionmix/recipes|g' \
+		-e 's|/usr/local/share/bash-completion/completions|$(COMPLDIR)|g' src/ionmix.1 \
+		> $(BUILD)/ionmix.1.tmp
+	install -m 644 $(BUILD)/ionmix.1.tmp $(DESTDIR)$(MANDIR)/man1/ionmix.1
+	rm -f $(BUILD)/ionmix.1.tmp
+	install -m 644 $(BUILD)/ionmix.bash $(DESTDIR)$(COMPLDIR)/ionmix
+	install -m 644 $(RECIPES) $(DESTDIR)$(DATADIR)/ionmix/recipes
 
 uninstall:
-	rm -f $(DESTDIR)$(BINDIR)/ionmix $(DESTDIR)$(MANDIR)/man1/ionmix.1
+	rm -f $(DESTDIR)$(BINDIR)/ionmix $(DESTDIR)$(MANDIR)/man1/ionmix.1 \
+		$(DESTDIR)$(COMPLDIR)/ionmix
+	rm -f $(addprefix $(DESTDIR)$(DATADIR)/ionmix/recipes/,$(notdir $(RECIPES)))
+	-rmdir $(DESTDIR)$(DATADIR)/ionmix/recipes $(DESTDIR)$(DATADIR)/ionmix 2>/dev/null
 
 # Only the build directory: BUILD=out makes `make clean` remove out/, and a
 # BUILD that is empty, the source tree or a parent of it is refused.

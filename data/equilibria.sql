@@ -21,10 +21,13 @@
 --    the enthalpy, or the linear d(pKa)/dT, or the fit), and back to the
 --    working ionic strength with Davies.
 --  * Enthalpies are standard reaction enthalpies in kJ/mol for the
---    reaction as written in the table's comment; NULL means no value is
---    entered (no published value was recalled reliably), and the constant
---    is then used at its reference temperature whatever the temperature
---    (the speciation result carries a warning saying so).
+--    reaction as written in the table's comment, applied by van 't Hoff
+--    from t_ref_C (with a heat capacity where one is entered):
+--      ln K(T) = ln K(Tr) - dH/R (1/T - 1/Tr) + dCp/R (ln(T/Tr) + Tr/T - 1).
+--    Where none is published, dh_analogue names the analogous reaction in
+--    these tables whose enthalpy is used (an estimate, flagged by
+--    source eq-est-analogue).  Only buffers may have neither; their
+--    constants are then used at the reference temperature, with a warning.
 --  * compilation names the compilation or paper a row comes from.  Where
 --    two disagree, both are stored; is_default = 1 marks the one used
 --    unless the user picks another (`constants NAME`, spec_use_compilation).
@@ -92,7 +95,7 @@ INSERT INTO sources (id, citation, common_practice, from_memory) VALUES
     0, 1),
 ('eq-nmdg-pka',
     'Common practice: the pKa of N-methyl-D-glucamine (meglumine) is usually '
-    || 'quoted as 9.5 near 25 C; no temperature coefficient entered',
+    || 'quoted as 9.5 near 25 C (its enthalpy is estimated from Tris, see eq_pka)',
     1, 1),
 ('eq-pitzer-mayorga-1973',
     'Pitzer K.S., Mayorga G. (1973) Thermodynamics of electrolytes. II. '
@@ -158,8 +161,13 @@ CREATE TABLE eq_ligand_states (
 -- pKa = -log10 Ka.  The temperature dependence comes from, in order of
 -- preference: a fit pKa = fit_a/T + fit_b + fit_c T (T in K; pka then
 -- holds the fit's value at t_ref_C, for display); else dh_kJ_mol, the
--- standard enthalpy of the dissociation (van 't Hoff); else dpka_dt_per_K
--- (linear); else none (the pKa holds at t_ref_C only: warned).
+-- standard enthalpy of the dissociation (van 't Hoff, with the heat
+-- capacity dcp_J_mol_K where entered); else the enthalpy of the analogue
+-- step named in dh_analogue (an estimate); else dpka_dt_per_K (linear);
+-- else none (the pKa holds at t_ref_C only: warned).  A ligand that binds
+-- metals must have one of these for every step and every complex: the
+-- loader refuses the tables otherwise.  dh_source names the source of the
+-- enthalpy when it is not the row's own source.
 CREATE TABLE eq_pka (
     ligand          TEXT NOT NULL REFERENCES eq_ligands(name),
     n_h             INTEGER NOT NULL CHECK (n_h BETWEEN 1 AND 6),
@@ -175,6 +183,13 @@ CREATE TABLE eq_pka (
     fit_c_per_K     REAL,
     source          TEXT NOT NULL REFERENCES sources(id),
     note            TEXT,
+    -- heat capacity of the dissociation, J/(mol K), where published
+    dcp_J_mol_K     REAL,
+    -- no enthalpy of its own: the species formed by the analogous step
+    -- whose enthalpy (and heat capacity) is used instead; flagged
+    -- 'estimated' (source eq-est-analogue)
+    dh_analogue     TEXT,
+    dh_source       TEXT REFERENCES sources(id),
     PRIMARY KEY (ligand, n_h, compilation),
     FOREIGN KEY (ligand, n_h) REFERENCES eq_ligand_states(ligand, n_h),
     CHECK ((fit_a_K IS NULL) = (fit_b IS NULL) AND (fit_b IS NULL) = (fit_c_per_K IS NULL))
@@ -197,8 +212,8 @@ INSERT INTO eq_ligands (name, base_charge, binds_metals, description) VALUES
 ('EDTA',      -4, 1, 'EDTA; the free acid is H4EDTA (the two pKa values below 2 are not modelled)'),
 ('ATP',       -4, 1, 'adenosine 5''-triphosphate; Na2ATP yields H2ATP^2-'),
 ('ADP',       -3, 1, 'adenosine 5''-diphosphate'),
-('GTP',       -4, 1, 'guanosine 5''-triphosphate; no metal constants entered; the guanine N1-H (pKa near 9.5) is not modelled'),
-('PCr',       -2, 1, 'phosphocreatine (creatine phosphate); no metal constants entered'),
+('GTP',       -4, 1, 'guanosine 5''-triphosphate; the guanine N1-H (pKa near 9.5) is not modelled'),
+('PCr',       -2, 1, 'phosphocreatine (creatine phosphate)'),
 ('citrate',   -3, 1, 'citrate');
 
 INSERT INTO eq_ligand_states (symbol, ligand, n_h, charge) VALUES
@@ -253,37 +268,62 @@ INSERT INTO eq_pka (ligand, n_h, compilation, is_default, pka, t_ref_C, i_ref_M,
 ('carbonate', 1, 'harned', 1, 10.3296, 25, 0, NULL, NULL, 2902.39, -6.4980, 0.02379,
     'eq-harned-scholes-1941', 'HCO3- = CO3^2- + H+; fit 0-50 C'),
 ('carbonate', 2, 'harned', 1, 6.3510, 25, 0, NULL, NULL, 3404.71, -14.8435, 0.032786,
-    'eq-harned-davis-1943', 'CO2(aq) + H2O = HCO3- + H+; fit 0-50 C'),
+    'eq-harned-davis-1943', 'CO2(aq) + H2O = HCO3- + H+; fit 0-50 C');
+
+-- The rest carry enthalpies of dissociation (kJ/mol) with their source in
+-- dh_source, or the analogue step they are taken from (dh_analogue: the
+-- species the analogous step forms).  Every enthalpy here was recalled
+-- (from_memory = 1 in its source row).
+INSERT INTO eq_pka (ligand, n_h, compilation, is_default, pka, t_ref_C, i_ref_M,
+                    dh_kJ_mol, dpka_dt_per_K, fit_a_K, fit_b, fit_c_per_K, source, note,
+                    dh_analogue, dh_source) VALUES
 ('NMDG', 1, 'practice', 1, 9.5, 25, 0, NULL, NULL, NULL, NULL, NULL, 'eq-nmdg-pka',
-    'no temperature coefficient entered'),
+    'enthalpy estimated: Tris+ analogue (an aliphatic amine)', 'Tris+', 'eq-est-analogue'),
 ('4-AP', 1, 'albert-1948', 1, 9.17, 20, 0, NULL, NULL, NULL, NULL, NULL, 'eq-albert-1948',
-    'no temperature coefficient entered'),
-('EGTA', 1, 'martell-smith', 1, 9.46, 20, 0.1, NULL, NULL, NULL, NULL, NULL, 'eq-schwarzenbach-1957',
-    'amine; no enthalpy entered'),
-('EGTA', 2, 'martell-smith', 1, 8.85, 20, 0.1, NULL, NULL, NULL, NULL, NULL, 'eq-schwarzenbach-1957',
-    'amine; no enthalpy entered'),
-('EGTA', 3, 'martell-smith', 1, 2.68, 20, 0.1, NULL, NULL, NULL, NULL, NULL, 'eq-schwarzenbach-1957', NULL),
-('EGTA', 4, 'martell-smith', 1, 2.00, 20, 0.1, NULL, NULL, NULL, NULL, NULL, 'eq-schwarzenbach-1957', NULL),
-('BAPTA', 1, 'tsien-1980', 1, 6.36, 22, 0.1, NULL, NULL, NULL, NULL, NULL, 'eq-tsien-1980', NULL),
-('BAPTA', 2, 'tsien-1980', 1, 5.47, 22, 0.1, NULL, NULL, NULL, NULL, NULL, 'eq-tsien-1980', NULL),
-('EDTA', 1, 'martell-smith', 1, 10.19, 25, 0.1, NULL, NULL, NULL, NULL, NULL, 'eq-martell-smith', NULL),
-('EDTA', 2, 'martell-smith', 1, 6.13,  25, 0.1, NULL, NULL, NULL, NULL, NULL, 'eq-martell-smith', NULL),
-('EDTA', 3, 'martell-smith', 1, 2.69,  25, 0.1, NULL, NULL, NULL, NULL, NULL, 'eq-martell-smith', NULL),
-('EDTA', 4, 'martell-smith', 1, 2.00,  25, 0.1, NULL, NULL, NULL, NULL, NULL, 'eq-martell-smith', NULL),
-('ATP', 1, 'martell-smith', 1, 6.47, 25, 0.1, NULL, NULL, NULL, NULL, NULL, 'eq-martell-smith', 'terminal phosphate'),
-('ATP', 2, 'martell-smith', 1, 4.06, 25, 0.1, NULL, NULL, NULL, NULL, NULL, 'eq-martell-smith', 'adenine N1'),
-('ADP', 1, 'martell-smith', 1, 6.38, 25, 0.1, NULL, NULL, NULL, NULL, NULL, 'eq-martell-smith', NULL),
-('ADP', 2, 'martell-smith', 1, 3.93, 25, 0.1, NULL, NULL, NULL, NULL, NULL, 'eq-martell-smith', NULL),
+    'enthalpy estimated: Tris+ analogue (a protonated nitrogen base)', 'Tris+', 'eq-est-analogue'),
+('EGTA', 1, 'martell-smith', 1, 9.46, 20, 0.1, 23.4, NULL, NULL, NULL, NULL, 'eq-schwarzenbach-1957',
+    'amine', NULL, 'eq-harrison-bers-1987'),
+('EGTA', 2, 'martell-smith', 1, 8.85, 20, 0.1, 23.8, NULL, NULL, NULL, NULL, 'eq-schwarzenbach-1957',
+    'amine', NULL, 'eq-harrison-bers-1987'),
+('EGTA', 3, 'martell-smith', 1, 2.68, 20, 0.1, NULL, NULL, NULL, NULL, NULL, 'eq-schwarzenbach-1957',
+    'carboxylate; enthalpy estimated from the citrate carboxylate', 'H2citrate-', 'eq-est-analogue'),
+('EGTA', 4, 'martell-smith', 1, 2.00, 20, 0.1, NULL, NULL, NULL, NULL, NULL, 'eq-schwarzenbach-1957',
+    'carboxylate; enthalpy estimated from the citrate carboxylate', 'H3citrate', 'eq-est-analogue'),
+('BAPTA', 1, 'tsien-1980', 1, 6.36, 22, 0.1, 31.0, NULL, NULL, NULL, NULL, 'eq-tsien-1980',
+    'anilino nitrogen; enthalpy estimated (anilinium)', NULL, 'eq-est-anilinium'),
+('BAPTA', 2, 'tsien-1980', 1, 5.47, 22, 0.1, 31.0, NULL, NULL, NULL, NULL, 'eq-tsien-1980',
+    'anilino nitrogen; enthalpy estimated (anilinium)', NULL, 'eq-est-anilinium'),
+('EDTA', 1, 'martell-smith', 1, 10.19, 25, 0.1, 23.4, NULL, NULL, NULL, NULL, 'eq-martell-smith',
+    'amine', NULL, 'eq-ms-enthalpy'),
+('EDTA', 2, 'martell-smith', 1, 6.13,  25, 0.1, 17.6, NULL, NULL, NULL, NULL, 'eq-martell-smith',
+    'amine', NULL, 'eq-ms-enthalpy'),
+('EDTA', 3, 'martell-smith', 1, 2.69,  25, 0.1, NULL, NULL, NULL, NULL, NULL, 'eq-martell-smith',
+    'carboxylate; enthalpy estimated from the citrate carboxylate', 'H2citrate-', 'eq-est-analogue'),
+('EDTA', 4, 'martell-smith', 1, 2.00,  25, 0.1, NULL, NULL, NULL, NULL, NULL, 'eq-martell-smith',
+    'carboxylate; enthalpy estimated from the citrate carboxylate', 'H3citrate', 'eq-est-analogue'),
+('ATP', 1, 'martell-smith', 1, 6.47, 25, 0.1, NULL, NULL, NULL, NULL, NULL, 'eq-martell-smith',
+    'terminal phosphate; enthalpy estimated from H2PO4- = HPO4^2- + H+', 'H2PO4-', 'eq-est-analogue'),
+('ATP', 2, 'martell-smith', 1, 4.06, 25, 0.1, 16.0, NULL, NULL, NULL, NULL, 'eq-martell-smith',
+    'adenine N1; enthalpy estimated (purine ring nitrogen)', NULL, 'eq-est-nucleobase'),
+('ADP', 1, 'martell-smith', 1, 6.38, 25, 0.1, NULL, NULL, NULL, NULL, NULL, 'eq-martell-smith',
+    'enthalpy estimated: the ATP step', 'HATP^3-', 'eq-est-analogue'),
+('ADP', 2, 'martell-smith', 1, 3.93, 25, 0.1, NULL, NULL, NULL, NULL, NULL, 'eq-martell-smith',
+    'enthalpy estimated: the ATP step', 'H2ATP^2-', 'eq-est-analogue'),
 ('GTP', 1, 'martell-smith', 1, 6.5,  25, 0.1, NULL, NULL, NULL, NULL, NULL, 'eq-martell-smith',
-    'terminal phosphate; low-confidence recollection'),
+    'terminal phosphate; low-confidence recollection; enthalpy estimated: the ATP step',
+    'HATP^3-', 'eq-est-analogue'),
 ('PCr', 1, 'martell-smith', 1, 4.58, 25, 0.1, NULL, NULL, NULL, NULL, NULL, 'eq-martell-smith',
-    'phosphate group; low-confidence recollection'),
-('citrate', 1, 'goldberg-2002', 1, 6.396, 25, 0, -3.38, NULL, NULL, NULL, NULL, 'eq-goldberg-2002', NULL),
-('citrate', 2, 'goldberg-2002', 1, 4.761, 25, 0, 2.23,  NULL, NULL, NULL, NULL, 'eq-goldberg-2002', NULL),
-('citrate', 3, 'goldberg-2002', 1, 3.128, 25, 0, 4.07,  NULL, NULL, NULL, NULL, 'eq-goldberg-2002', NULL),
-('citrate', 1, 'martell-smith', 0, 5.69, 25, 0.1, NULL, NULL, NULL, NULL, NULL, 'eq-martell-smith', NULL),
-('citrate', 2, 'martell-smith', 0, 4.35, 25, 0.1, NULL, NULL, NULL, NULL, NULL, 'eq-martell-smith', NULL),
-('citrate', 3, 'martell-smith', 0, 2.87, 25, 0.1, NULL, NULL, NULL, NULL, NULL, 'eq-martell-smith', NULL);
+    'phosphate group; low-confidence recollection; enthalpy estimated from H2PO4-',
+    'H2PO4-', 'eq-est-analogue'),
+('citrate', 1, 'goldberg-2002', 1, 6.396, 25, 0, -3.38, NULL, NULL, NULL, NULL, 'eq-goldberg-2002', NULL, NULL, NULL),
+('citrate', 2, 'goldberg-2002', 1, 4.761, 25, 0, 2.23,  NULL, NULL, NULL, NULL, 'eq-goldberg-2002', NULL, NULL, NULL),
+('citrate', 3, 'goldberg-2002', 1, 3.128, 25, 0, 4.07,  NULL, NULL, NULL, NULL, 'eq-goldberg-2002', NULL, NULL, NULL),
+('citrate', 1, 'martell-smith', 0, 5.69, 25, 0.1, NULL, NULL, NULL, NULL, NULL, 'eq-martell-smith',
+    'enthalpy: the Goldberg et al. step', 'Hcitrate^2-', 'eq-est-analogue'),
+('citrate', 2, 'martell-smith', 0, 4.35, 25, 0.1, NULL, NULL, NULL, NULL, NULL, 'eq-martell-smith',
+    'enthalpy: the Goldberg et al. step', 'H2citrate-', 'eq-est-analogue'),
+('citrate', 3, 'martell-smith', 0, 2.87, 25, 0.1, NULL, NULL, NULL, NULL, NULL, 'eq-martell-smith',
+    'enthalpy: the Goldberg et al. step', 'H3citrate', 'eq-est-analogue');
 
 -- ---------------------------------------------------------------------
 -- Metals and metal-ligand complexes.
@@ -318,43 +358,99 @@ CREATE TABLE eq_complexes (
     dh_kJ_mol       REAL,
     source          TEXT NOT NULL REFERENCES sources(id),
     note            TEXT,
+    dcp_J_mol_K     REAL,          -- heat capacity of formation, J/(mol K)
+    dh_analogue     TEXT,          -- complex whose enthalpy is used instead
+    dh_source       TEXT REFERENCES sources(id), -- source of dh_kJ_mol
     PRIMARY KEY (metal, ligand, kind, compilation)
 );
 
+-- Columns: the formation constant as tabulated, then the enthalpy of
+-- formation (kJ/mol) with its source (dh_source), or the analogous complex
+-- it is taken from (dh_analogue, an estimate).  Every value here was
+-- recalled (from_memory = 1 in its source row) unless its source says
+-- 'Estimated'.
 INSERT INTO eq_complexes (symbol, metal, ligand, kind, compilation, is_default,
-                          log_k, t_ref_C, i_ref_M, dh_kJ_mol, source, note) VALUES
--- EGTA (Schwarzenbach et al. 1957 as compiled by Martell & Smith; 20 C, 0.1 M)
-('CaEGTA^2-', 'Ca2+', 'EGTA', 'ML',  'martell-smith', 1, 10.97, 20, 0.1, NULL, 'eq-schwarzenbach-1957', 'no enthalpy entered'),
-('CaHEGTA-',  'Ca2+', 'EGTA', 'MHL', 'martell-smith', 1, 5.33,  20, 0.1, NULL, 'eq-schwarzenbach-1957', 'no enthalpy entered'),
-('MgEGTA^2-', 'Mg2+', 'EGTA', 'ML',  'martell-smith', 1, 5.21,  20, 0.1, NULL, 'eq-schwarzenbach-1957', 'no enthalpy entered'),
-('MgHEGTA-',  'Mg2+', 'EGTA', 'MHL', 'martell-smith', 1, 3.37,  20, 0.1, NULL, 'eq-schwarzenbach-1957', 'low-confidence recollection'),
-('SrEGTA^2-', 'Sr2+', 'EGTA', 'ML',  'martell-smith', 1, 8.50,  20, 0.1, NULL, 'eq-schwarzenbach-1957', NULL),
-('BaEGTA^2-', 'Ba2+', 'EGTA', 'ML',  'martell-smith', 1, 8.41,  20, 0.1, NULL, 'eq-schwarzenbach-1957', NULL),
-('ZnEGTA^2-', 'Zn2+', 'EGTA', 'ML',  'martell-smith', 1, 12.6,  20, 0.1, NULL, 'eq-martell-smith', 'low-confidence recollection'),
--- BAPTA (Tsien 1980: Kd Ca 1.1e-7 M, Kd Mg 17 mM, 0.1 M KCl, 22 C)
-('CaBAPTA^2-', 'Ca2+', 'BAPTA', 'ML', 'tsien-1980', 1, 6.96, 22, 0.1, NULL, 'eq-tsien-1980', 'from Kd = 110 nM; no enthalpy entered'),
-('MgBAPTA^2-', 'Mg2+', 'BAPTA', 'ML', 'tsien-1980', 1, 1.77, 22, 0.1, NULL, 'eq-tsien-1980', 'from Kd = 17 mM; no enthalpy entered'),
+                          log_k, t_ref_C, i_ref_M, dh_kJ_mol, source, note,
+                          dh_analogue, dh_source) VALUES
+-- EGTA (Schwarzenbach et al. 1957 as compiled by Martell & Smith; 20 C,
+-- 0.1 M); enthalpies as used by Harrison & Bers (1987)
+('CaEGTA^2-', 'Ca2+', 'EGTA', 'ML',  'martell-smith', 1, 10.97, 20, 0.1, -33.9, 'eq-schwarzenbach-1957', NULL,
+    NULL, 'eq-harrison-bers-1987'),
+('CaHEGTA-',  'Ca2+', 'EGTA', 'MHL', 'martell-smith', 1, 5.33,  20, 0.1, NULL, 'eq-schwarzenbach-1957',
+    'enthalpy estimated: CaEGTA^2-', 'CaEGTA^2-', 'eq-est-analogue'),
+('MgEGTA^2-', 'Mg2+', 'EGTA', 'ML',  'martell-smith', 1, 5.21,  20, 0.1, 21.8, 'eq-schwarzenbach-1957',
+    'endothermic, as Mg2+ binding by aminocarboxylates is', NULL, 'eq-ms-enthalpy'),
+('MgHEGTA-',  'Mg2+', 'EGTA', 'MHL', 'martell-smith', 1, 3.37,  20, 0.1, NULL, 'eq-schwarzenbach-1957',
+    'low-confidence recollection; enthalpy estimated: MgEGTA^2-', 'MgEGTA^2-', 'eq-est-analogue'),
+('SrEGTA^2-', 'Sr2+', 'EGTA', 'ML',  'martell-smith', 1, 8.50,  20, 0.1, NULL, 'eq-schwarzenbach-1957',
+    'enthalpy estimated: CaEGTA^2-', 'CaEGTA^2-', 'eq-est-analogue'),
+('BaEGTA^2-', 'Ba2+', 'EGTA', 'ML',  'martell-smith', 1, 8.41,  20, 0.1, NULL, 'eq-schwarzenbach-1957',
+    'enthalpy estimated: CaEGTA^2-', 'CaEGTA^2-', 'eq-est-analogue'),
+('ZnEGTA^2-', 'Zn2+', 'EGTA', 'ML',  'martell-smith', 1, 12.6,  20, 0.1, NULL, 'eq-martell-smith',
+    'low-confidence recollection; enthalpy estimated: CaEGTA^2-', 'CaEGTA^2-', 'eq-est-analogue'),
+-- BAPTA (Tsien 1980: Kd Ca 1.1e-7 M, Kd Mg 17 mM, 0.1 M KCl, 22 C);
+-- enthalpies estimated from the EGTA complexes (same tetracarboxylate cage)
+('CaBAPTA^2-', 'Ca2+', 'BAPTA', 'ML', 'tsien-1980', 1, 6.96, 22, 0.1, NULL, 'eq-tsien-1980',
+    'from Kd = 110 nM; enthalpy estimated: CaEGTA^2-', 'CaEGTA^2-', 'eq-est-analogue'),
+('MgBAPTA^2-', 'Mg2+', 'BAPTA', 'ML', 'tsien-1980', 1, 1.77, 22, 0.1, NULL, 'eq-tsien-1980',
+    'from Kd = 17 mM; enthalpy estimated: MgEGTA^2-', 'MgEGTA^2-', 'eq-est-analogue'),
 -- EDTA (Martell & Smith, 25 C, 0.1 M)
-('CaEDTA^2-', 'Ca2+', 'EDTA', 'ML', 'martell-smith', 1, 10.65, 25, 0.1, NULL, 'eq-martell-smith', 'no enthalpy entered'),
-('MgEDTA^2-', 'Mg2+', 'EDTA', 'ML', 'martell-smith', 1, 8.79,  25, 0.1, NULL, 'eq-martell-smith', 'no enthalpy entered'),
-('SrEDTA^2-', 'Sr2+', 'EDTA', 'ML', 'martell-smith', 1, 8.73,  25, 0.1, NULL, 'eq-martell-smith', NULL),
-('BaEDTA^2-', 'Ba2+', 'EDTA', 'ML', 'martell-smith', 1, 7.86,  25, 0.1, NULL, 'eq-martell-smith', NULL),
-('ZnEDTA^2-', 'Zn2+', 'EDTA', 'ML', 'martell-smith', 1, 16.50, 25, 0.1, NULL, 'eq-martell-smith', NULL),
--- ATP, ADP (Martell & Smith, 25 C, 0.1 M; low-confidence recollections)
-('CaATP^2-', 'Ca2+', 'ATP', 'ML',  'martell-smith', 1, 3.97, 25, 0.1, NULL, 'eq-martell-smith', 'low-confidence recollection'),
-('CaHATP-',  'Ca2+', 'ATP', 'MHL', 'martell-smith', 1, 2.13, 25, 0.1, NULL, 'eq-martell-smith', 'low-confidence recollection'),
-('MgATP^2-', 'Mg2+', 'ATP', 'ML',  'martell-smith', 1, 4.22, 25, 0.1, NULL, 'eq-martell-smith', 'low-confidence recollection'),
-('MgHATP-',  'Mg2+', 'ATP', 'MHL', 'martell-smith', 1, 2.24, 25, 0.1, NULL, 'eq-martell-smith', 'low-confidence recollection'),
-('CaADP-',   'Ca2+', 'ADP', 'ML',  'martell-smith', 1, 2.83, 25, 0.1, NULL, 'eq-martell-smith', 'low-confidence recollection'),
-('MgADP-',   'Mg2+', 'ADP', 'ML',  'martell-smith', 1, 3.17, 25, 0.1, NULL, 'eq-martell-smith', 'low-confidence recollection'),
+('CaEDTA^2-', 'Ca2+', 'EDTA', 'ML', 'martell-smith', 1, 10.65, 25, 0.1, -27.2, 'eq-martell-smith', NULL,
+    NULL, 'eq-ms-enthalpy'),
+('MgEDTA^2-', 'Mg2+', 'EDTA', 'ML', 'martell-smith', 1, 8.79,  25, 0.1, 14.6, 'eq-martell-smith', NULL,
+    NULL, 'eq-ms-enthalpy'),
+('SrEDTA^2-', 'Sr2+', 'EDTA', 'ML', 'martell-smith', 1, 8.73,  25, 0.1, NULL, 'eq-martell-smith',
+    'enthalpy estimated: CaEDTA^2-', 'CaEDTA^2-', 'eq-est-analogue'),
+('BaEDTA^2-', 'Ba2+', 'EDTA', 'ML', 'martell-smith', 1, 7.86,  25, 0.1, NULL, 'eq-martell-smith',
+    'enthalpy estimated: CaEDTA^2-', 'CaEDTA^2-', 'eq-est-analogue'),
+('ZnEDTA^2-', 'Zn2+', 'EDTA', 'ML', 'martell-smith', 1, 16.50, 25, 0.1, NULL, 'eq-martell-smith',
+    'enthalpy estimated: CaEDTA^2-', 'CaEDTA^2-', 'eq-est-analogue'),
+-- ATP, ADP (Martell & Smith, 25 C, 0.1 M; low-confidence recollections);
+-- MgATP forms endothermically; the others take its enthalpy
+('CaATP^2-', 'Ca2+', 'ATP', 'ML',  'martell-smith', 1, 3.97, 25, 0.1, NULL, 'eq-martell-smith',
+    'low-confidence recollection; enthalpy estimated: MgATP^2-', 'MgATP^2-', 'eq-est-analogue'),
+('CaHATP-',  'Ca2+', 'ATP', 'MHL', 'martell-smith', 1, 2.13, 25, 0.1, NULL, 'eq-martell-smith',
+    'low-confidence recollection; enthalpy estimated: MgATP^2-', 'MgATP^2-', 'eq-est-analogue'),
+('MgATP^2-', 'Mg2+', 'ATP', 'ML',  'martell-smith', 1, 4.22, 25, 0.1, 18.8, 'eq-martell-smith',
+    'low-confidence recollection', NULL, 'eq-ms-enthalpy'),
+('MgHATP-',  'Mg2+', 'ATP', 'MHL', 'martell-smith', 1, 2.24, 25, 0.1, NULL, 'eq-martell-smith',
+    'low-confidence recollection; enthalpy estimated: MgATP^2-', 'MgATP^2-', 'eq-est-analogue'),
+('CaADP-',   'Ca2+', 'ADP', 'ML',  'martell-smith', 1, 2.83, 25, 0.1, NULL, 'eq-martell-smith',
+    'low-confidence recollection; enthalpy estimated: CaATP^2-', 'CaATP^2-', 'eq-est-analogue'),
+('MgADP-',   'Mg2+', 'ADP', 'ML',  'martell-smith', 1, 3.17, 25, 0.1, NULL, 'eq-martell-smith',
+    'low-confidence recollection; enthalpy estimated: MgATP^2-', 'MgATP^2-', 'eq-est-analogue'),
+-- GTP: the ATP constants (eq-sigel-ntp: the alkaline-earth complexes of the
+-- nucleoside triphosphates do not depend on the base)
+('MgGTP^2-', 'Mg2+', 'GTP', 'ML',  'sigel-ntp', 1, 4.22, 25, 0.1, NULL, 'eq-sigel-ntp',
+    'as MgATP^2-; enthalpy estimated: MgATP^2-', 'MgATP^2-', 'eq-est-analogue'),
+('MgHGTP-',  'Mg2+', 'GTP', 'MHL', 'sigel-ntp', 1, 2.24, 25, 0.1, NULL, 'eq-sigel-ntp',
+    'as MgHATP-; enthalpy estimated: MgHATP-', 'MgHATP-', 'eq-est-analogue'),
+('CaGTP^2-', 'Ca2+', 'GTP', 'ML',  'sigel-ntp', 1, 3.97, 25, 0.1, NULL, 'eq-sigel-ntp',
+    'as CaATP^2-; enthalpy estimated: CaATP^2-', 'CaATP^2-', 'eq-est-analogue'),
+('CaHGTP-',  'Ca2+', 'GTP', 'MHL', 'sigel-ntp', 1, 2.13, 25, 0.1, NULL, 'eq-sigel-ntp',
+    'as CaHATP-; enthalpy estimated: CaHATP-', 'CaHATP-', 'eq-est-analogue'),
+-- phosphocreatine (low-confidence recollections, eq-pcr-metal); the
+-- protonated complexes estimated at half the log K of the ML complex, as
+-- ATP's are (4.22 -> 2.24); enthalpies from the ATP complexes (phosphate
+-- binding, endothermic)
+('MgPCr',    'Mg2+', 'PCr', 'ML',  'pcr-metal', 1, 1.60, 25, 0.1, NULL, 'eq-pcr-metal',
+    'enthalpy estimated: MgATP^2-', 'MgATP^2-', 'eq-est-analogue'),
+('MgHPCr+',  'Mg2+', 'PCr', 'MHL', 'pcr-metal', 1, 0.80, 25, 0.1, NULL, 'eq-est-analogue',
+    'estimated: half the log K of MgPCr; enthalpy estimated: MgATP^2-', 'MgATP^2-', 'eq-est-analogue'),
+('CaPCr',    'Ca2+', 'PCr', 'ML',  'pcr-metal', 1, 1.30, 25, 0.1, NULL, 'eq-pcr-metal',
+    'enthalpy estimated: CaATP^2-', 'CaATP^2-', 'eq-est-analogue'),
+('CaHPCr+',  'Ca2+', 'PCr', 'MHL', 'pcr-metal', 1, 0.65, 25, 0.1, NULL, 'eq-est-analogue',
+    'estimated: half the log K of CaPCr; enthalpy estimated: CaATP^2-', 'CaATP^2-', 'eq-est-analogue'),
 -- citrate (Martell & Smith, 25 C, 0.1 M)
-('Cacitrate-', 'Ca2+', 'citrate', 'ML', 'martell-smith', 1, 3.50, 25, 0.1, NULL, 'eq-martell-smith', NULL),
-('Mgcitrate-', 'Mg2+', 'citrate', 'ML', 'martell-smith', 1, 3.37, 25, 0.1, NULL, 'eq-martell-smith', 'low-confidence recollection');
--- Not entered (no value recalled reliably): GTP and phosphocreatine with
--- any metal; BAPTA with Sr2+, Ba2+, Zn2+; ATP, ADP, citrate with Sr2+,
--- Ba2+, Zn2+; protonated (MHL) complexes of EDTA; every metal-ligand
--- enthalpy; metal complexes of phosphate, carbonate and the buffers;
--- metal hydrolysis (MOH+).
+('Cacitrate-', 'Ca2+', 'citrate', 'ML', 'martell-smith', 1, 3.50, 25, 0.1, 4.0, 'eq-martell-smith', NULL,
+    NULL, 'eq-citrate-enthalpy'),
+('Mgcitrate-', 'Mg2+', 'citrate', 'ML', 'martell-smith', 1, 3.37, 25, 0.1, 8.0, 'eq-martell-smith',
+    'low-confidence recollection', NULL, 'eq-citrate-enthalpy');
+-- Not entered (no value recalled reliably): BAPTA with Sr2+, Ba2+, Zn2+;
+-- ATP, ADP, GTP, phosphocreatine, citrate with Sr2+, Ba2+, Zn2+ (taken as
+-- not binding, with a note); protonated (MHL) complexes of EDTA; metal
+-- complexes of phosphate, carbonate and the buffers; metal hydrolysis
+-- (MOH+).
 
 -- ---------------------------------------------------------------------
 -- Temperature fits of water and CO2: value = fit_a_K/T + fit_b + fit_c_per_K*T,
@@ -377,6 +473,45 @@ INSERT INTO eq_fits (name, fit_a_K, fit_b, fit_c_per_K, t_min_C, t_max_C, source
 ('co2-pk0',    -2385.73, 14.0184, -0.0152642,  0, 50, 'eq-harned-davis-1943');
 
 -- ---------------------------------------------------------------------
+-- The CO2/HCO3- system with the physiological constants.  In place of the
+-- thermodynamic CO2(aq) step of Harned & Davis (kept above, and its CO2
+-- solubility in eq_fits, for the record), the speciation uses the apparent
+-- (mixed) constant of plasma and bicarbonate salines,
+--   pK' = pH - log10([HCO3-]/[CO2]) =
+--         pk0 + pk_ph (ph_ref - pH) + (t_ref - t)(pk_t + pk_tph (ph_ref - pH)),
+-- with the pH terms evaluated within ph_min..ph_max (the range of the
+-- data; the pH is clamped into it), taken from the reference ionic
+-- strength i_ref_M to the solution's with the Davies coefficient of HCO3-;
+-- and the solubility S = s0 + s1 (t_ref_sol - t) + s2 (t_ref_sol - t)^2 in
+-- mmol/L per mmHg.  One row.
+CREATE TABLE eq_co2_apparent (
+    name            TEXT PRIMARY KEY,
+    pk0             REAL NOT NULL CHECK (pk0 BETWEEN 5.5 AND 7),
+    pk_ph           REAL NOT NULL,
+    pk_t_per_K      REAL NOT NULL,
+    pk_tph_per_K    REAL NOT NULL,
+    t_ref_C         REAL NOT NULL,
+    ph_ref          REAL NOT NULL,
+    ph_min          REAL NOT NULL,
+    ph_max          REAL NOT NULL,
+    i_ref_M         REAL NOT NULL CHECK (i_ref_M BETWEEN 0 AND 1),
+    pk_source       TEXT NOT NULL REFERENCES sources(id),
+    i_source        TEXT NOT NULL REFERENCES sources(id),
+    s0_mM_mmHg      REAL NOT NULL CHECK (s0_mM_mmHg > 0),
+    s1_per_K        REAL NOT NULL,
+    s2_per_K2       REAL NOT NULL,
+    t_ref_sol_C     REAL NOT NULL,
+    sol_source      TEXT NOT NULL REFERENCES sources(id),
+    t_min_C         REAL NOT NULL,
+    t_max_C         REAL NOT NULL
+);
+
+INSERT INTO eq_co2_apparent VALUES
+('physiological', 6.086, 0.042, 0.00472, 0.00139, 38, 7.4, 6.8, 7.8, 0.16,
+    'eq-severinghaus-1966', 'eq-plasma-ionic-strength',
+    0.0307, 0.00057, 0.00002, 37, 'eq-co2-solubility-plasma', 0, 50);
+
+-- ---------------------------------------------------------------------
 -- Pitzer single-salt parameters at 25 C, for the osmotic coefficient.
 --   B_phi = beta0 + beta1 exp(-alpha1 sqrt I) + beta2 exp(-alpha2 sqrt I)
 --   (alpha1 = 2, beta2 = 0 for salts with a univalent ion; alpha1 = 1.4,
@@ -397,6 +532,13 @@ CREATE TABLE osm_pitzer (
     c_phi           REAL NOT NULL,
     m_max_mol_kg    REAL NOT NULL CHECK (m_max_mol_kg > 0),
     source          TEXT NOT NULL REFERENCES sources(id),
+    -- 'published': a fit to the salt's own data; 'estimated': taken from
+    -- the analogue salt named in `analogue` (the osmolality range carries
+    -- +-50 % of such a salt's own term, see src/osmotic.h)
+    class           TEXT NOT NULL DEFAULT 'published'
+                        CHECK (class IN ('published', 'estimated')),
+    analogue        TEXT,
+    CHECK ((class = 'estimated') = (analogue IS NOT NULL)),
     PRIMARY KEY (cation, anion, compilation)
 );
 
@@ -430,12 +572,63 @@ INSERT INTO osm_pitzer (cation, anion, salt, compilation, is_default, beta0, bet
 ('K+',  'SO4^2-', 'K2SO4',  'pitzer-mayorga', 1, 0.04995, 0.7793, 0, 2, 12,  0,       0.7, 'eq-pitzer-mayorga-1973'),
 ('Li+', 'SO4^2-', 'Li2SO4', 'pitzer-mayorga', 1, 0.1363,  1.2705, 0, 2, 12, -0.00399, 3.0, 'eq-pitzer-mayorga-1973'),
 ('Mg2+', 'SO4^2-', 'MgSO4', 'pitzer-mayorga', 1, 0.2210, 3.343, -37.23, 1.4, 12, 0.025, 3.0, 'eq-pitzer-mayorga-1974');
+
+-- Organic salts of pipette solutions and baths.  No single-salt fits were
+-- recalled for them, so each takes the parameters of its closest analogue
+-- (class 'estimated', source eq-est-osm-analogue): the hydroxy- and amino-
+-- carboxylates (gluconate, aspartate, glutamate) those of the acetate of
+-- the same cation (Pitzer & Mayorga 1973, eq-pitzer-mayorga-acetate); the
+-- sulfonates (methanesulfonate, HEPES-) and the large organic cations
+-- (NMDG+, choline+, TEA+, Tris+) those of the chloride of the nearest alkali
+-- ion.  m_max is the analogue's.
+INSERT INTO osm_pitzer (cation, anion, salt, compilation, is_default, beta0, beta1,
+                        beta2, alpha1, alpha2, c_phi, m_max_mol_kg, source, class,
+                        analogue) VALUES
+('K+',  'gluconate-', 'K-gluconate',  'analogue-estimate', 1, 0.1587, 0.3251, 0, 2, 12, -0.00660, 3.5, 'eq-est-osm-analogue', 'estimated', 'KOAc'),
+('Na+', 'gluconate-', 'Na-gluconate', 'analogue-estimate', 1, 0.1426, 0.3237, 0, 2, 12, -0.00629, 3.5, 'eq-est-osm-analogue', 'estimated', 'NaOAc'),
+('K+',  'aspartate-', 'K-aspartate',  'analogue-estimate', 1, 0.1587, 0.3251, 0, 2, 12, -0.00660, 3.5, 'eq-est-osm-analogue', 'estimated', 'KOAc'),
+('K+',  'glutamate-', 'K-glutamate',  'analogue-estimate', 1, 0.1587, 0.3251, 0, 2, 12, -0.00660, 3.5, 'eq-est-osm-analogue', 'estimated', 'KOAc'),
+('Na+', 'glutamate-', 'Na-glutamate', 'analogue-estimate', 1, 0.1426, 0.3237, 0, 2, 12, -0.00629, 3.5, 'eq-est-osm-analogue', 'estimated', 'NaOAc'),
+('K+',  'methanesulfonate-', 'K-methanesulfonate',  'analogue-estimate', 1, 0.04835, 0.2122, 0, 2, 12, -0.00084, 4.8, 'eq-est-osm-analogue', 'estimated', 'KCl'),
+('Cs+', 'methanesulfonate-', 'Cs-methanesulfonate', 'analogue-estimate', 1, 0.0300,  0.0558, 0, 2, 12,  0.00038, 5.0, 'eq-est-osm-analogue', 'estimated', 'CsCl'),
+('Na+', 'methanesulfonate-', 'Na-methanesulfonate', 'analogue-estimate', 1, 0.0765,  0.2664, 0, 2, 12,  0.00127, 6.0, 'eq-est-osm-analogue', 'estimated', 'NaCl'),
+('K+',  'HEPES-', 'K-HEPES',  'analogue-estimate', 1, 0.04835, 0.2122, 0, 2, 12, -0.00084, 4.8, 'eq-est-osm-analogue', 'estimated', 'KCl'),
+('Na+', 'HEPES-', 'Na-HEPES', 'analogue-estimate', 1, 0.0765,  0.2664, 0, 2, 12,  0.00127, 6.0, 'eq-est-osm-analogue', 'estimated', 'NaCl'),
+('Cs+', 'HEPES-', 'Cs-HEPES', 'analogue-estimate', 1, 0.0300,  0.0558, 0, 2, 12,  0.00038, 5.0, 'eq-est-osm-analogue', 'estimated', 'CsCl'),
+('NMDG+',    'Cl-', 'NMDG-Cl',     'analogue-estimate', 1, 0.0765, 0.2664, 0, 2, 12, 0.00127, 6.0, 'eq-est-osm-analogue', 'estimated', 'NaCl'),
+('choline+', 'Cl-', 'choline-Cl',  'analogue-estimate', 1, 0.0765, 0.2664, 0, 2, 12, 0.00127, 6.0, 'eq-est-osm-analogue', 'estimated', 'NaCl'),
+('TEA+',     'Cl-', 'TEA-Cl',      'analogue-estimate', 1, 0.0765, 0.2664, 0, 2, 12, 0.00127, 6.0, 'eq-est-osm-analogue', 'estimated', 'NaCl'),
+('Tris+',    'Cl-', 'Tris-HCl',    'analogue-estimate', 1, 0.0765, 0.2664, 0, 2, 12, 0.00127, 6.0, 'eq-est-osm-analogue', 'estimated', 'NaCl');
 -- Not entered: the parameters of Kim & Frederick (1988) J Chem Eng Data
 -- 33:177-184 (a later evaluation of the same salts; its values were not
 -- recalled reliably); NaHCO3 of Peiper & Pitzer (1982) is represented by
--- the HMW (1984) row; salts of organic anions (gluconate, methanesulfonate,
--- the buffers) and of the complexes, which fall back to the Debye-Hueckel
--- term alone (see src/osmotic.h).
+-- the HMW (1984) row.  Pairs without a row (the complexes, the nucleotides,
+-- phosphocreatine) count by the Debye-Hueckel term alone, and the
+-- osmolality range allows for what a salt's own term would add (see
+-- src/osmotic.h).
+
+-- ---------------------------------------------------------------------
+-- Neutral solutes: their own non-ideality at 25 C.  A solute of molality
+-- m (mol/kg) adds lambda m^2 + mu m^3 to (phi - 1) times the sum of
+-- molalities (so alone, phi = 1 + lambda m + mu m^2); solute-ion and
+-- solute-solute cross terms are not modelled.  Solutes without a row count
+-- as ideal.
+CREATE TABLE osm_neutral (
+    symbol          TEXT PRIMARY KEY,
+    lambda_kg_mol   REAL NOT NULL,
+    mu_kg2_mol2     REAL NOT NULL,
+    m_max_mol_kg    REAL NOT NULL CHECK (m_max_mol_kg > 0),
+    class           TEXT NOT NULL CHECK (class IN ('published', 'estimated')),
+    source          TEXT NOT NULL REFERENCES sources(id),
+    note            TEXT
+);
+
+INSERT INTO osm_neutral (symbol, lambda_kg_mol, mu_kg2_mol2, m_max_mol_kg, class, source, note) VALUES
+('sucrose',  0.068, 0.020, 1.0, 'published', 'eq-robinson-stokes-1959',
+    'through phi = 1.039 at 0.5 and 1.088 at 1.0 mol/kg'),
+('glucose',  0.015, 0,     1.0, 'published', 'eq-robinson-stokes-1959',
+    'through phi = 1.015 at 1.0 mol/kg'),
+('mannitol', 0.015, 0,     1.0, 'estimated', 'eq-est-mannitol', 'as glucose');
 
 -- ---------------------------------------------------------------------
 -- Partial molar volumes at infinite dilution, 25 C, cm3/mol, for the

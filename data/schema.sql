@@ -40,8 +40,36 @@ CREATE TABLE ions (
     -- 100 pm); NULL when not tabulated
     kielland_a_pm   REAL CHECK (kielland_a_pm IS NULL OR kielland_a_pm > 0),
     size_source     TEXT REFERENCES sources(id),
+    -- the species' own formula, charge left off ('C6H11O7' for gluconate-),
+    -- and its molar mass in g/mol (IUPAC atomic weights, iupac-fw), where an
+    -- estimated mobility is derived from the size
+    formula         TEXT,
+    mass_g_mol      REAL CHECK (mass_g_mol IS NULL OR mass_g_mol > 0),
+    -- uncertainty class of the mobility: 'measured' (a measured value read
+    -- in its source), 'from-memory' (a measured value recalled, its source
+    -- flagged from_memory), 'estimated' (by the method its source names);
+    -- and its relative uncertainty, the half-width of the interval taken as
+    -- the mobility's bounds (0.05 = within 5 %)
+    mobility_class  TEXT CHECK (mobility_class IN ('measured', 'from-memory', 'estimated')),
+    mobility_rel_unc REAL CHECK (mobility_rel_unc IS NULL OR
+                                 (mobility_rel_unc >= 0 AND mobility_rel_unc < 1)),
     CHECK (lambda_S_cm2_eq IS NULL AND diffusion_1e9_m2_s IS NULL OR mobility_source IS NOT NULL),
-    CHECK (kielland_a_pm IS NULL OR size_source IS NOT NULL)
+    CHECK (kielland_a_pm IS NULL OR size_source IS NOT NULL),
+    CHECK ((lambda_S_cm2_eq IS NULL AND diffusion_1e9_m2_s IS NULL) = (mobility_class IS NULL)),
+    CHECK (mobility_class IS NULL OR mobility_rel_unc IS NOT NULL),
+    CHECK (mass_g_mol IS NULL OR formula IS NOT NULL)
+);
+
+-- Parts of the species that speciation builds (metal complexes, protonation
+-- states) and the ions table does not list: each ligand of the equilibria
+-- tables by its fully deprotonated form (n_h = 0), each metal, and 'H';
+-- a derived species weighs the sum of its parts, which gives its estimated
+-- mobility (see data/mobility.sql).
+CREATE TABLE species_parts (
+    part            TEXT PRIMARY KEY,          -- eq_ligands.name, eq_metals.symbol or 'H'
+    formula         TEXT NOT NULL,
+    mass_g_mol      REAL NOT NULL CHECK (mass_g_mol > 0),
+    mass_source     TEXT NOT NULL REFERENCES sources(id)
 );
 
 -- Compounds as weighed.  formula is machine-readable (elements, counts and

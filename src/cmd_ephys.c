@@ -67,9 +67,9 @@ int cmd_nernst(im_ctx *ctx, int argc, char **argv, char *err)
 		return im_fail(err, "expected 'activities', got '%.40s'", argv[3]);
 	if (ses_solution(ctx->ses, argv[1], &in, err) ||
 	    ses_solution(ctx->ses, argv[2], &outs, err) ||
-	    sol_compute(in, ses_env(ctx->ses), &si, err))
+	    ses_compute(ctx->ses, in, &si, err))
 		return -1;
-	if (sol_compute(outs, ses_env(ctx->ses), &so, err)) {
+	if (ses_compute(ctx->ses, outs, &so, err)) {
 		sol_state_free(&si);
 		return -1;
 	}

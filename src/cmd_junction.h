@@ -3,8 +3,9 @@
  * of a pipette | bath pair, with its breakdown and the corrections it
  * implies) and `exchange` (the offset a bath exchange brings with a bare
  * Ag/AgCl or a salt-bridge ground).  Each follows cmd_fn in command.h.
- * The physics is in junction.h and electrode.h; these only parse, look
- * up and print.
+ * The junction itself (species, mobilities, models, interval, breakdown)
+ * is ljp.h's result; the physics is in junction.h, diffusion.h and
+ * electrode.h; these only parse, look up and print.
  */
 #ifndef IONMIX_CMD_JUNCTION_H
 #define IONMIX_CMD_JUNCTION_H
@@ -20,11 +21,15 @@ int cmd_junction(im_ctx *ctx, int argc, char **argv, char *err);
 int cmd_exchange(im_ctx *ctx, int argc, char **argv, char *err);
 
 /* The Henderson LJP (bath relative to pipette, mV) of two computed
- * solutions at t_C, from concentrations (act = 0) or activities: the one
- * way every command turns solutions into a junction, so `correct for`,
- * `erev corrected` and `junction` agree.  Ions without a mobility in the
- * data are taken at the middle of a bounded range when they carry at most
- * 10 % of the charge (see cmd_junction.c); otherwise -1 with err. */
+ * solutions at t_C, from concentrations (act = 0) or activities, with its
+ * interval from the mobility uncertainties (lo_mV, hi_mV may be NULL):
+ * the one way every command turns solutions into a junction (through
+ * ljp.c), so `correct for`, `erev corrected`, `review` and `junction`
+ * agree.  Never refuses for want of a mobility (estimated ones widen the
+ * interval); -1 with err for a side without ions or bad input. */
+int cmdj_ljp(const sol_state *pip, const sol_state *bath, int act, double t_C, double *ljp_mV,
+	     double *lo_mV, double *hi_mV, char *err);
+/* The same without the interval. */
 int cmdj_henderson_mV(const sol_state *pip, const sol_state *bath, int act, double t_C,
 		      double *ljp_mV, char *err);
 

@@ -11,6 +11,7 @@
 
 #include "common.h"
 #include "render.h"
+#include "targets.h"
 #include "units.h"
 
 /* ---- temperature and model ---- */
@@ -78,24 +79,36 @@ int cmd_solution(im_ctx *ctx, int argc, char **argv, char *err)
 	return render_done(r);
 }
 
-/* The answer of add, set, remove and clear: the solution, the compound
- * and its amount now, and the compound's hazard. */
+/* The answer of add, set and remove: the solution, the compound and its
+ * amount now (and before, for an add to what was there), the compound's
+ * hazard, and what the targets moved. */
 static int report_amount(im_ctx *ctx, const solution *s, const rd_compound *c,
-			 const char *verb)
+			 const char *verb, double was_mM)
 {
 	sol_item *it = sol_find((solution *)s, c);
 	double mM = it ? it->mM : 0;
-	char amt[48];
+	char amt[48], was[48];
 	render *r = render_new(ctx->out);
 	units_fmt_conc(amt, sizeof amt, mM, ctx->out->utf8);
+	units_fmt_conc(was, sizeof was, was_mM, ctx->out->utf8);
 	render_str(r, "solution", NULL, s->name);
 	render_str(r, "action", NULL, verb);
 	render_str(r, "compound", NULL, c->name);
 	render_conc(r, "mM", NULL, mM);
 	if (strcmp(verb, "removed") == 0)
 		render_text(r, "%s: removed %s", s->name, c->name);
-	else
+	else if (strcmp(verb, "added") == 0 && was_mM > 0) {
+		render_conc(r, "was_mM", NULL, was_mM);
+		render_text(r, "%s: added %s, was %s, now %s (`set` replaces)", s->name, c->name,
+			    was, amt);
+	} else
 		render_text(r, "%s: %s %s, now %s", s->name, verb, c->name, amt);
+	for (int k = 0; k < s->ntg; k++) {
+		sol_item *t = sol_find((solution *)s, s->tg[k].with);
+		units_fmt_conc(amt, sizeof amt, t ? t->mM : 0, ctx->out->utf8);
+		render_text(r, "  target %s holds: %s %s", tg_name(&s->tg[k]), s->tg[k].with->name,
+			    amt);
+	}
 	if (c->hazard && strcmp(verb, "removed") != 0) {
 		render_str(r, "caution", NULL, c->hazard);
 		render_text(r, "caution, %s: %s", c->name, c->hazard);
@@ -103,24 +116,36 @@ static int report_amount(im_ctx *ctx, const solution *s, const rd_compound *c,
 	return render_done(r);
 }
 
+/* -1 with err when a target of s adds c (its amount is the target's). */
+static int not_a_target(const solution *s, const rd_compound *c, char *err)
+{
+	int k = tg_of_compound(s, c);
+	if (k < 0)
+		return 0;
+	return im_fail(err, "%s in %s is set by its %s target; change the target, or `targets "
+			    "drop %s` first", c->name, s->name, tg_name(&s->tg[k]), tg_name(&s->tg[k]));
+}
+
 static int add_or_set(im_ctx *ctx, int argc, char **argv, char *err, int set)
 {
 	const rd_compound *c;
 	solution *s;
-	double mM;
+	double mM, was;
 	if (ses_solution(ctx->ses, NULL, &s, err) || ses_compound(ctx->ses, argv[1], &c, err) ||
-	    units_amount_mM(argv[2], argc > 3 ? argv[3] : NULL, c->fw_g_mol, &mM, err))
+	    units_amount_mM(argv[2], argc > 3 ? argv[3] : NULL, c->fw_g_mol, &mM, err) ||
+	    not_a_target(s, c, err))
 		return -1;
-	if (!set) {
-		sol_item *it = sol_find(s, c);
-		if (it && it->mM + mM > UNITS_MAX_mM)
-			return im_fail(err, "%s would reach %g mM, beyond %g M", c->name,
-				       it->mM + mM, UNITS_MAX_mM / 1000);
-		sol_add(s, c, mM);
-	} else {
+	was = sol_find(s, c) ? sol_find(s, c)->mM : 0;
+	if (!set && was + mM > UNITS_MAX_mM)
+		return im_fail(err, "%s would reach %g mM, beyond %g M", c->name, was + mM,
+			       UNITS_MAX_mM / 1000);
+	if (set)
 		sol_set(s, c, mM);
-	}
-	return report_amount(ctx, s, c, set ? "set" : "added");
+	else
+		sol_add(s, c, mM);
+	if (tg_solve(s, ses_env(ctx->ses), err))
+		return -1;
+	return report_amount(ctx, s, c, set ? "set" : "added", was);
 }
 
 int cmd_add(im_ctx *ctx, int argc, char **argv, char *err)
@@ -138,11 +163,14 @@ int cmd_remove(im_ctx *ctx, int argc, char **argv, char *err)
 	const rd_compound *c;
 	solution *s;
 	(void)argc;
-	if (ses_solution(ctx->ses, NULL, &s, err) || ses_compound(ctx->ses, argv[1], &c, err))
+	if (ses_solution(ctx->ses, NULL, &s, err) || ses_compound(ctx->ses, argv[1], &c, err) ||
+	    not_a_target(s, c, err))
 		return -1;
 	if (sol_remove(s, c))
 		return im_fail(err, "%s is not in %s", c->name, s->name);
-	return report_amount(ctx, s, c, "removed");
+	if (tg_solve(s, ses_env(ctx->ses), err))
+		return -1;
+	return report_amount(ctx, s, c, "removed", 0);
 }
 
 int cmd_clear(im_ctx *ctx, int argc, char **argv, char *err)
@@ -154,6 +182,8 @@ int cmd_clear(im_ctx *ctx, int argc, char **argv, char *err)
 	if (ses_solution(ctx->ses, NULL, &s, err))
 		return -1;
 	s->n = 0;
+	s->ntg = 0;
+	s->ph_target = NAN;
 	r = render_new(ctx->out);
 	render_str(r, "solution", NULL, s->name);
 	render_int(r, "compounds", NULL, 0);
@@ -273,8 +303,23 @@ static void show_chemistry(render *r, const solution *s, const sol_state *st)
 			    c->metals[m].free_mM);
 	}
 	render_object_end(r);
-	render_num(r, "osmolality_mOsm_kg", "osmolality (estimate)", "mOsm/kg",
-		   st->osmolality_mOsm_kg, UNITS_DEC(0));
+	render_num(r, "osmolality_mOsm_kg", NULL, "mOsm/kg", st->osmolality_mOsm_kg, UNITS_DEC(0));
+	render_range(r, "osmolality_range_mOsm_kg", NULL, "mOsm/kg", st->osmolality_lo_mOsm_kg,
+		     st->osmolality_hi_mOsm_kg, UNITS_DEC(0));
+	{
+		/* one text line: the estimate, and the range the osmotic data allow
+		 * when it shows at this precision */
+		char osm[96];
+		if (!isfinite(st->osmolality_mOsm_kg))
+			snprintf(osm, sizeof osm, "-");
+		else if (lround(st->osmolality_lo_mOsm_kg) != lround(st->osmolality_hi_mOsm_kg))
+			snprintf(osm, sizeof osm, "%.0f mOsm/kg (%.0f to %.0f)",
+				 st->osmolality_mOsm_kg, st->osmolality_lo_mOsm_kg,
+				 st->osmolality_hi_mOsm_kg);
+		else
+			snprintf(osm, sizeof osm, "%.0f mOsm/kg", st->osmolality_mOsm_kg);
+		render_str(r, NULL, "osmolality (estimate)", osm);
+	}
 	render_numj(r, "osmotic_coefficient", "osmotic coefficient", NULL, st->osmotic_coeff,
 		    UNITS_DEC(3), 6);
 	render_numj(r, "osmotic_fallback_fraction", NULL, NULL, st->osm_fallback_frac,
@@ -318,13 +363,95 @@ static void show_charge(render *r, const sol_state *st)
 		       idx[2] >= 0 ? ", " : "", idx[2] >= 0 ? st->sp[idx[2]].ion->symbol : "");
 }
 
+/* The targets of s: a table for JSON (kind, value, unit, with, at_C,
+ * met, now) and a line each for the text, with the value at the recording
+ * temperature beside a target set at another ("titrated to pH 7.30 at
+ * 22.0 C; 7.14 at 35.0 C").  Also the targets command's list. */
+static int show_targets(render *r, session *ses, const solution *s, const sol_state *st,
+			int utf8, char *err)
+{
+	render_table(r, "targets", NULL);
+	for (int k = 0; k < s->ntg; k++) {
+		const sol_target *t = &s->tg[k];
+		double now, here = NAN;
+		int met;
+		char d[160], h[64] = "";
+		if (tg_check(s, t, ses_env(ses), &now, &met, err))
+			return -1;
+		if (st && t->kind == SOL_TG_PH)
+			here = st->pH;
+		else if (st && t->kind == SOL_TG_FREE)
+			here = sol_state_free_mM(st, t->metal->symbol);
+		else if (st)
+			here = st->osmolality_mOsm_kg;
+		render_row(r);
+		render_str(r, "kind", NULL, t->kind == SOL_TG_PH ? "ph" : t->kind == SOL_TG_FREE
+					       ? "free" : "osmo");
+		if (t->metal)
+			render_str(r, "metal", NULL, t->metal->symbol);
+		render_numj(r, "value", NULL, NULL, t->value, UNITS_SIG(4), 10);
+		render_str(r, "unit", NULL, tg_unit(t));
+		render_str(r, "with", NULL, t->with->name);
+		render_conc(r, "with_mM", NULL, sol_find((solution *)s, t->with)
+						    ? sol_find((solution *)s, t->with)->mM : 0);
+		render_numj(r, "at_C", NULL, NULL, t->at_C, UNITS_DEC(1), 6);
+		render_bool(r, "met", NULL, met);
+		render_numj(r, "now", NULL, NULL, now, UNITS_SIG(4), 8);
+		tg_describe(t, d, sizeof d);
+		if (st && t->at_C != st->t_C && t->kind == SOL_TG_PH)
+			snprintf(h, sizeof h, "; %.2f at %.1f C", here, st->t_C);
+		else if (st && t->at_C != st->t_C && t->kind == SOL_TG_FREE) {
+			char c[48];
+			units_fmt_conc(c, sizeof c, here, utf8);
+			snprintf(h, sizeof h, "; %s at %.1f C", c, st->t_C);
+		}
+		else if (st && t->at_C != st->t_C)
+			snprintf(h, sizeof h, "; %.0f mOsm/kg at %.1f C", here, st->t_C);
+		render_str(r, NULL, "target", d);
+		render_str(r, NULL, "", met ? "met" : "NOT met");
+		if (st)
+			render_str(r, NULL, "at the recording temperature", h[0] ? h + 2 : "");
+	}
+	render_table_end(r);
+	return 0;
+}
+
+int cmd_targets(im_ctx *ctx, int argc, char **argv, char *err)
+{
+	solution *s;
+	render *r;
+	int k = -1;
+	if (ses_solution(ctx->ses, NULL, &s, err))
+		return -1;
+	if (argc > 1 && !(argc == 3 && strcmp(argv[1], "drop") == 0))
+		return im_fail(err, "usage: targets [drop NAME]");
+	if (argc == 3 && (k = tg_find(s, argv[2])) < 0)
+		return im_fail(err, "%s has no target '%.40s' (`targets` lists them)", s->name,
+			       argv[2]);
+	r = render_new(ctx->out);
+	render_str(r, "solution", NULL, s->name);
+	if (k >= 0) {
+		render_str(r, "dropped", NULL, tg_name(&s->tg[k]));
+		render_text(r, "%s: target %s dropped; %s keeps its amount", s->name,
+			    tg_name(&s->tg[k]), s->tg[k].with->name);
+		tg_drop(s, k);
+	}
+	if (s->ntg == 0)
+		render_text(r, "%s: no targets (`ph`, `free` and `osmo` set them)", s->name);
+	if (show_targets(r, ctx->ses, s, NULL, ctx->out->utf8, err)) {
+		render_drop(r);
+		return -1;
+	}
+	return render_done(r);
+}
+
 int cmd_show(im_ctx *ctx, int argc, char **argv, char *err)
 {
 	solution *s;
 	sol_state st;
 	render *r;
 	if (ses_solution(ctx->ses, argc > 1 ? argv[1] : NULL, &s, err) ||
-	    sol_compute(s, ses_env(ctx->ses), &st, err))
+	    ses_compute(ctx->ses, s, &st, err))
 		return -1;
 	r = render_new(ctx->out);
 	render_str(r, "solution", NULL, s->name);
@@ -343,6 +470,13 @@ int cmd_show(im_ctx *ctx, int argc, char **argv, char *err)
 			   st.osmolarity_mOsm_L, UNITS_DEC(1));
 		if (st.chem)
 			show_chemistry(r, s, &st);
+		if (st.chem)
+			render_numj(r, "pH_at_temperature", NULL, NULL, st.pH, UNITS_DEC(2), 6);
+		if (s->ntg && show_targets(r, ctx->ses, s, &st, ctx->out->utf8, err)) {
+			render_drop(r);
+			sol_state_free(&st);
+			return -1;
+		}
 		show_charge(r, &st);
 		if (!st.chem)
 			render_note(r, "buffers and chelators are taken as added (no pH or binding); "

@@ -15,6 +15,9 @@ int cmd_add(im_ctx *ctx, int argc, char **argv, char *err);
 int cmd_set(im_ctx *ctx, int argc, char **argv, char *err);
 int cmd_remove(im_ctx *ctx, int argc, char **argv, char *err);
 int cmd_clear(im_ctx *ctx, int argc, char **argv, char *err);
+/* `targets [drop NAME]`: the targets of the current solution and whether
+ * each is met; drop removes the rule and keeps the amount. */
+int cmd_targets(im_ctx *ctx, int argc, char **argv, char *err);
 int cmd_show(im_ctx *ctx, int argc, char **argv, char *err);
 
 #endif

@@ -13,5 +13,8 @@ int cmd_load(im_ctx *ctx, int argc, char **argv, char *err);
 int cmd_list(im_ctx *ctx, int argc, char **argv, char *err);
 int cmd_delete(im_ctx *ctx, int argc, char **argv, char *err);
 int cmd_export(im_ctx *ctx, int argc, char **argv, char *err);
+/* versions NAME: the saved versions; undo: take back the last change. */
+int cmd_versions(im_ctx *ctx, int argc, char **argv, char *err);
+int cmd_undo(im_ctx *ctx, int argc, char **argv, char *err);
 
 #endif

@@ -18,11 +18,13 @@
 #include "cmd_bench.h"
 #include "cmd_chem.h"
 #include "cmd_correct.h"
+#include "cmd_define.h"
 #include "cmd_ephys.h"
 #include "cmd_ghk.h"
 #include "cmd_junction.h"
 #include "cmd_ref.h"
 #include "cmd_review.h"
+#include "cmd_sweep.h"
 #include "cmd_solution.h"
 #include "cmd_store.h"
 #include "common.h"
@@ -35,88 +37,105 @@ static int cmd_quit(im_ctx *ctx, int argc, char **argv, char *err);
 #define ANY -1
 
 /* name, synopsis, help, min args, max args, handler, completion of the
- * first argument, of the rest, keep_on_fail, reads_only.  Keep it in the order `help`
+ * first argument, of the rest, keep_on_fail.  Keep it in the order `help`
  * should list. */
 static const cmd_def table[] = {
 	{"solution", "NAME [from OTHER]", "make NAME the current solution (a copy of OTHER)",
-	 1, 3, cmd_solution, COMPL_SOLUTION, COMPL_SOLUTION, 0, 0},
+	 1, 3, cmd_solution, COMPL_SOLUTION, COMPL_SOLUTION, 0},
 	{"add", "COMPOUND AMOUNT [UNIT]", "add to the current solution (mM unless a unit: M mM uM nM g/L mg/mL)",
-	 2, 3, cmd_add, COMPL_COMPOUND, COMPL_NONE, 0, 0},
+	 2, 3, cmd_add, COMPL_COMPOUND, COMPL_NONE, 0},
 	{"set", "COMPOUND AMOUNT [UNIT]", "set a compound's amount in the current solution",
-	 2, 3, cmd_set, COMPL_COMPOUND, COMPL_NONE, 0, 0},
+	 2, 3, cmd_set, COMPL_COMPOUND, COMPL_NONE, 0},
 	{"remove", "COMPOUND", "take a compound out of the current solution",
-	 1, 1, cmd_remove, COMPL_COMPOUND, COMPL_NONE, 0, 0},
+	 1, 1, cmd_remove, COMPL_COMPOUND, COMPL_NONE, 0},
 	{"clear", "", "empty the current solution",
-	 0, 0, cmd_clear, COMPL_NONE, COMPL_NONE, 0, 0},
+	 0, 0, cmd_clear, COMPL_NONE, COMPL_NONE, 0},
 	{"show", "[NAME]", "free ions and activities, ionic strength, pH, free Ca2+/Mg2+, osmolality, charge",
-	 0, 1, cmd_show, COMPL_SOLUTION, COMPL_NONE, 0, 1},
-	{"ph", "TARGET with TITRANT [stock CONC [UNIT]]",
-	 "titrate the current solution to a pH (KOH, NaOH, CsOH, NMDG, Tris, HCl ...)",
-	 3, 6, cmd_ph, COMPL_NONE, COMPL_COMPOUND, 0, 0},
+	 0, 1, cmd_show, COMPL_SOLUTION, COMPL_NONE, 0},
+	{"ph", "TARGET with TITRANT [stock CONC [UNIT]] [at C]",
+	 "hold the current solution at a pH (at C: where it holds) with a titrant (KOH, NaOH, CsOH, NMDG, Tris, HCl ...)",
+	 3, 8, cmd_ph, COMPL_NONE, COMPL_COMPOUND, 0},
 	{"gas", "co2 PERCENT [dry] [pressure ATM] | off",
 	 "equilibrate the current solution with CO2 (bicarbonate baths)",
-	 1, 5, cmd_gas, COMPL_NONE, COMPL_NONE, 0, 0},
-	{"free", "METAL AMOUNT [UNIT] [with COMPOUND]",
-	 "set the total of a metal source so that the free Ca2+ or Mg2+ is AMOUNT",
-	 2, 5, cmd_free, COMPL_ION, COMPL_COMPOUND, 0, 0},
-	{"osmo", "TARGET [with COMPOUND]",
-	 "bring the current solution to TARGET mOsm/kg (default: with sucrose)",
-	 1, 3, cmd_osmo, COMPL_NONE, COMPL_COMPOUND, 0, 0},
+	 1, 5, cmd_gas, COMPL_NONE, COMPL_NONE, 0},
+	{"free", "METAL AMOUNT [UNIT] [with COMPOUND] [at C]",
+	 "hold the free Ca2+ or Mg2+ at AMOUNT with the total of a metal source",
+	 2, 7, cmd_free, COMPL_ION, COMPL_COMPOUND, 0},
+	{"osmo", "TARGET [with COMPOUND] [at C]",
+	 "hold the current solution at TARGET mOsm/kg (default: with sucrose)",
+	 1, 5, cmd_osmo, COMPL_NONE, COMPL_COMPOUND, 0},
+	{"targets", "[drop NAME]", "the targets of the current solution, whether each is met; drop one (its amount stays)",
+	 0, 2, cmd_targets, COMPL_NONE, COMPL_NONE, 0},
 	{"constants", "[NAME|default]",
 	 "list the compilations, a ligand's or metal's constants, or pick a compilation",
-	 0, 1, cmd_constants, COMPL_NONE, COMPL_NONE, 0, 0},
+	 0, 1, cmd_constants, COMPL_NONE, COMPL_NONE, 0},
 	{"temp", "[C]", "show or set the temperature in degrees C (default 25)",
-	 0, 1, cmd_temp, COMPL_NONE, COMPL_NONE, 0, 0},
+	 0, 1, cmd_temp, COMPL_NONE, COMPL_NONE, 0},
 	{"activity", "[davies|dh]", "activity-coefficient model (default davies)",
-	 0, 1, cmd_activity, COMPL_NONE, COMPL_NONE, 0, 0},
+	 0, 1, cmd_activity, COMPL_NONE, COMPL_NONE, 0},
 	{"nernst", "INSIDE OUTSIDE [activities]", "equilibrium potential of each ion, inside relative to outside",
-	 2, 3, cmd_nernst, COMPL_SOLUTION, COMPL_SOLUTION, 0, 1},
+	 2, 3, cmd_nernst, COMPL_SOLUTION, COMPL_SOLUTION, 0},
 	{"junction", "PIPETTE BATH [activities] [model henderson|planck|diffusion|all]",
 	 "liquid junction potential of a pipette | bath pair, its breakdown and corrections",
-	 2, 5, cmd_junction, COMPL_SOLUTION, COMPL_SOLUTION, 0, 1},
+	 2, 5, cmd_junction, COMPL_SOLUTION, COMPL_SOLUTION, 0},
 	{"exchange", "OLD NEW [pipette NAME] [ground agcl|bridge SALT CONC [UNIT]]",
 	 "offset a bath exchange brings with a bare Ag/AgCl or salt-bridge ground",
-	 2, 9, cmd_exchange, COMPL_SOLUTION, COMPL_SOLUTION, 0, 1},
+	 2, 9, cmd_exchange, COMPL_SOLUTION, COMPL_SOLUTION, 0},
 	{"erev", "INSIDE OUTSIDE ION=P [ION=P ...] [activities] [corrected]",
 	 "GHK reversal potential of the permeant ions between two solutions (P in cm/s or relative)",
-	 3, ANY, cmd_ghk_erev, COMPL_SOLUTION, COMPL_ION, 0, 1},
+	 3, ANY, cmd_ghk_erev, COMPL_SOLUTION, COMPL_ION, 0},
 	{"ratio", "INSIDE OUTSIDE ION REF at MV [ION=P ...] | INSIDE OUTSIDE ION REF shift FROM_BATH TO_BATH by MV [ION=P ...]",
 	 "permeability ratio P(ION)/P(REF) from a measured reversal potential or its shift",
-	 6, ANY, cmd_ghk_ratio, COMPL_SOLUTION, COMPL_ION, 0, 1},
+	 6, ANY, cmd_ghk_ratio, COMPL_SOLUTION, COMPL_ION, 0},
 	{"iv", "INSIDE OUTSIDE ION=P [...] [from V1] [to V2] [step DV] [rect MV] [svg FILE] [csv FILE] [plain] [activities]",
 	 "GHK current-voltage curves, rectification and a plot (P in cm/s or relative)",
-	 3, ANY, cmd_ghk_iv, COMPL_SOLUTION, COMPL_ION, 0, 1},
+	 3, ANY, cmd_ghk_iv, COMPL_SOLUTION, COMPL_ION, 0},
+	{"sweep", "COMPOUND|temp FROM to TO [UNIT] [in SOLUTION] show QUANTITY [keep-pH] [points N] [svg FILE] [csv FILE] [plain]",
+	 "follow pH, free Ca2+/Mg2+, osmolality, ionic strength, E, the LJP or E_rev over a range of an amount or the temperature",
+	 6, ANY, cmd_sweep, COMPL_COMPOUND, COMPL_SOLUTION, 0},
 	{"review", "PIPETTE BATH", "the checks to run before mixing, each with a verdict and its number",
-	 2, 2, cmd_review, COMPL_SOLUTION, COMPL_SOLUTION, 0, 1},
-	{"weigh", "VOLUME [mL|L]", "bench sheet: what to weigh or pipette for the current solution",
-	 1, 2, cmd_weigh, COMPL_NONE, COMPL_NONE, 0, 1},
+	 2, 2, cmd_review, COMPL_SOLUTION, COMPL_SOLUTION, 0},
+	{"weigh", "VOLUME [mL|L] [html FILE] [csv FILE] [prep C]",
+	 "bench sheet: what to weigh or pipette for the current solution, in the order of work; printable HTML, CSV",
+	 1, 8, cmd_weigh, COMPL_NONE, COMPL_FILE, 0},
 	{"stock", "COMPOUND CONC [UNIT] | COMPOUND off", "take a compound from a stock solution on the bench sheet",
-	 2, 3, cmd_stock, COMPL_COMPOUND, COMPL_NONE, 0, 0},
+	 2, 3, cmd_stock, COMPL_COMPOUND, COMPL_NONE, 0},
 	{"save", "[NAME]", "save a solution to the database",
-	 0, 1, cmd_save, COMPL_SOLUTION, COMPL_NONE, 0, 0},
-	{"load", "NAME", "load a saved solution and make it current",
-	 1, 1, cmd_load, COMPL_SAVED, COMPL_NONE, 0, 0},
-	{"list", "", "solutions in the workspace and in the database",
-	 0, 0, cmd_list, COMPL_NONE, COMPL_NONE, 0, 1},
+	 0, 1, cmd_save, COMPL_SOLUTION, COMPL_NONE, 0},
+	{"load", "NAME[@VERSION]", "load a saved solution (or one of its versions) and make it current",
+	 1, 1, cmd_load, COMPL_SAVED, COMPL_NONE, 0},
+	{"versions", "NAME", "the saved versions of a solution, with date and summary",
+	 1, 1, cmd_versions, COMPL_SAVED, COMPL_NONE, 0},
+	{"undo", "", "take back the last change to the workspace (several levels)",
+	 0, 0, cmd_undo, COMPL_NONE, COMPL_NONE, 0},
+	{"list", "[FILE.nwb]", "solutions in the workspace and in the database, or the series of an NWB file",
+	 0, 1, cmd_list, COMPL_FILE, COMPL_NONE, 0},
 	{"delete", "NAME", "delete a saved solution from the database",
-	 1, 1, cmd_delete, COMPL_SAVED, COMPL_NONE, 0, 0},
+	 1, 1, cmd_delete, COMPL_SAVED, COMPL_NONE, 0},
 	{"export", "NAME FILE", "write a recipe: a script of commands that rebuilds NAME",
-	 2, 2, cmd_export, COMPL_SOLUTION, COMPL_FILE, 0, 1},
+	 2, 2, cmd_export, COMPL_SOLUTION, COMPL_FILE, 0},
 	{"run", "FILE", "run the commands in FILE; stops at the first bad line",
-	 1, 1, cmd_run, COMPL_FILE, COMPL_NONE, 1, 0},
-	{"correct", "FILE [column N|NAME]... by MV|for PIPETTE BATH [to OUT] [skip-bad] | value MV... by MV|for PIPETTE BATH",
-	 "subtract the LJP from recorded voltages, Vm = Vrecorded - LJP (CSV/TSV columns or values)",
-	 1, ANY, cmd_correct, COMPL_FILE, COMPL_FILE, 0, 0},
+	 1, 1, cmd_run, COMPL_FILE, COMPL_NONE, 1},
+	{"correct", "FILE|-|FILE.nwb|value MV... by MV|for PIPETTE BATH [to OUT] [OPTION]...",
+	 "subtract the LJP from recorded voltages, Vm = Vrecorded - LJP (CSV/TSV columns, values, NWB offsets); "
+	 "CSV options: column N|NAME, skip N, skip-bad, whole-cell|outside-out|inside-out|cell-attached, to -; "
+	 "NWB options: series NAME..., again",
+	 1, ANY, cmd_correct, COMPL_FILE, COMPL_FILE, 0},
+	{"define", "COMPOUND formula FORMULA [yields ION N ...] [hazard TEXT] [source TEXT] | ion SYMBOL charge Z [mobility D source TEXT] [formula FORMULA | mass G]",
+	 "a compound or ion of your own, kept in the user database (D in 1e-9 m2/s at 25 C)",
+	 2, ANY, cmd_define, COMPL_NONE, COMPL_NONE, 0},
+	{"fw", "COMPOUND GRAMS_PER_MOL|off", "the formula weight on the bottle (hydrate, lot) for weighing in the current solution",
+	 2, 2, cmd_fw, COMPL_COMPOUND, COMPL_NONE, 0},
 	{"info", "COMPOUND|ION", "reference data of a compound or ion, with sources",
-	 1, 1, cmd_info, COMPL_COMPOUND, COMPL_NONE, 0, 1},
+	 1, 1, cmd_info, COMPL_COMPOUND, COMPL_NONE, 0},
 	{"compounds", "[KIND]", "the compounds ionmix knows",
-	 0, 1, cmd_compounds, COMPL_NONE, COMPL_NONE, 0, 1},
+	 0, 1, cmd_compounds, COMPL_NONE, COMPL_NONE, 0},
 	{"help", "[COMMAND]", "list the commands, or explain one",
-	 0, 1, cmd_help, COMPL_COMMAND, COMPL_NONE, 0, 1},
+	 0, 1, cmd_help, COMPL_COMMAND, COMPL_NONE, 0},
 	{"quit", "", "leave ionmix (Ctrl-D too); in a script, stop there",
-	 0, 0, cmd_quit, COMPL_NONE, COMPL_NONE, 0, 0},
+	 0, 0, cmd_quit, COMPL_NONE, COMPL_NONE, 0},
 	{"exit", "", "the same as quit",
-	 0, 0, cmd_quit, COMPL_NONE, COMPL_NONE, 0, 0},
+	 0, 0, cmd_quit, COMPL_NONE, COMPL_NONE, 0},
 };
 
 const cmd_def *cmd_table(int *n)
@@ -208,41 +227,73 @@ static const char *nearest_command(const char *name)
 	return hits == 1 ? best : NULL;
 }
 
+/* A compound name with spaces typed without quotes (`add QX-314 chloride
+ * 5`): when the first argument of a command that takes a compound is not
+ * one, and it and the next words (up to three more) are, the words become
+ * one argument in buf.  The longest such name wins; a name is looked up
+ * exactly (by name or alias), so the joining is never a guess. */
+static void join_compound_words(im_ctx *ctx, const cmd_def *d, char **argv, int *argc,
+				char *buf, size_t n)
+{
+	const rd_compound *c;
+	char scratch[IM_ERRLEN];
+	if (d->compl != COMPL_COMPOUND || *argc < 3 ||
+	    ses_compound(ctx->ses, argv[1], &c, scratch) == 0)
+		return;
+	for (int last = *argc - 1 < 4 ? *argc - 1 : 4; last >= 2; last--) {
+		size_t len = 0;
+		for (int i = 1; i <= last && len < n; i++)
+			len += snprintf(buf + len, n - len, "%s%s", i > 1 ? " " : "", argv[i]);
+		if (len >= n || ses_compound(ctx->ses, buf, &c, scratch) != 0)
+			continue;
+		argv[1] = buf;
+		memmove(&argv[2], &argv[last + 1], (size_t)(*argc - last - 1) * sizeof *argv);
+		*argc -= last - 1;
+		return;
+	}
+}
+
 static int exec_one(im_ctx *ctx, char *cmd, char *err)
 {
-	char *argv[CMD_ARGS_MAX];
+	char *argv[CMD_ARGS_MAX], joined[CMD_LINE_MAX + 1];
 	int argc = cmd_split(cmd, argv, CMD_ARGS_MAX, err), nargs, rc;
 	const cmd_def *d;
 	ses_mark mark;
+	char w[48];
 	if (argc <= 0)
 		return argc;
 	d = cmd_lookup(argv[0]);
 	if (!d) {
 		const char *near = nearest_command(argv[0]);
+		out_clip(w, sizeof w, argv[0]);
 		if (near)
-			return im_fail(err, "unknown command '%.40s'; did you mean %s?", argv[0], near);
-		return im_fail(err, "unknown command '%.40s' (type `help`)", argv[0]);
+			return im_fail(err, "unknown command '%s'; did you mean %s?", w, near);
+		return im_fail(err, "unknown command '%s' (type `help`)", w);
 	}
+	join_compound_words(ctx, d, argv, &argc, joined, sizeof joined);
 	nargs = argc - 1;
 	if (nargs < d->min_args)
 		return im_fail(err, "%s: missing argument (usage: %s %s)", d->name, d->name,
 			       d->synopsis);
 	if (d->max_args != ANY && nargs > d->max_args)
-		return im_fail(err, "%s: unexpected '%.40s' (usage: %s %s)", d->name,
-			       argv[d->max_args + 1], d->name, d->synopsis);
-	if (!d->reads_only)
+		return im_fail(err, "%s: unexpected '%s' (usage: %s %s)", d->name,
+			       out_clip(w, sizeof w, argv[d->max_args + 1]), d->name,
+			       d->synopsis);
+	/* `run` takes no mark: each of its lines takes its own, and its
+	 * earlier lines stand when a later one fails */
+	if (!d->keep_on_fail)
 		ses_mark_take(ctx->ses, &mark);
 	rc = d->fn(ctx, argc, argv, err);
 	if (rc == 0 && out_failed(ctx->out))
 		rc = im_fail(err, "cannot write the result of %s to %s: %s", d->name,
 			     ctx->out->name ? ctx->out->name : "standard output",
 			     strerror(ctx->out->werrno ? ctx->out->werrno : EIO));
-	if (d->reads_only)
+	if (d->keep_on_fail)
 		return rc;
-	if (rc != 0 && !d->keep_on_fail)
+	if (rc != 0)
 		ses_mark_restore(ctx->ses, &mark);
 	else
-		ses_mark_drop(&mark);
+		ses_mark_drop(ctx->ses, &mark);
 	return rc;
 }
 
@@ -253,7 +304,8 @@ int cmd_exec(im_ctx *ctx, const char *line, char *err)
 	char *start;
 	char q = 0;
 	if (n > CMD_LINE_MAX)
-		return im_fail(err, "line is longer than %d bytes", CMD_LINE_MAX);
+		return im_fail(err, "line is longer than %d bytes, the limit of one line",
+			       CMD_LINE_MAX);
 	for (size_t i = 0; i < n; i++) {
 		unsigned char c = (unsigned char)line[i];
 		if ((c < 0x20 && c != '\t' && c != '\n' && c != '\r') || c == 0x7f)
@@ -279,23 +331,49 @@ int cmd_exec(im_ctx *ctx, const char *line, char *err)
 
 /* ---- the one line loop ---- */
 
+/* A stdio reader with bounded memory: a line is read into a buffer of
+ * CMD_LINE_MAX + 1 bytes, never more; a longer line is handed over cut at
+ * that length (the loop refuses it by its length) and the rest of it is
+ * skipped on the next call; past CMD_SCRIPT_MAX bytes the reader stops
+ * (-2), so /dev/zero or an endless stream ends instead of growing. */
 typedef struct file_reader {
 	FILE *fp;
-	char *buf;
-	size_t cap;
+	char buf[CMD_LINE_MAX + 2];
+	unsigned long long total; /* bytes read so far */
+	int skip;                 /* 1: the rest of an overlong line is due */
 } file_reader;
 
 static int file_next(void *arg, char **line, size_t *len)
 {
 	file_reader *f = arg;
-	ssize_t n;
+	size_t n = 0;
+	int c = 0;
 	errno = 0;
-	n = getline(&f->buf, &f->cap, f->fp);
-	if (n < 0)
+	while (f->skip) {
+		c = getc_unlocked(f->fp);
+		if (c == EOF)
+			break;
+		if (++f->total > CMD_SCRIPT_MAX)
+			return -2;
+		if (c == '\n')
+			f->skip = 0;
+	}
+	if (!f->skip || c != EOF) {
+		while (n < CMD_LINE_MAX + 1 && (c = getc_unlocked(f->fp)) != EOF) {
+			if (++f->total > CMD_SCRIPT_MAX)
+				return -2;
+			f->buf[n++] = (char)c;
+			if (c == '\n')
+				break;
+		}
+	}
+	if (n == 0)
 		/* a directory opens but does not read (EISDIR): not an empty script */
 		return ferror(f->fp) ? (errno ? -1 : (errno = EIO, -1)) : 0;
+	f->skip = n == CMD_LINE_MAX + 1 && f->buf[n - 1] != '\n';
+	f->buf[n] = '\0';
 	*line = f->buf;
-	*len = (size_t)n;
+	*len = n;
 	return 1;
 }
 
@@ -309,10 +387,7 @@ void cmd_reader_file(cmd_reader *r, FILE *fp)
 
 void cmd_reader_file_done(cmd_reader *r)
 {
-	file_reader *f = r->arg;
-	if (f)
-		free(f->buf);
-	free(f);
+	free(r->arg);
 	r->arg = NULL;
 }
 
@@ -338,12 +413,18 @@ int cmd_loop(im_ctx *ctx, const cmd_reader *rd, int *line_out, char *err)
 			len -= 3;
 		}
 		set_errfile(ctx, NULL, 0);
+		/* the limit is on what the line says, not on its line end */
+		if (len > 0 && line[len - 1] == '\n')
+			len--;
+		if (len > 0 && line[len - 1] == '\r')
+			len--;
 		if (len > CMD_LINE_MAX)
-			rc = im_fail(err, "line is longer than %d bytes", CMD_LINE_MAX);
+			rc = im_fail(err, "line is longer than %d bytes, the limit of one line",
+				     CMD_LINE_MAX);
 		else if (memchr(line, '\0', len))
 			rc = im_fail(err, "line holds a NUL byte: not a text script");
 		else
-			rc = cmd_exec(ctx, line, err);
+			rc = (line[len] = '\0', cmd_exec(ctx, line, err));
 		if (rc == 0)
 			continue;
 		if (!ctx->interactive || out_failed(ctx->out)) {
@@ -351,6 +432,11 @@ int cmd_loop(im_ctx *ctx, const cmd_reader *rd, int *line_out, char *err)
 			return -1;
 		}
 		out_error(ctx->out, ctx->errfile, ctx->errline, err);
+	}
+	if (!ctx->quit && r == -2) {
+		*line_out = lineno + 1;
+		return im_fail(err, "input is longer than %d bytes, the limit of one script "
+			       "(an endless stream?)", CMD_SCRIPT_MAX);
 	}
 	if (!ctx->quit && r < 0) {
 		*line_out = lineno + 1;
@@ -381,8 +467,12 @@ static int cmd_run(im_ctx *ctx, int argc, char **argv, char *err)
 	if (ctx->run_depth >= 8)
 		return im_fail(err, "run: scripts nested more than 8 deep (a script runs itself?)");
 	fp = strcmp(argv[1], "-") == 0 ? stdin : fopen(argv[1], "r");
-	if (!fp)
-		return im_fail(err, "cannot open %s: %s", argv[1], strerror(errno));
+	if (!fp) {
+		char w[128];
+		int e = errno;
+		return im_fail(err, "cannot open %s: %s", out_clip(w, sizeof w, argv[1]),
+			       strerror(e));
+	}
 	ctx->run_depth++;
 	before = ctx->interactive;
 	ctx->interactive = 0; /* a script stops at its first error, even run from the shell */
@@ -409,8 +499,10 @@ static int cmd_help(im_ctx *ctx, int argc, char **argv, char *err)
 	if (argc > 1) {
 		const cmd_def *d = cmd_lookup(argv[1]);
 		if (!d) {
+			char w[48];
 			render_drop(r);
-			return im_fail(err, "no command '%.40s' (type `help` for the list)", argv[1]);
+			return im_fail(err, "no command '%s' (type `help` for the list)",
+				       out_clip(w, sizeof w, argv[1]));
 		}
 		render_str(r, "command", NULL, d->name);
 		render_str(r, "synopsis", NULL, d->synopsis);

@@ -45,8 +45,6 @@ typedef struct cmd_def {
 	compl_kind compl_rest;  /* later arguments */
 	int keep_on_fail;       /* 1: do not roll the workspace back when the
 				 * handler fails (run: earlier lines stand) */
-	int reads_only;         /* 1: changes no state, so no mark is taken
-				 * for a rollback (show, nernst, ...) */
 } cmd_def;
 
 const cmd_def *cmd_table(int *n);
@@ -60,6 +58,9 @@ int cmd_split(char *buf, char **argv, int max, char *err);
 
 #define CMD_LINE_MAX 4096 /* bytes in one input line */
 #define CMD_ARGS_MAX 64   /* words in one command */
+/* bytes in one script or input stream (16 MiB): /dev/zero or an endless
+ * stream ends with an error instead of running or growing forever */
+#define CMD_SCRIPT_MAX (16 * 1024 * 1024)
 
 /* Run one line: it may hold several commands separated by ';' outside
  * quotes.  Each is split, looked up, checked for arity and handed to its
@@ -73,20 +74,25 @@ int cmd_exec(im_ctx *ctx, const char *line, char *err);
 /* Where cmd_loop reads lines: next() sets *line (owned by the reader,
  * valid until the next call) and *len (bytes, without a terminating NUL;
  * the line may hold NUL bytes, which the loop refuses) and returns 1, or
- * returns 0 at the end, or -1 with errno set on a read error. */
+ * returns 0 at the end, -1 with errno set on a read error, or -2 when the
+ * input goes past CMD_SCRIPT_MAX bytes. */
 typedef struct cmd_reader {
 	int (*next)(void *arg, char **line, size_t *len);
 	void *arg;
 } cmd_reader;
 
-/* A reader of a stdio stream (getline); free with cmd_reader_file_done. */
+/* A reader of a stdio stream with bounded memory (one line of at most
+ * CMD_LINE_MAX + 1 bytes is held; a longer one is returned cut at that
+ * length, which the loop refuses, and its rest skipped); it returns -2
+ * past CMD_SCRIPT_MAX bytes.  Free with cmd_reader_file_done. */
 void cmd_reader_file(cmd_reader *r, FILE *fp);
 void cmd_reader_file_done(cmd_reader *r);
 
 /* The one line loop, for the terminal, scripts, `run` and standard
  * input.  Rules: a UTF-8 byte-order mark before the first line is
  * skipped; a line longer than CMD_LINE_MAX bytes, or one holding a NUL or
- * another control byte, is an error; ';' separates commands and '#'
+ * another control byte, is an error, and so is input beyond
+ * CMD_SCRIPT_MAX bytes; ';' separates commands and '#'
  * starts a comment (cmd_exec).  When ctx->interactive, an error is
  * reported on the output and the loop goes on; otherwise the loop stops
  * at the first error and returns -1 with err and *line_out its line

@@ -17,9 +17,17 @@ int im_fail(char *err, const char *fmt, ...)
 {
 	if (err) {
 		va_list ap;
+		int n;
 		va_start(ap, fmt);
-		vsnprintf(err, IM_ERRLEN, fmt, ap);
+		n = vsnprintf(err, IM_ERRLEN, fmt, ap);
 		va_end(ap);
+		if (n >= IM_ERRLEN) {
+			/* cut between UTF-8 characters, and say it was cut */
+			size_t k = IM_ERRLEN - 4;
+			while (k > 0 && ((unsigned char)err[k] & 0xc0) == 0x80)
+				k--;
+			memcpy(err + k, "...", 4);
+		}
 	}
 	return -1;
 }

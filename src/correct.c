@@ -7,10 +7,22 @@
  * of the buffer is rescanned after the buffer is refilled with that field at
  * its start; CORR_FIELD_MAX bounds how much is kept.  The rules are in
  * correct.h.
+ *
+ * Two loops share that state.  fast_run takes plain records (no quoted
+ * field, no NUL, inside the buffer) as many as come in a row and does the
+ * common cell with the least work (plain_fast, fix_plain); at anything else
+ * it stops at the start of a field and the general per-field loop in run()
+ * (scan, do_cell) takes over, and hands back at the next record.  Both
+ * write the same bytes (test_fast_path_same).  Past one write buffer of
+ * output a writer thread writes full buffers while the next one fills.
  */
 #include "correct.h"
 
 #include <errno.h>
+#include <pthread.h>
+#include <signal.h>
+#include <stdarg.h>
+#include <time.h>
 #include <limits.h>
 #include <math.h>
 #include <stdint.h>
@@ -20,9 +32,13 @@
 #include <unistd.h>
 
 #include "common.h"
+#include "fileio.h"
+#include "signals.h"
+#include "version.h"
 
 #define RD_CHUNK (512 * 1024)                   /* at least this much per read */
 #define RD_CAP (RD_CHUNK + CORR_FIELD_MAX + 64) /* read buffer (+1 sentinel) */
+#define RD_SLACK 32                             /* readable bytes past the sentinel */
 #define WR_CAP (512 * 1024)                     /* write buffer */
 #define NUM_OUT_MAX (CORR_DIGITS_MAX + 24)      /* one formatted number */
 #define COL_NUMBER_MAX 1000000                  /* largest column number taken */
@@ -56,6 +72,10 @@ typedef struct num {
 typedef struct ljp_prep {
 	uint64_t mag;
 	int neg, ndig, k0;
+	int flip;   /* 1: the result is negated (inside-out, cell-attached) */
+	uint64_t bn[19]; /* for a plain cell with nf decimals: mag aligned to
+			  * them, mag * 10^(nf - k0); UINT64_MAX when nf < k0
+			  * or that has more than 18 digits (see fix_plain) */
 } ljp_prep;
 
 static int is_digit(int c)
@@ -232,27 +252,62 @@ static void big_set(big *a, const char *s, int n, int z)
 
 static void ljp_prepare(const corr_ljp *l, int unit_exp, ljp_prep *lp)
 {
+	lp->flip = 0;
 	lp->neg = l->scaled < 0;
 	lp->mag = (uint64_t)(lp->neg ? -l->scaled : l->scaled);
 	lp->ndig = ndigits_u64(lp->mag);
 	lp->k0 = l->decimals - unit_exp;
+	for (int nf = 0; nf < 19; nf++) {
+		int z = nf - lp->k0;
+		lp->bn[nf] = z < 0 || lp->ndig + z > 18 ? UINT64_MAX : lp->mag * pow10_u64[z];
+	}
+}
+
+/* "00" .. "99", for writing two digits at a time. */
+static const char dig2[201] =
+	"00010203040506070809101112131415161718192021222324252627282930313233343536373839"
+	"40414243444546474849505152535455565758596061626364656667686970717273747576777879"
+	"8081828384858687888990919293949596979899";
+
+/* Digits of u (u > 0). */
+static inline int ndig_fast(uint64_t u)
+{
+	int bits = 64 - __builtin_clzll(u);
+	int n = (bits * 1233) >> 12;   /* floor(bits * log10(2)), at most one short */
+	return n + (u >= pow10_u64[n]);
 }
 
 /* Print R (magnitude) with D decimals in the style of m, then m's exponent
- * text; the digits are written in place from the right. */
-static int emit_u64(char *out, uint64_t R, int D, int neg, const num *m)
+ * text: the layout of emit, written in place from the right two digits at
+ * a time. */
+static inline __attribute__((always_inline)) int emit_u64(char *out, uint64_t R, int D,
+							   int neg, const num *m)
 {
-	int nd = R ? ndigits_u64(R) : 0;
+	size_t el = (size_t)(m->epe - m->ep);
+	int nd = R ? ndig_fast(R) : 0;
 	int nint = nd > D ? nd - D : (m->ni > 0 || D == 0);
-	char *o = out, *t;
-	if (neg && R)
-		*o++ = '-';
-	else if (m->plus)
-		*o++ = '+';
-	t = o + nint + (D > 0 ? D + 1 : m->dot);
-	o = t;
+	int sign = (neg && R) || m->plus;
+	int len = sign + nint + (D > 0 ? D + 1 : m->dot);
+	char *t = out + len;
+	int i = 0;
 	if (D > 0) {
-		for (int i = 0; i < D; i++) {
+		if (R <= UINT32_MAX) {
+			uint32_t r32 = (uint32_t)R;
+			for (; i + 2 <= D; i += 2) {
+				unsigned r = r32 % 100;
+				r32 /= 100;
+				t -= 2;
+				memcpy(t, dig2 + 2 * r, 2);
+			}
+			R = r32;
+		}
+		for (; i + 2 <= D; i += 2) {
+			unsigned r = (unsigned)(R % 100);
+			R /= 100;
+			t -= 2;
+			memcpy(t, dig2 + 2 * r, 2);
+		}
+		if (i < D) {
 			*--t = (char)('0' + R % 10);
 			R /= 10;
 		}
@@ -260,26 +315,81 @@ static int emit_u64(char *out, uint64_t R, int D, int neg, const num *m)
 	} else if (m->dot) {
 		*--t = '.';
 	}
-	if (nd > D) {
-		while (R) {
-			*--t = (char)('0' + R % 10);
-			R /= 10;
+	if (R) {
+		while (R > UINT32_MAX) {
+			unsigned r = (unsigned)(R % 100);
+			R /= 100;
+			t -= 2;
+			memcpy(t, dig2 + 2 * r, 2);
+		}
+		uint32_t r32 = (uint32_t)R;   /* the rest in 32-bit arithmetic */
+		while (r32 >= 100) {
+			unsigned r = r32 % 100;
+			r32 /= 100;
+			t -= 2;
+			memcpy(t, dig2 + 2 * r, 2);
+		}
+		if (r32 >= 10) {
+			t -= 2;
+			memcpy(t, dig2 + 2 * r32, 2);
+		} else {
+			*--t = (char)('0' + r32);
 		}
 	} else if (nint) {
 		*--t = '0';
 	}
-	size_t el = (size_t)(m->epe - m->ep);
-	if (el) {
-		memcpy(o, m->ep, el);
-		o += el;
+	if (sign)
+		*--t = neg && nd ? '-' : '+';
+	if (el)
+		memcpy(out + len, m->ep, el);
+	return len + (int)el;
+}
+
+/* The common cell, fast: exactly [+-]digits[.digits] over s[0..e) with at
+ * least one and at most 18 digits, nothing else (no blanks, exponent or
+ * CR).  Returns 0 with m filled as parse_num would, or -1 to let
+ * parse_num decide. */
+static inline int parse_plain(const char *s, const char *e, num *m)
+{
+	const char *p = s;
+	uint64_t v = 0;
+	m->neg = m->plus = m->dot = 0;
+	if (p < e && (*p == '-' || *p == '+')) {
+		m->neg = *p == '-';
+		m->plus = *p == '+';
+		p++;
 	}
-	return (int)(o - out);
+	m->ip = p;
+	while (p < e && (unsigned)(*p - '0') < 10)
+		v = v * 10 + (uint64_t)(*p++ - '0');
+	m->ni = (int)(p - m->ip);
+	m->fp = p;
+	m->nf = 0;
+	if (p < e && *p == '.') {
+		m->dot = 1;
+		m->fp = ++p;
+		while (p < e && (unsigned)(*p - '0') < 10)
+			v = v * 10 + (uint64_t)(*p++ - '0');
+		m->nf = (int)(p - m->fp);
+	}
+	if (p != e || m->ni + m->nf == 0 || m->ni + m->nf > 18)
+		return -1;
+	m->val = v;
+	m->ns = s;
+	m->ne = e;
+	m->ep = m->epe = e;
+	m->exp = 0;
+	return 0;
 }
 
 /* The corrected number for m (without blanks) at out, room NUM_OUT_MAX.
  * Returns its length, or -1 when the aligned numbers need more than
  * CORR_DIGITS_MAX digits. */
-static int fix_num(const num *m, const ljp_prep *lp, char *out)
+static int fix_big(const num *m, const ljp_prep *lp, char *out, int D, int za, int zb,
+		   int na, int nb) __attribute__((noinline));
+
+static inline __attribute__((always_inline)) int fix_num(const num *m, const ljp_prep *lp,
+							  char *out)
 {
 	/* value = (digits / 10^nf) 10^exp; the LJP in the cell's unit and in
 	 * units of 10^exp is mag / 10^k */
@@ -291,12 +401,20 @@ static int fix_num(const num *m, const ljp_prep *lp, char *out)
 	if (na <= 18 && nb <= 18) {
 		uint64_t A = m->val * pow10_u64[za], B = lp->mag * pow10_u64[zb];
 		/* r = a - b with a = +-A, b = +-B */
+		int sa = m->neg ^ lp->flip;
 		if (m->neg == !lp->neg)         /* a and -b have one sign: add */
-			return emit_u64(out, A + B, D, m->neg, m);
+			return emit_u64(out, A + B, D, sa, m);
 		if (A >= B)
-			return emit_u64(out, A - B, D, m->neg, m);
-		return emit_u64(out, B - A, D, !m->neg, m);
+			return emit_u64(out, A - B, D, sa, m);
+		return emit_u64(out, B - A, D, !sa, m);
 	}
+	return fix_big(m, lp, out, D, za, zb, na, nb);
+}
+
+/* fix_num past 18 digits: decimal digit arithmetic. */
+static int fix_big(const num *m, const ljp_prep *lp, char *out, int D, int za, int zb,
+		   int na, int nb)
+{
 	if (na > CORR_DIGITS_MAX || nb > CORR_DIGITS_MAX)
 		return -1;
 
@@ -319,6 +437,7 @@ static int fix_num(const num *m, const ljp_prep *lp, char *out)
 		big_sub(&a, &b, &a);
 		neg = !m->neg;
 	}
+	neg ^= lp->flip;
 	for (int i = 0; i < a.n; i++)
 		tmp[i] = (char)('0' + a.d[a.n - 1 - i]);
 	return emit(out, tmp, a.n, D, neg && a.n > 0, m);
@@ -591,17 +710,32 @@ const char *corr_delim_name(char delim)
 
 /* ---- the streaming engine --------------------------------------------- */
 
+typedef struct writer {
+	pthread_t th;
+	pthread_mutex_t mu;
+	pthread_cond_t cv;
+	int started, failed;
+	int busy, quit;     /* under mu */
+	const char *buf;    /* the buffer in flight, n bytes; under mu */
+	size_t n;
+	int werr;           /* errno of a failed write; under mu */
+	FILE *out;
+} writer;
+
 typedef struct eng {
 	FILE *in, *out;
 	const char *name;
 	const corr_opts *o;
 	corr_result *r;
 	char *err;
-	char *buf;          /* RD_CAP + 1 bytes; buf[len] is a NUL sentinel */
+	char *buf;          /* RD_CAP + 1 (+ RD_SLACK) bytes; buf[len] is a NUL sentinel */
 	size_t len;
 	int eof;
 	const char *span;   /* first byte of buf not yet written */
-	char *wb;           /* WR_CAP bytes */
+	char *wb;           /* WR_CAP bytes: the buffer being filled */
+	char *wb2;          /* the other one (in flight, or free) */
+	writer w;
+	int last;           /* 1: the run's last flush comes */
 	size_t wl;
 	int werr;           /* errno of a failed write, 0 if none */
 	long line;          /* line of the current position */
@@ -612,12 +746,131 @@ typedef struct eng {
 	unsigned char *corr;       /* corr[c] = 1 + index in r->cols; c < maxcol */
 	int maxcol;                /* largest corrected column number */
 	ljp_prep prep[CORR_MAXCOLS]; /* the LJP for each of r->cols */
+	const char *nul_at;        /* the first NUL in buf (buf + len: none) */
+	const char *qpos;          /* the next '"' at or after where it was looked for */
+	int qvalid;                /* 0: qpos must be looked for again */
 } eng;
+
+/* After buf changed: where its first NUL is; the quote search restarts. */
+static void buf_changed(eng *e)
+{
+	e->nul_at = e->buf + strlen(e->buf);
+	e->qvalid = 0;
+}
+
+/* ---- the writer thread ----
+ * Once the output passes one write buffer, full buffers are handed to a
+ * second thread that writes them while this one fills the other buffer,
+ * so that the copy into the kernel overlaps the arithmetic.  Order is
+ * kept: one buffer in flight at a time.  Small outputs never start it;
+ * when it cannot be started the writes stay in this thread. */
+
+static void *writer_main(void *arg)
+{
+	writer *w = arg;
+	pthread_mutex_lock(&w->mu);
+	for (;;) {
+		while (!w->busy && !w->quit)
+			pthread_cond_wait(&w->cv, &w->mu);
+		if (!w->busy)
+			break;
+		const char *b = w->buf;
+		size_t n = w->n;
+		pthread_mutex_unlock(&w->mu);
+		errno = 0;
+		int bad = fwrite(b, 1, n, w->out) != n;
+		int err = errno ? errno : EIO;
+		pthread_mutex_lock(&w->mu);
+		if (bad && !w->werr)
+			w->werr = err;
+		w->busy = 0;
+		pthread_cond_broadcast(&w->cv);
+	}
+	pthread_mutex_unlock(&w->mu);
+	return NULL;
+}
+
+static int writer_start(eng *e)
+{
+	writer *w = &e->w;
+	sigset_t all, old;
+	if (pthread_mutex_init(&w->mu, NULL) != 0)
+		return -1;
+	if (pthread_cond_init(&w->cv, NULL) != 0) {
+		pthread_mutex_destroy(&w->mu);
+		return -1;
+	}
+	w->out = e->out;
+	w->busy = w->quit = w->werr = 0;
+	/* signals are for the main thread (signals.c) */
+	sigfillset(&all);
+	pthread_sigmask(SIG_BLOCK, &all, &old);
+	int rc = pthread_create(&w->th, NULL, writer_main, w);
+	pthread_sigmask(SIG_SETMASK, &old, NULL);
+	if (rc != 0) {
+		pthread_cond_destroy(&w->cv);
+		pthread_mutex_destroy(&w->mu);
+		return -1;
+	}
+	w->started = 1;
+	return 0;
+}
+
+/* Wait until no buffer is in flight; its error becomes ours. */
+static void writer_wait(eng *e)
+{
+	writer *w = &e->w;
+	if (!w->started)
+		return;
+	pthread_mutex_lock(&w->mu);
+	while (w->busy)
+		pthread_cond_wait(&w->cv, &w->mu);
+	if (w->werr && !e->werr)
+		e->werr = w->werr;
+	pthread_mutex_unlock(&w->mu);
+}
+
+/* Wait for the last buffer and end the thread. */
+static void writer_stop(eng *e)
+{
+	writer *w = &e->w;
+	if (!w->started)
+		return;
+	writer_wait(e);
+	pthread_mutex_lock(&w->mu);
+	w->quit = 1;
+	pthread_cond_broadcast(&w->cv);
+	pthread_mutex_unlock(&w->mu);
+	pthread_join(w->th, NULL);
+	pthread_cond_destroy(&w->cv);
+	pthread_mutex_destroy(&w->mu);
+	w->started = 0;
+}
 
 static void w_flush(eng *e)
 {
-	if (e->wl && !e->werr && fwrite(e->wb, 1, e->wl, e->out) != e->wl)
-		e->werr = errno ? errno : EIO;
+	if (e->wl && !e->werr) {
+		/* a thread only for an output that fills buffers, not for the
+		 * last (or only) flush of a run */
+		if (!e->w.started && !e->w.failed && !e->last && e->wb2 &&
+		    writer_start(e) != 0)
+			e->w.failed = 1;
+		if (e->w.started) {
+			writer *w = &e->w;
+			writer_wait(e);
+			pthread_mutex_lock(&w->mu);
+			w->buf = e->wb;
+			w->n = e->wl;
+			w->busy = 1;
+			pthread_cond_broadcast(&w->cv);
+			pthread_mutex_unlock(&w->mu);
+			char *t = e->wb;
+			e->wb = e->wb2;
+			e->wb2 = t;
+		} else if (fwrite(e->wb, 1, e->wl, e->out) != e->wl) {
+			e->werr = errno ? errno : EIO;
+		}
+	}
 	e->wl = 0;
 }
 
@@ -626,6 +879,7 @@ static void w_put(eng *e, const char *p, size_t n)
 	if (n > WR_CAP - e->wl) {
 		w_flush(e);
 		if (n >= WR_CAP) {
+			writer_wait(e);
 			if (!e->werr && fwrite(p, 1, n, e->out) != n)
 				e->werr = errno ? errno : EIO;
 			return;
@@ -652,12 +906,16 @@ static int refill(eng *e, size_t keep)
 	e->span = e->buf;
 	if (e->eof) {
 		e->buf[e->len] = '\0';
+		buf_changed(e);
 		return 0;
 	}
+	if (sig_cancelled())
+		return im_fail(e->err, "%s: %s", e->name, SIG_CANCELLED_MSG);
 	errno = 0;
 	got = fread(e->buf + n, 1, RD_CAP - n, e->in);
 	e->len += got;
 	e->buf[e->len] = '\0';
+	buf_changed(e);
 	if (got < RD_CAP - n) {
 		if (ferror(e->in))
 			return im_fail(e->err, "%s: read error: %s", e->name,
@@ -749,7 +1007,9 @@ static int do_cell(eng *e, const field *f, long line, int col)
 {
 	num m;
 	const char *ce = f->ce;
-	int rc = parse_num(f->cs, ce, e->tab_blank, &m);
+	int rc = f->quoted ? -1 : parse_plain(f->cs, ce, &m);
+	if (rc < 0)
+		rc = parse_num(f->cs, ce, e->tab_blank, &m);
 	if (f->quoted && rc >= 0) {
 		/* only blanks may follow the closing quote */
 		for (const char *s = ce + 1; s < f->q; s++)
@@ -796,6 +1056,376 @@ static int do_cell(eng *e, const field *f, long line, int col)
 	return 0;
 }
 
+/* The end of a record that has `col` fields: count it, and deal with the
+ * corrected columns it lacks.  0 or -1. */
+static int row_done(eng *e, int col, long rec_line)
+{
+	e->r->rows++;
+	if (col >= e->maxcol)
+		return 0;
+	int missing = 0, first = 0;
+	for (int i = e->r->ncols - 1; i >= 0; i--)
+		if (e->r->cols[i].index > col) {
+			missing++;
+			first = e->r->cols[i].index;
+		}
+	if (!e->o->skip_bad)
+		return im_fail(e->err, "%s:%ld: row has %d field%s; column %d is missing"
+			       " (skip-bad copies such rows)", e->name, rec_line, col,
+			       col == 1 ? "" : "s", first);
+	e->r->ragged++;
+	e->r->bad += missing;
+	e->r->skipped += missing;
+	return 0;
+}
+
+/* A plain number at the start of s[0..e): [+-]digits[.digits], 1 to 18
+ * digits.  Returns the byte after it (the caller checks what follows) with
+ * m filled as parse_num would for a cell holding exactly it, or NULL. */
+static inline const char *plain_prefix(const char *s, const char *e, num *m)
+{
+	const char *p = s;
+	uint64_t v = 0;
+	m->neg = m->plus = m->dot = 0;
+	if (p < e && (*p == '-' || *p == '+')) {
+		m->neg = *p == '-';
+		m->plus = *p == '+';
+		p++;
+	}
+	m->ip = p;
+	while (p < e && (unsigned)(*p - '0') < 10)
+		v = v * 10 + (uint64_t)(*p++ - '0');
+	m->ni = (int)(p - m->ip);
+	m->fp = p;
+	m->nf = 0;
+	if (p < e && *p == '.') {
+		m->dot = 1;
+		m->fp = ++p;
+		while (p < e && (unsigned)(*p - '0') < 10)
+			v = v * 10 + (uint64_t)(*p++ - '0');
+		m->nf = (int)(p - m->fp);
+	}
+	if (m->ni + m->nf == 0 || m->ni + m->nf > 18)
+		return NULL;
+	m->val = v;
+	m->ns = s;
+	m->ne = p;
+	m->ep = m->epe = p;
+	m->exp = 0;
+	return p;
+}
+
+/* "000\0" .. "999\0": three digits in one copy; filled on first use. */
+static char dig3[1000 * 4];
+
+static void dig3_init(void)
+{
+	if (dig3[3 * 4 + 2])
+		return;
+	for (int i = 0; i < 1000; i++) {
+		dig3[4 * i] = (char)('0' + i / 100);
+		dig3[4 * i + 1] = (char)('0' + i / 10 % 10);
+		dig3[4 * i + 2] = (char)('0' + i % 10);
+	}
+}
+
+/* Digits of u (u > 0). */
+static inline int ndig32(uint32_t u)
+{
+	return u < 10 ? 1 : u < 100 ? 2 : u < 1000 ? 3 : u < 10000 ? 4 : u < 100000 ? 5 :
+	       u < 1000000 ? 6 : u < 10000000 ? 7 : u < 100000000 ? 8 : u < 1000000000 ? 9 : 10;
+}
+
+/* Write u as exactly n digits (zero-padded) ending at t, two at a time. */
+static inline void put_digits(char *t, uint32_t u, int n)
+{
+	for (; n >= 2; n -= 2) {
+		unsigned r = u % 100;
+		u /= 100;
+		t -= 2;
+		memcpy(t, dig2 + 2 * r, 2);
+	}
+	if (n)
+		t[-1] = (char)('0' + u % 10);
+}
+
+/* fix_num for a cell from plain_prefix (no exponent), fast where the LJP
+ * has no more decimals than the cell (the result keeps the cell's nf
+ * decimals) and the result is below 2^32: the integer and fraction parts
+ * are split by a constant divisor and written two digits at a time.  The
+ * same text as fix_num in every case. */
+static inline int fix_plain(const num *m, const ljp_prep *lp, char *out)
+{
+	uint64_t B = lp->bn[m->nf], A = m->val, R;
+	int neg, D = m->nf;
+	if (B == UINT64_MAX)
+		return fix_num(m, lp, out);
+	/* r = a - b with a = +-A, b = +-B, without branches on the data:
+	 * the magnitudes add when the signs differ, else subtract */
+	int add = m->neg != lp->neg, ge = A >= B;
+	uint64_t sub = ge ? A - B : B - A;
+	R = add ? A + B : sub;
+	neg = m->neg ^ (!add & !ge) ^ lp->flip;
+	if (R > UINT32_MAX || D > 9)
+		return emit_u64(out, R, D, neg, m);
+	uint32_t r = (uint32_t)R, ip, fp;
+	switch (D) {
+	case 0: ip = r; fp = 0; break;
+	case 1: ip = r / 10; fp = r % 10; break;
+	case 2: ip = r / 100; fp = r % 100; break;
+	case 3: ip = r / 1000; fp = r % 1000; break;
+	case 4: ip = r / 10000; fp = r % 10000; break;
+	case 5: ip = r / 100000; fp = r % 100000; break;
+	case 6: ip = r / 1000000; fp = r % 1000000; break;
+	case 7: ip = r / 10000000; fp = r % 10000000; break;
+	case 8: ip = r / 100000000; fp = r % 100000000; break;
+	default: ip = r / 1000000000; fp = r % 1000000000; break;
+	}
+	char *o = out;
+	int minus = neg && r;
+	*o = minus ? '-' : '+';
+	o += minus | m->plus;
+	if (ip && ip < 1000) {
+		/* one copy of three digits, the leading zeros skipped (the
+		 * bytes after the number are written over next) */
+		int n = 1 + (ip >= 10) + (ip >= 100);
+		memcpy(o, dig3 + 4 * ip + 3 - n, 4);
+		o += n;
+	} else if (ip) {
+		int n = ndig32(ip);
+		put_digits(o + n, ip, n);
+		o += n;
+	} else if (m->ni > 0 || D == 0) {
+		*o++ = '0';
+	}
+	if (D) {
+		*o++ = '.';
+		int k = D;
+		for (; k >= 3; k -= 3) {
+			memcpy(o + k - 3, dig3 + 4 * (fp % 1000), 3);
+			fp /= 1000;
+		}
+		if (k == 2)
+			memcpy(o, dig2 + 2 * fp, 2);
+		else if (k == 1)
+			*o = (char)('0' + fp);
+		o += D;
+	} else if (m->dot) {
+		*o++ = '.';
+	}
+	return (int)(o - out);
+}
+
+#if defined(__BYTE_ORDER__) && __BYTE_ORDER__ == __ORDER_LITTLE_ENDIAN__
+/* The decimal digits at the start of p[0..8) (8 bytes are readable):
+ * their count (0 to 8) and, in *val, their value, found eight bytes at a
+ * time without a branch on the data (a byte is a digit when its high
+ * nibble is 3 and stays 3 after adding 6; the value by three multiplies,
+ * the digits moved to the high bytes so that the low ones read as leading
+ * zeros). */
+static inline int swar_digits(const char *p, uint64_t *val)
+{
+	const uint64_t hi = 0xF0F0F0F0F0F0F0F0ULL, threes = 0x3030303030303030ULL;
+	uint64_t x;
+	memcpy(&x, p, 8);
+	uint64_t t = ((x & hi) ^ threes) | (((x + 0x0606060606060606ULL) & hi) ^ threes);
+	int k = t ? __builtin_ctzll(t) >> 3 : 8;
+	if (k == 0) {
+		*val = 0;
+		return 0;
+	}
+	uint64_t d = (x ^ threes) << (8 * (8 - k));
+	d = d * 10 + (d >> 8);
+	d = (((d & 0x000000FF000000FFULL) * (100 + (1000000ULL << 32))) +
+	     (((d >> 16) & 0x000000FF000000FFULL) * (1 + (10000ULL << 32)))) >> 32;
+	*val = d;
+	return k;
+}
+#endif
+
+/* plain_prefix for s[0..) in the read buffer (a NUL sentinel after the
+ * data, and room to read 8 bytes past it): integer and fraction parts of
+ * up to 7 digits each eight bytes at a time; anything longer goes to
+ * plain_prefix. */
+static inline const char *plain_fast(const char *s, const char *e, num *m)
+{
+#if defined(__BYTE_ORDER__) && __BYTE_ORDER__ == __ORDER_LITTLE_ENDIAN__
+	const char *p = s;
+	uint64_t iv, fv = 0;
+	m->neg = *p == '-';
+	m->plus = *p == '+';
+	p += m->neg | m->plus;
+	m->ip = p;
+	m->ni = swar_digits(p, &iv);
+	if (m->ni == 8)
+		return plain_prefix(s, e, m);
+	p += m->ni;
+	m->fp = p;
+	m->nf = 0;
+	m->dot = *p == '.';
+	if (m->dot) {
+		m->fp = ++p;
+		m->nf = swar_digits(p, &fv);
+		if (m->nf == 8)
+			return plain_prefix(s, e, m);
+		p += m->nf;
+	}
+	if (m->ni + m->nf == 0)
+		return NULL;
+	m->val = iv * pow10_u64[m->nf] + fv;
+	m->ns = s;
+	m->ne = p;
+	m->ep = m->epe = p;
+	m->exp = 0;
+	return p;
+#else
+	return plain_prefix(s, e, m);
+#endif
+}
+
+/* Where the unquoted field at p ends: its delimiter, LF, or a NUL byte
+ * (the buffer's sentinel at the latest). */
+static inline const char *field_end(const char *p, const unsigned char *stop)
+{
+	while (!stop[(unsigned char)*p])
+		p++;
+	return p;
+}
+
+/* The common records, fast, as many as come in a row.  A field is found
+ * with the stop table of an unquoted field; a corrected cell that is a
+ * plain number ending at its delimiter or the line end (a CR allowed
+ * before it) is rewritten here (fix_num), any other cell
+ * goes through do_cell; after the last corrected column the rest of the
+ * line is found with memchr when no quote can hide a line end in it.
+ * Anything else - a quoted field, a NUL byte, the end of the buffer, a
+ * field too long - stops the loop at the start of that field: *pp and
+ * *colp say where the general loop goes on (a new record when *colp is 1).
+ * The output position and counts are kept in locals and stored back.
+ * Returns 0, or -1 on error. */
+static int fast_run(eng *e, const char **pp, int *colp)
+{
+	const char *p = *pp, *const end = e->buf + e->len;
+	const char delim = e->delim;
+	const int maxcol = e->maxcol;
+	const unsigned char *const stop = e->stop_u;
+	char *wb = e->wb;
+	size_t wl = e->wl;
+	const char *span = e->span;
+	long rows = 0, corrected = 0, line = e->line;
+	int rc = 0, col = 1;
+	const char *fs = p;
+	/* one corrected column, the common case: its number and LJP in
+	 * locals, which stores into the output buffer cannot alias */
+	const int one = e->r->ncols == 1 ? e->r->cols[0].index : 0;
+	ljp_prep lp1;
+	if (one)
+		lp1 = e->prep[0];
+
+	while (p < end) {
+		if (*p == '\n' || (*p == '\r' && p[1] == '\n')) {
+			e->r->blank++;
+			line++;
+			p += *p == '\n' ? 1 : 2;
+			continue;
+		}
+		fs = p;
+		for (col = 1;; col++) {
+			const char *fe;
+			if (*fs == '"')
+				goto out;
+			if (one ? col == one : col <= maxcol && e->corr[col - 1]) {
+				num m;
+				const char *ne = plain_fast(fs, end, &m);
+				if (ne && (*ne == delim || *ne == '\n' || (*ne == '\r' && ne[1] == '\n'))) {
+					const ljp_prep *lp = one ? &lp1 : &e->prep[e->corr[col - 1] - 1];
+					size_t n = (size_t)(fs - span);
+					if (WR_CAP - wl < n + 16 + NUM_OUT_MAX) {
+						e->wl = wl;
+						w_put(e, span, n);
+						if (WR_CAP - e->wl < NUM_OUT_MAX)
+							w_flush(e);
+						wl = e->wl;
+						wb = e->wb;   /* a flush swaps the buffers */
+					} else if (n <= 16) {
+						/* a short span: one fixed-size copy (the
+						 * buffers have room past their ends) */
+						memcpy(wb + wl, span, 16);
+						wl += n;
+					} else {
+						memcpy(wb + wl, span, n);
+						wl += n;
+					}
+					wl += (size_t)fix_plain(&m, lp, wb + wl);
+					span = ne;
+					corrected++;
+					fe = *ne == '\r' ? ne + 1 : ne;
+				} else {
+					fe = field_end(fs, stop);
+					if (*fe == '\0' || fe - fs > CORR_FIELD_MAX)
+						goto out;
+					field f = {fs, fe, fe, 0, 0};
+					e->wl = wl;
+					e->span = span;
+					rc = do_cell(e, &f, line, col);
+					wl = e->wl;
+					wb = e->wb;
+					span = e->span;
+					if (rc < 0)
+						goto out;
+				}
+			} else {
+				fe = field_end(fs, stop);
+				if (*fe == '\0' || fe - fs > CORR_FIELD_MAX)
+					goto out;
+			}
+			if (*fe == '\n') {
+				if (col < maxcol) {
+					e->wl = wl;
+					e->span = span;
+					e->r->rows += rows;
+					rows = 0;
+					rc = row_done(e, col, line);
+					if (rc < 0)
+						goto out;
+				} else {
+					rows++;
+				}
+				p = fe + 1;
+				break;
+			}
+			fs = fe + 1;
+			if (col >= maxcol) {   /* the rest of the line, when it is plain */
+				const char *nl = memchr(fs, '\n', (size_t)(end - fs));
+				if (!e->qvalid || e->qpos < fs) {
+					const char *q = memchr(fs, '"', (size_t)(end - fs));
+					e->qpos = q ? q : end;
+					e->qvalid = 1;
+				}
+				if (!nl || nl > e->nul_at || e->qpos < nl || nl - fs > CORR_FIELD_MAX) {
+					col++;
+					goto out;
+				}
+				rows++;
+				p = nl + 1;
+				break;
+			}
+		}
+		line++;
+		col = 1;
+		fs = p;
+	}
+out:
+	e->wl = wl;
+	e->span = span;
+	e->r->rows += rows;
+	e->r->corrected += corrected;
+	e->line = line;
+	*pp = fs;
+	*colp = col;
+	return rc;
+}
+
 /* The rows from p on. */
 static int run(eng *e, const char *p)
 {
@@ -812,8 +1442,14 @@ static int run(eng *e, const char *p)
 				return 0;
 			continue;
 		}
-		long rec_line = e->line;
 		int col = 1;
+		if (fast_run(e, &p, &col) < 0)
+			return -1;
+		if (e->werr)
+			return write_failed(e);
+		if (p == end && col == 1)
+			continue;
+		long rec_line = e->line;
 		for (;;) {
 			field f;
 			int rc = scan(e, p, e->line, col, &f);
@@ -835,25 +1471,8 @@ static int run(eng *e, const char *p)
 				if (col <= e->maxcol && e->corr[col - 1] &&
 				    do_cell(e, &f, e->line, col) < 0)
 					return -1;
-				if (at_end) {
-					e->r->rows++;
-					if (col < e->maxcol) {
-						int missing = 0, first = 0;
-						for (int i = e->r->ncols - 1; i >= 0; i--)
-							if (e->r->cols[i].index > col) {
-								missing++;
-								first = e->r->cols[i].index;
-							}
-						if (!e->o->skip_bad)
-							return im_fail(e->err, "%s:%ld: row has %d field%s;"
-								       " column %d is missing (skip-bad copies such rows)",
-								       e->name, rec_line, col, col == 1 ? "" : "s",
-								       first);
-						e->r->ragged++;
-						e->r->bad += missing;
-						e->r->skipped += missing;
-					}
-				}
+				if (at_end && row_done(e, col, rec_line) < 0)
+					return -1;
 			}
 			e->line += f.nl;
 			if (!at_end) {
@@ -926,13 +1545,13 @@ static int read_first(eng *e, const char *p, hdr *h)
 		field f;
 		int rc = scan(e, p, e->line, col, &f);
 		if (rc == SCAN_MORE)
-			return im_fail(e->err, "%s:1: first record longer than %d KiB",
-				       e->name, CORR_FIRST_MAX / 1024);
+			return im_fail(e->err, "%s:%ld: first record longer than %d KiB",
+				       e->name, e->line, CORR_FIRST_MAX / 1024);
 		if (rc == SCAN_ERR)
 			return -1;
 		if (f.q - e->buf > CORR_FIRST_MAX)
-			return im_fail(e->err, "%s:1: first record longer than %d KiB",
-				       e->name, CORR_FIRST_MAX / 1024);
+			return im_fail(e->err, "%s:%ld: first record longer than %d KiB",
+				       e->name, e->line, CORR_FIRST_MAX / 1024);
 		if (h->n == h->cap) {
 			h->cap = h->cap ? 2 * h->cap : 16;
 			h->text = im_xrealloc(h->text, (size_t)h->cap * sizeof *h->text);
@@ -1107,6 +1726,114 @@ static int choose(eng *e, const hdr *h)
 	return 0;
 }
 
+/* The engine buffers (the read buffer and two write buffers) are kept for
+ * the next run rather than freed: a megabyte and more allocated and freed
+ * per call dominates the cost of correcting a short file.  A run that
+ * starts while another holds them (not done today: ionmix runs one
+ * correction at a time) gets its own.  The kept ones stay reachable until
+ * exit. */
+static char *kept_rd, *kept_wr, *kept_wr2;
+static int kept_busy;
+
+static void bufs_get(char **rd, char **wr, char **wr2)
+{
+	if (!kept_busy) {
+		kept_busy = 1;
+		if (!kept_rd) {
+			kept_rd = im_xcalloc(RD_CAP + 1 + RD_SLACK, 1);
+			kept_wr = im_xmalloc(WR_CAP);
+			kept_wr2 = im_xmalloc(WR_CAP);
+		}
+		*rd = kept_rd;
+		*wr = kept_wr;
+		*wr2 = kept_wr2;
+		return;
+	}
+	*rd = im_xcalloc(RD_CAP + 1 + RD_SLACK, 1);
+	*wr = im_xmalloc(WR_CAP);
+	*wr2 = im_xmalloc(WR_CAP);
+}
+
+/* Give back what bufs_get gave (the write buffers in either order). */
+static void bufs_put(char *rd, char *wr, char *wr2)
+{
+	if (rd == kept_rd) {
+		kept_busy = 0;
+		return;
+	}
+	free(rd);
+	free(wr);
+	free(wr2);
+}
+
+/* The metadata lines from *p on: the first o->skip lines, then lines that
+ * start with '#'.  They are copied as they are (written when the buffer
+ * moves on); a comment line follows when asked.  On return *p is the
+ * first byte of the header, at the start of the buffer when any metadata
+ * was passed so that the header has the whole buffer.  0 or -1. */
+static int metadata(eng *e, const char **p)
+{
+	const char *q = *p;
+	int hash = 0, crlf = 0;
+	for (;;) {
+		const char *end = e->buf + e->len;
+		if (q == end) {
+			if (e->eof)
+				break;
+			if (refill(e, (size_t)(q - e->buf)) < 0)
+				return -1;
+			q = e->buf;
+			continue;
+		}
+		/* past the count: '#' lines, and blank lines after metadata */
+		if (e->r->meta >= e->o->skip && *q != '#' &&
+		    !(e->r->meta > 0 && (*q == '\n' || (*q == '\r' && q + 1 < end && q[1] == '\n'))))
+			break;
+		const char *nl = memchr(q, '\n', (size_t)(end - q));
+		if (!nl && !e->eof) {
+			if (q == e->buf && e->len == RD_CAP)
+				return im_fail(e->err, "%s:%ld: metadata line longer than %d KiB",
+					       e->name, e->line, RD_CAP / 1024);
+			if (refill(e, (size_t)(q - e->buf)) < 0)
+				return -1;
+			q = e->buf;
+			continue;
+		}
+		const char *le = nl ? nl : end;
+		if (memchr(q, '\0', (size_t)(le - q)))
+			return im_fail(e->err, "%s:%ld: binary file (NUL byte); expected CSV"
+				       " or TSV text", e->name, e->line);
+		hash |= *q == '#';
+		crlf = nl && nl > q && nl[-1] == '\r';
+		e->r->meta++;
+		if (!nl) {
+			q = end;
+			break;
+		}
+		q = nl + 1;
+		e->line++;
+	}
+	if (e->r->meta == 0) {
+		*p = q;
+		return 0;
+	}
+	/* the header at the start of the buffer: the metadata is written */
+	if (q != e->buf && refill(e, (size_t)(q - e->buf)) < 0)
+		return -1;
+	if (hash && e->o->comment) {
+		size_t n = corr_comment_format(&e->o->ljp, e->o->config, e->o->about,
+					       NULL, 0);
+		char *c = im_xmalloc(n + 3);
+		corr_comment_format(&e->o->ljp, e->o->config, e->o->about, c, n + 1);
+		memcpy(c + n, crlf ? "\r\n" : "\n", crlf ? 3 : 2);
+		w_put(e, c, n + (crlf ? 2 : 1));
+		free(c);
+		e->r->comment = 1;
+	}
+	*p = e->buf;
+	return 0;
+}
+
 int corr_stream(FILE *in, const char *in_name, FILE *out, const corr_opts *o,
 		corr_result *r, char *err)
 {
@@ -1120,6 +1847,12 @@ int corr_stream(FILE *in, const char *in_name, FILE *out, const corr_opts *o,
 	r->ljp = o->ljp;
 	r->ljp_mV = corr_ljp_mV(&o->ljp);
 	r->delim = ',';
+	r->config = o->config;
+	r->about = o->about;
+	if (o->skip < 0)
+		return im_fail(err, "bad count of metadata lines %ld", o->skip);
+	if ((int)o->config < CORR_WHOLE_CELL || (int)o->config > CORR_CELL_ATTACHED)
+		return im_fail(err, "bad recording configuration %d", (int)o->config);
 	if (o->ljp.decimals < 0 || o->ljp.decimals > CORR_LJP_DECIMALS_MAX)
 		return im_fail(err, "bad LJP decimals %d", o->ljp.decimals);
 	if (o->ncolumns < 0 || (o->ncolumns > 0 && !o->columns))
@@ -1133,13 +1866,14 @@ int corr_stream(FILE *in, const char *in_name, FILE *out, const corr_opts *o,
 	e.r = r;
 	e.err = err;
 	e.line = 1;
-	e.buf = im_xmalloc(RD_CAP + 1);
-	e.wb = im_xmalloc(WR_CAP);
+	bufs_get(&e.buf, &e.wb, &e.wb2);
+	dig3_init();
 
 	errno = 0;
 	got = fread(e.buf, 1, RD_CAP, in);
 	e.len = got;
 	e.buf[got] = '\0';
+	buf_changed(&e);
 	if (got < RD_CAP) {
 		if (ferror(in)) {
 			im_fail(err, "%s: read error: %s", e.name, strerror(errno ? errno : EIO));
@@ -1163,18 +1897,28 @@ int corr_stream(FILE *in, const char *in_name, FILE *out, const corr_opts *o,
 	}
 	bom = got >= 3 && memcmp(e.buf, "\xef\xbb\xbf", 3) == 0;
 	start = e.buf + (bom ? 3 : 0);
+	if (metadata(&e, &start) < 0)
+		goto done;
 	if (*start == '\n' || (start[0] == '\r' && start[1] == '\n')) {
 		const char *s = start;
-		while (s < e.buf + got && is_blank((unsigned char)*s))
+		while (s < e.buf + e.len && is_blank((unsigned char)*s))
 			s++;
-		if (s == e.buf + got)
+		if (s == e.buf + e.len && e.eof)
 			im_fail(err, "%s: empty file (blank lines only)", e.name);
-		else
+		else if (r->meta == 0)
 			im_fail(err, "%s:1: the first line is blank; expected a header"
 				" or a data row", e.name);
+		else
+			im_fail(err, "%s:%ld: the line after the metadata is blank; expected"
+				" a header or a data row", e.name, e.line);
 		goto done;
 	}
-	e.delim = pick_delim(start, e.buf + got);
+	if (start == e.buf + e.len) {
+		im_fail(err, "%s: only %ld metadata line%s, no header or data", e.name,
+			r->meta, r->meta == 1 ? "" : "s");
+		goto done;
+	}
+	e.delim = pick_delim(start, e.buf + e.len);
 	r->delim = e.delim;
 	e.tab_blank = e.delim != '\t';
 	e.stop_u[(unsigned char)e.delim] = 1;
@@ -1190,15 +1934,18 @@ int corr_stream(FILE *in, const char *in_name, FILE *out, const corr_opts *o,
 	for (int i = 0; i < r->ncols; i++) {
 		e.corr[r->cols[i].index - 1] = (unsigned char)(i + 1);
 		ljp_prepare(&o->ljp, r->cols[i].unit_exp, &e.prep[i]);
+		e.prep[i].flip = o->config == CORR_INSIDE_OUT || o->config == CORR_CELL_ATTACHED;
 	}
 	if (r->header) {
-		e.line = 1 + h.nl;
+		e.line += h.nl;
 		start = h.end;
 	}
 	if (run(&e, start) < 0)
 		goto done;
+	e.last = 1;
 	w_put(&e, e.span, (size_t)(e.buf + e.len - e.span));
 	w_flush(&e);
+	writer_stop(&e);   /* every byte written before the verdict */
 	if (e.werr) {
 		write_failed(&e);
 		goto done;
@@ -1207,184 +1954,265 @@ int corr_stream(FILE *in, const char *in_name, FILE *out, const corr_opts *o,
 done:
 	hdr_free(&h);
 	free(e.corr);
-	free(e.buf);
-	free(e.wb);
+	writer_stop(&e);
+	bufs_put(e.buf, e.wb, e.wb2);
 	return rc;
 }
 
 /* ---- files ------------------------------------------------------------ */
 
-size_t corr_note_format(const corr_result *r, const char *in_name,
-			const char *out_name, char *buf, size_t n)
+const char *corr_config_name(corr_config c)
+{
+	switch (c) {
+	case CORR_OUTSIDE_OUT: return "outside-out";
+	case CORR_INSIDE_OUT: return "inside-out";
+	case CORR_CELL_ATTACHED: return "cell-attached";
+	default: return "whole-cell";
+	}
+}
+
+int corr_config_parse(const char *word, corr_config *c)
+{
+	static const corr_config all[] = {CORR_WHOLE_CELL, CORR_OUTSIDE_OUT,
+					  CORR_INSIDE_OUT, CORR_CELL_ATTACHED};
+	for (size_t i = 0; i < IM_COUNT(all); i++)
+		if (strcmp(word, corr_config_name(all[i])) == 0) {
+			*c = all[i];
+			return 0;
+		}
+	return -1;
+}
+
+const char *corr_config_formula(corr_config c)
+{
+	switch (c) {
+	case CORR_INSIDE_OUT: return "Vm = -(Vrecorded - LJP)";
+	case CORR_CELL_ATTACHED: return "Vpatch - Vrest = -(Vrecorded - LJP)";
+	default: return "Vm = Vrecorded - LJP";
+	}
+}
+
+void corr_about_stamp(corr_about *a, char *datebuf, size_t n)
+{
+	time_t t = time(NULL);
+	struct tm tm;
+	a->version = IONMIX_VERSION;
+	if (n > 0 && gmtime_r(&t, &tm) && strftime(datebuf, n, "%Y-%m-%dT%H:%M:%SZ", &tm) > 0)
+		a->date = datebuf;
+	else
+		a->date = NULL;
+}
+
+/* A growing text; put() appends like printf, without a limit. */
+typedef struct text {
+	char *s;
+	size_t n, cap;
+} text;
+
+static void put(text *t, const char *fmt, ...) __attribute__((format(printf, 2, 3)));
+static void put(text *t, const char *fmt, ...)
+{
+	va_list ap;
+	va_start(ap, fmt);
+	int w = vsnprintf(t->s ? t->s + t->n : NULL, t->s ? t->cap - t->n : 0, fmt, ap);
+	va_end(ap);
+	if (w < 0)
+		return;
+	if (!t->s || (size_t)w >= t->cap - t->n) {
+		size_t need = t->n + (size_t)w + 1;
+		t->cap = need > 2 * t->cap ? need : 2 * t->cap;
+		t->s = im_xrealloc(t->s, t->cap);
+		va_start(ap, fmt);
+		vsnprintf(t->s + t->n, t->cap - t->n, fmt, ap);
+		va_end(ap);
+	}
+	t->n += (size_t)w;
+}
+
+/* Copy the text into buf of n bytes, cut to n - 1, and free it.  Returns
+ * the length copied. */
+static size_t text_out(text *t, char *buf, size_t n)
+{
+	size_t k = t->n < n ? t->n : n ? n - 1 : 0;
+	if (n > 0) {
+		if (k)
+			memcpy(buf, t->s, k);
+		buf[k] = '\0';
+	}
+	free(t->s);
+	return k;
+}
+
+/* What the LJP came from: shared by the note and the comment line. */
+static void put_about(text *t, const corr_ljp *l, const corr_about *a, const char *sep)
 {
 	char ljp[32];
-	size_t k = 0;
-	corr_ljp_format(&r->ljp, ljp, sizeof ljp);
-#define PUT(...) do { \
-		int w_ = snprintf(k < n ? buf + k : NULL, k < n ? n - k : 0, __VA_ARGS__); \
-		if (w_ > 0) k += (size_t)w_; \
-	} while (0)
-	if (n == 0)
-		return 0;
-	buf[0] = '\0';
-	PUT("ionmix correct: the liquid junction potential was subtracted"
-	    " (Vm = Vrecorded - LJP)\n");
-	PUT("LJP: %s mV\n", ljp);
-	PUT("input: %s\n", in_name ? in_name : "-");
+	corr_ljp_format(l, ljp, sizeof ljp);
+	put(t, "LJP: %s mV%s", ljp, sep);
+	put(t, "LJP range: %s%s", a && a->range ? a->range : "not known", sep);
+	if (a && a->model) {
+		put(t, "model: %s%s", a->model, sep);
+		put(t, "pipette: %s%s", a->pipette ? a->pipette : "-", sep);
+		put(t, "bath: %s%s", a->bath ? a->bath : "-", sep);
+	} else {
+		put(t, "model: none (the LJP as given)%s", sep);
+	}
+	if (a && isfinite(a->temperature_C))
+		put(t, "temperature: %.1f C%s", a->temperature_C, sep);
+	put(t, "ionmix: %s%s", a && a->version ? a->version : IONMIX_VERSION, sep);
+	if (a && a->date)
+		put(t, "date: %s%s", a->date, sep);
+}
+
+size_t corr_comment_format(const corr_ljp *l, corr_config c, const corr_about *a,
+			   char *buf, size_t n)
+{
+	text t = {0};
+	put(&t, "# ionmix correct: %s, %s; ", corr_config_formula(c), corr_config_name(c));
+	put_about(&t, l, a, "; ");
+	t.n -= 2;  /* the last separator */
+	t.s[t.n] = '\0';
+	/* names come from the user: no line end may enter the file */
+	for (size_t i = 0; i < t.n; i++)
+		if (t.s[i] == '\n' || t.s[i] == '\r')
+			t.s[i] = ' ';
+	size_t len = t.n;
+	if (!buf || n == 0) {
+		free(t.s);
+		return len;
+	}
+	text_out(&t, buf, n);
+	return len;
+}
+
+/* The note's text into *t (empty on entry). */
+static void note_text(text *t, const corr_result *r, const char *in_name,
+		      const char *out_name)
+{
+	put(t, "ionmix correct: the liquid junction potential was subtracted"
+	    " (%s)\n", corr_config_formula(r->config));
+	put(t, "recording configuration: %s\n", corr_config_name(r->config));
+	put(t, "sign: the LJP is the potential of the bath relative to the pipette"
+	    " solution, at zeroing\n");
+	put_about(t, &r->ljp, r->about, "\n");
+	put(t, "input: %s\n", in_name ? in_name : "-");
 	if (out_name)
-		PUT("output: %s\n", out_name);
-	PUT("columns:");
+		put(t, "output: %s\n", out_name);
+	if (r->meta)
+		put(t, "metadata lines kept: %ld%s\n", r->meta,
+		    r->comment ? " (and a comment line added after them)" : "");
+	put(t, "columns:");
 	for (int i = 0; i < r->ncols; i++) {
 		const corr_column *c = &r->cols[i];
 		const char *unit = c->unit_exp == -3 ? "V" : c->unit_exp == 3 ? "uV" : "mV";
-		PUT("%s %d", i ? ";" : "", c->index);
+		put(t, "%s %d", i ? ";" : "", c->index);
 		if (c->name[0])
-			PUT(" \"%s\"", c->name);
-		PUT(" in %s%s", unit, c->unit_assumed ? " (assumed)" : "");
+			put(t, " \"%s\"", c->name);
+		put(t, " in %s%s", unit, c->unit_assumed ? " (assumed)" : "");
 	}
-	PUT("\n");
-	PUT("delimiter: %s; header row: %s\n", corr_delim_name(r->delim),
+	put(t, "\n");
+	put(t, "delimiter: %s; header row: %s\n", corr_delim_name(r->delim),
 	    r->header ? "yes" : "no");
-	PUT("rows: %ld; corrected: %ld; skipped: %ld (not a number or missing: %ld;"
+	put(t, "rows: %ld; corrected: %ld; skipped: %ld (not a number or missing: %ld;"
 	    " ragged rows: %ld); blank lines: %ld\n", r->rows, r->corrected,
 	    r->skipped, r->bad, r->ragged, r->blank);
-#undef PUT
-	return k < n ? k : n - 1;
 }
 
-/* "DIR/.BASE.XXXXXX" for a temporary file beside path; caller frees. */
-static char *tmp_template(const char *path)
+size_t corr_note_format(const corr_result *r, const char *in_name,
+			const char *out_name, char *buf, size_t n)
 {
-	const char *slash = strrchr(path, '/');
-	size_t dl = slash ? (size_t)(slash - path + 1) : 0;
-	const char *base = path + dl;
-	char *t = im_xmalloc(strlen(path) + 16);
-	memcpy(t, path, dl);
-	sprintf(t + dl, ".%s.XXXXXX", base);
-	return t;
+	text t = {0};
+	note_text(&t, r, in_name, out_name);
+	return text_out(&t, buf, n);
 }
 
-/* Open a temporary file beside path, mode 0666 less the umask. */
-static FILE *tmp_open(const char *path, char **tmp, char *err)
+/* 1 when path names the input: the same file as in_path, or the file open
+ * as the input (si, its fstat; covers standard input). */
+static int is_input(const char *path, const char *in_path, const struct stat *si)
 {
-	mode_t mask = umask(0);
-	umask(mask);
-	*tmp = tmp_template(path);
-	int fd = mkstemp(*tmp);
-	if (fd < 0) {
-		im_fail(err, "cannot create a file beside %s: %s", path, strerror(errno));
-		free(*tmp);
-		*tmp = NULL;
-		return NULL;
-	}
-	(void)fchmod(fd, 0666 & ~mask);
-	FILE *fp = fdopen(fd, "wb");
-	if (!fp) {
-		im_fail(err, "cannot open %s: %s", *tmp, strerror(errno));
-		close(fd);
-		unlink(*tmp);
-		free(*tmp);
-		*tmp = NULL;
-	}
-	return fp;
-}
-
-/* Flush, sync and close; 0 or -1 with err. */
-static int tmp_close(FILE *fp, const char *path, char *err)
-{
-	int bad = fflush(fp) != 0;
-	int e = errno;
-	if (!bad && fsync(fileno(fp)) != 0 && errno != EINVAL)
-		bad = 1, e = errno;
-	if (fclose(fp) != 0 && !bad)
-		bad = 1, e = errno;
-	return bad ? im_fail(err, "cannot write %s: %s", path, strerror(e)) : 0;
+	struct stat st;
+	if (in_path && fio_same_file(path, in_path))
+		return 1;
+	return si && strcmp(path, "-") != 0 && stat(path, &st) == 0 &&
+	       st.st_dev == si->st_dev && st.st_ino == si->st_ino;
 }
 
 int corr_file(const char *in_path, const char *out_path, FILE *out_fp,
 	      const corr_opts *o, corr_result *r, char *err)
 {
-	struct stat si, so;
-	FILE *in, *fp = NULL, *nfp = NULL;
-	char *tmp = NULL, *ntmp = NULL, *note = NULL;
-	int rc = -1;
+	struct stat si;
+	int from_stdin = strcmp(in_path, "-") == 0, rc = -1;
+	const char *in_name = from_stdin ? "standard input" : in_path;
+	const struct stat *sip = NULL;
+	FILE *in, *fp, *nfp = NULL;
+	char *note = NULL;
+	fio_batch b;
 
 	memset(r, 0, sizeof *r);
-	in = fopen(in_path, "rb");
+	in = from_stdin ? stdin : fopen(in_path, "rb");
 	if (!in)
 		return im_fail(err, "cannot open %s: %s", in_path, strerror(errno));
-	if (fstat(fileno(in), &si) == 0 && S_ISDIR(si.st_mode)) {
-		fclose(in);
-		return im_fail(err, "%s is a directory, not a CSV or TSV file", in_path);
+	if (fstat(fileno(in), &si) == 0) {
+		sip = &si;
+		if (S_ISDIR(si.st_mode)) {
+			if (!from_stdin)
+				fclose(in);
+			return im_fail(err, "%s is a directory, not a CSV or TSV file", in_name);
+		}
 	}
 	if (!out_path) {
 		if (!out_fp) {
-			fclose(in);
+			if (!from_stdin)
+				fclose(in);
 			return im_fail(err, "no output given");
 		}
-		rc = corr_stream(in, in_path, out_fp, o, r, err);
+		rc = corr_stream(in, in_name, out_fp, o, r, err);
 		if (rc == 0 && fflush(out_fp) != 0)
 			rc = im_fail(err, "cannot write the output: %s", strerror(errno));
-		fclose(in);
+		if (!from_stdin)
+			fclose(in);
 		return rc;
 	}
-	if (stat(out_path, &so) == 0) {
-		if (so.st_dev == si.st_dev && so.st_ino == si.st_ino) {
-			fclose(in);
-			return im_fail(err, "%s is the input file; write to another name",
-				       out_path);
-		}
-		if (S_ISDIR(so.st_mode)) {
-			fclose(in);
-			return im_fail(err, "%s is a directory; give a file name", out_path);
-		}
-	}
-	fp = tmp_open(out_path, &tmp, err);
-	if (!fp)
-		goto fail;
-	if (corr_stream(in, in_path, fp, o, r, err) < 0) {
-		fclose(fp);
-		goto fail;
-	}
-	if (tmp_close(fp, out_path, err) < 0)
-		goto fail;
-
+	fio_batch_init(&b);
 	note = im_xmalloc(strlen(out_path) + sizeof CORR_NOTE_SUFFIX);
 	sprintf(note, "%s%s", out_path, CORR_NOTE_SUFFIX);
-	nfp = tmp_open(note, &ntmp, err);
-	if (!nfp)
-		goto fail;
-	{
-		char text[2048];
-		size_t n = corr_note_format(r, in_path, out_path, text, sizeof text);
-		fwrite(text, 1, n, nfp);
+	/* before anything is written: no output may be the input */
+	if (is_input(out_path, from_stdin ? NULL : in_path, sip)) {
+		im_fail(err, "%s is the input file; write to another name", out_path);
+		goto done;
 	}
-	if (tmp_close(nfp, note, err) < 0)
-		goto fail;
-	if (rename(tmp, out_path) != 0) {
-		im_fail(err, "cannot rename to %s: %s", out_path, strerror(errno));
-		goto fail;
+	if (strcmp(out_path, "-") != 0 && is_input(note, from_stdin ? NULL : in_path, sip)) {
+		im_fail(err, "the side note %s would replace the input file; write the"
+			" output under another name", note);
+		goto done;
 	}
-	free(tmp);
-	tmp = NULL;
-	if (rename(ntmp, note) != 0) {
-		im_fail(err, "%s written, but not its note %s: %s", out_path, note,
-			strerror(errno));
-		goto fail;
+	if (fio_batch_open(&b, out_path, &fp, err) < 0)
+		goto done;
+	/* a note only beside a file that is replaced as a whole */
+	if (!fio_is_direct(b.f[0]) && fio_batch_open(&b, note, &nfp, err) < 0)
+		goto done;
+	if (corr_stream(in, in_name, fp, o, r, err) < 0)
+		goto done;
+	if (nfp) {
+		text t = {0};
+		note_text(&t, r, in_name, out_path);
+		size_t w = fwrite(t.s, 1, t.n, nfp);
+		free(t.s);
+		if (w != t.n) {
+			im_fail(err, "cannot write %s: %s", note, strerror(errno));
+			goto done;
+		}
 	}
-	free(ntmp);
-	ntmp = NULL;
+	/* the data, then the note: never a note without its data */
+	if (fio_batch_commit(&b, err) < 0)
+		goto done;
+	r->note = nfp != NULL;
 	rc = 0;
-fail:
-	if (tmp) {
-		unlink(tmp);
-		free(tmp);
-	}
-	if (ntmp) {
-		unlink(ntmp);
-		free(ntmp);
-	}
+done:
+	if (rc < 0)
+		fio_batch_abort(&b);  /* a no-op after a failed commit */
 	free(note);
-	fclose(in);
+	if (!from_stdin)
+		fclose(in);
 	return rc;
 }

@@ -15,8 +15,8 @@
  * UTF-8 byte-order mark at the start is copied and ignored for matching.
  * A field may be at most CORR_FIELD_MAX bytes (quotes included) and the
  * first record at most CORR_FIRST_MAX bytes; longer ones stop with an error
- * naming the line and column.  Memory is bounded (two fixed buffers), so
- * files larger than memory work.  A NUL byte anywhere stops with "binary
+ * naming the line and column.  Memory is bounded (a read buffer and two
+ * write buffers, kept between runs), so files larger than memory work.  A NUL byte anywhere stops with "binary
  * file".  Lines are counted physically (a quoted newline starts a new line);
  * error positions are FILE:LINE:COLUMN with COLUMN the 1-based field number.
  *
@@ -58,10 +58,39 @@
  * the cells it has are corrected.  A line that is empty (or only a CR) is
  * copied and counted as blank, not as a row.
  *
+ * Metadata.  Lines before the header are kept verbatim and not read as
+ * records: the first `skip` lines (corr_opts), then every line that starts
+ * with '#' (after a byte-order mark).  The header (or first data row) is
+ * the line after them; line numbers in messages count the metadata lines.
+ * When the metadata has '#' lines and corr_opts.comment is set, one more
+ * comment line "# ionmix correct: ..." (corr_comment_format) is written
+ * after them, with the line end of the last metadata line, so the file
+ * itself records what was subtracted.
+ *
+ * Recording configuration (corr_opts.config), the rules `junction` prints
+ * (electrode.h, el_true_mV), with V the recorded value and LJP the
+ * junction when the offset was zeroed:
+ *   whole-cell, outside-out:  Vm = V - LJP
+ *   inside-out:               Vm = -(V - LJP)   (the bath faces the inner
+ *                                                side of the patch)
+ *   cell-attached:            Vpatch - Vrest = -(V - LJP)
+ * The negation is exact too: the digits are those of V - LJP, the sign
+ * flipped ("-0" printed "0").
+ *
  * Record of what was done.  corr_file with an output path writes the data
- * to a temporary file in the same directory and renames it at the end
- * (nothing is left behind on error), and writes a side note OUT.ionmix.txt
- * (see corr_note_format) so the CSV itself stays byte-for-byte pure.
+ * and a side note OUT.ionmix.txt (see corr_note_format) through the one
+ * file writer (fileio.h) as one batch: both go to temporary files in the
+ * target directory and are renamed only when both were written, the data
+ * first, so there is never a note without its data; on any error or
+ * cancellation (signals.h) both temporaries are removed and an earlier OUT
+ * stays as it was.  No output (data or note) may be the input file itself
+ * (compared by device and inode).  An output that is not a regular file
+ * (standard output, a FIFO, a terminal, /dev/null) is written straight
+ * through and gets no note.  The CSV itself stays byte-for-byte pure
+ * unless a comment line is asked for (above).
+ *
+ * Cancellation.  The engine polls sig_cancelled() at every refill of its
+ * read buffer (every 512 KiB) and stops with SIG_CANCELLED_MSG.
  *
  * Nothing here prints except to the output stream it is given.
  */
@@ -123,11 +152,45 @@ int corr_cell(const char *s, size_t n, const corr_ljp *l, int unit_exp,
  * when no unit was given.  Either pointer may be NULL. */
 int corr_voltage_header(const char *h, size_t n, int *unit_exp, int *assumed);
 
+/* Recording configurations: the form of the correction (see above). */
+typedef enum corr_config {
+	CORR_WHOLE_CELL = 0,
+	CORR_OUTSIDE_OUT,
+	CORR_INSIDE_OUT,
+	CORR_CELL_ATTACHED,
+} corr_config;
+
+/* "whole-cell", "outside-out", "inside-out", "cell-attached". */
+const char *corr_config_name(corr_config c);
+/* The configuration named by word (the names above); 0, or -1 when word
+ * names none. */
+int corr_config_parse(const char *word, corr_config *c);
+/* The formula applied, e.g. "Vm = -(Vrecorded - LJP)". */
+const char *corr_config_formula(corr_config c);
+
+/* What the side note and the comment line record beside the LJP; every
+ * pointer may be NULL (then "not given" or left out).  Not owned. */
+typedef struct corr_about {
+	const char *pipette, *bath;  /* solution names, for an LJP computed from them */
+	const char *model;           /* e.g. "Henderson (concentrations)"; NULL: given */
+	const char *range;           /* the LJP's range when known, e.g. "13.1 to 15.0 mV" */
+	const char *version;         /* ionmix version */
+	const char *date;            /* when, ISO 8601 UTC */
+	double temperature_C;        /* NAN when not relevant */
+} corr_about;
+
+/* Fill a->version and a->date (into datebuf, 32 bytes) for now. */
+void corr_about_stamp(corr_about *a, char *datebuf, size_t n);
+
 typedef struct corr_opts {
 	const char *const *columns; /* "2" or a header name; NULL/0: voltage headers */
 	int ncolumns;
 	corr_ljp ljp;               /* mV, subtracted */
 	int skip_bad;               /* 1: copy bad cells and ragged rows, count them */
+	long skip;                  /* leading lines kept verbatim (0: only '#' lines) */
+	corr_config config;         /* the form of the correction */
+	int comment;                /* 1: add a comment line after '#' metadata */
+	const corr_about *about;    /* for the comment line and the note; may be NULL */
 } corr_opts;
 
 typedef struct corr_column {
@@ -144,6 +207,11 @@ typedef struct corr_result {
 	long bad;           /* of those: not a number, or missing (skip_bad only) */
 	long ragged;        /* rows lacking a corrected column (skip_bad only) */
 	long blank;         /* empty lines copied */
+	long meta;          /* metadata lines kept before the header */
+	int comment;        /* 1: a comment line was added after them */
+	int note;           /* 1: corr_file wrote the side note */
+	corr_config config;
+	const corr_about *about; /* as given in corr_opts (not owned) */
 	double ljp_mV;
 	corr_ljp ljp;
 	char delim;         /* ',', '\t' or ';' */
@@ -159,19 +227,30 @@ typedef struct corr_result {
 int corr_stream(FILE *in, const char *in_name, FILE *out, const corr_opts *o,
 		corr_result *r, char *err);
 
-/* Correct the file at in_path.  With out_path, write it atomically (a
- * temporary file in the same directory, renamed at the end; removed on
- * any error; mode 0666 less the umask) and the side note
- * out_path CORR_NOTE_SUFFIX beside it; out_path naming the input itself is
- * refused.  Without out_path, write to out_fp (flushed) and no note. */
+/* Correct the file at in_path ("-": standard input, not closed).  With
+ * out_path, write it through fileio.h (atomically for a regular file or a
+ * new name; a new file gets 0666 less the umask, an existing one keeps its
+ * mode) together with the side note out_path CORR_NOTE_SUFFIX, as
+ * described above; r->note says whether the note was written.  out_path
+ * "-" is standard output.  An output or note that is the input file is
+ * refused before anything is written.  Without out_path, write to out_fp
+ * (flushed) and no note. */
 int corr_file(const char *in_path, const char *out_path, FILE *out_fp,
 	      const corr_opts *o, corr_result *r, char *err);
 
-/* The side note's text: what was subtracted, from which columns of which
- * file, the sign convention, and the counts.  Several lines, each ending in
- * '\n'; out_name may be NULL.  Returns the length (cut to n - 1). */
+/* The side note's text: what was subtracted (the formula of r->config),
+ * the LJP, its range, pipette, bath, temperature, model, ionmix version and
+ * date (r->about), from which columns of which file, and the counts.
+ * Several lines, each ending in '\n'; out_name may be NULL.  Returns the
+ * length (cut to n - 1). */
 size_t corr_note_format(const corr_result *r, const char *in_name,
 			const char *out_name, char *buf, size_t n);
+
+/* The comment line (starting "# ionmix correct:", no line end) for the
+ * LJP l, configuration c and a (may be NULL), into buf of n bytes; returns
+ * its length (cut to n - 1). */
+size_t corr_comment_format(const corr_ljp *l, corr_config c, const corr_about *a,
+			   char *buf, size_t n);
 
 /* "comma", "tab", "semicolon". */
 const char *corr_delim_name(char delim);

@@ -254,6 +254,11 @@ const char *fio_path(const fio_file *f)
 	return f->path;
 }
 
+const char *fio_temp_path(const fio_file *f)
+{
+	return f->tmp;
+}
+
 int fio_is_direct(const fio_file *f)
 {
 	return f->tmp == NULL;

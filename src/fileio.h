@@ -48,6 +48,12 @@ FILE *fio_stream(fio_file *f);
 /* The path as the user gave it (owned by f). */
 const char *fio_path(const fio_file *f);
 
+/* The temporary file f writes to (owned by f), or NULL when f writes
+ * straight through.  For writers that must reopen the file by name (the
+ * HDF5 library, see nwb.c): flush fio_stream(f) first, write through the
+ * name, then fio_commit fsyncs and renames it as usual. */
+const char *fio_temp_path(const fio_file *f);
+
 /* 1 when f writes straight through (standard output, a FIFO, a terminal
  * or another non-regular file), 0 when through a temporary file. */
 int fio_is_direct(const fio_file *f);

@@ -336,14 +336,24 @@ typedef struct ratio_ctx {
 	double Pref, t_C, target_mV;
 	const double *to_out; /* NULL: absolute form; else the "to" bath */
 	const double *from_out;
+	double *P;            /* shift form: the permeabilities (ion's varied) */
 	int failed;
 	char err[IM_ERRLEN];
 } ratio_ctx;
 
+/* The ions of one state (inside, and the bath out): an ion absent from
+ * both sides of this state carries no current in it, whatever its P. */
+static void state_ions(ghk_ion *work, int n, const double *P, const double *out)
+{
+	for (int i = 0; i < n; i++) {
+		work[i].out_mM = out[i];
+		work[i].P = work[i].in_mM == 0 && out[i] == 0 ? 0.0 : P[i];
+	}
+}
+
 static int erev_with_out(ratio_ctx *r, const double *out, double *E)
 {
-	for (int i = 0; i < r->n; i++)
-		r->work[i].out_mM = out[i];
+	state_ions(r->work, r->n, r->P, out);
 	return erev_checked(r->work, r->n, r->t_C, E, r->err);
 }
 
@@ -353,6 +363,8 @@ static double ratio_fn(double y, void *vctx)
 	ratio_ctx *r = vctx;
 	double E1, E2;
 	r->work[r->ion].P = r->Pref * exp(y);
+	if (r->P)
+		r->P[r->ion] = r->work[r->ion].P;
 	if (!r->to_out) {
 		if (erev_checked(r->work, r->n, r->t_C, &E1, r->err))
 			goto fail;
@@ -438,6 +450,10 @@ static int ratio_setup(ratio_ctx *r, const ghk_ion *ions, int n, int ion_idx,
 		return im_fail(err, "the ion and the reference ion are the same");
 	if (!isfinite(target_mV))
 		return im_fail(err, "measured potential is not a finite number");
+	if (fabs(target_mV) > GHK_MEASURED_MAX_mV)
+		return im_fail(err, "a measured potential of %.4g mV is outside -%g to +%g mV, "
+			       "where a reversal potential or its shift can lie", target_mV,
+			       GHK_MEASURED_MAX_mV, GHK_MEASURED_MAX_mV);
 	double Pref = ions[ref_idx].P;
 	if (!isfinite(Pref) || !(Pref > 0)) {
 		char b[32];
@@ -474,26 +490,60 @@ int ghk_ratio_shift(const ghk_ion *ions, int n, const double *to_out_mM,
 		    double *ratio, char *err)
 {
 	ratio_ctx r;
+	char b[32];
 	if (!to_out_mM)
 		return im_fail(err, "no second bath given");
 	if (ratio_setup(&r, ions, n, ion_idx, ref_idx, shift_mV, t_C, err))
 		return -1;
 	double *from = im_xmalloc((size_t)n * sizeof *from);
-	for (int i = 0; i < n; i++)
+	r.P = im_xmalloc((size_t)n * sizeof *r.P);
+	for (int i = 0; i < n; i++) {
 		from[i] = ions[i].out_mM;
+		r.P[i] = r.work[i].P;
+	}
 	r.from_out = from;
 	r.to_out = to_out_mM;
-	int rc = check_root(r.work, n, t_C, err);
+	int rc = 0;
+	for (int i = 0; i < n && rc == 0; i++)
+		if (!isfinite(to_out_mM[i]) || to_out_mM[i] < 0)
+			rc = im_fail(err, "concentration of %s in the second bath is not a "
+				     "finite number >= 0", sym(&ions[i], i, b, sizeof b));
+	if (rc == 0 && ions[ion_idx].in_mM == 0 && ions[ion_idx].out_mM == 0 &&
+	    to_out_mM[ion_idx] == 0)
+		rc = im_fail(err, "%s is absent inside and from both baths: the shift says "
+			     "nothing about its permeability",
+			     sym(&ions[ion_idx], ion_idx, b, sizeof b));
+	/* each state needs a reversal potential; an ion absent from both
+	 * sides of a state carries no current in it */
 	if (rc == 0) {
-		for (int i = 0; i < n; i++)
-			r.work[i].out_mM = to_out_mM[i];
+		state_ions(r.work, n, r.P, from);
+		if (check_root(r.work, n, t_C, r.err))
+			rc = im_fail(err, "in the first bath: %s", r.err);
+	}
+	if (rc == 0) {
+		state_ions(r.work, n, r.P, to_out_mM);
 		if (check_root(r.work, n, t_C, r.err))
 			rc = im_fail(err, "in the second bath: %s", r.err);
 	}
 	if (rc == 0)
 		rc = ratio_solve(&r, "a shift of", ratio, err);
 	free(from);
+	free(r.P);
 	free(r.work);
+	return rc;
+}
+
+int ghk_erev_present_mV(const ghk_ion *ions, int n, double t_C, double *E_mV, char *err)
+{
+	if (!ions || n < 1)
+		return im_fail(err, "no ions given");
+	ghk_ion *w = im_xmalloc((size_t)n * sizeof *w);
+	memcpy(w, ions, (size_t)n * sizeof *w);
+	for (int i = 0; i < n; i++)
+		if (w[i].in_mM == 0 && w[i].out_mM == 0)
+			w[i].P = 0;
+	int rc = ghk_erev_mV(w, n, t_C, E_mV, err);
+	free(w);
 	return rc;
 }
 
@@ -581,5 +631,40 @@ int ghk_iv(const ghk_ion *ions, int n, double t_C, double v1_mV, double v2_mV,
 	iv->rect = rect;
 	if (!has_root)
 		snprintf(iv->no_erev, sizeof iv->no_erev, "%s", why);
+	return 0;
+}
+
+int ghk_iv_fill(const ghk_ion *ions, int n, double t_C, double v1_mV,
+		double v2_mV, int npts, double *V_mV, double *total_A_cm2,
+		double *ion_A_cm2, char *err)
+{
+	int has_root;
+	char why[IM_ERRLEN];
+	if (!isfinite(v1_mV) || !isfinite(v2_mV) || !(v1_mV < v2_mV))
+		return im_fail(err, "voltage range: from %g must be below to %g mV",
+			       v1_mV, v2_mV);
+	if (npts < 2 || npts > GHK_IV_MAX_PTS)
+		return im_fail(err, "%d voltages: give 2 to %d", npts, GHK_IV_MAX_PTS);
+	if (!V_mV || !total_A_cm2)
+		return im_fail(err, "no arrays for the currents");
+	if (check_ions(ions, n, t_C, &has_root, why, err))
+		return -1;
+	for (int k = 0; k < npts; k++) {
+		/* the last point is v2 exactly, not v1 plus rounded steps */
+		double V = k == npts - 1 ? v2_mV
+			: v1_mV + (v2_mV - v1_mV) * k / (npts - 1), s = 0.0;
+		V_mV[k] = V;
+		for (int i = 0; i < n; i++) {
+			const ghk_ion *x = &ions[i];
+			double I = x->P > 0 ? ghk_current_A_cm2(x->z, x->P, x->in_mM,
+						x->out_mM, V, t_C) : 0.0;
+			if (ion_A_cm2)
+				ion_A_cm2[(size_t)k * n + i] = I;
+			s += I;
+		}
+		if (!isfinite(s))
+			return im_fail(err, "current not finite at %g mV", V);
+		total_A_cm2[k] = s;
+	}
 	return 0;
 }

@@ -35,6 +35,9 @@ typedef struct ghk_ion {
 #define GHK_TOL_REL 1e-13      /* relative tolerance */
 #define GHK_MAX_ITER 200       /* iterations of one root search */
 #define GHK_BRACKET_MAX_MV 1e5 /* a bracket is never widened past +-100 V */
+/* |measured E_rev| or its shift, mV, that ghk_ratio and ghk_ratio_shift
+ * take: beyond it no ratio can fit and the arithmetic loses the range */
+#define GHK_MEASURED_MAX_mV 1000.0
 #define GHK_RATIO_MIN 1e-6     /* permeability ratios are sought in (MIN, MAX) */
 #define GHK_RATIO_MAX 1e6
 
@@ -77,10 +80,19 @@ int ghk_ratio(const ghk_ion *ions, int n, int ion_idx, int ref_idx,
  * the bath is changed: ions[i].out_mM is the bath before the change (the
  * "from" bath), to_out_mM[i] the bath after it (the "to" bath, n values, the
  * caller's array); the inside is ions[i].in_mM in both.  shift_mV =
- * E_rev(to) - E_rev(from).  Covers bi-ionic substitution and dilution. */
+ * E_rev(to) - E_rev(from).  Covers bi-ionic substitution and dilution in
+ * either direction: an ion absent from both sides of one state (the test
+ * ion before a full substitution, the ion it replaces after it) carries no
+ * current in that state, so only each state's reversal potential must
+ * exist.  err when a state has none (every permeant ion on one side, say
+ * which), or when the test ion is absent from every state. */
 int ghk_ratio_shift(const ghk_ion *ions, int n, const double *to_out_mM,
 		    int ion_idx, int ref_idx, double shift_mV, double t_C,
 		    double *ratio, char *err);
+
+/* ghk_erev_mV with the ions absent from both sides taken as impermeant
+ * (what a state of a substitution experiment holds). */
+int ghk_erev_present_mV(const ghk_ion *ions, int n, double t_C, double *E_mV, char *err);
 
 /* A current-voltage curve.  Arrays owned by the struct (ghk_iv_free). */
 typedef struct ghk_iv_curve {
@@ -111,5 +123,20 @@ typedef struct ghk_iv_curve {
 int ghk_iv(const ghk_ion *ions, int n, double t_C, double v1_mV, double v2_mV,
 	   double dv_mV, double rect_mV, ghk_iv_curve *iv, char *err);
 void ghk_iv_free(ghk_iv_curve *iv);
+
+/* Points of the fine grid plots draw whatever the table step, so that a
+ * curve never shows the kinks of straight segments between table rows
+ * (0.375 mV apart over the default -120 to 60 mV). */
+#define GHK_IV_FINE_PTS 481
+
+/* Currents on npts (2 .. GHK_IV_MAX_PTS) evenly spaced voltages from v1_mV
+ * to v2_mV, both included (v1 < v2): V_mV[k], the sum total_A_cm2[k] and,
+ * when ion_A_cm2 is not NULL, each ion's current ion_A_cm2[k * n + i].
+ * The arrays are the caller's, with room for npts (npts * n) values.
+ * Checks the ions as ghk_erev_mV does (but a missing reversal potential
+ * is no error here); -1 with err on bad input or a non-finite current. */
+int ghk_iv_fill(const ghk_ion *ions, int n, double t_C, double v1_mV,
+		double v2_mV, int npts, double *V_mV, double *total_A_cm2,
+		double *ion_A_cm2, char *err);
 
 #endif

@@ -133,7 +133,7 @@ static int check(const jn_ion *ions, int n, double t_C, double *dmax, char *err)
 	return 0;
 }
 
-static int identical(const jn_ion *ions, int n)
+int jn_identical(const jn_ion *ions, int n)
 {
 	for (int i = 0; i < n; i++)
 		if (ions[i].z != 0 && ions[i].pip_mM != ions[i].bath_mM)
@@ -180,7 +180,7 @@ int jn_henderson_contrib(const jn_ion *ions, int n, double t_C, double *contrib_
 		return im_fail(err, "no array for the contributions");
 	if (check(ions, n, t_C, &dmax, err) < 0)
 		return -1;
-	if (identical(ions, n)) {
+	if (jn_identical(ions, n)) {
 		for (int i = 0; i < n; i++)
 			contrib_mV[i] = 0.0;
 		if (ljp_mV)
@@ -208,7 +208,7 @@ int jn_henderson_mV(const jn_ion *ions, int n, double t_C, double *ljp_mV, char 
 	double dmax, A = 0, v;
 	if (check(ions, n, t_C, &dmax, err) < 0)
 		return -1;
-	if (identical(ions, n)) {
+	if (jn_identical(ions, n)) {
 		*ljp_mV = 0.0;
 		return 0;
 	}
@@ -255,7 +255,8 @@ static double planck_root_fn(double y, void *q)
 	return planck_f(y, q);
 }
 
-int jn_planck_mV(const jn_ion *ions, int n, double t_C, double *ljp_mV, char *err)
+int jn_planck_classic_mV(const jn_ion *ions, int n, double t_C, double *ljp_mV,
+			  char *err)
 {
 	double dmax, cat[2] = {0, 0}, an[2] = {0, 0}, U[2] = {0, 0}, V[2] = {0, 0}, C[2];
 	double lo, hi, flo, fhi, y;
@@ -296,7 +297,7 @@ int jn_planck_mV(const jn_ion *ions, int n, double t_C, double *ljp_mV, char *er
 				       "mM anions",
 				       side[k], cat[k], an[k]);
 	}
-	if (identical(ions, n)) {
+	if (jn_identical(ions, n)) {
 		*ljp_mV = 0.0;
 		return 0;
 	}
@@ -334,576 +335,284 @@ int jn_planck_mV(const jn_ion *ions, int n, double t_C, double *ljp_mV, char *er
 	return 0;
 }
 
-/* ---- free diffusion ----
+int jn_check(const jn_ion *ions, int n, double t_C, char *err)
+{
+	double dmax;
+	return check(ions, n, t_C, &dmax, err);
+}
+
+/* ---- Planck, any valence ----
  *
- * Model.  c_i(x, t) for x < 0 starts as the pipette solution, for x > 0 as
- * the bath.  Fluxes J_i = -D_i (dc_i/dx + z_i c_i dpsi/dx), psi = F phi/RT;
- * zero current, sum z_i J_i = 0, gives dpsi/dx = -sum z D dc/dx / sum z^2 D c;
- * electroneutrality holds the net charge where it was (a step at x = 0; 0
- * for electroneutral solutions).  The solution is self-similar: with the
- * Boltzmann variable zeta = x / sqrt(D_max t) and s = ln t the equations
- * become
- *     dc_i/ds = d/dzeta[d_i (c_i' + z_i c_i psi')] + (zeta/2) c_i',
- * d_i = D_i/D_max, and the free junction is the steady state of this
- * equation (the LJP is the same at every t > 0).
- *
- * Discretization.  Finite volumes on zeta in [-Z, Z], Z = DIFF_ZETA_MAX
- * (the fastest ion's profile is erfc(zeta/2): 2e-17 of the step at the
- * ends), nodes stretched toward zeta = 0 by zeta = Z sinh(b s)/sinh(b),
- * s uniform on [-1, 1]; Dirichlet ends (the two solutions).  Face fluxes
- * use arithmetic means of c and of the conductance K = sum z^2 d c, which
- * makes the current exactly zero at every face.  One ion (the one most
- * present on both sides) is eliminated by electroneutrality.  The
- * potential difference is summed over the cells as the Henderson
- * potential of each cell, -G / logmean(K_a, K_b) with G = sum z d dc; this
- * makes it exact for a single salt on any grid and second-order accurate
- * otherwise.
- *
- * Solution.  Implicit Euler in s from a smooth start (both solutions mixed
- * along one erfc profile), every step one Newton linearization solved by
- * block-tridiagonal elimination; the step grows eightfold after every
- * accepted step, so the stepping becomes Newton's method (pseudo-transient
- * continuation); a step that would make the conductance non-positive is
- * taken back and retried eight times shorter.  A grid is steady when, at a
- * step of at least DIFF_DS_NEWTON, the LJP changes by less than
- * step_tol_mV and no concentration by more than DIFF_DC_TOL (of the largest
- * concentration).  Then the grid is refined (interval halved, the solution
- * interpolated as the start) and solved again; (E_fine - E_coarse)/3 is
- * the error estimate (second order), and refinement stops when it is
- * below tol_mV.  Limits exceeded are errors.
+ * Steady electrodiffusion across a layer 0 <= x <= 1 whose ends hold the
+ * two solutions (Planck's boundary conditions), with constant fluxes
+ * J_i = -d_i (c_i' + z_i c_i psi'), zero current sum z_i J_i = 0 and
+ * electroneutrality sum z_i c_i = rho(x), rho linear between the net
+ * charges of the two sides (0 for balanced solutions).  Differentiating
+ * electroneutrality gives psi' = -(sum z_i J_i / d_i + rho') / K with
+ * K = sum z_i^2 c_i, so for given fluxes the profile is an initial-value
+ * problem from the pipette end.  Where a side is dilute, psi' grows as
+ * 1/K; so the ODE is integrated in t with dx/dt = S K / K(0), in which
+ * psi is linear and the profiles smooth, and the length S that brings x
+ * to 1 is one more unknown.  Shooting: Newton's method on (J, S)
+ * (Jacobian by forward differences, steps halved until the residual
+ * falls) so that c_i(1) meets the bath for every ion but one (which
+ * electroneutrality then fixes), the current is zero and x ends at 1.
+ * The classical Runge-Kutta method on PL_STEPS0 steps, then on twice as
+ * many from the converged unknowns until two results differ by less than
+ * PL_TOL_mV (fourth order: the error is below a fifteenth of that).
  */
+#define PL_STEPS0 100
+#define PL_STEPS_MAX 25600
+#define PL_TOL_mV 1e-8
+#define PL_RES_TOL 1e-13
+#define PL_MAXIT 60
 
-#define DIFF_ZETA_MAX 12.0
-#define DIFF_STRETCH 2.5
-#define DIFF_DS0 1.0
-#define DIFF_DS_GROW 8.0
-#define DIFF_DS_MAX 1e14
-#define DIFF_DS_MIN 1e-9
-#define DIFF_DS_NEWTON 1e8
-#define DIFF_DC_TOL 1e-10
-/* Largest block-system storage, in doubles (about 200 MB). */
-#define DIFF_MAX_DOUBLES 25000000.0
-
-void jn_diffusion_defaults(jn_diffusion_opts *o)
-{
-	o->grid_points = 161;
-	o->max_grid_points = 5121;
-	o->tol_mV = 0.002;
-	o->step_tol_mV = 1e-9;
-	o->max_steps = 200;
-}
-
-typedef struct dsys {
-	int na, nu, e;        /* active ions, unknowns per node, eliminated ion */
-	int unk[JN_MAX_IONS]; /* unknown slot -> active ion */
+typedef struct pl_sys {
+	int n, e;
 	double z[JN_MAX_IONS], d[JN_MAX_IONS], cp[JN_MAX_IONS], cb[JN_MAX_IONS];
-	double rho_p, rho_b;    /* net charge of each side, scaled */
-	int M;                  /* nodes */
-	double *zeta, *w, *rho; /* node positions, cell widths, net charge */
-	double *C;              /* M x na concentrations, scaled */
-	double *R, *A, *B, *Cu; /* residual and blocks, (M-2) x nu (x nu) */
-	double *save;           /* M x na, state before a step */
-	int *piv;
-} dsys;
+	double rho_p, rho_b, K0;
+} pl_sys;
 
-static void dsys_free(dsys *s)
+/* d/dt of y = (c_0 .. c_n-1, x, psi) for the unknowns P = (J, S). */
+static int pl_rhs(const pl_sys *q, const double *P, const double *y, double *dy)
 {
-	free(s->zeta);
-	free(s->w);
-	free(s->rho);
-	free(s->C);
-	free(s->R);
-	free(s->A);
-	free(s->B);
-	free(s->Cu);
-	free(s->save);
-	free(s->piv);
-	s->zeta = s->w = s->rho = s->C = s->R = s->A = s->B = s->Cu = s->save = NULL;
-	s->piv = NULL;
-}
-
-static void dsys_grid(dsys *s, int M)
-{
-	int mi = M - 2, nn = s->nu * s->nu;
-	s->M = M;
-	s->zeta = im_xmalloc(sizeof(double) * M);
-	s->w = im_xmalloc(sizeof(double) * M);
-	s->rho = im_xmalloc(sizeof(double) * M);
-	s->C = im_xmalloc(sizeof(double) * M * s->na);
-	s->save = im_xmalloc(sizeof(double) * M * s->na);
-	s->R = im_xmalloc(sizeof(double) * mi * (s->nu ? s->nu : 1));
-	s->A = im_xmalloc(sizeof(double) * mi * (nn ? nn : 1));
-	s->B = im_xmalloc(sizeof(double) * mi * (nn ? nn : 1));
-	s->Cu = im_xmalloc(sizeof(double) * mi * (nn ? nn : 1));
-	s->piv = im_xmalloc(sizeof(int) * (s->nu ? s->nu : 1));
-	for (int k = 0; k < M; k++) {
-		double sk = -1.0 + 2.0 * k / (M - 1);
-		s->zeta[k] = DIFF_ZETA_MAX * sinh(DIFF_STRETCH * sk) / sinh(DIFF_STRETCH);
+	int n = q->n;
+	double num = q->rho_b - q->rho_p, K = 0, p, g;
+	for (int i = 0; i < n; i++) {
+		num += q->z[i] * P[i] / q->d[i];
+		K += q->z[i] * q->z[i] * y[i];
 	}
-	s->zeta[(M - 1) / 2] = 0.0;
-	for (int k = 0; k < M; k++) {
-		s->w[k] = 0.5 *
-			  (s->zeta[k < M - 1 ? k + 1 : k] - s->zeta[k > 0 ? k - 1 : k]);
-		s->rho[k] = s->zeta[k] < 0   ? s->rho_p
-			    : s->zeta[k] > 0 ? s->rho_b
-					     : 0.5 * (s->rho_p + s->rho_b);
-	}
-}
-
-/* The eliminated ion at node k from electroneutrality. */
-static void fill_elim(const dsys *s, double *Ck, int k)
-{
-	double q = s->rho[k];
-	for (int j = 0; j < s->na; j++)
-		if (j != s->e)
-			q -= s->z[j] * Ck[j];
-	Ck[s->e] = q / s->z[s->e];
-}
-
-static double cond(const dsys *s, const double *Ck)
-{
-	double K = 0;
-	for (int j = 0; j < s->na; j++)
-		K += s->z[j] * s->z[j] * s->d[j] * Ck[j];
-	return K;
-}
-
-static double logmean(double a, double b)
-{
-	double q;
-	if (a == b)
-		return a;
-	q = log(b / a);
-	if (fabs(q) < 1e-6)
-		return a * (1.0 + q / 2.0 + q * q / 6.0);
-	return (b - a) / q;
-}
-
-/* The LJP of the state, units of RT/F; 0 and *E, or -1 when some node's
- * conductance is not positive. */
-static int dsys_ljp(const dsys *s, double *E)
-{
-	double sum = 0, Ka = cond(s, s->C);
-	if (!(Ka > 0))
+	if (!(K > 0) || !isfinite(K))
 		return -1;
-	for (int k = 0; k + 1 < s->M; k++) {
-		const double *a = s->C + k * s->na, *b = a + s->na;
-		double Kb = cond(s, b), G = 0;
-		if (!(Kb > 0) || !isfinite(Kb))
-			return -1;
-		for (int j = 0; j < s->na; j++)
-			G += s->z[j] * s->d[j] * (b[j] - a[j]);
-		sum -= G / logmean(Ka, Kb);
-		Ka = Kb;
-	}
-	if (!isfinite(sum))
-		return -1;
-	*E = sum;
+	p = -num / K;
+	g = P[n] * K / q->K0;
+	for (int i = 0; i < n; i++)
+		dy[i] = g * (-P[i] / q->d[i] - q->z[i] * y[i] * p);
+	dy[n] = g;
+	dy[n + 1] = g * p;
 	return 0;
 }
 
-/* Flux of each unknown species through the face between nodes a and a+1,
- * and its derivatives by the unknowns of node a (Fa) and a+1 (Fb). */
-static void face(const dsys *s, int a, double *F, double *Fa, double *Fb, double *cae,
-		 double *cbe)
+/* Integrate t from 0 to 1 in N RK4 steps; the end state in y1.  -1 when
+ * the conductance vanishes on the way. */
+static int pl_shoot(const pl_sys *q, const double *P, int N, double *y1)
 {
-	const double *ca = s->C + a * s->na, *cb = ca + s->na;
-	double h = s->zeta[a + 1] - s->zeta[a];
-	double Km = 0.5 * (cond(s, ca) + cond(s, cb)), G = 0, g;
-	int nu = s->nu, e = s->e;
-	for (int j = 0; j < s->na; j++)
-		G += s->z[j] * s->d[j] * (cb[j] - ca[j]);
-	g = G / Km;
-	/* d(G/Km)/dc_j at node b and node a, then chained through the
-	 * eliminated ion: dc_e/dc_j = -z_j/z_e */
-	{
-		double ze = s->z[e], de = s->d[e];
-		double gb_e = (ze * de - 0.5 * g * ze * ze * de) / Km;
-		double ga_e = (-ze * de - 0.5 * g * ze * ze * de) / Km;
-		for (int q = 0; q < nu; q++) {
-			int j = s->unk[q];
-			double zj = s->z[j], dj = s->d[j];
-			cbe[q] = (zj * dj - 0.5 * g * zj * zj * dj) / Km -
-				 (zj / ze) * gb_e;
-			cae[q] = (-zj * dj - 0.5 * g * zj * zj * dj) / Km -
-				 (zj / ze) * ga_e;
-		}
-	}
-	for (int p = 0; p < nu; p++) {
-		int i = s->unk[p];
-		double zi = s->z[i], f = s->d[i] / h, cm = 0.5 * (ca[i] + cb[i]);
-		F[p] = f * (cb[i] - ca[i] - zi * cm * g);
-		for (int q = 0; q < nu; q++) {
-			Fb[p * nu + q] = -f * zi * cm * cbe[q];
-			Fa[p * nu + q] = -f * zi * cm * cae[q];
-		}
-		Fb[p * nu + p] += f * (1.0 - 0.5 * zi * g);
-		Fa[p * nu + p] += f * (-1.0 - 0.5 * zi * g);
-	}
-}
-
-/* Residual and Jacobian blocks at pseudo-time step ds; returns max |R|. */
-static double assemble(dsys *s, double ds)
-{
-	int nu = s->nu, nn = nu * nu, M = s->M;
-	double F0[JN_MAX_IONS], F1[JN_MAX_IONS], cae[JN_MAX_IONS], cbe[JN_MAX_IONS];
-	double *Fa0 = im_xmalloc(sizeof(double) * nn),
-	       *Fb0 = im_xmalloc(sizeof(double) * nn);
-	double *Fa1 = im_xmalloc(sizeof(double) * nn),
-	       *Fb1 = im_xmalloc(sizeof(double) * nn);
-	double rmax = 0;
-	face(s, 0, F0, Fa0, Fb0, cae, cbe);
-	for (int k = 1; k < M - 1; k++) {
-		int r = k - 1;
-		double *R = s->R + r * nu, *A = s->A + r * nn, *B = s->B + r * nn;
-		double *Cu = s->Cu + r * nn, adv = s->zeta[k] / 4.0, tau = s->w[k] / ds;
-		double *t;
-		face(s, k, F1, Fa1, Fb1, cae, cbe);
-		for (int p = 0; p < nu; p++) {
-			int i = s->unk[p];
-			R[p] = F1[p] - F0[p] +
-			       adv * (s->C[(k + 1) * s->na + i] -
-				      s->C[(k - 1) * s->na + i]);
-			if (fabs(R[p]) > rmax)
-				rmax = fabs(R[p]);
-			for (int q = 0; q < nu; q++) {
-				A[p * nu + q] = -Fa0[p * nu + q];
-				B[p * nu + q] = Fa1[p * nu + q] - Fb0[p * nu + q];
-				Cu[p * nu + q] = Fb1[p * nu + q];
-			}
-			A[p * nu + p] -= adv;
-			Cu[p * nu + p] += adv;
-			B[p * nu + p] -= tau;
-		}
-		memcpy(F0, F1, sizeof(double) * nu);
-		t = Fa0, Fa0 = Fa1, Fa1 = t;
-		t = Fb0, Fb0 = Fb1, Fb1 = t;
-	}
-	free(Fa0);
-	free(Fb0);
-	free(Fa1);
-	free(Fb1);
-	return rmax;
-}
-
-/* LU with partial pivoting of the n x n row-major a; -1 when singular. */
-static int lu(double *a, int n, int *piv)
-{
-	for (int c = 0; c < n; c++) {
-		int p = c;
-		for (int r = c + 1; r < n; r++)
-			if (fabs(a[r * n + c]) > fabs(a[p * n + c]))
-				p = r;
-		if (!(fabs(a[p * n + c]) > 0) || !isfinite(a[p * n + c]))
+	int m = q->n + 2;
+	double y[JN_MAX_IONS + 2], t[JN_MAX_IONS + 2], k1[JN_MAX_IONS + 2],
+		k2[JN_MAX_IONS + 2], k3[JN_MAX_IONS + 2], k4[JN_MAX_IONS + 2], h = 1.0 / N;
+	memcpy(y, q->cp, q->n * sizeof *y);
+	y[q->n] = y[q->n + 1] = 0.0;
+	for (int s = 0; s < N; s++) {
+		if (pl_rhs(q, P, y, k1))
 			return -1;
-		piv[c] = p;
-		if (p != c)
+		for (int i = 0; i < m; i++)
+			t[i] = y[i] + 0.5 * h * k1[i];
+		if (pl_rhs(q, P, t, k2))
+			return -1;
+		for (int i = 0; i < m; i++)
+			t[i] = y[i] + 0.5 * h * k2[i];
+		if (pl_rhs(q, P, t, k3))
+			return -1;
+		for (int i = 0; i < m; i++)
+			t[i] = y[i] + h * k3[i];
+		if (pl_rhs(q, P, t, k4))
+			return -1;
+		for (int i = 0; i < m; i++)
+			y[i] += h / 6.0 * (k1[i] + 2 * k2[i] + 2 * k3[i] + k4[i]);
+	}
+	memcpy(y1, y, m * sizeof *y);
+	return 0;
+}
+
+/* Residual of the shooting problem (n + 1 entries); its max norm in *nrm
+ * and psi(1) - psi(0) in *psi. */
+static int pl_res(const pl_sys *q, const double *P, int N, double *r, double *nrm,
+		  double *psi)
+{
+	double y1[JN_MAX_IONS + 2], cur = 0, m = 0;
+	int k = 0, n = q->n;
+	if (!(P[n] > 0) || pl_shoot(q, P, N, y1))
+		return -1;
+	for (int i = 0; i < n; i++) {
+		cur += q->z[i] * P[i];
+		if (i != q->e)
+			r[k++] = y1[i] - q->cb[i];
+	}
+	r[k++] = cur;
+	r[k] = y1[n] - 1.0;
+	for (int i = 0; i <= n; i++)
+		m = fmax(m, fabs(r[i]));
+	*nrm = m;
+	*psi = y1[n + 1];
+	return 0;
+}
+
+/* Gaussian elimination with partial pivoting, a n x n, b n; -1 if singular. */
+static int pl_solve(double *a, double *b, int n)
+{
+	for (int k = 0; k < n; k++) {
+		int p = k;
+		for (int i = k + 1; i < n; i++)
+			if (fabs(a[i * n + k]) > fabs(a[p * n + k]))
+				p = i;
+		if (!(fabs(a[p * n + k]) > 0))
+			return -1;
+		if (p != k) {
+			double t;
 			for (int j = 0; j < n; j++) {
-				double t = a[c * n + j];
-				a[c * n + j] = a[p * n + j];
+				t = a[k * n + j];
+				a[k * n + j] = a[p * n + j];
 				a[p * n + j] = t;
 			}
-		for (int r = c + 1; r < n; r++) {
-			double m = a[r * n + c] / a[c * n + c];
-			a[r * n + c] = m;
-			for (int j = c + 1; j < n; j++)
-				a[r * n + j] -= m * a[c * n + j];
+			t = b[k];
+			b[k] = b[p];
+			b[p] = t;
 		}
+		for (int i = k + 1; i < n; i++) {
+			double f = a[i * n + k] / a[k * n + k];
+			for (int j = k; j < n; j++)
+				a[i * n + j] -= f * a[k * n + j];
+			b[i] -= f * b[k];
+		}
+	}
+	for (int i = n - 1; i >= 0; i--) {
+		for (int j = i + 1; j < n; j++)
+			b[i] -= a[i * n + j] * b[j];
+		b[i] /= a[i * n + i];
 	}
 	return 0;
 }
 
-static void lu_solve(const double *a, int n, const int *piv, double *b)
+/* Newton on the unknowns P = (J, S) (in place) with N steps; psi at the
+ * solution. */
+static int pl_newton(const pl_sys *q, double *P, int N, double *psi)
 {
-	for (int c = 0; c < n; c++) {
-		double t;
-		if (piv[c] != c) {
-			t = b[c];
-			b[c] = b[piv[c]];
-			b[piv[c]] = t;
+	int m = q->n + 1;
+	double r[JN_MAX_IONS + 1], rt[JN_MAX_IONS + 1], Pt[JN_MAX_IONS + 1], nrm, nt, pt;
+	double *A = im_xmalloc(sizeof(double) * m * m);
+	int rc = -1;
+	if (pl_res(q, P, N, r, &nrm, psi))
+		goto out;
+	for (int it = 0; it < PL_MAXIT; it++) {
+		double a = 1.0, jmax = 0;
+		if (nrm < PL_RES_TOL) {
+			rc = 0;
+			goto out;
 		}
-		for (int r = c + 1; r < n; r++)
-			b[r] -= a[r * n + c] * b[c];
-	}
-	for (int c = n - 1; c >= 0; c--) {
-		for (int j = c + 1; j < n; j++)
-			b[c] -= a[c * n + j] * b[j];
-		b[c] /= a[c * n + c];
-	}
-}
-
-/* Solve the block-tridiagonal system J delta = -R in place: on return
- * s->R holds delta.  -1 when a block is singular. */
-static int block_solve(dsys *s)
-{
-	int nu = s->nu, nn = nu * nu, mi = s->M - 2;
-	double col[JN_MAX_IONS], *tmp = im_xmalloc(sizeof(double) * nn);
-	for (int r = 0; r < mi; r++) {
-		double *A = s->A + r * nn, *B = s->B + r * nn, *Cu = s->Cu + r * nn;
-		double *y = s->R + r * nu;
-		for (int p = 0; p < nu; p++)
-			y[p] = -y[p];
-		if (r > 0) {
-			const double *X = s->Cu + (r - 1) * nn, *yp = s->R + (r - 1) * nu;
-			for (int p = 0; p < nu; p++) {
-				for (int q = 0; q < nu; q++) {
-					double t = 0;
-					for (int m = 0; m < nu; m++)
-						t += A[p * nu + m] * X[m * nu + q];
-					tmp[p * nu + q] = t;
-				}
-				for (int m = 0; m < nu; m++)
-					y[p] -= A[p * nu + m] * yp[m];
+		for (int j = 0; j < m - 1; j++)
+			jmax = fmax(jmax, fabs(P[j]));
+		for (int j = 0; j < m; j++) {
+			double h = j < m - 1 ? 1e-7 * fmax(fabs(P[j]), 1e-3 * fmax(jmax, 1e-12))
+					     : 1e-7 * P[j];
+			memcpy(Pt, P, m * sizeof *P);
+			Pt[j] += h;
+			if (pl_res(q, Pt, N, rt, &nt, &pt))
+				goto out;
+			for (int i = 0; i < m; i++)
+				A[i * m + j] = (rt[i] - r[i]) / h;
+		}
+		for (int i = 0; i < m; i++)
+			rt[i] = -r[i];
+		if (pl_solve(A, rt, m))
+			goto out;
+		nt = INFINITY;
+		for (int cut = 0; cut < 30; cut++, a *= 0.5) {
+			double rr[JN_MAX_IONS + 1];
+			for (int j = 0; j < m; j++)
+				Pt[j] = P[j] + a * rt[j];
+			if (pl_res(q, Pt, N, rr, &nt, &pt) == 0 && nt < nrm) {
+				memcpy(r, rr, m * sizeof *r);
+				break;
 			}
-			for (int m = 0; m < nn; m++)
-				B[m] -= tmp[m];
+			nt = INFINITY;
 		}
-		if (lu(B, nu, s->piv) < 0) {
-			free(tmp);
-			return -1;
+		if (!(nt < nrm)) {
+			/* no decrease: converged to rounding, or stuck */
+			rc = nrm < 1e3 * PL_RES_TOL ? 0 : -1;
+			goto out;
 		}
-		if (r < mi - 1)
-			for (int q = 0; q < nu; q++) {
-				for (int p = 0; p < nu; p++)
-					col[p] = Cu[p * nu + q];
-				lu_solve(B, nu, s->piv, col);
-				for (int p = 0; p < nu; p++)
-					Cu[p * nu + q] = col[p];
-			}
-		lu_solve(B, nu, s->piv, y);
+		memcpy(P, Pt, m * sizeof *P);
+		nrm = nt;
+		*psi = pt;
 	}
-	for (int r = mi - 2; r >= 0; r--) {
-		const double *X = s->Cu + r * nn, *yn = s->R + (r + 1) * nu;
-		double *y = s->R + r * nu;
-		for (int p = 0; p < nu; p++)
-			for (int q = 0; q < nu; q++)
-				y[p] -= X[p * nu + q] * yn[q];
-	}
-	free(tmp);
-	return 0;
+	rc = nrm < 1e3 * PL_RES_TOL ? 0 : -1;
+out:
+	free(A);
+	return rc;
 }
 
-/* Steady state on the current grid from the current state. */
-static int dsys_solve(dsys *s, const jn_diffusion_opts *o, double ds, double rtf,
-		      jn_diffusion_report *rep, double *E, char *err)
+int jn_planck_mV(const jn_ion *ions, int n, double t_C, double *ljp_mV, char *err)
 {
-	double E0, E1, rmax = 0;
-	size_t nbytes = sizeof(double) * (size_t)s->M * (size_t)s->na;
-	if (dsys_ljp(s, &E0) < 0)
-		return im_fail(err,
-			       "diffusion model: non-positive conductance in the start");
-	if (s->nu == 0) { /* one ion species: nothing to solve */
-		*E = E0;
-		rep->dt = 0;
-		rep->last_change_mV = 0;
-		rep->residual = 0;
-		return 0;
-	}
-	for (int step = 0; step < o->max_steps; step++) {
-		double dmax = 0;
-		int ok = 1;
-		rep->steps++;
-		memcpy(s->save, s->C, nbytes);
-		rmax = assemble(s, ds);
-		if (block_solve(s) < 0) {
-			ok = 0;
-		} else {
-			for (int k = 1; k < s->M - 1; k++) {
-				double *Ck = s->C + k * s->na;
-				const double *dk = s->R + (k - 1) * s->nu;
-				for (int p = 0; p < s->nu; p++) {
-					Ck[s->unk[p]] += dk[p];
-					if (fabs(dk[p]) > dmax)
-						dmax = fabs(dk[p]);
-				}
-				fill_elim(s, Ck, k);
-			}
-			if (!isfinite(dmax) || dsys_ljp(s, &E1) < 0)
-				ok = 0;
-		}
-		if (!ok) {
-			memcpy(s->C, s->save, nbytes);
-			ds /= DIFF_DS_GROW;
-			if (ds < DIFF_DS_MIN)
-				return im_fail(err,
-					       "diffusion model: step size underflow at "
-					       "step %d",
-					       step + 1);
-			continue;
-		}
-		rep->dt = ds;
-		rep->last_change_mV = fabs(E1 - E0) * rtf;
-		rep->residual = rmax;
-		E0 = E1;
-		if (ds >= DIFF_DS_NEWTON && rep->last_change_mV <= o->step_tol_mV &&
-		    dmax <= DIFF_DC_TOL) {
-			*E = E1;
-			return 0;
-		}
-		ds = fmin(ds * DIFF_DS_GROW, DIFF_DS_MAX);
-	}
-	return im_fail(err,
-		       "diffusion model: not steady after %d steps on %d points (last "
-		       "change %.3g mV)",
-		       o->max_steps, s->M, rep->last_change_mV);
-}
-
-static int check_opts(const jn_diffusion_opts *o, char *err)
-{
-	if (o->grid_points < 21 || o->grid_points % 2 == 0 || o->grid_points > 1000001)
-		return im_fail(err,
-			       "diffusion model: grid_points must be odd, 21 or more");
-	if (o->max_grid_points < o->grid_points || o->max_grid_points > 1000001)
-		return im_fail(err,
-			       "diffusion model: max_grid_points below grid_points or "
-			       "too large");
-	if (!isfinite(o->tol_mV) || o->tol_mV <= 0)
-		return im_fail(err, "diffusion model: tol_mV must be > 0");
-	if (!isfinite(o->step_tol_mV) || o->step_tol_mV <= 0)
-		return im_fail(err, "diffusion model: step_tol_mV must be > 0");
-	if (o->max_steps < 1 || o->max_steps > 100000)
-		return im_fail(err, "diffusion model: max_steps must be 1 to 100000");
-	return 0;
-}
-
-int jn_diffusion_mV(const jn_ion *ions, int n, double t_C, const jn_diffusion_opts *opts,
-		    jn_diffusion_report *rep, double *ljp_mV, char *err)
-{
-	jn_diffusion_opts o;
-	jn_diffusion_report rp;
-	dsys s;
-	double dmax, cmax = 0, best = -1, dbar_n = 0, dbar_d = 0, dbar, rtf, E = 0,
-		     Ec = 0;
-	int M;
-	if (opts)
-		o = *opts;
-	else
-		jn_diffusion_defaults(&o);
-	if (check_opts(&o, err) < 0 || check(ions, n, t_C, &dmax, err) < 0)
+	pl_sys q;
+	double dmax, cs = 0, P[JN_MAX_IONS + 1], rtf, psi = 0, prev, hend, best = -1, Kb = 0,
+							       ratio;
+	double tot[2] = {0, 0};
+	int N;
+	if (check(ions, n, t_C, &dmax, err) < 0)
 		return -1;
-	memset(&rp, 0, sizeof rp);
-	rp.zeta_max = DIFF_ZETA_MAX;
-	if (identical(ions, n)) {
-		rp.grid_points = 0;
-		if (rep)
-			*rep = rp;
+	if (jn_identical(ions, n)) {
 		*ljp_mV = 0.0;
 		return 0;
 	}
-	memset(&s, 0, sizeof s);
-	for (int i = 0; i < n; i++) {
-		if (!present(&ions[i]))
-			continue;
-		if (ions[i].pip_mM > cmax)
-			cmax = ions[i].pip_mM;
-		if (ions[i].bath_mM > cmax)
-			cmax = ions[i].bath_mM;
-	}
+	memset(&q, 0, sizeof q);
+	for (int i = 0; i < n; i++)
+		if (present(&ions[i]))
+			cs = fmax(cs, abs(ions[i].z) * fmax(ions[i].pip_mM, ions[i].bath_mM));
 	for (int i = 0; i < n; i++) {
 		const jn_ion *x = &ions[i];
-		int a;
-		double m;
+		int k = q.n;
 		if (!present(x))
 			continue;
-		a = s.na++;
-		s.z[a] = x->z;
-		s.d[a] = x->D_m2_s / dmax;
-		s.cp[a] = x->pip_mM / cmax;
-		s.cb[a] = x->bath_mM / cmax;
-		s.rho_p += s.z[a] * s.cp[a];
-		s.rho_b += s.z[a] * s.cb[a];
-		m = fmin(s.cp[a], s.cb[a]) * fabs(s.z[a]) + 1e-3 * (s.cp[a] + s.cb[a]);
-		if (m > best) {
-			best = m;
-			s.e = a;
+		q.z[k] = x->z;
+		q.d[k] = x->D_m2_s / dmax;
+		q.cp[k] = x->pip_mM / cs;
+		q.cb[k] = x->bath_mM / cs;
+		q.rho_p += q.z[k] * q.cp[k];
+		q.rho_b += q.z[k] * q.cb[k];
+		q.K0 += q.z[k] * q.z[k] * q.cp[k];
+		Kb += q.z[k] * q.z[k] * q.cb[k];
+		tot[0] += abs(x->z) * q.cp[k];
+		tot[1] += abs(x->z) * q.cb[k];
+		/* the ion left to electroneutrality: the most present on both sides */
+		if (fmin(q.cp[k], q.cb[k]) * abs(x->z) > best) {
+			best = fmin(q.cp[k], q.cb[k]) * abs(x->z);
+			q.e = k;
 		}
-		dbar_n += s.z[a] * s.z[a] * (s.cp[a] + s.cb[a]) * s.d[a];
-		dbar_d += s.z[a] * s.z[a] * (s.cp[a] + s.cb[a]);
+		q.n++;
 	}
-	s.nu = 0;
-	for (int a = 0; a < s.na; a++)
-		if (a != s.e)
-			s.unk[s.nu++] = a;
-	if (3.0 * (double)o.max_grid_points * s.nu * s.nu > DIFF_MAX_DOUBLES)
-		return im_fail(err,
-			       "diffusion model: %d ions need too much memory at %d grid "
-			       "points",
-			       s.na, o.max_grid_points);
-	dbar = dbar_n / dbar_d;
+	for (int k = 0; k < 2; k++) {
+		double net = k ? q.rho_b : q.rho_p;
+		if (fabs(net) > JN_PLANCK_NEUTRAL_REL * 0.5 * tot[k])
+			return im_fail(err,
+				       "Planck's model needs electroneutral solutions: the %s "
+				       "side has a net charge of %+.3g mEq/L",
+				       k ? "bath" : "pipette", net * cs);
+	}
 	rtf = im_rt_f_mV(t_C);
-
-	/* first grid: both solutions mixed along one erfc profile */
-	M = o.grid_points;
-	dsys_grid(&s, M);
-	for (int k = 0; k < M; k++) {
-		double S = 0.5 * erfc(-s.zeta[k] / (2.0 * sqrt(dbar)));
-		double *Ck = s.C + k * s.na;
-		if (k == 0)
-			S = 0.0;
-		if (k == M - 1)
-			S = 1.0;
-		for (int a = 0; a < s.na; a++)
-			Ck[a] = s.cp[a] + (s.cb[a] - s.cp[a]) * S;
-		if (k > 0 && k < M - 1)
-			fill_elim(&s, Ck, k);
-	}
-	if (dsys_solve(&s, &o, DIFF_DS0, rtf, &rp, &E, err) < 0)
-		goto fail;
-	rp.grids = 1;
+	if (jn_henderson_mV(ions, n, t_C, &hend, err))
+		return -1;
+	/* start: linear profiles with Henderson's potential drop; S for a
+	 * conductance linear in x */
+	for (int i = 0; i < q.n; i++)
+		P[i] = -q.d[i] * (q.cb[i] - q.cp[i] +
+				  q.z[i] * 0.5 * (q.cp[i] + q.cb[i]) * hend / rtf);
+	ratio = Kb / q.K0;
+	P[q.n] = fabs(ratio - 1.0) < 1e-9 ? 1.0 : log(ratio) / (ratio - 1.0);
+	N = PL_STEPS0;
+	if (pl_newton(&q, P, N, &psi))
+		return im_fail(err, "Planck: the shooting method did not converge");
 	for (;;) {
-		int Mf = 2 * M - 1;
-		double *Cc;
-		if (Mf > o.max_grid_points) {
-			if (rp.grids >= 2) {
-				im_fail(err,
-					"diffusion model: error estimate %.3g mV above "
-					"%.3g mV at %d points (the limit)",
-					rp.grid_err_mV, o.tol_mV, M);
-				goto fail;
-			}
-			im_fail(err,
-				"diffusion model: max_grid_points %d allows no "
-				"refinement of %d",
-				o.max_grid_points, M);
-			goto fail;
-		}
-		Ec = E;
-		Cc = s.C;
-		s.C = NULL;
-		dsys_free(&s);
-		dsys_grid(&s, Mf);
-		for (int k = 0; k < Mf; k++) {
-			double *Ck = s.C + k * s.na;
-			if (k % 2 == 0) {
-				memcpy(Ck, Cc + (k / 2) * s.na, sizeof(double) * s.na);
-			} else {
-				const double *l = Cc + (k / 2) * s.na, *r = l + s.na;
-				double zl = s.zeta[k - 1], zr = s.zeta[k + 1];
-				double t = (s.zeta[k] - zl) / (zr - zl);
-				for (int a = 0; a < s.na; a++)
-					Ck[a] = l[a] + t * (r[a] - l[a]);
-				fill_elim(&s, Ck, k);
-			}
-		}
-		free(Cc);
-		M = Mf;
-		if (dsys_solve(&s, &o, DIFF_DS_NEWTON, rtf, &rp, &E, err) < 0)
-			goto fail;
-		rp.grids++;
-		rp.grid_err_mV = fabs(E - Ec) * rtf / 3.0;
-		if (rp.grid_err_mV <= o.tol_mV)
+		prev = psi;
+		N *= 2;
+		if (N > PL_STEPS_MAX)
+			return im_fail(err, "Planck: no agreement between step sizes "
+					    "within %d steps", PL_STEPS_MAX);
+		if (pl_newton(&q, P, N, &psi))
+			return im_fail(err, "Planck: the shooting method did not converge "
+					    "on %d steps", N);
+		if (fabs(psi - prev) * rtf < PL_TOL_mV)
 			break;
 	}
-	rp.grid_points = M;
-	rp.coarse_ljp_mV = Ec * rtf;
-	dsys_free(&s);
-	if (!isfinite(E * rtf))
-		return im_fail(err, "diffusion model: result is not finite");
-	if (rep)
-		*rep = rp;
-	*ljp_mV = E * rtf;
+	*ljp_mV = rtf * psi;
 	return 0;
-fail:
-	dsys_free(&s);
-	return -1;
 }

@@ -1,8 +1,8 @@
 /*
  * junction.h - liquid junction potentials (LJP) between a pipette solution
  * and a bath: the Henderson equation (any valence) with a per-ion
- * breakdown, Planck's equation (monovalent ions), a numerical
- * free-diffusion electrodiffusion model, and the mobility helpers they use
+ * breakdown, Planck's model (closed form for monovalent ions, numerical
+ * for any valence; the free-diffusion model is in diffusion.h), and the mobility helpers they use
  * (Nernst-Einstein, Stokes-Einstein with the viscosity of water).
  *
  * SIGN, the contract of every jn_* result: the potential of the BATH
@@ -103,7 +103,7 @@ int jn_henderson_contrib(const jn_ion *ions, int n, double t_C, double *contrib_
 #define JN_PLANCK_TOL 1e-13
 #define JN_PLANCK_MAXIT 200
 
-/* Planck's equation (1890) for junctions of monovalent ions (steady
+/* Planck's closed form (1890) for junctions of monovalent ions (steady
  * constrained diffusion).  With U = sum over cations of u c, V = the same
  * over anions, C the total salt concentration of a side (1 = pipette,
  * 2 = bath), the LJP is (RT/F) ln xi where xi solves
@@ -118,43 +118,30 @@ int jn_henderson_contrib(const jn_ion *ions, int n, double t_C, double *contrib_
  * single-salt result (t+ - t-) (RT/F) ln(c_p/c_b).
  * Errors: those of jn_henderson_mV; an ion present with |z| != 1 (named);
  * a side whose net charge exceeds JN_PLANCK_NEUTRAL_REL (named). */
+int jn_planck_classic_mV(const jn_ion *ions, int n, double t_C, double *ljp_mV,
+			 char *err);
+
+/* Planck's model for ions of any valence: the steady (stationary)
+ * electroneutral Nernst-Planck junction with Planck's boundary conditions
+ * (each end holds its solution), zero current, solved numerically by
+ * shooting on the fluxes with fourth-order Runge-Kutta and Newton's method
+ * (details in junction.c); the step count is doubled until two results
+ * agree to 1e-8 mV.  For monovalent ions it is the problem whose exact
+ * solution is jn_planck_classic_mV; for a single salt it gives the exact
+ * single-salt result.  A slight net charge of a side (up to
+ * JN_PLANCK_NEUTRAL_REL) is carried as a linear background charge.
+ * Errors: those of jn_henderson_mV; a side further from electroneutral;
+ * no convergence (named). */
 int jn_planck_mV(const jn_ion *ions, int n, double t_C, double *ljp_mV, char *err);
 
-/* ---- free diffusion (numerical electrodiffusion) ---- */
+/* ---- shared checks (for diffusion.c) ---- */
 
-typedef struct jn_diffusion_opts {
-	int grid_points;     /* nodes of the first grid (odd, >= 21); default 161 */
-	int max_grid_points; /* largest grid refinement may reach; default 5121 */
-	double tol_mV;       /* target estimated discretization error; default 0.002 */
-	double step_tol_mV;  /* steady when the LJP changes less per step; default 1e-9 */
-	int max_steps;       /* pseudo-time steps allowed per grid; default 200 */
-} jn_diffusion_opts;
+/* The input checks every model makes (see jn_henderson_mV): 0, or -1 with
+ * err. */
+int jn_check(const jn_ion *ions, int n, double t_C, char *err);
 
-typedef struct jn_diffusion_report {
-	int grid_points;       /* nodes of the final grid */
-	int grids;             /* grids solved (each a refinement of the last) */
-	int steps;             /* pseudo-time steps taken, all grids (rejected too) */
-	double zeta_max;       /* half-width of the domain, units of sqrt(D_max t) */
-	double dt;             /* last pseudo-time step, units of ln t */
-	double last_change_mV; /* change of the LJP over the last step */
-	double residual;       /* largest scaled residual at the end */
-	double coarse_ljp_mV;  /* result on the grid before the final one */
-	double grid_err_mV;    /* estimated discretization error of the result */
-} jn_diffusion_report;
+/* 1 when every charged ion has the same concentration on both sides. */
+int jn_identical(const jn_ion *ions, int n);
 
-void jn_diffusion_defaults(jn_diffusion_opts *o);
-
-/* Free-diffusion junction: the pipette solution (x < 0) and the bath
- * (x > 0) meet in a sharp step at t = 0 and diffuse freely into each other
- * (Nernst-Planck fluxes, zero current, electroneutrality).  The profile is
- * self-similar in x/sqrt(t), so the LJP is the same at every t > 0; the
- * model solves for that profile numerically (method in junction.c) and
- * returns the potential difference between the two far ends.  Any set of
- * ions and valences.  opts may be NULL (defaults); rep may be NULL.
- * Errors: those of jn_henderson_mV; options out of range; a solver that
- * did not reach steady state or the error tolerance within its limits
- * (never a silent unconverged result). */
-int jn_diffusion_mV(const jn_ion *ions, int n, double t_C, const jn_diffusion_opts *opts,
-		    jn_diffusion_report *rep, double *ljp_mV, char *err);
 
 #endif

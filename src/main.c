@@ -15,6 +15,7 @@
 #include "command.h"
 #include "common.h"
 #include "refdb.h"
+#include "signals.h"
 #include "shell.h"
 #include "session.h"
 #include "userdb.h"
@@ -196,7 +197,7 @@ int main(int argc, char **argv)
 	char err[IM_ERRLEN];
 	refdb *ref;
 	im_ctx ctx;
-	char *dbpath, *hist;
+	char *dbpath = NULL, *hist;
 
 	setlocale(LC_CTYPE, ""); /* for readline and UTF-8 output; never LC_NUMERIC */
 	o.utf8 = strcmp(nl_langinfo(CODESET), "UTF-8") == 0;
@@ -207,12 +208,21 @@ int main(int argc, char **argv)
 		goto out;
 	o.json = op.json;
 	status = 0;
+	/* a database that would save nowhere lasting is a usage error */
+	if (op.db ? udb_check_path(op.db, err) : udb_default_path(&dbpath, err)) {
+		fprintf(stderr, "ionmix: %s\n", err);
+		status = 2;
+		goto out;
+	}
+	if (op.db)
+		dbpath = im_xstrdup(op.db);
 	if (refdb_open(&ref, err)) {
 		fprintf(stderr, "ionmix: %s\n", err);
 		status = 1;
 		goto out;
 	}
 	ctx_init(&ctx, ref, &o);
+	sig_install(op.nact == 0 && isatty(STDIN_FILENO) && isatty(STDOUT_FILENO) && !o.json);
 	if (ctx_load_chemistry(&ctx, err)) {
 		fprintf(stderr, "ionmix: equilibria data do not load: %s\n", err);
 		ctx_free(&ctx);
@@ -220,14 +230,14 @@ int main(int argc, char **argv)
 		status = 1;
 		goto out;
 	}
-	dbpath = op.db ? im_xstrdup(op.db) : udb_default_path();
-	ctx.ses->db_path = dbpath;
+	ctx.ses->db_path = dbpath; /* NULL: no usable place (udb_nowhere says why) */
 
 	status = run_actions(&ctx, &op);
 	if (op.nact == 0) {
 		if (isatty(STDIN_FILENO) && isatty(STDOUT_FILENO) && !o.json) {
 			hist = shell_history_path();
 			ctx.interactive = 1;
+			ctx.ses->wait_notice = o.errfp;
 			shell_run(&ctx, hist);
 			free(hist);
 		} else {
@@ -236,8 +246,8 @@ int main(int argc, char **argv)
 	}
 	ctx_free(&ctx);
 	refdb_close(ref);
-	free(dbpath);
 out:
+	free(dbpath);
 	status = check_stdout(&o, status);
 	free(op.acts);
 	free(op.is_expr);

@@ -1,6 +1,7 @@
 /*
  * osmotic.c - Pitzer osmotic coefficients, molarity to molality, and the
- * osmolality adjustment.  The model is stated in osmotic.h.
+ * osmolality adjustment.  The model is stated in osmotic.h; the parameter
+ * tables are read by eqdata.c.
  */
 #include "osmotic.h"
 
@@ -11,226 +12,40 @@
 
 #include "activity.h"
 #include "common.h"
+#include "eqdata.h"
 
-#define SYMLEN         32
-#define COMPLEN        32
-#define MAX_PICKS      8
 #define PITZER_B       1.2    /* Pitzer's b, (kg/mol)^1/2 */
 #define A_PHI_25C      0.3915 /* Bradley & Pitzer 1979, from memory */
 #define ADJUST_MAX_mM  5000.0 /* largest amount osm_adjust will propose */
 #define ADJUST_TOL     1e-11  /* relative tolerance on the osmolality */
 #define ADJUST_MAXIT   300
 #define MIN_WATER_FRAC 0.05 /* 1 - sum c V below this: out of the model */
+#define EST_FRAC       0.5  /* an estimated term is uncertain by +-50 % */
+#define GENERIC_B0     0.05 /* a typical 1-1 salt's beta0, beta1 (between */
+#define GENERIC_B1     0.25 /* KCl and NaCl, Pitzer & Mayorga 1973): the range */
 
-typedef struct pz_row {
-	int cat, an; /* symbol indices */
-	char salt[SYMLEN];
-	char comp[COMPLEN];
-	int is_default;
-	double b0, b1, b2, a1, a2, cphi, m_max;
-	int zc, za;
-} pz_row;
-
-struct osm_data {
-	char (*sym)[SYMLEN]; /* every symbol named in the tables */
-	double *v0_L_mol;    /* partial molar volume, L/mol; NAN if none */
-	int nsym;
-	pz_row *pz;
-	int npz;
-	int *pair; /* nsym*nsym: active row or -1 */
-	char picks[MAX_PICKS][COMPLEN];
-	int npicks;
-};
-
-static int isdigit_ascii(int c)
-{
-	return c >= '0' && c <= '9';
-}
-
-static int sym_find(const osm_data *d, const char *s)
-{
-	for (int i = 0; i < d->nsym; i++)
-		if (strcmp(d->sym[i], s) == 0)
-			return i;
-	return -1;
-}
-
-static int sym_add(osm_data *d, const char *s, int *cap)
-{
-	int i = sym_find(d, s);
-	if (i >= 0)
-		return i;
-	if (d->nsym == *cap) {
-		*cap = *cap ? 2 * *cap : 32;
-		d->sym = im_xrealloc(d->sym, (size_t)*cap * sizeof *d->sym);
-		d->v0_L_mol =
-			im_xrealloc(d->v0_L_mol, (size_t)*cap * sizeof *d->v0_L_mol);
-	}
-	snprintf(d->sym[d->nsym], SYMLEN, "%s", s);
-	d->v0_L_mol[d->nsym] = NAN;
-	return d->nsym++;
-}
-
-/* Which row each pair uses: the latest pick that covers it, else the
- * default row. */
-static void select_rows(osm_data *d)
-{
-	for (int i = 0; i < d->nsym * d->nsym; i++)
-		d->pair[i] = -1;
-	for (int r = 0; r < d->npz; r++) {
-		int k = d->pz[r].cat * d->nsym + d->pz[r].an;
-		if (d->pz[r].is_default && d->pair[k] < 0)
-			d->pair[k] = r;
-	}
-	for (int p = 0; p < d->npicks; p++)
-		for (int r = 0; r < d->npz; r++)
-			if (strcmp(d->pz[r].comp, d->picks[p]) == 0)
-				d->pair[d->pz[r].cat * d->nsym + d->pz[r].an] = r;
-}
-
-static const char *col_text(sqlite3_stmt *st, int i)
-{
-	const unsigned char *t = sqlite3_column_text(st, i);
-	return t ? (const char *)t : "";
-}
-
+/* The tables are read and picked in eqdata.c. */
 int osm_load(sqlite3 *db, osm_data **out, char *err)
 {
-	*out = NULL;
-	if (!db)
-		return im_fail(err, "osmotic: no database");
-	osm_data *d = im_xcalloc(1, sizeof *d);
-	int cap = 0, pcap = 0;
-	sqlite3_stmt *st = NULL;
-	const char *q1 =
-		"SELECT cation, anion, salt, compilation, is_default, beta0, beta1, "
-		"beta2, alpha1, alpha2, c_phi, m_max_mol_kg FROM osm_pitzer ORDER BY "
-		"cation, anion, compilation";
-	if (sqlite3_prepare_v2(db, q1, -1, &st, NULL) != SQLITE_OK) {
-		im_fail(err, "osmotic: cannot read osm_pitzer: %s", sqlite3_errmsg(db));
-		goto fail;
-	}
-	int rc;
-	while ((rc = sqlite3_step(st)) == SQLITE_ROW) {
-		if (d->npz == pcap) {
-			pcap = pcap ? 2 * pcap : 32;
-			d->pz = im_xrealloc(d->pz, (size_t)pcap * sizeof *d->pz);
-		}
-		pz_row *p = &d->pz[d->npz];
-		memset(p, 0, sizeof *p);
-		p->cat = sym_add(d, col_text(st, 0), &cap);
-		p->an = sym_add(d, col_text(st, 1), &cap);
-		snprintf(p->salt, SYMLEN, "%s", col_text(st, 2));
-		snprintf(p->comp, COMPLEN, "%s", col_text(st, 3));
-		p->is_default = sqlite3_column_int(st, 4);
-		p->b0 = sqlite3_column_double(st, 5);
-		p->b1 = sqlite3_column_double(st, 6);
-		p->b2 = sqlite3_column_double(st, 7);
-		p->a1 = sqlite3_column_double(st, 8);
-		p->a2 = sqlite3_column_double(st, 9);
-		p->cphi = sqlite3_column_double(st, 10);
-		p->m_max = sqlite3_column_double(st, 11);
-		d->npz++;
-	}
-	sqlite3_finalize(st);
-	st = NULL;
-	if (rc != SQLITE_DONE) {
-		im_fail(err, "osmotic: reading osm_pitzer: %s", sqlite3_errmsg(db));
-		goto fail;
-	}
-	const char *q2 = "SELECT symbol, v0_cm3_mol FROM osm_molar_volumes";
-	if (sqlite3_prepare_v2(db, q2, -1, &st, NULL) != SQLITE_OK) {
-		im_fail(err, "osmotic: cannot read osm_molar_volumes: %s",
-			sqlite3_errmsg(db));
-		goto fail;
-	}
-	while ((rc = sqlite3_step(st)) == SQLITE_ROW) {
-		int i = sym_add(d, col_text(st, 0), &cap);
-		d->v0_L_mol[i] = sqlite3_column_double(st, 1) / 1000.0;
-	}
-	sqlite3_finalize(st);
-	st = NULL;
-	if (rc != SQLITE_DONE) {
-		im_fail(err, "osmotic: reading osm_molar_volumes: %s",
-			sqlite3_errmsg(db));
-		goto fail;
-	}
-	/* Charges follow from the symbols' signs; the loader checks that every
-	 * pair has exactly one default row. */
-	for (int r = 0; r < d->npz; r++) {
-		pz_row *p = &d->pz[r];
-		const char *c = d->sym[p->cat], *a = d->sym[p->an];
-		size_t lc = strlen(c), la = strlen(a);
-		if (lc < 2 || la < 2 || c[lc - 1] != '+' || a[la - 1] != '-') {
-			im_fail(err,
-				"osmotic: osm_pitzer %s: '%s' '%s' are not a cation and "
-				"an anion",
-				p->salt, c, a);
-			goto fail;
-		}
-		p->zc = isdigit_ascii(c[lc - 2]) ? c[lc - 2] - '0' : 1;
-		p->za = -(isdigit_ascii(a[la - 2]) ? a[la - 2] - '0' : 1);
-		if (!(p->m_max > 0) || !isfinite(p->b0 + p->b1 + p->b2 + p->cphi)) {
-			im_fail(err, "osmotic: osm_pitzer %s: bad parameters", p->salt);
-			goto fail;
-		}
-	}
-	d->pair = im_xmalloc((size_t)(d->nsym ? d->nsym * d->nsym : 1) * sizeof *d->pair);
-	select_rows(d);
-	for (int r = 0; r < d->npz; r++) {
-		int ndef = 0;
-		for (int s = 0; s < d->npz; s++)
-			if (d->pz[s].cat == d->pz[r].cat && d->pz[s].an == d->pz[r].an)
-				ndef += d->pz[s].is_default;
-		if (ndef != 1) {
-			im_fail(err,
-				"osmotic: osm_pitzer %s: %d default rows, need exactly 1",
-				d->pz[r].salt, ndef);
-			goto fail;
-		}
-	}
-	*out = d;
-	return 0;
-fail:
-	if (st)
-		sqlite3_finalize(st);
-	osm_data_free(d);
-	return -1;
+	return eqd_load_osm(db, out, err);
 }
 
 void osm_data_free(osm_data *d)
 {
-	if (!d)
-		return;
-	free(d->sym);
-	free(d->v0_L_mol);
-	free(d->pz);
-	free(d->pair);
-	free(d);
+	eqd_free_osm(d);
 }
 
 int osm_use_compilation(osm_data *d, const char *name, char *err)
 {
-	if (!name || !*name)
-		return im_fail(err, "no compilation named");
-	if (im_strcaseeq(name, "default")) {
-		d->npicks = 0;
-		select_rows(d);
-		return 0;
-	}
-	const char *found = NULL;
-	for (int r = 0; r < d->npz && !found; r++)
-		if (im_strcaseeq(d->pz[r].comp, name))
-			found = d->pz[r].comp;
-	if (!found)
+	if (!d)
+		return im_fail(err, "osmolality: no parameter data loaded");
+	if (!name || !*name || im_strcaseeq(name, "default"))
+		return eqd_use_compilation(NULL, d, name, err);
+	const char *canon;
+	if (!eqd_osm_has_compilation(d, name, &canon))
 		return im_fail(err, "no Pitzer parameters from a compilation named '%s'",
 			       name);
-	if (d->npicks == MAX_PICKS)
-		return im_fail(err, "too many compilations picked (at most %d)",
-			       MAX_PICKS);
-	snprintf(d->picks[d->npicks++], COMPLEN, "%s", found);
-	select_rows(d);
-	return 0;
+	return eqd_use_compilation(NULL, d, name, err);
 }
 
 double osm_a_phi(double t_C)
@@ -270,12 +85,14 @@ int osm_molal(const osm_data *d, const osm_species *sp, int n, double t_C, osm_r
 	double msum = 0, I = 0, Z = 0;
 	for (int i = 0; i < n; i++) {
 		double m = sp[i].conc / 1000.0;
-		idx[i] = sp[i].z && sp[i].symbol ? sym_find(d, sp[i].symbol) : -1;
+		idx[i] = sp[i].z && sp[i].symbol ? eqd_osm_sym(d, sp[i].symbol) : -1;
 		msum += m;
 		I += 0.5 * m * sp[i].z * sp[i].z;
 		Z += m * abs(sp[i].z);
 	}
 	double sqI = sqrt(I), s = 0, prod_all = 0, prod_fb = 0;
+	double half_est = 0, up_none = 0; /* range, mol/kg (osmolality) */
+	double m_est = 0;                 /* particles with estimated terms */
 	for (int c = 0; c < n; c++) {
 		if (sp[c].z <= 0 || sp[c].conc <= 0)
 			continue;
@@ -290,6 +107,7 @@ int osm_molal(const osm_data *d, const osm_species *sp, int n, double t_C, osm_r
 			if (row < 0) {
 				prod_fb += mm;
 				r->n_fallback_pairs++;
+				up_none += 2.0 * mm * (GENERIC_B0 + GENERIC_B1 * exp(-2.0 * sqI));
 				continue;
 			}
 			const pz_row *p = &d->pz[row];
@@ -297,6 +115,8 @@ int osm_molal(const osm_data *d, const osm_species *sp, int n, double t_C, osm_r
 				   p->b2 * exp(-p->a2 * sqI);
 			double C = p->cphi / (2.0 * sqrt((double)abs(p->zc * p->za)));
 			s += mm * (B + Z * C);
+			if (p->cls == EQD_OSM_ESTIMATED)
+				half_est += EST_FRAC * fabs(2.0 * mm * (B + Z * C));
 			int g = p->zc == -p->za ? p->zc : 1; /* 1-1, 2-2: one of each */
 			double nc = -p->za / g, na = p->zc / g;
 			double Imax = 0.5 * p->m_max *
@@ -305,10 +125,49 @@ int osm_molal(const osm_data *d, const osm_species *sp, int n, double t_C, osm_r
 				r->over_range = 1;
 		}
 	}
+	/* neutral solutes' own terms; the shares of particles without
+	 * published data (estimated salts, pairs without rows) */
+	double neu = 0;
+	for (int i = 0; i < n; i++) {
+		double m = sp[i].conc / 1000.0;
+		if (sp[i].z == 0 && sp[i].symbol && m > 0) {
+			int k = eqd_osm_sym(d, sp[i].symbol);
+			for (int j = 0; k >= 0 && j < d->nnz; j++)
+				if (d->nz[j].sym == k) {
+					double t = d->nz[j].lambda * m * m + d->nz[j].mu * m * m * m;
+					neu += t;
+					if (d->nz[j].cls == EQD_OSM_ESTIMATED) {
+						half_est += EST_FRAC * fabs(t);
+						m_est += m;
+					}
+					if (m > d->nz[j].m_max)
+						r->over_range = 1;
+				}
+			continue;
+		}
+		if (sp[i].z == 0 || m <= 0)
+			continue;
+		/* an ion counts as estimated when a pair it forms with a
+		 * counter-ion present is estimated or missing */
+		int est = 0;
+		for (int j = 0; j < n && !est; j++) {
+			if (sp[j].z == 0 || (sp[j].z > 0) == (sp[i].z > 0) || !(sp[j].conc > 0))
+				continue;
+			int c = sp[i].z > 0 ? i : j, a = sp[i].z > 0 ? j : i;
+			int row = idx[c] >= 0 && idx[a] >= 0 ? d->pair[idx[c] * d->nsym + idx[a]]
+							     : -1;
+			est = row < 0 || d->pz[row].cls == EQD_OSM_ESTIMATED;
+		}
+		if (est)
+			m_est += m;
+	}
 	if (idx != idx_buf)
 		free(idx);
 	double f = -osm_a_phi(t_C) * I * sqI / (1.0 + PITZER_B * sqI);
-	r->phi = msum > 0 ? 1.0 + 2.0 / msum * (f + s) : 1.0;
+	r->phi = msum > 0 ? 1.0 + (2.0 * (f + s) + neu) / msum : 1.0;
+	r->osmolality_lo_mOsm_kg = (r->phi * msum - half_est) * 1000.0;
+	r->osmolality_hi_mOsm_kg = (r->phi * msum + half_est + up_none) * 1000.0;
+	r->estimated_frac = msum > 0 ? m_est / msum : 0.0;
 	r->molality_sum_mmol_kg = msum * 1000.0;
 	r->osmolality_mOsm_kg = r->phi * msum * 1000.0;
 	r->ionic_strength_mmol_kg = I * 1000.0;
@@ -330,7 +189,7 @@ int osm_to_molal(const osm_data *d, const osm_species *sp, int n, double t_C,
 		return -1;
 	double cv = 0;
 	for (int i = 0; i < n; i++) {
-		int k = sp[i].symbol ? sym_find(d, sp[i].symbol) : -1;
+		int k = sp[i].symbol ? eqd_osm_sym(d, sp[i].symbol) : -1;
 		double v = k >= 0 ? d->v0_L_mol[k] : NAN;
 		if (isfinite(v))
 			cv += sp[i].conc / 1000.0 * v;
@@ -363,7 +222,7 @@ int osm_molar(const osm_data *d, const osm_species *sp, int n, double t_C, osm_r
 			m[i] = sp[i];
 			m[i].conc = mm[i];
 			ideal += sp[i].conc;
-			int k = sp[i].symbol ? sym_find(d, sp[i].symbol) : -1;
+			int k = sp[i].symbol ? eqd_osm_sym(d, sp[i].symbol) : -1;
 			nov += !(k >= 0 && isfinite(d->v0_L_mol[k])) && sp[i].conc > 0;
 		}
 		rc = osm_molal(d, m, n, t_C, r, err);
@@ -522,4 +381,30 @@ int osm_adjust(const osm_data *d, const osm_species *sp, int n, double t_C,
 	}
 	free(a.tmp);
 	return rc;
+}
+
+int osm_target_solve(osm_eval_fn eval, void *ctx, double target_mOsm_kg,
+		     double f0_mOsm_kg, double guess_mM, double *add_mM,
+		     double *after_mOsm_kg, char *err)
+{
+	double a0 = 0, f0 = f0_mOsm_kg - target_mOsm_kg, a1 = guess_mM, f1, after = NAN;
+	if (!isfinite(target_mOsm_kg) || !isfinite(guess_mM) || guess_mM < 0)
+		return im_fail(err, "osmolality target solve: bad start");
+	for (int it = 0; it < 20; it++) {
+		if (eval(ctx, a1, &after, err))
+			return -1;
+		f1 = after - target_mOsm_kg;
+		if (fabs(f1) < 1e-6 || f1 == f0)
+			break;
+		double a2 = a1 - f1 * (a1 - a0) / (f1 - f0);
+		a0 = a1;
+		f0 = f1;
+		a1 = a2 > 0 ? a2 : a1 / 2;
+	}
+	/* the caller's state holds the last point evaluated: make it a1 */
+	if (a1 != a0 && !(fabs(after - target_mOsm_kg) < 1e-6) && eval(ctx, a1, &after, err))
+		return -1;
+	*add_mM = a1;
+	*after_mOsm_kg = after;
+	return 0;
 }

@@ -5,7 +5,7 @@
  *
  * Model (all of it stated, so that a result can be judged):
  *  - Pitzer's equation for the osmotic coefficient of a mixture with the
- *    binary (single-salt) terms only: theta, psi and every neutral-solute
+ *    binary (single-salt) terms only: theta, psi and the solute-ion
  *    lambda are 0.  With m in mol/kg, I = 1/2 sum m z^2, Z = sum m |z|,
  *      phi - 1 = (2 / sum_i m_i) [ -A_phi I^1.5 / (1 + b sqrt I)
  *                + sum_c sum_a m_c m_a (B_ca^phi + Z C_ca) ],
@@ -13,10 +13,22 @@
  *      C_ca = C^phi_ca / (2 sqrt |z_c z_a|),  b = 1.2,
  *    where sum_i runs over every solute (neutral ones included), and the
  *    parameters (25 C) come from table osm_pitzer (data/equilibria.sql).
- *  - A cation-anion pair without parameters (K+ gluconate-, complexes,
- *    buffer ions) gets beta = C = 0: only the Debye-Hueckel term acts for
- *    it.  The result says how much of the ion-pair sum fell back so.
- *  - Neutral solutes have osmotic coefficient 1 (no lambda terms).
+ *  - A cation-anion pair without parameters (complexes, nucleotides)
+ *    gets beta = C = 0: only the Debye-Hueckel term acts for it.  The
+ *    result says how much of the ion-pair sum fell back so.
+ *  - Neutral solutes: a solute n with a row in osm_neutral adds
+ *    lambda_n m_n^2 + mu_n m_n^3 to (phi - 1) sum_i m_i (its own
+ *    non-ideality; sucrose, glucose, mannitol); solute-ion terms are 0 and
+ *    solutes without a row are ideal.
+ *  - Organic salts without a published fit carry the parameters of an
+ *    analogue salt (class 'estimated' in osm_pitzer).
+ *  - Range: osmolality_lo/hi_mOsm_kg bound the result by a stated, linear
+ *    (worst-case) propagation: an estimated salt's own term
+ *    2 m_c m_a (B + Z C) and an estimated solute's lambda/mu term count
+ *    +-50 %; a cation-anion pair without any row (Debye-Hueckel alone in
+ *    the central value) may add up to the term of a typical 1-1 salt,
+ *    2 m_c m_a (0.05 + 0.25 exp(-2 sqrt I)) (between the KCl and NaCl
+ *    values of Pitzer & Mayorga 1973), so the range extends upward by it.
  *  - Parameters are 25 C values at any temperature; A_phi follows the
  *    temperature: A_phi(t) = 0.3915 * A(t) / A(25 C), with 0.3915 at 25 C
  *    (Bradley D.J. & Pitzer K.S. (1979) J Phys Chem 83:1599, from memory)
@@ -76,6 +88,10 @@ typedef struct osm_result {
 	int n_fallback_pairs; /* cation-anion pairs present without parameters */
 	int n_no_volume;      /* species counted with V = 0 */
 	int over_range;       /* 1: a salt's ions exceed its fit's m_max */
+	/* the range the data allow (see the model above), and the share of
+	 * the solute particles whose own terms are estimated or missing */
+	double osmolality_lo_mOsm_kg, osmolality_hi_mOsm_kg;
+	double estimated_frac;
 } osm_result;
 
 /* Osmotic coefficient and osmolality of n species given in mmol/kg water. */
@@ -112,5 +128,16 @@ typedef struct osm_adjust_result {
 int osm_adjust(const osm_data *d, const osm_species *sp, int n, double t_C,
 	       double target_mOsm_kg, const osm_species *add, int nadd,
 	       osm_adjust_result *r, char *err);
+
+/* The amount to add so that a full forward computation reaches a target:
+ * eval(ctx, x, &osm, err) gives the osmolality (mOsm/kg) with x mM added
+ * (x >= 0; with all reactions, as `show` computes it); f0_mOsm_kg is its
+ * value at x = 0 and guess_mM a first estimate (osm_adjust's).  Secant
+ * steps, kept at x > 0, until within 1e-6 mOsm/kg or 20 steps; *add_mM and
+ * *after_mOsm_kg get the last point.  -1 when eval fails. */
+typedef int (*osm_eval_fn)(void *ctx, double add_mM, double *osm_mOsm_kg, char *err);
+int osm_target_solve(osm_eval_fn eval, void *ctx, double target_mOsm_kg,
+		     double f0_mOsm_kg, double guess_mM, double *add_mM,
+		     double *after_mOsm_kg, char *err);
 
 #endif

@@ -65,6 +65,41 @@ static int utf8_len(const unsigned char *p)
 	return need + 1;
 }
 
+char *out_clip(char *buf, size_t size, const char *s)
+{
+	size_t n = strlen(s), keep;
+	if (n < size) {
+		memcpy(buf, s, n + 1);
+		return buf;
+	}
+	keep = size - 4;
+	/* back off continuation bytes so the cut falls between characters */
+	while (keep > 0 && ((unsigned char)s[keep] & 0xc0) == 0x80)
+		keep--;
+	memcpy(buf, s, keep);
+	memcpy(buf + keep, "...", 4);
+	return buf;
+}
+
+void out_text_escaped(FILE *fp, const char *msg)
+{
+	for (const unsigned char *p = (const unsigned char *)msg; *p; p++) {
+		if (*p >= 0x80) {
+			int k = utf8_len(p);
+			if (k == 0) {
+				fprintf(fp, "\\x%02x", *p);
+				continue;
+			}
+			fwrite(p, 1, (size_t)k, fp);
+			p += k - 1;
+		} else if ((*p < 0x20 && *p != '\t') || *p == 0x7f) {
+			fprintf(fp, "\\x%02x", *p);
+		} else {
+			fputc(*p, fp);
+		}
+	}
+}
+
 /* JSON text must be UTF-8 (RFC 8259, section 8.1): bytes that are not,
  * such as a name typed in another encoding and echoed in a message, are
  * written as U+FFFD, the replacement character. */
@@ -115,10 +150,13 @@ void out_error(out *o, const char *file, int line, const char *msg)
 		return;
 	}
 	fflush(o->fp);
-	if (file)
-		fprintf(o->errfp, "ionmix: %s:%d: %s\n", file, line, msg);
-	else
-		fprintf(o->errfp, "ionmix: %s\n", msg);
+	fputs("ionmix: ", o->errfp);
+	if (file) {
+		out_text_escaped(o->errfp, file);
+		fprintf(o->errfp, ":%d: ", line);
+	}
+	out_text_escaped(o->errfp, msg);
+	fputc('\n', o->errfp);
 	fflush(o->errfp);
 }
 

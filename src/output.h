@@ -52,6 +52,16 @@ void jw_obj(jw *w, const char *key);   /* opens a nested object */
 void jw_arr(jw *w, const char *key);   /* opens a nested array */
 void jw_close(jw *w);                  /* closes the innermost object/array */
 
+/* Copy s into buf (size > 4) for a message: cut, when it does not fit,
+ * at a UTF-8 character boundary with "..." after it, never inside a
+ * character.  Returns buf. */
+char *out_clip(char *buf, size_t size, const char *s);
+
+/* Write msg for a terminal: valid UTF-8 and tabs as they are, every other
+ * control byte and every byte that is not part of valid UTF-8 as \xNN
+ * (so a name typed in another encoding never reaches the terminal raw). */
+void out_text_escaped(FILE *fp, const char *msg);
+
 /* Write s as a JSON string literal (with quotes) to fp. */
 void out_json_string(FILE *fp, const char *s);
 

@@ -58,7 +58,8 @@ static int prepare(const plot_curve *c, int nc, const plot_opts *o, int yticks,
 		return im_fail(err, "nothing to plot");
 	if (nc > PLOT_MAX_CURVES)
 		return im_fail(err, "at most %d curves in one plot", PLOT_MAX_CURVES);
-	double xlo = INFINITY, xhi = -INFINITY, ylo = 0.0, yhi = 0.0;
+	double xlo = INFINITY, xhi = -INFINITY;
+	double ylo = o->y_free ? INFINITY : 0.0, yhi = o->y_free ? -INFINITY : 0.0;
 	for (int i = 0; i < nc; i++) {
 		const char *s = cname(&c[i], i, b, sizeof b);
 		if (!c[i].x || !c[i].y || c[i].n < 2)
@@ -80,13 +81,20 @@ static int prepare(const plot_curve *c, int nc, const plot_opts *o, int yticks,
 				yhi = y;
 		}
 	}
-	if (!(xhi > xlo))
-		return im_fail(err, "the x values span no range");
+	if (!(xhi - xlo > 1e-9 * fmax(fabs(xlo), fabs(xhi))))
+		return im_fail(err, "the x values span no range (or too narrow a "
+			       "one to plot)");
 	if (o->has_mark && !isfinite(o->mark_x))
 		return im_fail(err, "the mark is not a finite number");
-	if (!(yhi > ylo)) {   /* all zero */
-		ylo = -1.0;
-		yhi = 1.0;
+	if (o->nnotes < 0 || o->nnotes > PLOT_MAX_NOTES || (o->nnotes && !o->notes))
+		return im_fail(err, "at most %d notes under the legend", PLOT_MAX_NOTES);
+	double mag = fmax(fabs(ylo), fabs(yhi));
+	if (!(yhi - ylo > 1e-6 * mag)) {
+		/* a constant, or changes below 1e-6 of the value (rounding,
+		 * not a trend): a small range about the middle */
+		double mid = 0.5 * (ylo + yhi), d = mag > 0 ? 0.05 * mag : 1.0;
+		ylo = o->y_free ? mid - d : fmin(ylo, -d);
+		yhi = o->y_free ? mid + d : fmax(yhi, d);
 	}
 	if (!isfinite(yhi - ylo))
 		return im_fail(err, "the y values span too wide a range");
@@ -187,6 +195,11 @@ static unsigned braille_bit(int sc, int sr)
 	return bits[sc][sr];
 }
 
+static int clampi(int v, int lo, int hi)
+{
+	return v < lo ? lo : v > hi ? hi : v;
+}
+
 /* The vertical scale works in braille sub-rows (4 a row, 0 at the top):
  * y = 0 falls on the middle of row zrow (sub-row position 4 zrow + 2), and
  * spu sub-rows a y unit is the largest scale that fits both extremes. */
@@ -195,13 +208,26 @@ typedef struct canvas {
 	unsigned *cp;          /* W*H code points; 0 = blank */
 	unsigned char *dots;   /* W*H braille bits of curve 0 */
 	const layout *L;
-	int zrow;
+	int zrow;              /* row of the zero line; -1: out of range */
 	double spu;
+	double base, ref;      /* y = ref falls on sub-row position base */
 } canvas;
 
-static void vscale(canvas *cv)
+static void vscale(canvas *cv, int y_free)
 {
 	double best = -1;
+	if (y_free) {   /* the range fills the rows; zero only if inside it */
+		cv->ref = cv->L->ylo;
+		cv->base = 4.0 * cv->H - 0.5;
+		cv->spu = (4.0 * cv->H - 1) / (cv->L->yhi - cv->L->ylo);
+		cv->zrow = -1;
+		if (cv->L->ylo <= 0 && cv->L->yhi >= 0) {
+			double s = cv->base + cv->ref * cv->spu;
+			cv->zrow = clampi((int)floor(s), 0, 4 * cv->H - 1) / 4;
+		}
+		return;
+	}
+	cv->ref = 0.0;
 	for (int z = 0; z < cv->H; z++) {
 		double up = 4.0 * z + 2, down = 4.0 * cv->H - up;
 		double s = INFINITY;
@@ -215,17 +241,13 @@ static void vscale(canvas *cv)
 		}
 	}
 	cv->spu = best;
-}
-
-static int clampi(int v, int lo, int hi)
-{
-	return v < lo ? lo : v > hi ? hi : v;
+	cv->base = 4.0 * cv->zrow + 2;
 }
 
 /* Sub-row (0 .. 4H-1) of y. */
 static int subrow_of(const canvas *cv, double y)
 {
-	double s = 4.0 * cv->zrow + 2 - y * cv->spu;
+	double s = cv->base - (y - cv->ref) * cv->spu;
 	return clampi((int)floor(s), 0, 4 * cv->H - 1);
 }
 
@@ -283,8 +305,8 @@ int plot_term(FILE *fp, const plot_curve *c, int nc, const plot_opts *o,
 	if (prepare(c, nc, o, yt < 3 ? 3 : yt, xt < 3 ? 3 : xt, &L, err))
 		return -1;
 	int u = o->utf8;
-	canvas cv = {o->width, o->height, NULL, NULL, &L, 0, 0};
-	vscale(&cv);
+	canvas cv = {o->width, o->height, NULL, NULL, &L, 0, 0, 0, 0};
+	vscale(&cv, o->y_free);
 	cv.cp = im_xcalloc((size_t)cv.W * cv.H, sizeof *cv.cp);
 	cv.dots = im_xcalloc((size_t)cv.W * cv.H, 1);
 
@@ -292,7 +314,7 @@ int plot_term(FILE *fp, const plot_curve *c, int nc, const plot_opts *o,
 	int zrow = cv.zrow;
 	int mark_in = o->has_mark && o->mark_x >= L.xlo && o->mark_x <= L.xhi;
 	int mcol = mark_in ? col_of(&cv, o->mark_x, 1) : -1;
-	for (int k = 0; k < cv.W; k++)
+	for (int k = 0; zrow >= 0 && k < cv.W; k++)
 		cv.cp[zrow * cv.W + k] = u ? U_H : '-';
 	if (mark_in)
 		for (int r = 0; r < cv.H; r++)
@@ -399,6 +421,10 @@ int plot_term(FILE *fp, const plot_curve *c, int nc, const plot_opts *o,
 			mark_in ? "" : " (outside the plot)");
 	}
 	fputc('\n', fp);
+	for (int i = 0; i < o->nnotes; i++) {
+		spaces(fp, M + 1);
+		fprintf(fp, "%s\n", o->notes[i] ? o->notes[i] : "");
+	}
 	free(cv.cp);
 	free(cv.dots);
 	if (ferror(fp))
@@ -466,7 +492,7 @@ int plot_svg(FILE *fp, const plot_curve *c, int nc, const plot_opts *o,
 	if (prepare(c, nc, o, 6, 8, &L, err))
 		return -1;
 	double W = o->svg_w, H = o->svg_h;
-	double left = 80, right = 170, top = o->title ? 46 : 26, bottom = 62;
+	double left = 80, right = o->nnotes ? 230 : 170, top = o->title ? 46 : 26, bottom = 62;
 	double pw = W - left - right, ph = H - top - bottom;
 #define PX(x) (left + ((x) - L.xlo) / (L.xhi - L.xlo) * pw)
 #define PY(y) (top + (L.yhi - (y)) / (L.yhi - L.ylo) * ph)
@@ -533,8 +559,9 @@ int plot_svg(FILE *fp, const plot_curve *c, int nc, const plot_opts *o,
 		xml_text(fp, o->y_label);
 		fputs("</text>\n", fp);
 	}
-	/* zero-current line */
-	fprintf(fp, "<line x1=\"%.2f\" y1=\"%.2f\" x2=\"%.2f\" y2=\"%.2f\" "
+	/* zero line, where it falls in range */
+	if (L.ylo <= 0 && L.yhi >= 0)
+		fprintf(fp, "<line x1=\"%.2f\" y1=\"%.2f\" x2=\"%.2f\" y2=\"%.2f\" "
 		"stroke=\"#333333\" stroke-width=\"1.2\"/>\n", left, PY(0.0),
 		left + pw, PY(0.0));
 	/* the mark */
@@ -585,6 +612,15 @@ int plot_svg(FILE *fp, const plot_curve *c, int nc, const plot_opts *o,
 		xml_text(fp, o->mark_label ? o->mark_label : "mark");
 		if (!mark_in)
 			fputs(" (outside the plot)", fp);
+		fputs("</text>\n", fp);
+		ly += 22;
+	}
+	/* the conditions, smaller, under the legend */
+	ly += 4;
+	for (int i = 0; i < o->nnotes; i++, ly += 16) {
+		fprintf(fp, "<text x=\"%.2f\" y=\"%.2f\" font-size=\"11\" "
+			"fill=\"#333333\">", lx, ly);
+		xml_text(fp, o->notes[i]);
 		fputs("</text>\n", fp);
 	}
 	fputs("</svg>\n", fp);

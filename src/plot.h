@@ -2,9 +2,11 @@
  * plot.h - plots of curves y(x): a terminal plot and a standalone SVG file.
  *
  * Written for current-voltage curves (x = membrane potential in mV,
- * y = current, outward positive) but knows nothing of physics: the y axis
- * points up, so negative (inward) values are drawn below the zero line,
- * which is always in range and always drawn.  Output goes to a FILE* the
+ * y = current, outward positive) and sweeps (x = an amount or a
+ * temperature, y = what follows it) but knows nothing of physics: the y
+ * axis points up, so negative (inward) values are drawn below the zero
+ * line, which is in range and drawn unless o->y_free lets the range fit
+ * the data alone.  Output goes to a FILE* the
  * caller owns and opened; no global state.  Labels are UTF-8 text; the SVG
  * escapes them.  Functions return 0, or -1 with a one-line message in the
  * caller's err[IM_ERRLEN] (bad input, or a write error on fp).
@@ -38,9 +40,19 @@ typedef struct plot_opts {
 	int has_mark;        /* 1: a dashed vertical line at x = mark_x ... */
 	double mark_x;
 	const char *mark_label; /* ... labelled, e.g. "E_rev -58.2 mV" */
+	int y_free;          /* 1: the y range fits the data and need not hold 0
+			      * (pH, osmolality); the zero line is drawn only
+			      * where it falls in range.  0: 0 always in range */
+	const char *const *notes; /* nnotes lines under the legend (the
+			      * conditions: solutions, temperature,
+			      * permeabilities); borrowed, may be NULL */
+	int nnotes;
 } plot_opts;
 
-/* Defaults: 64 x 20 cells, 760 x 460 px, ASCII, no title or mark. */
+#define PLOT_MAX_NOTES 24
+
+/* Defaults: 64 x 20 cells, 760 x 460 px, ASCII, no title, mark or notes,
+ * zero always in the y range. */
 void plot_opts_init(plot_opts *o);
 
 /* Terminal plot of nc curves.  Curve 0 is drawn with braille dots when

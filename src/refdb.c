@@ -1,6 +1,8 @@
 /*
- * refdb.c - load the embedded reference SQL into an in-memory SQLite
- * database and copy ions, compounds, aliases and sources into arrays.
+ * refdb.c - the reference data: at start the C tables generated at build
+ * time (reftab.h), with no SQL; the embedded SQLite image opened only
+ * when a caller asks for it (refdb_sqlite); and, for the build's table
+ * generator and the tests, the same arrays read from SQL.
  */
 #include "refdb.h"
 
@@ -11,6 +13,7 @@
 #include <strings.h>
 
 #include "common.h"
+#include "reftab.h"
 
 /* build/gen/refdata.c (src/tools/embed.c): the SQL text of data/ and the
  * database it builds, serialized */
@@ -19,10 +22,7 @@ extern const size_t im_refdata_sql_text_len;
 extern const unsigned char im_refdata_image[];
 extern const size_t im_refdata_image_len;
 
-typedef struct alias {
-	char *alias;
-	const rd_compound *c;
-} alias;
+typedef rd_alias alias;
 
 struct refdb {
 	sqlite3 *db;
@@ -35,6 +35,10 @@ struct refdb {
 	int ncmp;
 	alias *al;
 	int nal;
+	const rd_name *names; /* compounds and aliases by strcasecmp of name */
+	int nnames;
+	rd_name *own_names;   /* names, when built here (SQL path); owned */
+	int builtin;          /* 1: the arrays are the generated tables */
 	char **strings; /* every string the arrays point to */
 	int nstr, capstr;
 };
@@ -106,13 +110,26 @@ static int load_sources(refdb *r, char *err)
 
 static void load_derived(refdb *r);
 
+/* The mobility_class column as RD_MOB_*. */
+static int mob_class(const unsigned char *s)
+{
+	if (!s)
+		return RD_MOB_NONE;
+	if (strcmp((const char *)s, "measured") == 0)
+		return RD_MOB_MEASURED;
+	if (strcmp((const char *)s, "from-memory") == 0)
+		return RD_MOB_MEMORY;
+	return RD_MOB_ESTIMATED;
+}
+
 static int load_ions(refdb *r, char *err)
 {
 	sqlite3_stmt *st;
 	r->nion = count_rows(r->db, "ions");
 	r->ion = im_xcalloc(r->nion, sizeof *r->ion);
 	if (prep(r, "SELECT symbol, name, charge, lambda_S_cm2_eq, diffusion_1e9_m2_s,"
-		    " mobility_source, kielland_a_pm, size_source FROM ions"
+		    " mobility_source, kielland_a_pm, size_source, formula, mass_g_mol,"
+		    " mobility_class, mobility_rel_unc FROM ions"
 		    " ORDER BY symbol", &st, err))
 		return -1;
 	for (int i = 0; i < r->nion && sqlite3_step(st) == SQLITE_ROW; i++) {
@@ -125,6 +142,10 @@ static int load_ions(refdb *r, char *err)
 		x->mobility_source = src_by_id(r, sqlite3_column_text(st, 5));
 		x->kielland_a_pm = col_num(st, 6);
 		x->size_source = src_by_id(r, sqlite3_column_text(st, 7));
+		x->formula = keep(r, sqlite3_column_text(st, 8));
+		x->mass_g_mol = col_num(st, 9);
+		x->mobility_class = mob_class(sqlite3_column_text(st, 10));
+		x->mobility_rel_unc = col_num(st, 11);
 	}
 	sqlite3_finalize(st);
 	r->nion_sorted = r->nion;
@@ -134,18 +155,29 @@ static int load_ions(refdb *r, char *err)
 
 /* Species the equilibria tables can produce (protonation states, metal
  * complexes) that the ions table does not list: they join the ion array
- * with their charge and no mobility or size, so that every species a
- * solution holds after speciation is an rd_ion.  Nothing happens when the
+ * with their charge, no mobility or size, and the molar mass of their
+ * parts (species_parts; NAN when a part is missing), so that every species
+ * a solution holds after speciation is an rd_ion and ljp.c can estimate
+ * its mobility.  Nothing happens when the
  * equilibria tables are absent. */
 static const char derived_sql[] =
-	"SELECT symbol, charge FROM eq_ligand_states"
-	" WHERE symbol NOT IN (SELECT symbol FROM ions)"
+	"SELECT s.symbol, s.charge, l.mass_g_mol + s.n_h * h.mass_g_mol"
+	" FROM eq_ligand_states s"
+	" LEFT JOIN species_parts l ON l.part = s.ligand"
+	" LEFT JOIN species_parts h ON h.part = 'H'"
+	" WHERE s.symbol NOT IN (SELECT symbol FROM ions)"
 	" UNION "
 	"SELECT c.symbol, m.charge * (CASE c.kind WHEN 'M2L' THEN 2 ELSE 1 END)"
 	" + l.base_charge * (CASE c.kind WHEN 'ML2' THEN 2 ELSE 1 END)"
-	" + (CASE c.kind WHEN 'MHL' THEN 1 ELSE 0 END)"
+	" + (CASE c.kind WHEN 'MHL' THEN 1 ELSE 0 END),"
+	" pm.mass_g_mol * (CASE c.kind WHEN 'M2L' THEN 2 ELSE 1 END)"
+	" + pl.mass_g_mol * (CASE c.kind WHEN 'ML2' THEN 2 ELSE 1 END)"
+	" + (CASE c.kind WHEN 'MHL' THEN h.mass_g_mol ELSE 0 END)"
 	" FROM eq_complexes c JOIN eq_metals m ON m.symbol = c.metal"
 	" JOIN eq_ligands l ON l.name = c.ligand"
+	" LEFT JOIN species_parts pm ON pm.part = c.metal"
+	" LEFT JOIN species_parts pl ON pl.part = c.ligand"
+	" LEFT JOIN species_parts h ON h.part = 'H'"
 	" WHERE c.symbol NOT IN (SELECT symbol FROM ions)"
 	" ORDER BY 1";
 
@@ -162,9 +194,11 @@ static void load_derived(refdb *r)
 		x = &r->ion[r->nion++];
 		memset(x, 0, sizeof *x);
 		x->symbol = keep(r, sqlite3_column_text(st, 0));
-		x->name = "product of speciation (no mobility or size in the data)";
+		x->name = "product of speciation (mobility estimated from its molar mass)";
 		x->z = sqlite3_column_int(st, 1);
 		x->lambda_S_cm2_eq = x->D_1e9_m2_s = x->kielland_a_pm = NAN;
+		x->mass_g_mol = col_num(st, 2);
+		x->mobility_rel_unc = NAN;
 		x->derived = 1;
 	}
 	sqlite3_finalize(st);
@@ -284,10 +318,57 @@ static int load_db(refdb *r, const char *sql, char *err)
 	return 0;
 }
 
+static int name_cmp(const void *a, const void *b)
+{
+	const rd_name *x = a, *y = b;
+	int c = strcasecmp(x->name, y->name);
+	if (c)
+		return c;
+	if (x->canonical != y->canonical)
+		return y->canonical - x->canonical; /* the canonical name first */
+	return strcmp(x->name, y->name);
+}
+
+/* The sorted name index of the SQL path (the tables bring their own). */
+static void build_names(refdb *r)
+{
+	r->own_names = im_xcalloc((size_t)(r->ncmp + r->nal + 1), sizeof *r->own_names);
+	for (int i = 0; i < r->ncmp; i++)
+		r->own_names[r->nnames++] = (rd_name){r->cmp[i].name, &r->cmp[i], 1};
+	for (int i = 0; i < r->nal; i++)
+		if (r->al[i].c)
+			r->own_names[r->nnames++] = (rd_name){r->al[i].alias, r->al[i].c, 0};
+	qsort(r->own_names, r->nnames, sizeof *r->own_names, name_cmp);
+	r->names = r->own_names;
+}
+
+#ifdef IM_NO_TABLES
+/* the build's table generator (src/tools/refdump.c): from the image */
 int refdb_open(refdb **out, char *err)
 {
 	return refdb_open_sql(out, NULL, err);
 }
+#else
+int refdb_open(refdb **out, char *err)
+{
+	refdb *r = im_xcalloc(1, sizeof *r);
+	(void)err;
+	r->builtin = 1;
+	r->src = im_tab_src;
+	r->nsrc = im_tab_nsrc;
+	r->ion = im_tab_ion;
+	r->nion = im_tab_nion;
+	r->nion_sorted = im_tab_nion_sorted;
+	r->cmp = im_tab_cmp;
+	r->ncmp = im_tab_ncmp;
+	r->al = im_tab_al;
+	r->nal = im_tab_nal;
+	r->names = im_tab_names;
+	r->nnames = im_tab_nnames;
+	*out = r;
+	return 0;
+}
+#endif
 
 int refdb_open_sql(refdb **out, const char *sql, char *err)
 {
@@ -301,6 +382,7 @@ int refdb_open_sql(refdb **out, const char *sql, char *err)
 		refdb_close(r);
 		return -1;
 	}
+	build_names(r);
 	*out = r;
 	return 0;
 }
@@ -309,6 +391,12 @@ void refdb_close(refdb *r)
 {
 	if (!r)
 		return;
+	sqlite3_close(r->db);
+	if (r->builtin) {
+		free(r);
+		return;
+	}
+	free(r->own_names);
 	for (int i = 0; i < r->ncmp; i++)
 		free((void *)r->cmp[i].yields);
 	for (int i = 0; i < r->nstr; i++)
@@ -318,12 +406,20 @@ void refdb_close(refdb *r)
 	free(r->ion);
 	free(r->cmp);
 	free(r->al);
-	sqlite3_close(r->db);
 	free(r);
 }
 
 sqlite3 *refdb_sqlite(const refdb *r)
 {
+	char err[IM_ERRLEN];
+	if (!r->db && r->builtin) {
+		/* the image, opened on first use; r was allocated writable */
+		refdb *w = (refdb *)r;
+		if (load_db(w, NULL, err)) {
+			sqlite3_close(w->db);
+			w->db = NULL;
+		}
+	}
 	return r->db;
 }
 
@@ -348,15 +444,29 @@ static int normalise(const char *name, char *buf, size_t n)
 const rd_compound *refdb_compound(const refdb *r, const char *name)
 {
 	char buf[128];
+	const rd_compound *alias_hit = NULL;
+	int lo = 0, hi = r->nnames - 1, first = -1;
 	if (!normalise(name, buf, sizeof buf))
 		return NULL;
-	for (int i = 0; i < r->ncmp; i++)
-		if (im_strcaseeq(r->cmp[i].name, buf))
-			return &r->cmp[i];
-	for (int i = 0; i < r->nal; i++)
-		if (im_strcaseeq(r->al[i].alias, buf))
-			return r->al[i].c;
-	return NULL;
+	while (lo <= hi) { /* the first entry equal to buf, ignoring case */
+		int mid = lo + (hi - lo) / 2, c = strcasecmp(r->names[mid].name, buf);
+		if (c >= 0) {
+			if (c == 0)
+				first = mid;
+			hi = mid - 1;
+		} else {
+			lo = mid + 1;
+		}
+	}
+	/* a canonical name wins over an alias that spells the same */
+	for (int i = first; i >= 0 && i < r->nnames && strcasecmp(r->names[i].name, buf) == 0;
+	     i++) {
+		if (r->names[i].canonical)
+			return r->names[i].c;
+		if (!alias_hit)
+			alias_hit = r->names[i].c;
+	}
+	return alias_hit;
 }
 
 /* Length of sym without its charge suffix ('Ca2+' -> 2, 'SO4^2-' -> 3). */
@@ -478,4 +588,7 @@ const rd_compound *refdb_compound_at(const refdb *r, int i) { return &r->cmp[i];
 int refdb_nions(const refdb *r) { return r->nion; }
 const rd_ion *refdb_ion_at(const refdb *r, int i) { return &r->ion[i]; }
 int refdb_naliases(const refdb *r) { return r->nal; }
+int refdb_nsources(const refdb *r) { return r->nsrc; }
+const rd_source *refdb_source_at(const refdb *r, int i) { return &r->src[i]; }
+const rd_compound *refdb_alias_compound(const refdb *r, int i) { return r->al[i].c; }
 const char *refdb_alias_at(const refdb *r, int i) { return r->al[i].alias; }

@@ -21,6 +21,9 @@ typedef struct rd_source {
 	int from_memory;     /* 1: a published value recalled, not looked up */
 } rd_source;
 
+/* Uncertainty class of an ion's mobility (column mobility_class). */
+enum { RD_MOB_NONE = 0, RD_MOB_MEASURED, RD_MOB_MEMORY, RD_MOB_ESTIMATED };
+
 typedef struct rd_ion {
 	const char *symbol;  /* 'K+', 'Ca2+', 'SO4^2-', 'glucose' */
 	const char *name;
@@ -32,6 +35,12 @@ typedef struct rd_ion {
 	const rd_source *size_source;
 	int derived;         /* 1: a product of speciation (complex, protonation
 			      * state) not in the ions table */
+	const char *formula; /* the species' formula, charge left off; NULL if not given */
+	double mass_g_mol;   /* molar mass, g/mol (for a derived species the sum of
+			      * its parts, data/mobility.sql); NAN if unknown */
+	int mobility_class;  /* RD_MOB_*; RD_MOB_NONE when no mobility is stored
+			      * (ljp.c then estimates one from the mass) */
+	double mobility_rel_unc; /* relative uncertainty of the stored mobility; NAN if none */
 } rd_ion;
 
 typedef struct rd_yield {
@@ -54,8 +63,9 @@ typedef struct rd_compound {
 
 typedef struct refdb refdb;
 
-/* Load the embedded reference data.  On failure returns -1 with a message
- * in err and *out == NULL.  The caller owns the refdb (refdb_close). */
+/* The reference data built into the program (C tables generated at build
+ * time from data/ SQL files: no SQL runs).  Returns 0 (err is kept for the
+ * interface).  The caller owns the refdb (refdb_close). */
 int refdb_open(refdb **out, char *err);
 void refdb_close(refdb *db);
 /* The same from SQL text instead of the embedded image (sql NULL: the
@@ -64,7 +74,8 @@ int refdb_open_sql(refdb **out, const char *sql, char *err);
 /* The embedded SQL text of data/, NUL-terminated. */
 const char *refdb_sql_text(void);
 
-/* The in-memory SQLite handle, owned by the refdb. */
+/* The in-memory SQLite handle, owned by the refdb: for a refdb_open one
+ * the embedded image, opened on the first call (NULL if it cannot be). */
 sqlite3 *refdb_sqlite(const refdb *db);
 
 /* Look up a compound by canonical name or alias, ASCII case-insensitive;
@@ -92,5 +103,10 @@ const rd_ion *refdb_ion_at(const refdb *db, int i);
 /* Aliases, for completion: count and the i-th alias string. */
 int refdb_naliases(const refdb *db);
 const char *refdb_alias_at(const refdb *db, int i);
+/* The compound the i-th alias names. */
+const rd_compound *refdb_alias_compound(const refdb *db, int i);
+/* Sources: count and the i-th (sorted by id). */
+int refdb_nsources(const refdb *db);
+const rd_source *refdb_source_at(const refdb *db, int i);
 
 #endif

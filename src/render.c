@@ -196,6 +196,27 @@ void render_text(render *r, const char *fmt, ...)
 	va_end(ap);
 }
 
+void render_text_more(render *r, const char *fmt, ...)
+{
+	va_list ap;
+	node *x = NULL;
+	char *more, *s;
+	for (int i = r->count - 1; i >= 0 && !x; i--)
+		if (r->n[i].k == N_TEXT)
+			x = &r->n[i];
+	va_start(ap, fmt);
+	more = vfmt(r, fmt, ap);
+	va_end(ap);
+	if (!x) {
+		add(r, N_TEXT, NULL, NULL, NULL)->s = more;
+		return;
+	}
+	s = ar_alloc(r, strlen(x->s) + strlen(more) + 1);
+	strcpy(s, x->s);
+	strcat(s, more);
+	x->s = s;
+}
+
 void render_note(render *r, const char *fmt, ...)
 {
 	va_list ap;

@@ -64,6 +64,9 @@ void render_list(render *r, const char *key, const char *label, const char *cons
 
 /* A line of text only, printf-style (no trailing newline needed). */
 void render_text(render *r, const char *fmt, ...) __attribute__((format(printf, 2, 3)));
+/* Append printf-style text to the last line of render_text (a line built
+ * in pieces); with no such line yet, starts one. */
+void render_text_more(render *r, const char *fmt, ...) __attribute__((format(printf, 2, 3)));
 /* A note: a text line "  note: ..." and an entry of the JSON array
  * "notes" (or of `key` with render_note_as, the text line "  PREFIXtext",
  * or "text" without indent when prefix is NULL). */

@@ -14,7 +14,7 @@
 #include <string.h>
 
 #include "session.h"
-#include "cmd_junction.h"
+#include "ljp.h"
 #include "common.h"
 #include "electrode.h"
 #include "nernst.h"
@@ -222,15 +222,16 @@ static void review_potentials(report *r, session *ses, const sol_state *p,
 
 static void review_ljp(report *r, session *ses, const sol_state *p, const sol_state *b)
 {
-	double ljp, cl;
+	double ljp, lo, hi, cl;
 	char e2[IM_ERRLEN];
-	if (cmdj_henderson_mV(p, b, 0, ses->temp_C, &ljp, e2)) {
+	if (ljp_pair_mV(p, b, 0, ses->temp_C, &ljp, &lo, &hi, e2)) {
 		add(r, "liquid junction potential", CHECK, NAN, "mV", "%s", e2);
 	} else {
 		add(r, "liquid junction potential", fabs(ljp) > LJP_CORRECT_mV ? CHECK : FINE, ljp,
 		    "mV",
-		    "bath relative to pipette (Henderson); whole-cell Vm = Vpipette - LJP: a "
-		    "command of -70 mV is really %.1f mV", -70.0 - ljp);
+		    "bath relative to pipette (Henderson; %.1f to %.1f mV with the mobility "
+		    "uncertainties); whole-cell Vm = Vpipette - LJP: a command of -70 mV is "
+		    "really %.1f mV", lo, hi, -70.0 - ljp);
 	}
 	cl = conc_of(b, ses->ref, "Cl-", 1);
 	if (cl > 0) {

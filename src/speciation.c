@@ -1,19 +1,14 @@
 /*
- * speciation.c - acid-base and metal-ligand equilibria, titration, the
- * free-metal inverse and the CO2 system.  The model is stated in
- * speciation.h; this file holds the loader, the constants at temperature
- * and ionic strength, and the solver.
+ * speciation.c - the equilibrium solver: constants at temperature and
+ * ionic strength, the species of a problem, Newton's method with its
+ * fallback, and the result.  The model is stated in speciation.h, the
+ * formulation in spec_work.h; the tables come from eqdata.c, and the
+ * searches built on the solver (titration, the free-metal inverse) live
+ * in titrate.c.
  *
- * Formulation: basis components are the free metals M, the fully
- * deprotonated ligands L and H+.  Every species s is
- *     c_s = beta_s(T, I) * prod_b c_b^nu_sb,
- * so with u_b = ln c_b the balances R_b(u) = sum_s nu_sb c_s - T_b = 0 are
- * the gradient of the convex function G(u) = sum_s c_s - sum_b T_b u_b.
- * Newton's method on u with a backtracking line search on G converges from
- * any start; the fallback minimises G one component at a time.  Components
- * may be fixed instead of balanced: H+ when the pH is given, the metal in
- * the free-metal inverse, and (basis changed to CO2(aq)) the carbonate
- * system when open to a gas.
+ * Newton's method on u = ln c with a backtracking line search on G
+ * converges from any start; the fallback minimises G one component at a
+ * time.
  */
 #include "speciation.h"
 
@@ -25,576 +20,61 @@
 
 #include "activity.h"
 #include "common.h"
+#include "eqdata.h"
+#include "spec_work.h"
 
-#define MAXH         6
-#define COMPLEN      32
-#define SRCLEN       40
-#define MAX_PICKS    8
-#define NB_MAX       (SPEC_MAX_METALS + SPEC_MAX_LIGANDS + 1)
-#define NS_MAX       160 /* reacting species in one problem */
-#define NSTRONG_MAX  SPEC_MAX_IN
-#define MAX_DATA_LIG 128 /* ligands in the tables */
-#define LN10         2.302585092994046
-
-/* solver limits */
-#define NEWTON_MAXIT    200
-#define NEWTON_STEP_MAX 12.0 /* largest change of any ln c in one step */
-#define LS_MAXHALF      60
-#define COORD_MAXSWEEP  20000
-#define COORD_TOL       1e-7 /* fallback hands over to Newton at this closure */
-#define ILOOP_MAXIT     200
-#define I_RTOL          1e-11 /* ionic strength self-consistency */
-#define X_RTOL          1e-12 /* titrant / metal source amount */
-#define MAX_TITRANT_M   5.0   /* mol/L */
-#define MAX_SOURCE_M    1.0   /* mol/L */
-#define T_MIN_C         0.0
-#define T_MAX_C         60.0
-#define I_DAVIES_MAX_M  0.5
-
-typedef struct pka_row {
-	int lig, n_h;
-	char comp[COMPLEN];
-	int is_default;
-	double pka, t_ref, i_ref, dh, dpdt, fa, fb, fc; /* NAN when absent */
-	char source[SRCLEN];
-} pka_row;
-
-typedef struct lig_def {
-	char name[SPEC_SYMLEN];
-	int zb, binds;
-	char state[MAXH + 1][SPEC_SYMLEN];
-	int has_state[MAXH + 1];
-	int nsteps;         /* modelled steps of the selected compilation */
-	int step[MAXH + 1]; /* pka row of steps 1..nsteps */
-	int carbonate;
-} lig_def;
-
-enum { CX_ML, CX_MHL, CX_M2L, CX_ML2 };
-static const char *const cx_kind_name[] = {"ML", "MHL", "M2L", "ML2"};
-
-typedef struct cx_row {
-	char sym[SPEC_SYMLEN];
-	int metal, lig, kind;
-	char comp[COMPLEN];
-	int is_default;
-	double logk, t_ref, i_ref, dh;
-	char source[SRCLEN];
-	int nm, nl, nh, z;
-	int ml_row; /* M2L, ML2: the ML row of the same compilation */
-	int active;
-} cx_row;
-
-typedef struct metal_def {
-	char sym[SPEC_SYMLEN];
-	int z;
-} metal_def;
-
-typedef struct fit3 {
-	double a, b, c, tmin, tmax;
-	char source[SRCLEN];
-} fit3;
-
-struct spec_data {
-	lig_def *lig;
-	int nlig;
-	pka_row *pka;
-	int npka;
-	metal_def met[SPEC_MAX_METALS];
-	int nmet;
-	cx_row *cx;
-	int ncx;
-	fit3 pkw, k0;
-	char picks[MAX_PICKS][COMPLEN];
-	int npicks;
-};
+#define MMHG_PER_ATM 760.0
 
 /* ------------------------------------------------------------------ */
-/* small helpers                                                        */
-
-static double davies_F(double I_M)
-{
-	double r = sqrt(I_M > 0 ? I_M : 0);
-	return r / (1.0 + r) - 0.3 * I_M;
-}
-
-static const char *col_text(sqlite3_stmt *st, int i)
-{
-	const unsigned char *t = sqlite3_column_text(st, i);
-	return t ? (const char *)t : "";
-}
-
-static double col_real(sqlite3_stmt *st, int i)
-{
-	return sqlite3_column_type(st, i) == SQLITE_NULL ? NAN
-							 : sqlite3_column_double(st, i);
-}
-
-static int find_lig(const spec_data *d, const char *name)
-{
-	for (int i = 0; i < d->nlig; i++)
-		if (strcmp(d->lig[i].name, name) == 0)
-			return i;
-	return -1;
-}
-
-static int find_lig_ci(const spec_data *d, const char *name)
-{
-	int k = find_lig(d, name);
-	for (int i = 0; k < 0 && i < d->nlig; i++)
-		if (im_strcaseeq(d->lig[i].name, name))
-			k = i;
-	return k;
-}
-
-static int find_metal(const spec_data *d, const char *sym)
-{
-	for (int i = 0; i < d->nmet; i++)
-		if (strcmp(d->met[i].sym, sym) == 0)
-			return i;
-	/* also 'Ca', 'ca2+' */
-	for (int i = 0; i < d->nmet; i++) {
-		char bare[SPEC_SYMLEN];
-		snprintf(bare, sizeof bare, "%s", d->met[i].sym);
-		char *p = bare;
-		while (*p && !(*p >= '0' && *p <= '9') && *p != '+')
-			p++;
-		*p = '\0';
-		if (im_strcaseeq(d->met[i].sym, sym) || im_strcaseeq(bare, sym))
-			return i;
-	}
-	return -1;
-}
-
-/* ------------------------------------------------------------------ */
-/* loading                                                              */
-
-static int prep(sqlite3 *db, const char *q, sqlite3_stmt **st, char *err)
-{
-	if (sqlite3_prepare_v2(db, q, -1, st, NULL) != SQLITE_OK)
-		return im_fail(err, "speciation: cannot read the equilibria tables: %s",
-			       sqlite3_errmsg(db));
-	return 0;
-}
-
-static int done(sqlite3 *db, sqlite3_stmt *st, int rc, char *err)
-{
-	sqlite3_finalize(st);
-	if (rc != SQLITE_DONE)
-		return im_fail(err, "speciation: reading the equilibria tables: %s",
-			       sqlite3_errmsg(db));
-	return 0;
-}
-
-/* The compilation used for a ligand's pKa set: the latest pick with rows
- * for it, else the default. */
-static const char *lig_comp(const spec_data *d, int k)
-{
-	for (int p = d->npicks - 1; p >= 0; p--)
-		for (int r = 0; r < d->npka; r++)
-			if (d->pka[r].lig == k &&
-			    strcmp(d->pka[r].comp, d->picks[p]) == 0)
-				return d->picks[p];
-	for (int r = 0; r < d->npka; r++)
-		if (d->pka[r].lig == k && d->pka[r].is_default)
-			return d->pka[r].comp;
-	return NULL;
-}
-
-static const char *pair_comp(const spec_data *d, int m, int k)
-{
-	for (int p = d->npicks - 1; p >= 0; p--)
-		for (int r = 0; r < d->ncx; r++)
-			if (d->cx[r].metal == m && d->cx[r].lig == k &&
-			    strcmp(d->cx[r].comp, d->picks[p]) == 0)
-				return d->picks[p];
-	for (int r = 0; r < d->ncx; r++)
-		if (d->cx[r].metal == m && d->cx[r].lig == k && d->cx[r].is_default)
-			return d->cx[r].comp;
-	return NULL;
-}
-
-/* Apply the picks: steps of each ligand, active complexes.  -1 when a
- * selection is inconsistent (a gap in the steps, a complex needing a
- * protonation step that is not modelled). */
-static int select_constants(spec_data *d, char *err)
-{
-	for (int k = 0; k < d->nlig; k++) {
-		lig_def *L = &d->lig[k];
-		const char *comp = lig_comp(d, k);
-		L->nsteps = 0;
-		for (int h = 0; h <= MAXH; h++)
-			L->step[h] = -1;
-		for (int r = 0; comp && r < d->npka; r++)
-			if (d->pka[r].lig == k && strcmp(d->pka[r].comp, comp) == 0)
-				L->step[d->pka[r].n_h] = r;
-		while (L->nsteps < MAXH && L->step[L->nsteps + 1] >= 0)
-			L->nsteps++;
-		for (int h = L->nsteps + 1; h <= MAXH; h++)
-			if (L->step[h] >= 0)
-				return im_fail(err,
-					       "speciation: %s (%s): pKa steps are not "
-					       "1..n without gaps",
-					       L->name, comp);
-		for (int h = 0; h <= L->nsteps; h++)
-			if (!L->has_state[h])
-				return im_fail(err,
-					       "speciation: %s has no eq_ligand_states "
-					       "row for n_h = %d",
-					       L->name, h);
-	}
-	for (int r = 0; r < d->ncx; r++) {
-		cx_row *c = &d->cx[r];
-		const char *comp = pair_comp(d, c->metal, c->lig);
-		c->active = comp && strcmp(c->comp, comp) == 0;
-		if (c->active && c->nh > d->lig[c->lig].nsteps)
-			return im_fail(err,
-				       "speciation: %s needs protonation step %d of %s, "
-				       "not modelled",
-				       c->sym, c->nh, d->lig[c->lig].name);
-	}
-	return 0;
-}
-
-static int load_ligands(sqlite3 *db, spec_data *d, char *err)
-{
-	sqlite3_stmt *st;
-	int rc, cap = 0;
-	if (prep(db,
-		 "SELECT name, base_charge, binds_metals FROM eq_ligands ORDER BY rowid",
-		 &st, err))
-		return -1;
-	while ((rc = sqlite3_step(st)) == SQLITE_ROW) {
-		if (d->nlig == MAX_DATA_LIG) {
-			sqlite3_finalize(st);
-			return im_fail(err, "speciation: more than %d ligands",
-				       MAX_DATA_LIG);
-		}
-		if (d->nlig == cap) {
-			cap = cap ? 2 * cap : 32;
-			d->lig = im_xrealloc(d->lig, (size_t)cap * sizeof *d->lig);
-		}
-		lig_def *L = &d->lig[d->nlig++];
-		memset(L, 0, sizeof *L);
-		snprintf(L->name, sizeof L->name, "%s", col_text(st, 0));
-		L->zb = sqlite3_column_int(st, 1);
-		L->binds = sqlite3_column_int(st, 2);
-		L->carbonate = strcmp(L->name, "carbonate") == 0;
-	}
-	if (done(db, st, rc, err))
-		return -1;
-	if (prep(db, "SELECT symbol, ligand, n_h, charge FROM eq_ligand_states", &st,
-		 err))
-		return -1;
-	while ((rc = sqlite3_step(st)) == SQLITE_ROW) {
-		int k = find_lig(d, col_text(st, 1)), h = sqlite3_column_int(st, 2);
-		int z = sqlite3_column_int(st, 3);
-		if (k < 0 || h < 0 || h > MAXH) {
-			im_fail(err, "speciation: eq_ligand_states %s: bad ligand or n_h",
-				col_text(st, 0));
-			sqlite3_finalize(st);
-			return -1;
-		}
-		if (z != d->lig[k].zb + h) {
-			im_fail(err,
-				"speciation: %s has charge %d, but %s%+d protons "
-				"gives %d",
-				col_text(st, 0), z, d->lig[k].name, h, d->lig[k].zb + h);
-			sqlite3_finalize(st);
-			return -1;
-		}
-		snprintf(d->lig[k].state[h], SPEC_SYMLEN, "%s", col_text(st, 0));
-		d->lig[k].has_state[h] = 1;
-	}
-	return done(db, st, rc, err);
-}
-
-static int load_pka(sqlite3 *db, spec_data *d, char *err)
-{
-	sqlite3_stmt *st;
-	int rc, cap = 0;
-	if (prep(db,
-		 "SELECT ligand, n_h, compilation, is_default, pka, t_ref_C, i_ref_M, "
-		 "dh_kJ_mol, dpka_dt_per_K, fit_a_K, fit_b, fit_c_per_K, source FROM "
-		 "eq_pka ORDER BY ligand, compilation, n_h",
-		 &st, err))
-		return -1;
-	while ((rc = sqlite3_step(st)) == SQLITE_ROW) {
-		if (d->npka == cap) {
-			cap = cap ? 2 * cap : 64;
-			d->pka = im_xrealloc(d->pka, (size_t)cap * sizeof *d->pka);
-		}
-		pka_row *p = &d->pka[d->npka];
-		memset(p, 0, sizeof *p);
-		p->lig = find_lig(d, col_text(st, 0));
-		p->n_h = sqlite3_column_int(st, 1);
-		if (p->lig < 0 || p->n_h < 1 || p->n_h > MAXH) {
-			sqlite3_finalize(st);
-			return im_fail(err, "speciation: eq_pka row of unknown "
-				       "ligand or step");
-		}
-		snprintf(p->comp, COMPLEN, "%s", col_text(st, 2));
-		p->is_default = sqlite3_column_int(st, 3);
-		p->pka = sqlite3_column_double(st, 4);
-		p->t_ref = sqlite3_column_double(st, 5);
-		p->i_ref = sqlite3_column_double(st, 6);
-		p->dh = col_real(st, 7);
-		p->dpdt = col_real(st, 8);
-		p->fa = col_real(st, 9);
-		p->fb = col_real(st, 10);
-		p->fc = col_real(st, 11);
-		snprintf(p->source, SRCLEN, "%s", col_text(st, 12));
-		d->npka++;
-	}
-	if (done(db, st, rc, err))
-		return -1;
-	/* one default compilation per ligand, all of its steps default */
-	for (int k = 0; k < d->nlig; k++) {
-		const char *def = NULL;
-		int nrows = 0;
-		for (int r = 0; r < d->npka; r++) {
-			if (d->pka[r].lig != k)
-				continue;
-			nrows++;
-			if (d->pka[r].is_default) {
-				if (def && strcmp(def, d->pka[r].comp) != 0)
-					return im_fail(err,
-						       "speciation: %s has default pKa "
-						       "rows from two compilations",
-						       d->lig[k].name);
-				def = d->pka[r].comp;
-			}
-		}
-		if (nrows && !def)
-			return im_fail(err,
-				       "speciation: %s has no default pKa compilation",
-				       d->lig[k].name);
-		for (int r = 0; def && r < d->npka; r++)
-			if (d->pka[r].lig == k && strcmp(d->pka[r].comp, def) == 0 &&
-			    !d->pka[r].is_default)
-				return im_fail(err,
-					       "speciation: %s: compilation %s is "
-					       "default for some steps only",
-					       d->lig[k].name, def);
-	}
-	return 0;
-}
-
-static int load_metals_complexes(sqlite3 *db, spec_data *d, char *err)
-{
-	sqlite3_stmt *st;
-	int rc, cap = 0;
-	if (prep(db, "SELECT symbol, charge FROM eq_metals ORDER BY rowid", &st, err))
-		return -1;
-	while ((rc = sqlite3_step(st)) == SQLITE_ROW) {
-		if (d->nmet == SPEC_MAX_METALS) {
-			sqlite3_finalize(st);
-			return im_fail(err, "speciation: more than %d metals",
-				       SPEC_MAX_METALS);
-		}
-		snprintf(d->met[d->nmet].sym, SPEC_SYMLEN, "%s", col_text(st, 0));
-		d->met[d->nmet++].z = sqlite3_column_int(st, 1);
-	}
-	if (done(db, st, rc, err))
-		return -1;
-	if (prep(db,
-		 "SELECT symbol, metal, ligand, kind, compilation, is_default, log_k, "
-		 "t_ref_C, i_ref_M, dh_kJ_mol, source FROM eq_complexes ORDER BY metal, "
-		 "ligand, compilation, kind",
-		 &st, err))
-		return -1;
-	while ((rc = sqlite3_step(st)) == SQLITE_ROW) {
-		if (d->ncx == cap) {
-			cap = cap ? 2 * cap : 64;
-			d->cx = im_xrealloc(d->cx, (size_t)cap * sizeof *d->cx);
-		}
-		cx_row *c = &d->cx[d->ncx];
-		memset(c, 0, sizeof *c);
-		snprintf(c->sym, SPEC_SYMLEN, "%s", col_text(st, 0));
-		c->metal = find_metal(d, col_text(st, 1));
-		c->lig = find_lig(d, col_text(st, 2));
-		c->kind = -1;
-		for (int k = 0; k < 4; k++)
-			if (strcmp(col_text(st, 3), cx_kind_name[k]) == 0)
-				c->kind = k;
-		if (c->metal < 0 || c->lig < 0 || c->kind < 0) {
-			im_fail(err,
-				"speciation: eq_complexes %s: unknown metal, ligand or "
-				"kind",
-				c->sym);
-			sqlite3_finalize(st);
-			return -1;
-		}
-		snprintf(c->comp, COMPLEN, "%s", col_text(st, 4));
-		c->is_default = sqlite3_column_int(st, 5);
-		c->logk = sqlite3_column_double(st, 6);
-		c->t_ref = sqlite3_column_double(st, 7);
-		c->i_ref = sqlite3_column_double(st, 8);
-		c->dh = col_real(st, 9);
-		snprintf(c->source, SRCLEN, "%s", col_text(st, 10));
-		c->nm = c->kind == CX_M2L ? 2 : 1;
-		c->nl = c->kind == CX_ML2 ? 2 : 1;
-		c->nh = c->kind == CX_MHL ? 1 : 0;
-		c->z = c->nm * d->met[c->metal].z + c->nl * d->lig[c->lig].zb + c->nh;
-		c->ml_row = -1;
-		d->ncx++;
-	}
-	if (done(db, st, rc, err))
-		return -1;
-	for (int r = 0; r < d->ncx; r++) {
-		cx_row *c = &d->cx[r];
-		if (d->lig[c->lig].carbonate)
-			return im_fail(err,
-				       "speciation: %s: complexes of carbonate are not "
-				       "supported",
-				       c->sym);
-		if (c->kind == CX_M2L || c->kind == CX_ML2) {
-			for (int s = 0; s < d->ncx; s++)
-				if (d->cx[s].metal == c->metal &&
-				    d->cx[s].lig == c->lig && d->cx[s].kind == CX_ML &&
-				    strcmp(d->cx[s].comp, c->comp) == 0)
-					c->ml_row = s;
-			if (c->ml_row < 0)
-				return im_fail(err,
-					       "speciation: %s (%s) needs the ML row of "
-					       "the same compilation",
-					       c->sym, c->comp);
-		}
-		const char *def = NULL;
-		for (int s = 0; s < d->ncx; s++) {
-			const cx_row *o = &d->cx[s];
-			if (o->metal != c->metal || o->lig != c->lig || !o->is_default)
-				continue;
-			if (def && strcmp(def, o->comp) != 0)
-				return im_fail(err,
-					       "speciation: %s-%s has default constants "
-					       "from two compilations",
-					       d->met[c->metal].sym, d->lig[c->lig].name);
-			def = o->comp;
-		}
-		if (!def)
-			return im_fail(err,
-				       "speciation: %s-%s has no default compilation",
-				       d->met[c->metal].sym, d->lig[c->lig].name);
-	}
-	return 0;
-}
-
-static int load_fits(sqlite3 *db, spec_data *d, char *err)
-{
-	sqlite3_stmt *st;
-	int rc, have = 0;
-	if (prep(db,
-		 "SELECT name, fit_a_K, fit_b, fit_c_per_K, t_min_C, t_max_C, source "
-		 "FROM eq_fits",
-		 &st, err))
-		return -1;
-	while ((rc = sqlite3_step(st)) == SQLITE_ROW) {
-		fit3 *f = NULL;
-		if (strcmp(col_text(st, 0), "pKw") == 0)
-			f = &d->pkw, have |= 1;
-		else if (strcmp(col_text(st, 0), "co2-pk0") == 0)
-			f = &d->k0, have |= 2;
-		if (!f)
-			continue;
-		f->a = sqlite3_column_double(st, 1);
-		f->b = sqlite3_column_double(st, 2);
-		f->c = sqlite3_column_double(st, 3);
-		f->tmin = sqlite3_column_double(st, 4);
-		f->tmax = sqlite3_column_double(st, 5);
-		snprintf(f->source, SRCLEN, "%s", col_text(st, 6));
-	}
-	if (done(db, st, rc, err))
-		return -1;
-	if (have != 3)
-		return im_fail(err, "speciation: eq_fits lacks %s",
-			       (have & 1) ? "co2-pk0" : "pKw");
-	return 0;
-}
+/* loading and picks (the tables themselves are eqdata.c's)             */
 
 int spec_load(sqlite3 *db, spec_data **out, char *err)
 {
-	*out = NULL;
-	if (!db)
-		return im_fail(err, "speciation: no database");
-	spec_data *d = im_xcalloc(1, sizeof *d);
-	if (load_ligands(db, d, err) || load_pka(db, d, err) ||
-	    load_metals_complexes(db, d, err) || load_fits(db, d, err) ||
-	    select_constants(d, err)) {
-		spec_data_free(d);
-		return -1;
-	}
-	/* every compilation of every ligand must select cleanly */
-	for (int r = 0; r < d->npka; r++) {
-		char e2[IM_ERRLEN];
-		snprintf(d->picks[0], COMPLEN, "%s", d->pka[r].comp);
-		d->npicks = 1;
-		if (select_constants(d, e2)) {
-			im_fail(err, "%s", e2);
-			spec_data_free(d);
-			return -1;
-		}
-	}
-	d->npicks = 0;
-	select_constants(d, err);
-	*out = d;
-	return 0;
+	return eqd_load_spec(db, out, err);
 }
 
 void spec_data_free(spec_data *d)
 {
-	if (!d)
-		return;
-	free(d->lig);
-	free(d->pka);
-	free(d->cx);
-	free(d);
+	eqd_free_spec(d);
 }
 
 int spec_use_compilation(spec_data *d, const char *name, char *err)
 {
-	if (!d || !name || !*name)
-		return im_fail(err, "no compilation named");
-	if (im_strcaseeq(name, "default")) {
-		d->npicks = 0;
-		return select_constants(d, err);
-	}
-	const char *found = NULL;
-	for (int r = 0; r < d->npka && !found; r++)
-		if (im_strcaseeq(d->pka[r].comp, name))
-			found = d->pka[r].comp;
-	for (int r = 0; r < d->ncx && !found; r++)
-		if (im_strcaseeq(d->cx[r].comp, name))
-			found = d->cx[r].comp;
-	if (!found)
-		return im_fail(err,
-			       "no equilibrium constants from a compilation named '%s'",
-			       name);
-	char keep[MAX_PICKS][COMPLEN];
-	int n = 0;
-	for (int p = 0; p < d->npicks; p++)
-		if (strcmp(d->picks[p], found) != 0)
-			snprintf(keep[n++], COMPLEN, "%s", d->picks[p]);
-	if (n == MAX_PICKS)
-		return im_fail(err, "too many compilations picked (at most %d)",
-			       MAX_PICKS);
-	snprintf(keep[n++], COMPLEN, "%s", found);
-	char old[MAX_PICKS][COMPLEN];
-	int nold = d->npicks;
-	memcpy(old, d->picks, sizeof old);
-	memcpy(d->picks, keep, sizeof keep);
-	d->npicks = n;
-	if (select_constants(d, err) == 0)
-		return 0;
-	/* an inconsistent combination: keep the selection as it was */
-	memcpy(d->picks, old, sizeof old);
-	d->npicks = nold;
-	char e2[IM_ERRLEN];
-	select_constants(d, e2);
-	return -1;
+	if (!d)
+		return im_fail(err, "speciation: no equilibrium data loaded");
+	return eqd_use_compilation(d, NULL, name, err);
+}
+
+int spec_pick_compilation(spec_data *d, osm_data *o, const char *name, char *err)
+{
+	return eqd_use_compilation(d, o, name, err);
+}
+
+int spec_compilations(const spec_data *d, const osm_data *o, char (*names)[32], int max)
+{
+	_Static_assert(EQD_COMPLEN == 32, "compilation names are 32 bytes");
+	return eqd_compilations(d, o, names, max);
+}
+
+int spec_constants(const spec_data *d, const char *name, spec_const *out, int max,
+		   char *err)
+{
+	return eqd_constants(d, name, out, max, err);
 }
 
 /* ------------------------------------------------------------------ */
 /* constants at temperature (I = 0)                                     */
+
+/* ln K(T) - ln K(Tr) of a reaction with enthalpy dh_kJ_mol and heat
+ * capacity dcp_J_mol_K (NAN: none) by van 't Hoff:
+ *   -dH/R (1/T - 1/Tr) + dCp/R (ln(T/Tr) + Tr/T - 1) */
+static double lnk_shift(double dh_kJ_mol, double dcp_J_mol_K, double T, double Tr)
+{
+	double s = -dh_kJ_mol * 1000.0 / IM_GAS_J_MOL_K * (1.0 / T - 1.0 / Tr);
+	if (isfinite(dcp_J_mol_K))
+		s += dcp_J_mol_K / IM_GAS_J_MOL_K * (log(T / Tr) + Tr / T - 1.0);
+	return s;
+}
 
 /* thermodynamic pKa of a step at T, from its row */
 static double pka_at(const spec_data *d, const pka_row *p, double t_C, int *no_t)
@@ -607,8 +87,7 @@ static double pka_at(const spec_data *d, const pka_row *p, double t_C, int *no_t
 	double D = za * za + 1 - zp * zp;
 	double pk0 = p->pka + act_dh_A(p->t_ref) * davies_F(p->i_ref) * D;
 	if (isfinite(p->dh))
-		return pk0 +
-		       p->dh * 1000.0 / (IM_GAS_J_MOL_K * LN10) * (1.0 / T - 1.0 / Tr);
+		return pk0 - lnk_shift(p->dh, p->dcp, T, Tr) / LN10;
 	if (isfinite(p->dpdt))
 		return pk0 + p->dpdt * (t_C - p->t_ref);
 	if (no_t && fabs(t_C - p->t_ref) > 0.5)
@@ -646,7 +125,7 @@ static double cx_logk0(const spec_data *d, const cx_row *c, double t_C, int *no_
 	double lk = c->logk + act_dh_A(c->t_ref) * davies_F(c->i_ref) * D;
 	double T = t_C + IM_ZERO_C_K, Tr = c->t_ref + IM_ZERO_C_K;
 	if (isfinite(c->dh))
-		lk -= c->dh * 1000.0 / (IM_GAS_J_MOL_K * LN10) * (1.0 / T - 1.0 / Tr);
+		lk += lnk_shift(c->dh, c->dcp, T, Tr) / LN10;
 	else if (no_t && fabs(t_C - c->t_ref) > 0.5)
 		*no_t = 1;
 	return lk;
@@ -671,9 +150,27 @@ static double pkw_at(const spec_data *d, double t_C)
 
 double spec_co2_mM_per_atm(const spec_data *d, double t_C)
 {
-	double T = t_C + IM_ZERO_C_K;
-	double pk0 = d->k0.a / T + d->k0.b + d->k0.c * T; /* -log10 K0 */
-	return pow(10.0, -pk0) * act_water_density_g_cm3(t_C) * 1000.0;
+	const co2_app *a = &d->co2;
+	double dt = a->t_ref_sol - t_C;
+	return (a->s0 + a->s1 * dt + a->s2 * dt * dt) * MMHG_PER_ATM;
+}
+
+double spec_co2_pk_app(const spec_data *d, double t_C, double pH, double I_mM)
+{
+	const co2_app *a = &d->co2;
+	double p = pH < a->ph_min ? a->ph_min : pH > a->ph_max ? a->ph_max : pH;
+	double dp = a->ph_ref - p, dt = a->t_ref - t_C;
+	double pk = a->pk0 + a->pk_ph * dp + dt * (a->pk_t + a->pk_tph * dp);
+	double A = act_dh_A(t_C);
+	return pk + A * (davies_F(a->i_ref) - davies_F(I_mM / 1000.0));
+}
+
+/* thermodynamic pK of CO2(aq) = HCO3- + H+ that gives the apparent pK' of
+ * the physiological relation at pH: pK' + A F(I_ref) (Davies, z = 1) */
+static double carb_pk1_thermo(const spec_data *d, double t_C, double pH)
+{
+	return spec_co2_pk_app(d, t_C, pH, d->co2.i_ref * 1000.0) +
+	       act_dh_A(t_C) * davies_F(d->co2.i_ref);
 }
 
 double spec_water_vapour_kPa(double t_C)
@@ -689,52 +186,6 @@ double spec_pco2_atm(double frac, double p_total_atm, double t_C, int humid)
 		p -= spec_water_vapour_kPa(t_C) / 101.325;
 	return frac * p;
 }
-
-/* ------------------------------------------------------------------ */
-/* the problem                                                          */
-
-enum { B_METAL, B_LIGAND, B_H };
-enum { DEST_BASE, DEST_TIT, DEST_SRC, NDEST };
-
-typedef struct strong {
-	const char *sym;
-	int z;
-	double c[NDEST]; /* base: mol/L; titrant, source: per formula unit */
-} strong;
-
-typedef struct work {
-	const spec_data *d;
-	double t_C, A;
-	int mode;
-	double pH, co2_M;
-	/* basis */
-	int nb, hb, co2b;
-	int btype[NB_MAX], bref[NB_MAX], bz[NB_MAX];
-	int fixed[NB_MAX], active[NB_MAX];
-	int fpos[NB_MAX]; /* index among the free components, or -1 */
-	int warm;         /* 1: u holds a solution to start from */
-	double T[NDEST][NB_MAX]; /* totals (mol/L): base; titrant, source per unit */
-	double Tcur[NB_MAX];
-	double u[NB_MAX];
-	/* species */
-	int ns;
-	int skind[NS_MAX], sref[NS_MAX], sm[NS_MAX], sl[NS_MAX];
-	int snz[NS_MAX], sb[NS_MAX][3], sn[NS_MAX][3];
-	int sz[NS_MAX], snh[NS_MAX], snm[NS_MAX], snl[NS_MAX], ssub[NS_MAX];
-	double lb0[NS_MAX], D[NS_MAX], lb[NS_MAX], c[NS_MAX];
-	int sact[NS_MAX];
-	/* strong ions */
-	strong st[NSTRONG_MAX];
-	int nst;
-	/* unknowns of the outer loop */
-	double x_tit, x_src, I; /* titrant, source: mol/L; I: mol/L */
-	int fixed_metal;        /* basis index, or -1 */
-	/* bookkeeping */
-	int newton_it, used_fallback, fallback_only, no_t_lig[MAX_DATA_LIG];
-	double rmax;
-	char err[IM_ERRLEN];
-} work;
-
 static int lig_basis(work *w, int k)
 {
 	for (int b = 0; b < w->nb; b++)
@@ -743,7 +194,7 @@ static int lig_basis(work *w, int k)
 	return -1;
 }
 
-static int metal_basis(work *w, int m)
+int specw_metal_basis(work *w, int m)
 {
 	for (int b = 0; b < w->nb; b++)
 		if (w->btype[b] == B_METAL && w->bref[b] == m)
@@ -753,7 +204,7 @@ static int metal_basis(work *w, int m)
 
 static int add_basis(work *w, int type, int ref, char *err)
 {
-	int b = type == B_LIGAND ? lig_basis(w, ref) : metal_basis(w, ref);
+	int b = type == B_LIGAND ? lig_basis(w, ref) : specw_metal_basis(w, ref);
 	if (b >= 0)
 		return b;
 	if (w->nb == NB_MAX)
@@ -789,6 +240,8 @@ static void work_init(work *w, const spec_data *d, double t_C)
 	w->bref[0] = -1;
 	w->co2b = -1;
 	w->fixed_metal = -1;
+	w->carb_s = -1;
+	w->carb_pH = 7.4;
 }
 
 /* Map one input species into the problem (dest: base, titrant, source). */
@@ -940,6 +393,12 @@ static int build_species(work *w, char *err)
 			if (add_species(w, SPEC_K_LIGAND, h, -1, 0, b, 1, h, L->zb + h,
 					lig_logbeta0(d, k, h, t, &no_t), err))
 				return -1;
+		if (L->carbonate && L->nsteps >= 2) {
+			/* CO2(aq): the physiological apparent constant (spec_co2_pk_app) */
+			w->carb_s = first + 2;
+			w->lb0[first + 2] = (lig_logbeta0(d, k, 1, t, &no_t) +
+					     carb_pk1_thermo(d, t, w->carb_pH)) * LN10;
+		}
 		if (b == w->co2b) {
 			int s2 = first + 2; /* H2L = CO2(aq) */
 			for (int s = first; s < w->ns; s++) {
@@ -968,7 +427,7 @@ static int build_species(work *w, char *err)
 		const cx_row *c = &d->cx[r];
 		if (!c->active)
 			continue;
-		int bm = metal_basis(w, c->metal), bl = lig_basis(w, c->lig), no_t = 0;
+		int bm = specw_metal_basis(w, c->metal), bl = lig_basis(w, c->lig), no_t = 0;
 		if (bm < 0 || bl < 0)
 			continue;
 		if (add_species(w, SPEC_K_COMPLEX, r, bm, c->nm, bl, c->nl, c->nh, c->z,
@@ -1307,7 +766,7 @@ static double ionic_strength(const work *w)
 }
 
 /* protons bound (needed) minus protons given, mol/L (FIXED mode) */
-static double proton_excess(const work *w)
+double specw_proton_excess(const work *w)
 {
 	double need = 0;
 	for (int s = 0; s < w->ns; s++)
@@ -1319,7 +778,7 @@ static double proton_excess(const work *w)
 }
 
 /* mean protons bound per free ligand b (all states, metals ignored) */
-static double mean_h(const work *w, int b)
+double specw_mean_h(const work *w, int b)
 {
 	double num = 0, den = 0;
 	for (int s = 0; s < w->ns; s++)
@@ -1332,11 +791,9 @@ static double mean_h(const work *w, int b)
 	return den > 0 ? num / den : 0;
 }
 
-enum { RUN_PLAIN, RUN_TITRATE, RUN_SOURCE };
-
 /* The outer loop: ionic strength (and the titrant or source amount) to
  * self-consistency, the equilibria solved at each step. */
-static int run(work *w, int what, char *err)
+int specw_run(work *w, int what, char *err)
 {
 	double I = w->I;
 	for (int it = 0; it < ILOOP_MAXIT; it++) {
@@ -1351,10 +808,10 @@ static int run(work *w, int what, char *err)
 				       w->rmax);
 		int x_done = 1;
 		if (what == RUN_TITRATE) {
-			double g = proton_excess(w), q = -w->T[DEST_TIT][w->hb];
+			double g = specw_proton_excess(w), q = -w->T[DEST_TIT][w->hb];
 			for (int b = 0; b < w->nb; b++)
 				if (w->btype[b] == B_LIGAND && w->T[DEST_TIT][b] > 0)
-					q += w->T[DEST_TIT][b] * mean_h(w, b);
+					q += w->T[DEST_TIT][b] * specw_mean_h(w, b);
 			double scale = fabs(w->Tcur[w->hb]) + fabs(w->x_tit) + 1e-12;
 			if (!(fabs(q) > 0))
 				return im_fail(err,
@@ -1382,6 +839,22 @@ static int run(work *w, int what, char *err)
 					       "metal source amount runs past %g mol/L",
 					       MAX_SOURCE_M);
 		}
+		if (w->carb_s >= 0) {
+			/* the apparent pK' of CO2/HCO3- depends on the pH it gives */
+			const co2_app *a = &w->d->co2;
+			double ph = w->mode == SPEC_PH_FIXED
+					    ? w->pH
+					    : -w->u[w->hb] / LN10 + w->A * davies_F(w->I);
+			ph = ph < a->ph_min ? a->ph_min : ph > a->ph_max ? a->ph_max : ph;
+			if (fabs(ph - w->carb_pH) > 1e-11) {
+				int k = w->bref[w->sl[w->carb_s]];
+				w->carb_pH = ph;
+				w->lb0[w->carb_s] = (lig_logbeta0(w->d, k, 1, w->t_C, NULL) +
+						     carb_pk1_thermo(w->d, w->t_C, ph)) *
+						    LN10;
+				x_done = 0;
+			}
+		}
 		double In = ionic_strength(w);
 		int i_done = fabs(In - I) <= 1e-15 + I_RTOL * I;
 		if (i_done && x_done)
@@ -1390,7 +863,6 @@ static int run(work *w, int what, char *err)
 	}
 	return im_fail(err, "ionic strength iteration did not converge");
 }
-
 /* ------------------------------------------------------------------ */
 /* results                                                              */
 
@@ -1410,7 +882,7 @@ static void warnf(spec_result *r, const char *fmt, ...)
 		snprintf(r->warnings[r->nwarn++], SPEC_WARNLEN, "%s", buf);
 }
 
-static int fill_result(work *w, const spec_cond *cond, spec_result *r, char *err)
+int specw_fill_result(work *w, spec_result *r, char *err)
 {
 	const spec_data *d = w->d;
 	double aF = w->A * davies_F(w->I); /* -log10 gamma for z = 1 */
@@ -1518,7 +990,7 @@ static int fill_result(work *w, const spec_cond *cond, spec_result *r, char *err
 	for (int i = 0; i < r->n; i++)
 		r->net_charge_mEq_L += r->sp[i].z * r->sp[i].mM;
 	if (w->mode == SPEC_PH_FIXED)
-		r->excess_H_mM = proton_excess(w) * 1000.0;
+		r->excess_H_mM = specw_proton_excess(w) * 1000.0;
 	r->newton_iterations = w->newton_it;
 	r->used_fallback = w->used_fallback;
 	r->max_rel_residual = w->rmax;
@@ -1568,25 +1040,12 @@ static int fill_result(work *w, const spec_cond *cond, spec_result *r, char *err
 		      w->I * 1000.0, I_DAVIES_MAX_M * 1000.0);
 	if (w->used_fallback)
 		warnf(r, "the fallback solver was needed");
-	if (cond && cond->osm) {
-		osm_species os[SPEC_MAX_OUT];
-		for (int i = 0; i < r->n; i++)
-			os[i] = (osm_species){r->sp[i].symbol, r->sp[i].z, r->sp[i].mM};
-		osm_result orr;
-		if (osm_molar(cond->osm, os, r->n, w->t_C, &orr, err))
-			return -1;
-		r->osmolality_mOsm_kg = orr.osmolality_mOsm_kg;
-		r->osmotic_coeff = orr.phi;
-		r->osmolarity_mOsm_L = orr.osmolarity_ideal_mOsm_L;
-		r->osm_fallback_frac = orr.fallback_frac;
-	}
 	return 0;
 }
-
 /* ------------------------------------------------------------------ */
 /* public solvers                                                       */
 
-static int check_cond(const spec_data *d, const spec_cond *c, int n, char *err)
+int specw_check_cond(const spec_data *d, const spec_cond *c, int n, char *err)
 {
 	if (!d)
 		return im_fail(err, "speciation: no equilibrium data loaded");
@@ -1608,8 +1067,8 @@ static int check_cond(const spec_data *d, const spec_cond *c, int n, char *err)
 				       "at most 10",
 				       c->pco2_atm);
 		if (c->t_C < d->k0.tmin || c->t_C > d->k0.tmax)
-			return im_fail(err, "CO2 solubility known for %g-%g C only",
-				       d->k0.tmin, d->k0.tmax);
+			return im_fail(err, "CO2 constants known for %g-%g C only",
+				       d->co2.tmin, d->co2.tmax);
 	} else if (c->mode != SPEC_PH_CLOSED) {
 		return im_fail(err, "speciation: unknown pH mode");
 	}
@@ -1617,7 +1076,7 @@ static int check_cond(const spec_data *d, const spec_cond *c, int n, char *err)
 }
 
 /* Build the work for inputs (+ titrant, + source); mode from cond. */
-static int setup(work *w, const spec_data *d, const spec_in *in, int n,
+int specw_setup(work *w, const spec_data *d, const spec_in *in, int n,
 		 const spec_cond *c, const spec_in *tit, int nt, const spec_in *src,
 		 int ns, char *err)
 {
@@ -1669,277 +1128,25 @@ int spec_solve(const spec_data *d, const spec_in *in, int n, const spec_cond *co
 	       spec_result *r, char *err)
 {
 	memset(r, 0, sizeof *r);
-	if (check_cond(d, cond, n, err))
+	if (specw_check_cond(d, cond, n, err))
 		return -1;
 	work *w = im_xmalloc(sizeof *w);
-	int rc = setup(w, d, in, n, cond, NULL, 0, NULL, 0, err);
+	int rc = specw_setup(w, d, in, n, cond, NULL, 0, NULL, 0, err);
 	if (rc == 0)
-		rc = run(w, RUN_PLAIN, err);
+		rc = specw_run(w, RUN_PLAIN, err);
 	if (rc == 0)
-		rc = fill_result(w, cond, r, err);
+		rc = specw_fill_result(w, r, err);
 	free(w);
 	return rc;
 }
-
-/* the pH of the inputs as mixed, for messages; NAN when it fails */
-static double ph_as_mixed(const spec_data *d, const spec_in *in, int n, double t_C)
-{
-	spec_cond c = {.t_C = t_C, .mode = SPEC_PH_CLOSED};
-	spec_result *r = im_xmalloc(sizeof *r);
-	char e[IM_ERRLEN];
-	double ph = spec_solve(d, in, n, &c, r, e) == 0 ? r->pH : NAN;
-	free(r);
-	return ph;
-}
-
-/* a name for the titrant in messages: its weak acid or base, if any */
-static const char *titrant_name(const spec_data *d, const spec_in *s, int n)
-{
-	for (int i = 0; i < n; i++)
-		for (int k = 0; k < d->nlig; k++)
-			for (int h = 0; h <= MAXH; h++)
-				if (d->lig[k].has_state[h] &&
-				    strcmp(d->lig[k].state[h], s[i].symbol) == 0)
-					return d->lig[k].name;
-	return "the titrant";
-}
-
-int spec_titrate(const spec_data *d, const spec_in *in, int n, const spec_cond *cond,
-		 const spec_in *tit, int nt, double *amount_mM, spec_result *r, char *err)
-{
-	memset(r, 0, sizeof *r);
-	*amount_mM = 0;
-	if (check_cond(d, cond, n, err))
-		return -1;
-	if (cond->mode != SPEC_PH_FIXED)
-		return im_fail(err, "titration needs a target pH");
-	if (nt <= 0 || nt > SPEC_MAX_IN || !tit)
-		return im_fail(err, "no titrant given");
-	work *w = im_xmalloc(sizeof *w);
-	int rc = setup(w, d, in, n, cond, tit, nt, NULL, 0, err);
-	if (rc)
-		goto out;
-	/* at x = 0: how far off, and which way the titrant goes */
-	w->x_tit = 0;
-	if ((rc = run(w, RUN_PLAIN, err)))
-		goto out;
-	double g0 = proton_excess(w);
-	double q0 = -w->T[DEST_TIT][w->hb];
-	double strong_base = 0, strong_acid = 0, cap_up = 0, cap_down = 0;
-	for (int i = 0; i < nt; i++) {
-		if (strcmp(tit[i].symbol, "OH-") == 0)
-			strong_base += tit[i].mM;
-		if (strcmp(tit[i].symbol, "H+") == 0)
-			strong_acid += tit[i].mM;
-		for (int k = 0; k < d->nlig; k++)
-			for (int h = 0; h <= MAXH; h++)
-				if (d->lig[k].has_state[h] &&
-				    strcmp(d->lig[k].state[h], tit[i].symbol) == 0) {
-					int ns = d->lig[k].nsteps, hm = h < ns ? h : ns;
-					cap_up += (ns - hm) * tit[i].mM;
-					cap_down += hm * tit[i].mM;
-					strong_acid += (h - hm) * tit[i].mM;
-				}
-	}
-	for (int b = 0; b < w->nb; b++)
-		if (w->btype[b] == B_LIGAND && w->T[DEST_TIT][b] > 0)
-			q0 += w->T[DEST_TIT][b] * mean_h(w, b);
-	const char *tname = titrant_name(d, tit, nt);
-	double scale = fabs(w->Tcur[w->hb]) + 1e-12;
-	if (fabs(g0) <= X_RTOL * scale) {
-		rc = fill_result(w, cond, r, err);
-		goto out;
-	}
-	if (fabs(q0) < 1e-9 * (strong_base + strong_acid + cap_up + cap_down + 1e-30) ||
-	    (strong_base + strong_acid + cap_up + cap_down) == 0) {
-		rc = im_fail(err, "%s is neither an acid nor a base at pH %.2f", tname,
-			     cond->pH);
-		goto out;
-	}
-	double x1 = -g0 / q0;
-	if (x1 < 0) {
-		double ph0 = ph_as_mixed(d, in, n, cond->t_C);
-		if (q0 > 0)
-			rc = im_fail(err,
-				     "%s raises the pH, but the solution is at pH %.2f "
-				     "as mixed, above the target %.2f: titrate with an "
-				     "acid",
-				     tname, ph0, cond->pH);
-		else
-			rc = im_fail(err,
-				     "%s lowers the pH, but the solution is at pH %.2f "
-				     "as mixed, below the target %.2f: titrate with a "
-				     "base",
-				     tname, ph0, cond->pH);
-		goto out;
-	}
-	/* a weak base (or acid) works only within about 1 pH unit of its pKa' */
-	if ((q0 > 0 && strong_base == 0 && q0 < cap_up / 11.0) ||
-	    (q0 < 0 && strong_acid == 0 && -q0 < cap_down / 11.0)) {
-		double aF = w->A * davies_F(w->I), pk = NAN;
-		for (int b = 0; b < w->nb; b++)
-			if (w->btype[b] == B_LIGAND && w->T[DEST_TIT][b] > 0) {
-				const lig_def *L = &d->lig[w->bref[b]];
-				double hbar = mean_h(w, b);
-				int step =
-					q0 > 0 ? (int)floor(hbar) + 1 : (int)ceil(hbar);
-				if (step < 1)
-					step = 1;
-				if (step > L->nsteps)
-					step = L->nsteps;
-				double lk = 0;
-				for (int s = 0; s < w->ns; s++)
-					if (w->skind[s] == SPEC_K_LIGAND &&
-					    w->sl[s] == b) {
-						if (w->sref[s] == step)
-							lk += w->lb[s];
-						if (w->sref[s] == step - 1)
-							lk -= w->lb[s];
-					}
-				pk = lk / LN10 + aF;
-				break;
-			}
-		rc = im_fail(err,
-			     "%s cannot bring the pH to %.2f: that is beyond its "
-			     "buffering range (pKa' %.2f at %.1f C, useful within 1 pH "
-			     "unit of it)",
-			     tname, cond->pH, pk, cond->t_C);
-		goto out;
-	}
-	w->x_tit = x1;
-	if ((rc = run(w, RUN_TITRATE, err)))
-		goto out;
-	if (w->x_tit > MAX_TITRANT_M) {
-		rc = im_fail(err,
-			     "reaching pH %.2f would take %.0f mM of %s, more than %g M",
-			     cond->pH, w->x_tit * 1000.0, tname, MAX_TITRANT_M);
-		goto out;
-	}
-	*amount_mM = w->x_tit * 1000.0;
-	rc = fill_result(w, cond, r, err);
-out:
-	free(w);
-	return rc;
-}
-
-int spec_free_target(const spec_data *d, const spec_in *in, int n, const spec_cond *cond,
-		     const char *metal, const spec_in *src, int ns, double target_free_mM,
-		     double *amount_mM, spec_result *r, char *err)
-{
-	memset(r, 0, sizeof *r);
-	*amount_mM = 0;
-	if (check_cond(d, cond, n, err))
-		return -1;
-	if (!isfinite(target_free_mM))
-		return im_fail(err, "free concentration target is not a number");
-	if (target_free_mM < 0)
-		return im_fail(err, "free concentration target %g mM is below zero",
-			       target_free_mM);
-	int m = metal ? find_metal(d, metal) : -1;
-	if (m < 0)
-		return im_fail(err, "'%s' is not a metal of the equilibria tables",
-			       metal ? metal : "");
-	if (ns <= 0 || ns > SPEC_MAX_IN || !src)
-		return im_fail(err, "no source of %s given", d->met[m].sym);
-	work *w = im_xmalloc(sizeof *w);
-	int rc = setup(w, d, in, n, cond, NULL, 0, src, ns, err);
-	if (rc)
-		goto out;
-	int bm = metal_basis(w, m);
-	if (bm < 0 || !(w->T[DEST_SRC][bm] > 0)) {
-		rc = im_fail(err, "the source yields no %s", d->met[m].sym);
-		goto out;
-	}
-	for (int b = 0; b < w->nb; b++) {
-		if (w->btype[b] != B_LIGAND || !d->lig[w->bref[b]].binds ||
-		    !(w->T[DEST_BASE][b] + w->T[DEST_SRC][b] > 0))
-			continue;
-		int any = 0;
-		for (int c = 0; c < d->ncx; c++)
-			any |= d->cx[c].active && d->cx[c].metal == m &&
-			       d->cx[c].lig == w->bref[b];
-		if (!any) {
-			rc = im_fail(err,
-				     "%s binds metals but has no stability constant with "
-				     "%s: free %s cannot be set",
-				     d->lig[w->bref[b]].name, d->met[m].sym,
-				     d->met[m].sym);
-			goto out;
-		}
-	}
-	if (target_free_mM == 0) {
-		if (w->T[DEST_BASE][bm] > 0) {
-			rc = im_fail(err,
-				     "free %s of 0 is below what the solution already "
-				     "holds",
-				     d->met[m].sym);
-			goto out;
-		}
-		rc = spec_solve(d, in, n, cond, r, err);
-		goto out;
-	}
-	w->fixed[bm] = 1;
-	w->fixed_metal = bm;
-	w->u[bm] = log(target_free_mM / 1000.0);
-	w->x_src = 0;
-	if ((rc = run(w, RUN_SOURCE, err))) {
-		if (w->x_src > MAX_SOURCE_M)
-			rc = im_fail(err,
-				     "free %s of %g mM is above what %g M of the source "
-				     "can give",
-				     d->met[m].sym, target_free_mM, MAX_SOURCE_M);
-		goto out;
-	}
-	double x = w->x_src;
-	if (x < -1e-9 * (w->T[DEST_BASE][bm] + 1e-15)) {
-		spec_result *r0 = im_xmalloc(sizeof *r0);
-		char e2[IM_ERRLEN];
-		double f0 = NAN;
-		if (spec_solve(d, in, n, cond, r0, e2) == 0)
-			for (int i = 0; i < r0->nmetals; i++)
-				if (strcmp(r0->metals[i].symbol, d->met[m].sym) == 0)
-					f0 = r0->metals[i].free_mM;
-		free(r0);
-		rc = im_fail(err,
-			     "free %s of %g mM is below what the solution already gives "
-			     "without the source (%g mM)",
-			     d->met[m].sym, target_free_mM, f0);
-		goto out;
-	}
-	if (x > MAX_SOURCE_M) {
-		rc = im_fail(err,
-			     "free %s of %g mM is above what %g M of the source can give",
-			     d->met[m].sym, target_free_mM, MAX_SOURCE_M);
-		goto out;
-	}
-	if (x < 0)
-		x = 0;
-	/* forward check: the solution with the source added, solved anew */
-	spec_in *all = im_xmalloc((size_t)(n + ns) * sizeof *all);
-	for (int i = 0; i < n; i++)
-		all[i] = in[i];
-	for (int i = 0; i < ns; i++) {
-		all[n + i] = src[i];
-		all[n + i].mM = src[i].mM * x * 1000.0;
-	}
-	rc = n + ns > SPEC_MAX_IN ? im_fail(err, "speciation: too many species")
-				  : spec_solve(d, all, n + ns, cond, r, err);
-	free(all);
-	if (rc == 0)
-		*amount_mM = x * 1000.0;
-out:
-	free(w);
-	return rc;
-}
-
 int spec_apparent_kd(const spec_data *d, const char *metal, const char *ligand, double pH,
 		     double t_C, double I_mM, double *kd_mM, char *err)
 {
 	*kd_mM = NAN;
 	if (!d)
 		return im_fail(err, "speciation: no equilibrium data loaded");
-	int m = metal ? find_metal(d, metal) : -1;
-	int k = ligand ? find_lig_ci(d, ligand) : -1;
+	int m = metal ? eqd_find_metal(d, metal) : -1;
+	int k = ligand ? eqd_find_lig_ci(d, ligand) : -1;
 	if (m < 0)
 		return im_fail(err, "'%s' is not a metal of the equilibria tables",
 			       metal ? metal : "");
@@ -1980,83 +1187,4 @@ int spec_apparent_kd(const spec_data *d, const char *metal, const char *ligand, 
 			       L->name);
 	*kd_mM = den / num * 1000.0;
 	return 0;
-}
-
-/* ------------------------------------------------------------------ */
-/* listing                                                              */
-
-int spec_constants(const spec_data *d, const char *name, spec_const *out, int max,
-		   char *err)
-{
-	if (!d || !name || !*name)
-		return im_fail(err, "no name given");
-	int k = find_lig_ci(d, name), m = find_metal(d, name), comp = 0;
-	for (int r = 0; r < d->npka && !comp; r++)
-		comp = im_strcaseeq(d->pka[r].comp, name);
-	for (int r = 0; r < d->ncx && !comp; r++)
-		comp = im_strcaseeq(d->cx[r].comp, name);
-	if (k < 0 && m < 0 && !comp)
-		return im_fail(err,
-			       "'%s' is neither a ligand, a metal nor a compilation of "
-			       "the equilibria tables",
-			       name);
-	int n = 0;
-	for (int r = 0; r < d->npka && n < max; r++) {
-		const pka_row *p = &d->pka[r];
-		if (!((k >= 0 && p->lig == k) || (comp && im_strcaseeq(p->comp, name))))
-			continue;
-		const lig_def *L = &d->lig[p->lig];
-		spec_const *o = &out[n++];
-		memset(o, 0, sizeof *o);
-		snprintf(o->what, SPEC_SYMLEN, "%s", L->state[p->n_h]);
-		snprintf(o->reaction, sizeof o->reaction, "%s = %s + H+",
-			 L->state[p->n_h], L->state[p->n_h - 1]);
-		o->is_pka = 1;
-		o->value = p->pka;
-		o->t_ref_C = p->t_ref;
-		o->i_ref_M = p->i_ref;
-		o->dh_kJ_mol = p->dh;
-		o->dpka_dt_per_K = p->dpdt;
-		o->has_fit = isfinite(p->fa);
-		snprintf(o->compilation, sizeof o->compilation, "%s", p->comp);
-		snprintf(o->source, sizeof o->source, "%s", p->source);
-		o->in_use = p->n_h <= L->nsteps && L->step[p->n_h] == r;
-	}
-	for (int r = 0; r < d->ncx && n < max; r++) {
-		const cx_row *c = &d->cx[r];
-		if (!((k >= 0 && c->lig == k) || (m >= 0 && c->metal == m) ||
-		      (comp && im_strcaseeq(c->comp, name))))
-			continue;
-		const lig_def *L = &d->lig[c->lig];
-		const char *M = d->met[c->metal].sym;
-		spec_const *o = &out[n++];
-		memset(o, 0, sizeof *o);
-		snprintf(o->what, SPEC_SYMLEN, "%s", c->sym);
-		switch (c->kind) {
-		case CX_MHL:
-			snprintf(o->reaction, sizeof o->reaction, "%s + %s = %s", M,
-				 L->state[1], c->sym);
-			break;
-		case CX_M2L:
-			snprintf(o->reaction, sizeof o->reaction, "%s + %s = %s",
-				 d->cx[c->ml_row].sym, M, c->sym);
-			break;
-		case CX_ML2:
-			snprintf(o->reaction, sizeof o->reaction, "%s + %s = %s",
-				 d->cx[c->ml_row].sym, L->state[0], c->sym);
-			break;
-		default:
-			snprintf(o->reaction, sizeof o->reaction, "%s + %s = %s", M,
-				 L->state[0], c->sym);
-		}
-		o->value = c->logk;
-		o->t_ref_C = c->t_ref;
-		o->i_ref_M = c->i_ref;
-		o->dh_kJ_mol = c->dh;
-		o->dpka_dt_per_K = NAN;
-		snprintf(o->compilation, sizeof o->compilation, "%s", c->comp);
-		snprintf(o->source, sizeof o->source, "%s", c->source);
-		o->in_use = c->active;
-	}
-	return n;
 }

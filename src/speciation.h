@@ -27,11 +27,21 @@
  * Model:
  *  - Concentration constants (mol/L) of data/equilibria.sql are taken to
  *    I = 0 with the Davies equation at their reference temperature,
- *    to the working temperature (van 't Hoff with the reaction enthalpy,
- *    linear d(pKa)/dT, or the stored fit; none where nothing is entered,
- *    with a warning), then to the working ionic strength with Davies
- *    (A from activity.h).  The ionic strength is that of the speciated
- *    solution, iterated to self-consistency.
+ *    to the working temperature (van 't Hoff with the reaction enthalpy
+ *    and, where entered, heat capacity; an estimated enthalpy taken from a
+ *    named analogue reaction; linear d(pKa)/dT; or the stored fit - every
+ *    metal-binding ligand has one of these, the loader refuses the tables
+ *    otherwise; a buffer without any is used unchanged, with a warning),
+ *    then to the working ionic strength with Davies (A from activity.h).
+ *    The ionic strength is that of the speciated solution, iterated to
+ *    self-consistency.
+ *  - CO2/HCO3-: the physiological apparent pK' (Severinghaus 1966) by
+ *    temperature and pH, moved from the plasma ionic strength with the
+ *    Davies coefficient of HCO3- (spec_co2_pk_app), and the CO2 solubility
+ *    of plasma (spec_co2_mM_per_atm); the pH it depends on is iterated
+ *    with the ionic strength.
+ *  - A metal-binding ligand without a constant for a metal present is
+ *    taken as not binding it, with a warning (never a refusal).
  *  - pH is what an electrode reads: -log10 a(H+), a(H+) = gamma_H [H+]
  *    with the Davies gamma.
  *  - Equilibria: free concentrations are the unknowns, solved as ln c by
@@ -42,6 +52,10 @@
  *    proton balances close to SPEC_TOL relative.
  *  - Not modelled: metal hydrolysis (MOH+), metal complexes of phosphate,
  *    carbonate and the Good buffers, ion pairs of the strong ions.
+ *
+ * Layout: the tables are read and picked in eqdata.c, the solver is
+ * speciation.c, titration and the free-metal inverse are titrate.c; the
+ * osmolality of a result is osmotic.c's (sol_compute calls it).
  *
  * Ownership: spec_data is owned by the caller of spec_load (free with
  * spec_data_free); results are plain structs with fixed arrays (nothing to
@@ -79,6 +93,16 @@ void spec_data_free(spec_data *d);
  * their defaults.  "default" drops every pick.  -1 when unknown. */
 int spec_use_compilation(spec_data *d, const char *name, char *err);
 
+/* The one compilation pick for the speciation and the Pitzer data at
+ * once (either may be NULL): both use `name` where they have it, or
+ * neither changes.  "default" drops every pick.  -1 with err when no
+ * table has the name or the pick is inconsistent. */
+int spec_pick_compilation(spec_data *d, osm_data *o, const char *name, char *err);
+
+/* The distinct compilation names of both data sets, sorted, into names
+ * (up to max, 32 bytes each); returns how many. */
+int spec_compilations(const spec_data *d, const osm_data *o, char (*names)[32], int max);
+
 /* One stored constant, for listing (`constants NAME`). */
 typedef struct spec_const {
 	char what[SPEC_SYMLEN]; /* species formed: 'HEPES', 'CaEGTA^2-' */
@@ -87,6 +111,9 @@ typedef struct spec_const {
 	double value;           /* pKa or log K at t_ref_C, i_ref_M */
 	double t_ref_C, i_ref_M;
 	double dh_kJ_mol;     /* reaction enthalpy; NAN when none entered */
+	char dh_analogue[SPEC_SYMLEN]; /* non-empty: dh_kJ_mol is an estimate
+					* taken from this analogous reaction */
+	char dh_source[40];            /* key into sources of the enthalpy; "" */
 	double dpka_dt_per_K; /* NAN when none */
 	int has_fit;          /* 1: temperature from a stored fit */
 	char compilation[32];
@@ -120,7 +147,6 @@ typedef struct spec_cond {
 	spec_ph_mode mode;
 	double pH;           /* SPEC_PH_FIXED, and the target of spec_titrate */
 	double pco2_atm;     /* SPEC_PH_CO2: partial pressure of CO2, atm */
-	const osm_data *osm; /* optional: when set, osmolality is computed too */
 	int fallback_only;   /* 1: skip Newton, use the fallback solver alone
 			      * (slow; for testing it); 0 normally */
 } spec_cond;
@@ -176,9 +202,6 @@ typedef struct spec_result {
 	double ionic_strength_mM;
 	double net_charge_mEq_L; /* sum z c over the result's species */
 	double co2_mM; /* CO2 mode: dissolved CO2; else what the solution holds */
-	/* osmolality, when cond.osm was given (else 0) */
-	double osmolality_mOsm_kg, osmotic_coeff, osmolarity_mOsm_L;
-	double osm_fallback_frac; /* see osm_result.fallback_frac */
 	int newton_iterations;
 	int used_fallback;       /* 1: the bracketed fallback solver was needed */
 	double max_rel_residual; /* worst balance closure reached */
@@ -207,9 +230,9 @@ int spec_titrate(const spec_data *d, const spec_in *in, int n, const spec_cond *
  * CaCl2 = {Ca2+ 1, Cl- 2}) to add so that the free concentration of
  * `metal` ('Ca2+') is target_free_mM.  r holds the forward speciation with
  * that amount added.  Fails when the target is negative, below what the
- * solution already gives without the source, above what 1 mol/L of the
- * source gives, or when a metal-binding ligand in the solution has no
- * constant for that metal. */
+ * solution already gives without the source, or above what 1 mol/L of the
+ * source gives.  A metal-binding ligand without a constant for that metal
+ * is taken as not binding it (r->warnings says so). */
 int spec_free_target(const spec_data *d, const spec_in *in, int n, const spec_cond *cond,
 		     const char *metal, const spec_in *src, int ns, double target_free_mM,
 		     double *amount_mM, spec_result *r, char *err);
@@ -231,8 +254,16 @@ double spec_water_vapour_kPa(double t_C);
  * (bubbled gas: pCO2 = frac (P - p_H2O)) or dry when 0 (pCO2 = frac P). */
 double spec_pco2_atm(double frac, double p_total_atm, double t_C, int humid);
 
-/* Solubility of CO2 in water (Harned & Davis 1943 fit in equilibria.sql),
- * mM per atm (mol/kg taken as mol/L times the density of water). */
+/* Solubility of CO2 in physiological saline, mM per atm: the plasma
+ * relation of table eq_co2_apparent (Kelman 1967 after Severinghaus;
+ * 0.0307 mM/mmHg at 37 C) times 760 mmHg/atm. */
 double spec_co2_mM_per_atm(const spec_data *d, double t_C);
+
+/* The apparent pK' = pH - log10([HCO3-]/[CO2]) of the CO2/HCO3- system at
+ * t_C, pH (clamped into the range of the data, 6.8-7.8) and ionic strength
+ * I_mM: the physiological relation of table eq_co2_apparent (Severinghaus
+ * 1966) at its reference ionic strength (0.16 M), moved to I_mM with the
+ * Davies coefficient of HCO3-.  6.09 at 37 C, pH 7.4, 160 mM. */
+double spec_co2_pk_app(const spec_data *d, double t_C, double pH, double I_mM);
 
 #endif

@@ -3,12 +3,15 @@
  */
 #include "units.h"
 
+#include <float.h>
 #include <math.h>
 #include <stdio.h>
 #include <stdlib.h>
 #include <string.h>
+#include <strings.h>
 
 #include "common.h"
+#include "output.h"
 
 /* Length of the leading part of s made of number characters. */
 static size_t number_span(const char *s)
@@ -28,19 +31,58 @@ static size_t number_span(const char *s)
 	return i;
 }
 
+/* 1 when s (after an optional sign) spells a NaN or an infinity as
+ * strtod would read it: such a word is a number, just not a usable one. */
+static int nonfinite_word(const char *s)
+{
+	if (*s == '+' || *s == '-')
+		s++;
+	return im_strcaseeq(s, "nan") || im_strcaseeq(s, "inf") ||
+	       im_strcaseeq(s, "infinity") || strncasecmp(s, "nan(", 4) == 0;
+}
+
 int units_number(const char *s, double *v, char *err)
 {
+	char w[48];
 	char *end;
-	size_t n = number_span(s);
-	int digits = 0;
-	for (size_t i = 0; i < n; i++)
-		digits |= s[i] >= '0' && s[i] <= '9';
-	if (n == 0 || !digits || s[n] != '\0')
-		return im_fail(err, "'%.40s' is not a number", s);
-	*v = strtod(s, &end);
-	if (end != s + n || !isfinite(*v))
-		return im_fail(err, "'%.40s' is not a finite number", s);
+	size_t n = number_span(s), ndig = 0, mant;
+	int nonzero = 0;
+	double x;
+	mant = strcspn(s, "eE");
+	if (mant > n)
+		mant = n;
+	for (size_t i = 0; i < mant; i++)
+		if (s[i] >= '0' && s[i] <= '9') {
+			ndig++;
+			nonzero |= s[i] != '0';
+		}
+	out_clip(w, sizeof w, s);
+	if (nonfinite_word(s))
+		return im_fail(err, "'%s' is not a finite number: give a value", w);
+	if (ndig > UNITS_DIGITS_MAX)
+		return im_fail(err, "'%s' has too many digits (%zu; at most %d)", w, ndig,
+			       UNITS_DIGITS_MAX);
+	if (n == 0 || ndig == 0 || s[n] != '\0')
+		return im_fail(err, "'%s' is not a number", w);
+	x = strtod(s, &end);
+	if (end != s + n)
+		return im_fail(err, "'%s' is not a number", w);
+	if (!isfinite(x) || (x != 0 && fabs(x) < DBL_MIN) || (x == 0 && nonzero))
+		return im_fail(err, "'%s' is out of range: a number's size must be 0 or "
+			       "between %.1e and %.1e", w, DBL_MIN, DBL_MAX);
+	*v = x == 0 ? 0.0 : x; /* '-0' is 0: nothing prints "-0.0" */
 	return 0;
+}
+
+int units_in_range(const char *text, double v, double lo, double hi,
+		   const char *what, const char *unit, char *err)
+{
+	char w[48];
+	if (v >= lo && v <= hi)
+		return 0;
+	out_clip(w, sizeof w, text);
+	return im_fail(err, "%s %s%s%s is outside %g to %g%s%s", what, w, unit ? " " : "",
+		       unit ? unit : "", lo, hi, unit ? " " : "", unit ? unit : "");
 }
 
 typedef struct unit_def {
@@ -54,6 +96,7 @@ static const unit_def units[] = {
 	{"M", 1000.0, 0},     {"mM", 1.0, 0},      {"uM", 1e-3, 0},
 	{"\xc2\xb5M", 1e-3, 0}, {"\xce\xbcM", 1e-3, 0}, {"nM", 1e-6, 0},
 	{"g/L", 1.0, 1},      {"mg/mL", 1.0, 1},   {"mg/L", 1e-3, 1},
+	{"%", 10.0, 1}, /* w/v: 1 g per 100 mL = 10 g/L (common practice) */
 };
 
 static const unit_def *find_unit(const char *s)
@@ -76,9 +119,11 @@ int units_amount_mM(const char *num, const char *unit, double fw_g_mol,
 	double v;
 	const unit_def *u;
 	size_t n = number_span(num);
-	if (!unit && n > 0 && num[n] != '\0') { /* '140mM' */
+	if (!unit && n > 0 && num[n] != '\0' && strpbrk(num, "0123456789") &&
+	    strpbrk(num, "0123456789") < num + n) { /* '140mM' */
 		if (n >= sizeof buf)
-			return im_fail(err, "'%.40s' is not an amount", num);
+			return units_number(num, &v, err) ? -1 :
+			       im_fail(err, "'%.40s' is not an amount", num);
 		memcpy(buf, num, n);
 		buf[n] = '\0';
 		unit = num + n;
@@ -88,7 +133,7 @@ int units_amount_mM(const char *num, const char *unit, double fw_g_mol,
 		return -1;
 	u = find_unit(unit ? unit : "mM");
 	if (!u)
-		return im_fail(err, "unknown unit '%.20s' (use M, mM, uM, nM, g/L, mg/mL or mg/L)",
+		return im_fail(err, "unknown unit '%.20s' (use M, mM, uM, nM, g/L, mg/mL, mg/L or %% (w/v))",
 			       unit);
 	if (v <= 0)
 		return im_fail(err, "amount %s %s: must be greater than zero", num,
@@ -126,8 +171,11 @@ int units_volume_mL(const char *num, const char *unit, double *mL, char *err)
 	v *= f;
 	if (v <= 0)
 		return im_fail(err, "volume %s must be greater than zero", num);
-	if (v > 100000.0)
+	if (v > UNITS_VOLUME_MAX_mL)
 		return im_fail(err, "volume %s %s is over 100 L", num, unit ? unit : "mL");
+	if (v < UNITS_VOLUME_MIN_mL)
+		return im_fail(err, "volume %s %s is under 1 uL, too small to weigh or pipette",
+			       num, unit ? unit : "mL");
 	*mL = v;
 	return 0;
 }

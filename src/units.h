@@ -12,13 +12,30 @@
 /* Largest amount ionmix accepts, mM (5 M: beyond it no model here holds). */
 #define UNITS_MAX_mM 5000.0
 
+/* Digits a typed number may have (before its exponent). */
+#define UNITS_DIGITS_MAX 32
+/* Volumes units_volume_mL takes, mL: 1 uL to 100 L. */
+#define UNITS_VOLUME_MIN_mL 1e-3
+#define UNITS_VOLUME_MAX_mL 100000.0
+
 /* Parse a plain decimal number ('140', '-70.5', '1e-3').  Rejects empty
- * strings, trailing characters, hex, NaN and infinity.  0 or -1 + err. */
+ * strings, trailing characters and hex ("not a number"), NaN and infinity
+ * in any spelling, '-nan' too ("not a finite number"), more than
+ * UNITS_DIGITS_MAX digits ("too many digits"), and values whose size is
+ * beyond DBL_MAX, subnormal, or a nonzero that rounds to 0 ("out of
+ * range").  '-0' gives 0.  Messages quote the word cut at a character
+ * boundary.  0 or -1 + err. */
 int units_number(const char *s, double *v, char *err);
+
+/* Bounds check of a parsed number: 0 when lo <= v <= hi, else -1 with
+ * "WHAT TEXT UNIT is outside LO to HI UNIT" (text is the word as typed,
+ * unit may be NULL).  For handlers: one line after units_number. */
+int units_in_range(const char *text, double v, double lo, double hi,
+		   const char *what, const char *unit, char *err);
 
 /* Parse an amount: num is the number, unit may be NULL (then mM), or the
  * number may carry its unit ('140mM', '100nM').  Units: M, mM, uM, µM, nM,
- * g/L, mg/mL (both need fw_g_mol > 0), mg/L.  The result must be > 0 and
+ * g/L, mg/mL, mg/L, % (w/v: g per 100 mL) (the last four need fw_g_mol > 0).  The result must be > 0 and
  * at most UNITS_MAX_mM.  what names the thing for messages. */
 int units_amount_mM(const char *num, const char *unit, double fw_g_mol,
 		    double *mM, char *err);
@@ -26,7 +43,8 @@ int units_amount_mM(const char *num, const char *unit, double fw_g_mol,
 /* Is s a concentration unit word that units_amount_mM takes? */
 int units_is_unit(const char *s);
 
-/* Volume: num with optional unit mL (default), L, uL, µL.  > 0, <= 100 L. */
+/* Volume: num with optional unit mL (default), L, uL, µL, from
+ * UNITS_VOLUME_MIN_mL (1 uL) to UNITS_VOLUME_MAX_mL (100 L). */
 int units_volume_mL(const char *num, const char *unit, double *mL, char *err);
 
 /* Format a concentration given in mM with a fitting unit (M, mM, uM, nM

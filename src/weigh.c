@@ -19,15 +19,15 @@ void weigh_fmt_mass(char *buf, size_t n, double g)
 {
 	if (g >= 1.0)
 		snprintf(buf, n, "%.3f g", g);
-	else if (g >= 0.010)
-		snprintf(buf, n, "%.4f g", g);
 	else
-		snprintf(buf, n, "%.2f mg", g * 1000.0);
+		snprintf(buf, n, "%.1f mg", g * 1000.0);
 }
 
 void weigh_fmt_volume(char *buf, size_t n, double mL, int utf8)
 {
-	if (mL >= 1.0)
+	if (mL >= 1000.0)
+		snprintf(buf, n, "%.3f L", mL / 1000.0);
+	else if (mL >= 1.0)
 		snprintf(buf, n, "%.2f mL", mL);
 	else
 		snprintf(buf, n, "%.1f %s", mL * 1000.0, utf8 ? "\xc2\xb5L" : "uL");

@@ -4,6 +4,7 @@
  * titration. */
 #include "testutil.h"
 
+#include <math.h>
 #include <stdlib.h>
 #include <string.h>
 #include <unistd.h>
@@ -173,7 +174,7 @@ static void bicarbonate_bath(void **state)
 	sol_state st;
 	(void)state;
 	/* 26 mM NaHCO3 under 5 % CO2 at 37 C is near pH 7.4 (common
-	 * practice); the model gives about 7.5 (see test_speciation.c) */
+	 * practice; the physiological constants, see test_speciation.c) */
 	ok("temp 37; solution acsf; add NaCl 125; add KCl 2.5; add NaHCO3 26;"
 	   "add NaH2PO4 1.25; add glucose 25; add CaCl2 2; add MgCl2 1; gas co2 5%");
 	forward(&st);
@@ -181,6 +182,106 @@ static void bicarbonate_bath(void **state)
 	sol_state_free(&st);
 	ok("gas off");
 	assert_close(ws_current(&ctx.ses->ws)->co2_frac, 0, 0, 0);
+}
+
+/* issue 10: `free Ca 100 nM` with 0.3 mM GTP present (almost every
+ * internal) succeeds, at 22 and at 35 C, and the forward computation
+ * returns 100 nM to 1e-6 relative; GTP takes Mg2+ (the free Mg2+ of 4 mM
+ * Na2ATP + 4 mM MgCl2 falls when 0.3 mM GTP is added) */
+static void gtp_internal(void **state)
+{
+	sol_state st;
+	(void)state;
+	ok("temp 22; solution g; add K-gluconate 130; add KCl 10; add HEPES 10; add EGTA 0.5;"
+	   "add Na2ATP 4; add MgCl2 4; ph 7.3 with KOH");
+	forward(&st);
+	double mg0 = free_metal(&st, "Mg2+");
+	sol_state_free(&st);
+	ok("add Na2GTP 0.3; ph 7.3 with KOH");
+	forward(&st);
+	double mg1 = free_metal(&st, "Mg2+");
+	sol_state_free(&st);
+	assert_true(mg1 < mg0 - 0.05);
+	ok("free Ca 100 nM");
+	forward(&st);
+	assert_close(free_metal(&st, "Ca2+"), 1e-4, 1e-6, 0);
+	double ca22 = amount("CaCl2");
+	/* every shipped ligand has its temperature dependence: no such note */
+	for (int i = 0; i < st.chem->nwarn; i++)
+		assert_null(strstr(st.chem->warnings[i], "temperature"));
+	sol_state_free(&st);
+	ok("temp 35; ph 7.3 with KOH; free Ca 100 nM");
+	forward(&st);
+	assert_close(free_metal(&st, "Ca2+"), 1e-4, 1e-6, 0);
+	for (int i = 0; i < st.chem->nwarn; i++)
+		assert_null(strstr(st.chem->warnings[i], "temperature"));
+	sol_state_free(&st);
+	/* EGTA binds more strongly at 35 C: the same free Ca2+ takes more
+	 * CaCl2 (Harrison & Bers 1987, from memory) */
+	assert_true(amount("CaCl2") > ca22);
+	/* a ligand with no constant for the metal: a note, not a refusal */
+	ok("solution z; add KCl 140; add BAPTA 10; add HEPES 10; ph 7.2 with KOH; "
+	   "free Zn 1 uM with ZnCl2");
+	forward(&st);
+	assert_close(free_metal(&st, "Zn2+"), 1e-3, 1e-6, 0);
+	sol_state_free(&st);
+}
+
+/* issue 10: the osmolality range (`show`, JSON osmolality_range_mOsm_kg)
+ * of a K-gluconate internal, and `osmo` aiming at the central value */
+static void osmolality_range(void **state)
+{
+	sol_state st;
+	(void)state;
+	ok("temp 22; solution k; add K-gluconate 130; add KCl 10; add HEPES 10; "
+	   "ph 7.3 with KOH");
+	forward(&st);
+	assert_true(st.osmolality_lo_mOsm_kg < st.osmolality_mOsm_kg - 2);
+	assert_true(st.osmolality_hi_mOsm_kg > st.osmolality_mOsm_kg + 2);
+	/* bench practice: 0.90-0.95 of the ideal for such internals (common
+	 * practice) */
+	double ratio = st.osmolality_mOsm_kg / st.osmolarity_mOsm_L;
+	assert_true(ratio > 0.88 && ratio < 0.96);
+	sol_state_free(&st);
+	ok("osmo 300 with sucrose");
+	forward(&st);
+	assert_close(st.osmolality_mOsm_kg, 300, 0, 0.01);
+	sol_state_free(&st);
+	o.json = 1;
+	fflush(o.fp);
+	size_t at = len;
+	ok("show");
+	fflush(o.fp);
+	o.json = 0;
+	assert_non_null(strstr(buf + at, "\"osmolality_range_mOsm_kg\":["));
+}
+
+/* issue 10: `ratio ... shift` with the test ion absent from the first
+ * bath (Na -> K replacement, Na inside) recovers the ratio that made the
+ * shift: (RT/F) ln(0.5) at 25 C = -17.809 mV (monovalent bi-ionic closed
+ * form, Goldman 1943; Hodgkin & Katz 1949) */
+static void substitution_ratio(void **state)
+{
+	(void)state;
+	ok("temp 25; solution nin; add NaCl 140; solution nab; add NaCl 140; "
+	   "solution kb; add KCl 140");
+	double shift = 8.314462618 * 298.15 / 96485.33212 * 1000.0 * log(0.5);
+	char line[160];
+	snprintf(line, sizeof line, "ratio nin nab K Na shift nab kb by %.9f", shift);
+	o.json = 1;
+	fflush(o.fp);
+	size_t at = len;
+	ok(line);
+	fflush(o.fp);
+	o.json = 0;
+	const char *p = strstr(buf + at, "\"ratio\":");
+	assert_non_null(p);
+	assert_close(strtod(p + 8, NULL), 0.5, 1e-6, 0);
+	/* all permeant ions on one side in a state: refused, one line */
+	char err[IM_ERRLEN];
+	ok("solution empty; add sucrose 280");
+	assert_int_equal(cmd_exec(&ctx, "ratio empty nab K Na shift nab kb by 5", err), -1);
+	assert_non_null(strstr(err, "no reversal potential"));
 }
 
 static void refusals_change_nothing(void **state)
@@ -256,6 +357,9 @@ int main(void)
 		cmocka_unit_test_setup_teardown(egta_calcium_range, fresh, done),
 		cmocka_unit_test_setup_teardown(osmolality_target, fresh, done),
 		cmocka_unit_test_setup_teardown(bicarbonate_bath, fresh, done),
+		cmocka_unit_test_setup_teardown(gtp_internal, fresh, done),
+		cmocka_unit_test_setup_teardown(osmolality_range, fresh, done),
+		cmocka_unit_test_setup_teardown(substitution_ratio, fresh, done),
 		cmocka_unit_test_setup_teardown(refusals_change_nothing, fresh, done),
 		cmocka_unit_test_setup_teardown(recipe_replays_titration, fresh, done),
 	};

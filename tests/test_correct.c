@@ -9,6 +9,8 @@
  */
 #include <dirent.h>
 #include <errno.h>
+#include <fcntl.h>
+#include <sys/wait.h>
 #include <stdlib.h>
 #include <string.h>
 #include <sys/stat.h>
@@ -20,6 +22,7 @@
 #include "command.h"
 #include "common.h"
 #include "correct.h"
+#include "electrode.h"
 
 /* ---- helpers ---------------------------------------------------------- */
 
@@ -856,7 +859,8 @@ static void test_files(void **state)
 	/* a directory that does not exist */
 	path_in(opath, sizeof opath, "no/such/dir/x.csv");
 	assert_int_equal(corr_file(in, opath, NULL, &o, &r, err), -1);
-	assert_contains(err, "cannot create a file beside");
+	assert_contains(err, "cannot write");
+	assert_contains(err, "No such file or directory");
 	assert_int_equal(dir_count(), 1);
 	unlink(in);
 
@@ -879,7 +883,9 @@ static void test_files(void **state)
 	char text[1024];
 	size_t n = corr_note_format(&rr, "a.tsv", "b.tsv", text, sizeof text);
 	assert_int_equal(n, strlen(text));
-	assert_contains(text, "LJP: -3.5 mV\ninput: a.tsv\noutput: b.tsv\n");
+	assert_contains(text, "LJP: -3.5 mV\n");
+	assert_contains(text, "\ninput: a.tsv\noutput: b.tsv\n");
+	assert_contains(text, "(Vm = Vrecorded - LJP)\nrecording configuration: whole-cell\n");
 	assert_contains(text, "columns: 2 \"Vm\" in mV (assumed); 3 \"V2 (V)\" in V\n");
 	assert_contains(text, "delimiter: tab; header row: yes\n");
 	assert_contains(text, "rows: 7; corrected: 13; skipped: 1");
@@ -1014,6 +1020,445 @@ static void test_boundaries(void **state)
 	}
 }
 
+
+/* The streaming loop has its own fast arithmetic for plain cells
+ * (fix_plain); every cell it writes must be the text corr_cell (the
+ * general parser and arithmetic, checked exactly above against an
+ * independent reader) gives for it.  Cells of every style - signs, '+',
+ * leading zeros, ".5", "5.", 0 to 9 decimals, up to 18 digits - against
+ * LJPs with 0 to 5 decimals, either sign or 0, in columns of mV, V and uV,
+ * LF and CRLF lines. */
+static void test_fast_path_same(void **state)
+{
+	(void)state;
+	static const char *const ljps[] = {"14.2", "-3", "0.125", "0", "999.999",
+					   "-0.00001", "7", "-14.20"};
+	static const struct { const char *head; int unit_exp; } units[] = {
+		{"Vm (mV)", 0}, {"V (V)", -3}, {"Vu (uV)", 3},
+	};
+	gen g = {2026};
+	char err[IM_ERRLEN];
+	for (size_t li = 0; li < IM_COUNT(ljps); li++)
+		for (size_t ui = 0; ui < IM_COUNT(units); ui++) {
+			corr_opts o = {0};
+			corr_result r;
+			const char *cols[] = {"2"};
+			assert_int_equal(corr_ljp_parse(ljps[li], &o.ljp, err), 0);
+			o.columns = cols;
+			o.ncolumns = 1;
+			char *in = NULL, *out = NULL;
+			size_t inl = 0, outl = 0;
+			FILE *fi = open_memstream(&in, &inl);
+			fprintf(fi, "t,%s,x\n", units[ui].head);
+			enum { ROWS = 3000 };
+			static char cells[ROWS][40];
+			for (int i = 0; i < ROWS; i++) {
+				char *c = cells[i];
+				int k = 0, ni = (int)(rnd(&g) % 8), nf = (int)(rnd(&g) % 10);
+				unsigned style = rnd(&g) % 8;
+				if (ni + nf > 18)
+					nf = 18 - ni;
+				if (style == 0)
+					c[k++] = '+';
+				else if (style < 4)
+					c[k++] = '-';
+				for (int d = 0; d < ni; d++)
+					c[k++] = (char)('0' + (d == 0 && rnd(&g) % 6 ? 1 + rnd(&g) % 9
+							  : rnd(&g) % 10));
+				if (nf > 0 || rnd(&g) % 4 == 0)
+					c[k++] = '.';
+				for (int d = 0; d < nf; d++)
+					c[k++] = (char)('0' + rnd(&g) % 10);
+				if (ni + nf == 0)
+					c[k++] = '0';
+				c[k] = '\0';
+				fprintf(fi, "%d,%s,%s", i, c, i % 3 ? "z" : "\"q,\"");
+				fputs(i % 5 == 0 ? "\r\n" : "\n", fi);
+			}
+			fclose(fi);
+			FILE *ifp = fmemopen(in, inl, "rb"), *ofp = open_memstream(&out, &outl);
+			if (corr_stream(ifp, "mem.csv", ofp, &o, &r, err) != 0)
+				fail_msg("LJP %s, %s: %s", ljps[li], units[ui].head, err);
+			fclose(ifp);
+			fclose(ofp);
+			assert_int_equal(r.corrected, ROWS);
+			const char *p = strchr(out, '\n') + 1;
+			for (int i = 0; i < ROWS; i++) {
+				char want[160];
+				size_t wl;
+				assert_int_equal(corr_cell(cells[i], strlen(cells[i]), &o.ljp,
+							   units[ui].unit_exp, want, sizeof want, &wl, err), 0);
+				const char *c = strchr(p, ',') + 1, *ce = strchr(c, ',');
+				if ((size_t)(ce - c) != wl || memcmp(c, want, wl) != 0)
+					fail_msg("LJP %s, %s, cell '%s': stream '%.*s', corr_cell '%s'",
+						 ljps[li], units[ui].head, cells[i], (int)(ce - c), c, want);
+				p = strchr(ce, '\n') + 1;
+			}
+			free(in);
+			free(out);
+		}
+}
+
+/* A full disk (/dev/full, ENOSPC on every write) is reported, whether the
+ * output is small (written at the end) or large (the writer thread). */
+static void test_write_error(void **state)
+{
+	(void)state;
+	char err[IM_ERRLEN];
+	corr_opts o = {0};
+	corr_result r;
+	FILE *full = fopen("/dev/full", "wb");
+	if (!full) {
+		skip();
+		return;
+	}
+	setvbuf(full, NULL, _IONBF, 0);
+	assert_int_equal(corr_ljp_parse("14.2", &o.ljp, err), 0);
+	for (int big = 0; big < 2; big++) {
+		char *in = NULL;
+		size_t inl = 0;
+		FILE *fi = open_memstream(&in, &inl);
+		fputs("t,Vm (mV)\n", fi);
+		for (int i = 0; i < (big ? 300000 : 3); i++)
+			fprintf(fi, "%d,-70.%03d\n", i, i % 1000);
+		fclose(fi);
+		FILE *ifp = fmemopen(in, inl, "rb");
+		assert_int_equal(corr_stream(ifp, "mem.csv", full, &o, &r, err), -1);
+		assert_contains(err, "cannot write the output");
+		assert_contains(err, strerror(ENOSPC));
+		fclose(ifp);
+		free(in);
+	}
+	fclose(full);
+}
+
+/* Without `to`, a file over CMD_CORRECT_TTY_MAX bytes is not poured onto
+ * a terminal: one line saying how (a pseudo-terminal stands for it). */
+static void test_tty_refusal(void **state)
+{
+	(void)state;
+	const char *bin = getenv("IONMIX");
+	char in[600], errp[600], expr[1400];
+	size_t len;
+	if (!bin || !*bin) {
+		skip();
+		return;
+	}
+	int m = posix_openpt(O_RDWR | O_NOCTTY);
+	if (m < 0 || grantpt(m) != 0 || unlockpt(m) != 0 || !ptsname(m)) {
+		if (m >= 0)
+			close(m);
+		skip();   /* no pseudo-terminals here */
+		return;
+	}
+	const char *slave = ptsname(m);
+	path_in(in, sizeof in, "tty.csv");
+	path_in(errp, sizeof errp, "tty.err");
+	FILE *fp = fopen(in, "wb");
+	assert_non_null(fp);
+	fputs("t,Vm (mV)\n", fp);
+	for (int i = 0; ftell(fp) <= CMD_CORRECT_TTY_MAX; i++)
+		fprintf(fp, "%d,-70.%03d\n", i, i % 1000);
+	fclose(fp);
+	snprintf(expr, sizeof expr, "correct '%s' by 14.2", in);
+	pid_t pid = fork();
+	assert_true(pid >= 0);
+	if (pid == 0) {
+		int s = open(slave, O_RDWR);
+		int fe = open(errp, O_WRONLY | O_CREAT | O_TRUNC, 0644);
+		if (s < 0 || fe < 0)
+			_exit(126);
+		dup2(s, 1);
+		dup2(fe, 2);
+		setenv("IONMIX_DB", "/nonexistent/ionmix-test.db", 1);
+		execl(bin, bin, "-e", expr, (char *)NULL);
+		_exit(127);
+	}
+	int st;
+	assert_int_equal(waitpid(pid, &st, 0), pid);
+	close(m);
+	assert_true(WIFEXITED(st));
+	assert_int_equal(WEXITSTATUS(st), 1);
+	char *b = read_file(errp, &len);
+	assert_contains(b, "too much for the terminal");
+	assert_contains(b, "`to OUT`");
+	assert_int_equal(strchr(b, '\n') - b + 1, (long)len);   /* one line */
+	free(b);
+	unlink(errp);
+	unlink(in);
+}
+
+/* ---- metadata lines, recording configurations, standard streams ------- */
+
+/* corr_stream on a string with every option; output (malloc'd) or NULL. */
+static char *run_opts(const char *in, const corr_opts *o, corr_result *r, char *err)
+{
+	char *buf = NULL;
+	size_t blen = 0;
+	FILE *ifp = fmemopen((void *)in, strlen(in), "rb"), *ofp;
+	assert_non_null(ifp);
+	ofp = open_memstream(&buf, &blen);
+	assert_non_null(ofp);
+	int rc = corr_stream(ifp, "mem.csv", ofp, o, r, err);
+	fclose(ifp);
+	fclose(ofp);
+	if (rc != 0) {
+		free(buf);
+		return NULL;
+	}
+	return buf;
+}
+
+/* The text-export layout of issue 13: metadata lines, then the header.
+ * Expected values are input - LJP by hand (exact decimal subtraction). */
+static void test_metadata(void **state)
+{
+	(void)state;
+	char err[IM_ERRLEN];
+	corr_result r;
+	corr_opts o = {0};
+	assert_int_equal(corr_ljp_parse("14.2", &o.ljp, err), 0);
+	const char *five = "# rig: demo rig A\n# gain: 10\n# sampling: 20 kHz\n"
+			   "# filter: 5 kHz\n# cell 3, made-up values\n"
+			   "t (s),Vm (mV),I (pA)\n0.00005,-70.0,12\n0.00010,-65.25,-3\n";
+	char *out = run_opts(five, &o, &r, err);
+	if (!out)
+		fail_msg("%s", err);
+	assert_string_equal(out, "# rig: demo rig A\n# gain: 10\n# sampling: 20 kHz\n"
+			    "# filter: 5 kHz\n# cell 3, made-up values\n"
+			    "t (s),Vm (mV),I (pA)\n0.00005,-84.2,12\n0.00010,-79.45,-3\n");
+	assert_int_equal(r.meta, 5);
+	assert_int_equal(r.header, 1);
+	assert_int_equal(r.ncols, 1);
+	assert_int_equal(r.cols[0].index, 2);
+	assert_int_equal(r.rows, 2);
+	free(out);
+
+	/* a comment line recording the correction, CRLF kept */
+	corr_about a = {0};
+	a.temperature_C = 21.0;
+	a.pipette = "kglu";
+	a.bath = "saline";
+	a.model = "Henderson (concentrations)";
+	a.range = "13.9 to 14.5 mV";
+	a.version = "9.9.9";
+	a.date = "2026-01-02T03:04:05Z";
+	o.comment = 1;
+	o.about = &a;
+	out = run_opts("# one\r\n#two\r\nVm (mV)\r\n-70\r\n", &o, &r, err);
+	if (!out)
+		fail_msg("%s", err);
+	assert_string_equal(out, "# one\r\n#two\r\n# ionmix correct: Vm = Vrecorded - LJP,"
+			    " whole-cell; LJP: 14.2 mV; LJP range: 13.9 to 14.5 mV; model:"
+			    " Henderson (concentrations); pipette: kglu; bath: saline;"
+			    " temperature: 21.0 C; ionmix: 9.9.9; date: 2026-01-02T03:04:05Z\r\n"
+			    "Vm (mV)\r\n-84.2\r\n");
+	assert_int_equal(r.comment, 1);
+	free(out);
+	/* no '#' lines: the format has no comments, none is added */
+	o.skip = 2;
+	out = run_opts("rig A\ncell 3\nVm (mV)\n-70\n", &o, &r, err);
+	if (!out)
+		fail_msg("%s", err);
+	assert_string_equal(out, "rig A\ncell 3\nVm (mV)\n-84.2\n");
+	assert_int_equal(r.meta, 2);
+	assert_int_equal(r.comment, 0);
+	free(out);
+	o.comment = 0;
+	o.about = NULL;
+	/* skip N, then '#' lines, then a blank line; a BOM before it all */
+	o.skip = 1;
+	out = run_opts("\xef\xbb\xbfRecorded 2026\n# x\n\nt,V\n1,2\n", &o, &r, err);
+	if (!out)
+		fail_msg("%s", err);
+	assert_string_equal(out, "\xef\xbb\xbfRecorded 2026\n# x\n\nt,V\n1,-12.2\n");
+	assert_int_equal(r.meta, 3);
+	free(out);
+	/* errors count the metadata lines */
+	o.skip = 0;
+	assert_null(run_opts("# a\n# b\nt,V\n1,x\n", &o, &r, err));
+	assert_prefix(err, "mem.csv:4:2: 'x' is not a number");
+	assert_null(run_opts("# a\n# b\n", &o, &r, err));
+	assert_prefix(err, "mem.csv: only 2 metadata lines, no header or data");
+	o.skip = 5;
+	assert_null(run_opts("a\nb\n", &o, &r, err));
+	assert_prefix(err, "mem.csv: only 2 metadata lines");
+	/* metadata longer than the read buffer streams through */
+	o.skip = 0;
+	size_t big = 3 * 1024 * 1024;
+	char *in = malloc(big + 64);
+	assert_non_null(in);
+	size_t k = 0;
+	while (k < big)
+		k += (size_t)sprintf(in + k, "# metadata line %zu of a long preamble\n", k);
+	size_t head = k;
+	strcpy(in + k, "t,Vm (mV)\n1,-70\n");
+	out = run_opts(in, &o, &r, err);
+	if (!out)
+		fail_msg("%s", err);
+	assert_memory_equal(out, in, head);
+	assert_string_equal(out + head, "t,Vm (mV)\n1,-84.2\n");
+	free(out);
+	free(in);
+}
+
+/* The forms of correction `junction` prints (electrode.h el_true_mV):
+ * inside-out Vm = -(V - LJP), cell-attached Vpatch - Vrest = -(V - LJP);
+ * checked against el_true_mV's formula by hand. */
+static void test_configs(void **state)
+{
+	(void)state;
+	char err[IM_ERRLEN];
+	corr_result r;
+	corr_opts o = {0};
+	corr_config c;
+	assert_int_equal(corr_ljp_parse("14.2", &o.ljp, err), 0);
+	const char *in = "t,Vm (mV)\n1,70\n2,-70.05\n3,14.2\n4,+20\n5,\n";
+	o.config = CORR_INSIDE_OUT;
+	char *out = run_opts(in, &o, &r, err);
+	if (!out)
+		fail_msg("%s", err);
+	/* +70 mV in the pipette, LJP0 14.2 mV: -(70 - 14.2) = -55.8 mV, the
+	 * example `junction` prints for inside-out */
+	assert_string_equal(out, "t,Vm (mV)\n1,-55.8\n2,84.25\n3,0.0\n4,-5.8\n5,\n");
+	assert_int_equal(r.config, CORR_INSIDE_OUT);
+	free(out);
+	/* inside-out is its own inverse with the same LJP */
+	out = run_opts("t,Vm (mV)\n1,-55.8\n2,84.25\n", &o, &r, err);
+	assert_string_equal(out, "t,Vm (mV)\n1,70.0\n2,-70.05\n");
+	free(out);
+	o.config = CORR_CELL_ATTACHED;
+	out = run_opts(in, &o, &r, err);
+	assert_string_equal(out, "t,Vm (mV)\n1,-55.8\n2,84.25\n3,0.0\n4,-5.8\n5,\n");
+	free(out);
+	o.config = CORR_OUTSIDE_OUT;
+	out = run_opts(in, &o, &r, err);
+	assert_string_equal(out, "t,Vm (mV)\n1,55.8\n2,-84.25\n3,0.0\n4,+5.8\n5,\n");
+	free(out);
+	/* a volt column and a long number take the exact path too */
+	o.config = CORR_INSIDE_OUT;
+	out = run_opts("V (V)\n-0.0700\n", &o, &r, err);
+	assert_string_equal(out, "V (V)\n0.0842\n");
+	free(out);
+	out = run_opts("Vm (mV)\n-70.0000000000000000000001\n", &o, &r, err);
+	assert_string_equal(out, "Vm (mV)\n84.2000000000000000000001\n");
+	free(out);
+	/* names */
+	assert_int_equal(corr_config_parse("inside-out", &c), 0);
+	assert_int_equal(c, CORR_INSIDE_OUT);
+	assert_int_equal(corr_config_parse("cell-attached", &c), 0);
+	assert_int_equal(c, CORR_CELL_ATTACHED);
+	assert_int_equal(corr_config_parse("insideout", &c), -1);
+	assert_string_equal(corr_config_formula(CORR_INSIDE_OUT), "Vm = -(Vrecorded - LJP)");
+	/* every form agrees with el_true_mV, the rule `junction` prints */
+	static const struct { corr_config c; el_config e; } same[] = {
+		{CORR_WHOLE_CELL, EL_WHOLE_CELL}, {CORR_OUTSIDE_OUT, EL_OUTSIDE_OUT},
+		{CORR_INSIDE_OUT, EL_INSIDE_OUT}, {CORR_CELL_ATTACHED, EL_CELL_ATTACHED},
+	};
+	static const double v_mV[] = {70.0, -70.05, 14.2, 0.125, -123.456};
+	for (size_t i = 0; i < IM_COUNT(same); i++) {
+		o.config = same[i].c;
+		out = run_opts("Vm (mV)\n70\n-70.05\n14.2\n0.125\n-123.456\n", &o, &r, err);
+		assert_non_null(out);
+		const char *p = strchr(out, '\n') + 1;
+		for (size_t k = 0; k < IM_COUNT(v_mV); k++) {
+			char *end;
+			double got = strtod(p, &end);
+			assert_close(got, el_true_mV(same[i].e, v_mV[k], 14.2, 0.0), 0, 1e-9);
+			p = end + 1;
+		}
+		free(out);
+	}
+}
+
+/* Run ionmix (IONMIX) with stdin from in_path (or /dev/null) and stdout to
+ * out_path; returns the exit status, or -1 when IONMIX is not set. */
+static int run_ionmix(const char *in_path, const char *out_path, const char *expr)
+{
+	const char *bin = getenv("IONMIX");
+	if (!bin || !*bin)
+		return -1;
+	pid_t pid = fork();
+	assert_true(pid >= 0);
+	if (pid == 0) {
+		int fi = open(in_path ? in_path : "/dev/null", O_RDONLY);
+		int fo = open(out_path, O_WRONLY | O_CREAT | O_TRUNC, 0644);
+		int fe = open("/dev/null", O_WRONLY);
+		if (fi < 0 || fo < 0 || fe < 0)
+			_exit(126);
+		dup2(fi, 0);
+		dup2(fo, 1);
+		dup2(fe, 2);
+		setenv("IONMIX_DB", "/nonexistent/ionmix-test.db", 1);
+		execl(bin, bin, "-e", expr, (char *)NULL);
+		_exit(127);
+	}
+	int st;
+	assert_int_equal(waitpid(pid, &st, 0), pid);
+	return WIFEXITED(st) ? WEXITSTATUS(st) : 128 + WTERMSIG(st);
+}
+
+/* `correct - ... to -`: standard input to standard output, byte for byte
+ * apart from the corrected cells; and no output may be the input, the
+ * side note included, also through a symbolic link or standard input. */
+static void test_std_streams(void **state)
+{
+	(void)state;
+	char in[600], outp[600], lnk[600], note[700], expr[1600], err[IM_ERRLEN];
+	size_t len;
+	corr_result r;
+	corr_opts o = {0};
+	path_in(in, sizeof in, "std.csv");
+	path_in(outp, sizeof outp, "std-out.csv");
+	write_file(in, "# made-up recording\nt,Vm (mV)\n1,70.0\n2,-3\n", 42);
+	int rc = run_ionmix(in, outp, "correct - by 14.2 inside-out");
+	if (rc == -1) {
+		skip();   /* IONMIX not set: run through `make test` */
+		return;
+	}
+	assert_int_equal(rc, 0);
+	char *b = read_file(outp, &len);
+	assert_prefix(b, "# made-up recording\n# ionmix correct: Vm = -(Vrecorded - LJP),"
+		      " inside-out; LJP: 14.2 mV;");
+	assert_contains(b, "\nt,Vm (mV)\n1,-55.8\n2,17.2\n");
+	free(b);
+	assert_int_equal(run_ionmix(in, outp, "correct - by 14.2 to -"), 0);
+	b = read_file(outp, &len);
+	assert_contains(b, "\nt,Vm (mV)\n1,55.8\n2,-17.2\n");
+	free(b);
+	unlink(outp);
+
+	/* standard input that is the output file: refused, the file intact */
+	snprintf(expr, sizeof expr, "correct - by 1 to '%s'", in);
+	assert_int_equal(run_ionmix(in, "/dev/null", expr), 1);
+	b = read_file(in, &len);
+	assert_string_equal(b, "# made-up recording\nt,Vm (mV)\n1,70.0\n2,-3\n");
+	free(b);
+
+	/* the side note of the output would be the input */
+	assert_int_equal(corr_ljp_parse("14", &o.ljp, err), 0);
+	path_in(note, sizeof note, "rec");
+	path_in(lnk, sizeof lnk, "rec" CORR_NOTE_SUFFIX);
+	write_file(lnk, "t,Vm (mV)\n1,2\n", 14);
+	assert_int_equal(corr_file(lnk, note, NULL, &o, &r, err), -1);
+	assert_contains(err, "would replace the input file");
+	b = read_file(lnk, &len);
+	assert_string_equal(b, "t,Vm (mV)\n1,2\n");
+	free(b);
+	assert_int_equal(access(note, F_OK), -1);
+	unlink(lnk);
+	/* through a symbolic link */
+	path_in(lnk, sizeof lnk, "link.csv");
+	assert_int_equal(symlink(in, lnk), 0);
+	assert_int_equal(corr_file(in, lnk, NULL, &o, &r, err), -1);
+	assert_contains(err, "is the input file");
+	unlink(lnk);
+	/* to a non-regular file: written through, no note beside it */
+	assert_int_equal(corr_file(in, "/dev/null", NULL, &o, &r, err), 0);
+	assert_int_equal(r.note, 0);
+	assert_int_equal(access("/dev/null" CORR_NOTE_SUFFIX, F_OK), -1);
+	unlink(in);
+}
 
 /* ---- the `correct` command ------------------------------------------- */
 
@@ -1204,6 +1649,12 @@ int main(void)
 		cmocka_unit_test(test_files),
 		cmocka_unit_test(test_big_file),
 		cmocka_unit_test(test_boundaries),
+		cmocka_unit_test(test_fast_path_same),
+		cmocka_unit_test(test_write_error),
+		cmocka_unit_test(test_tty_refusal),
+		cmocka_unit_test(test_metadata),
+		cmocka_unit_test(test_configs),
+		cmocka_unit_test(test_std_streams),
 		cmocka_unit_test(test_cmd_values),
 		cmocka_unit_test(test_cmd_file),
 	};

@@ -362,6 +362,83 @@ static void test_bi_ionic_divalent(void **st)
 	assert_close(E, 20.0, 0, EPS_MV);
 }
 
+/* ---- issue 10: full substitutions, both directions ----
+ * The shift of E_rev when the test ion is absent from one of the two
+ * states, generated from the closed forms (not from ghk.c) and recovered
+ * to 1e-6 relative:
+ *  (a) Na -> K replacement, Na inside: before, Na on both sides (E = Nernst
+ *      Na); after, bi-ionic (monovalent closed form above):
+ *      shift = (RT/F) ln(P_K [K]o' / (P_Na [Na]o)) when [Na]i = [Na]o;
+ *  (b) adding 20 mM Ca2+ to a Na bath, Na inside: Lewis (1979) J Physiol
+ *      286:417 (from memory), with Na on both sides:
+ *      P_Ca/P_Na = ([Na]i x - [Na]o)(x + 1) / (4 [Ca]o), x = e^(EF/RT),
+ *      so x is the positive root of [Na]i x^2 + ([Na]i - [Na]o) x
+ *      - ([Na]o + 4 r [Ca]o) = 0;
+ *  (c) Na -> Li with Cs+ inside (both bi-ionic):
+ *      shift = (RT/F) ln(P_Li [Li]o' / (P_Na [Na]o)).
+ * Each also run backwards (the "to" bath first, the shift negated). */
+static void test_full_substitution(void **st)
+{
+	(void)st;
+	char err[IM_ERRLEN];
+	double q, t = 22, u = rtf(t);
+	for (int k = 0; k < 3; k++) {
+		double r = k == 0 ? 1.37 : k == 1 ? 0.21 : 0.74;
+		/* (a) */
+		ghk_ion a[] = {{"Na+", 1, 1.0, 140, 140}, {"K+", 1, 0, 0, 0}};
+		double a_to[] = {0, 140};
+		double sa = u * log(r * 140 / 140);
+		assert_int_equal(ghk_ratio_shift(a, 2, a_to, 1, 0, sa, t, &q, err), 0);
+		assert_close(q, r, 1e-6, 0);
+		ghk_ion a2[] = {{"Na+", 1, 1.0, 140, 0}, {"K+", 1, 0, 0, 140}};
+		double a2_to[] = {140, 0};
+		assert_int_equal(ghk_ratio_shift(a2, 2, a2_to, 1, 0, -sa, t, &q, err), 0);
+		assert_close(q, r, 1e-6, 0);
+		/* (b) */
+		double ni = 140, no = 140, ca = 20;
+		double qa = ni, qb = ni - no, qc = -(no + 4 * r * ca);
+		double x = (-qb + sqrt(qb * qb - 4 * qa * qc)) / (2 * qa);
+		double sb = u * log(x) - u * log(no / ni);
+		ghk_ion b[] = {{"Na+", 1, 1.0, ni, no}, {"Ca2+", 2, 0, 0, 0}};
+		double b_to[] = {no, ca};
+		assert_int_equal(ghk_ratio_shift(b, 2, b_to, 1, 0, sb, t, &q, err), 0);
+		assert_close(q, r, 1e-6, 0);
+		ghk_ion b2[] = {{"Na+", 1, 1.0, ni, no}, {"Ca2+", 2, 0, 0, ca}};
+		double b2_to[] = {no, 0};
+		assert_int_equal(ghk_ratio_shift(b2, 2, b2_to, 1, 0, -sb, t, &q, err), 0);
+		assert_close(q, r, 1e-6, 0);
+		/* (c): Cs+ inside with its own P, Na+ the reference */
+		ghk_ion c[] = {{"Na+", 1, 1.0, 0, 140}, {"Li+", 1, 0, 0, 0},
+			       {"Cs+", 1, 0.1, 140, 0}};
+		double c_to[] = {0, 140, 0};
+		double sc = u * log(r * 140 / (1.0 * 140));
+		assert_int_equal(ghk_ratio_shift(c, 3, c_to, 1, 0, sc, t, &q, err), 0);
+		assert_close(q, r, 1e-6, 0);
+		ghk_ion c2[] = {{"Na+", 1, 1.0, 0, 0}, {"Li+", 1, 0, 0, 140},
+				{"Cs+", 1, 0.1, 140, 0}};
+		double c2_to[] = {140, 0, 0};
+		assert_int_equal(ghk_ratio_shift(c2, 3, c2_to, 1, 0, -sc, t, &q, err), 0);
+		assert_close(q, r, 1e-6, 0);
+	}
+	/* bad input: a state without a reversal potential (every permeant ion
+	 * outside: the inside holds only an impermeant solute), named */
+	ghk_ion one[] = {{"Na+", 1, 1.0, 0, 140}, {"K+", 1, 0, 0, 0}};
+	double one_to[] = {0, 140};
+	assert_int_equal(ghk_ratio_shift(one, 2, one_to, 1, 0, -5, t, &q, err), -1);
+	assert_non_null(strstr(err, "in the first bath: no reversal potential"));
+	assert_null(strchr(err, '\n'));
+	/* the test ion absent from every state */
+	ghk_ion none[] = {{"Na+", 1, 1.0, 140, 140}, {"K+", 1, 0, 0, 0}};
+	double none_to[] = {140, 0};
+	assert_int_equal(ghk_ratio_shift(none, 2, none_to, 1, 0, 0, t, &q, err), -1);
+	assert_non_null(strstr(err, "K+ is absent inside and from both baths"));
+	/* both states' reversal potentials with the absent ions taken out */
+	double E;
+	ghk_ion a[] = {{"Na+", 1, 1.0, 140, 140}, {"K+", 1, 1.0, 0, 0}};
+	assert_int_equal(ghk_erev_present_mV(a, 2, t, &E, err), 0);
+	assert_close(E, 0, 0, 1e-9);
+}
+
 /* ---- outward rectification of a GHK K+ current ----
  * Source: Goldman (1943); Hodgkin & Katz (1949): the GHK current rectifies
  * outward when [K]i > [K]o (common practice).  Hand value, K 140 in / 5 out,
@@ -605,15 +682,44 @@ static void test_scipy_table(void **st)
 	assert_int_equal(ncases, 20);
 }
 
+/* The fine grid for plots: the ends exact (v2 included whatever the
+ * spacing), even spacing, each value the GHK current of ghk_current_A_cm2
+ * and the total their sum; bad ranges refused. */
+static void test_iv_fill(void **st)
+{
+	(void)st;
+	char err[IM_ERRLEN];
+	ghk_ion x[2] = {{"K+", 1, 1.0, 140, 5, }, {"Na+", 1, 0.05, 10, 145}};
+	enum { N = GHK_IV_FINE_PTS };
+	static double V[N], tot[N], ion[2 * N];
+	assert_int_equal(ghk_iv_fill(x, 2, 25, -100, 45, N, V, tot, ion, err), 0);
+	assert_true(V[0] == -100 && V[N - 1] == 45);
+	for (int k = 0; k < N; k++) {
+		assert_close(V[k], -100 + 145.0 * k / (N - 1), 0, 1e-9);
+		double a = ghk_current_A_cm2(1, 1.0, 140, 5, V[k], 25);
+		double b = ghk_current_A_cm2(1, 0.05, 10, 145, V[k], 25);
+		assert_close(ion[2 * k], a, 1e-15, 0);
+		assert_close(ion[2 * k + 1], b, 1e-15, 0);
+		assert_close(tot[k], a + b, 1e-12, 1e-30);
+		if (k > 0)   /* each GHK current rises with V */
+			assert_true(tot[k] > tot[k - 1]);
+	}
+	assert_int_equal(ghk_iv_fill(x, 2, 25, 10, 10, N, V, tot, NULL, err), -1);
+	assert_int_equal(ghk_iv_fill(x, 2, 25, -10, 10, 1, V, tot, NULL, err), -1);
+	assert_int_equal(ghk_iv_fill(x, 2, 25, -10, 10, N, V, tot, NULL, err), 0);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
+		cmocka_unit_test(test_iv_fill),
 		cmocka_unit_test(test_single_ion_is_nernst),
 		cmocka_unit_test(test_hodgkin_katz_squid),
 		cmocka_unit_test(test_numeric_vs_closed_mono),
 		cmocka_unit_test(test_divalent_quadratic),
 		cmocka_unit_test(test_ratio_roundtrip),
 		cmocka_unit_test(test_ratio_shift_roundtrip),
+		cmocka_unit_test(test_full_substitution),
 		cmocka_unit_test(test_bi_ionic_monovalent),
 		cmocka_unit_test(test_bi_ionic_divalent),
 		cmocka_unit_test(test_rectification_k),

@@ -1,10 +1,13 @@
 /* test_malformed.c - every malformed command line of tests/malformed/
- * (lines.txt, one case a line, and the *.bin files: control bytes, NUL
- * bytes, invalid UTF-8, over-long lines) fails, both through cmd_exec and
- * as a script line through cmd_run_stream, with a one-line non-empty
- * message, and leaves the workspace (solutions, current one, temperature,
- * activity model) exactly as it was; nothing is written to the database
- * directory or the working directory.  Run from the repository root. */
+ * (lines.txt, one case a line, expect.txt, a case with the words its
+ * message must hold, and the *.bin files: control bytes, NUL bytes,
+ * invalid UTF-8, over-long lines) fails, both through cmd_exec and as a
+ * script line through cmd_run_stream, with a one-line non-empty message,
+ * and leaves the workspace (solutions, current one, temperature, activity
+ * model) exactly as it was; nothing is written to the database directory
+ * or the working directory.  The cases of expect.txt also say what is
+ * wrong: the message, as written for a terminal (out_text_escaped), holds
+ * the expected words.  Run from the repository root. */
 #include "testutil.h"
 
 #include <dirent.h>
@@ -13,7 +16,6 @@
 #include <sys/stat.h>
 #include <unistd.h>
 
-#include "command.h"
 #include "command.h"
 #include "common.h"
 
@@ -24,12 +26,13 @@ typedef struct mcase {
 	char *bytes;   /* the line, without its line end; owned */
 	size_t n;
 	char name[80]; /* "lines.txt:LINE" or the file name */
+	char *expect;  /* expect.txt: words the message must hold; owned */
 } mcase;
 
 static refdb *db;
 static char dir[64], dbdir[128], dbfile[160], repo[4096];
 static mcase cases[MAX_CASES];
-static int ncases, ntext, nbin;
+static int ncases, ntext, nbin, nexpect;
 
 /* The workspace every case runs against (lines.txt's header says so). */
 static const char setup_line[] =
@@ -69,6 +72,36 @@ static int read_lines(void)
 		snprintf(name, sizeof name, "lines.txt:%d", lineno);
 		add_case(line, (size_t)len, name);
 		ntext++;
+	}
+	free(line);
+	fclose(f);
+	return 0;
+}
+
+/* expect.txt: "WORDS<TAB>LINE" a line. */
+static int read_expect(void)
+{
+	FILE *f = fopen(CASE_DIR "/expect.txt", "r");
+	char *line = NULL, name[80], *tab;
+	size_t cap = 0;
+	ssize_t len;
+	int lineno = 0;
+	if (!f)
+		return -1;
+	while ((len = getline(&line, &cap, f)) >= 0) {
+		lineno++;
+		if (len > 0 && line[len - 1] == '\n')
+			line[--len] = '\0';
+		if (len == 0 || strncmp(line, "# ", 2) == 0)
+			continue;
+		tab = strchr(line, '\t');
+		if (!tab)
+			return -1;
+		*tab = '\0';
+		snprintf(name, sizeof name, "expect.txt:%d", lineno);
+		add_case(tab + 1, strlen(tab + 1), name);
+		cases[ncases - 1].expect = im_xstrdup(line);
+		nexpect++;
 	}
 	free(line);
 	fclose(f);
@@ -119,7 +152,7 @@ static int setup(void **state)
 {
 	char err[IM_ERRLEN];
 	(void)state;
-	if (!getcwd(repo, sizeof repo) || read_lines() || read_bins()) {
+	if (!getcwd(repo, sizeof repo) || read_lines() || read_expect() || read_bins()) {
 		fprintf(stderr, "test_malformed: cannot read %s (run from the repository "
 				"root)\n", CASE_DIR);
 		return -1;
@@ -137,8 +170,10 @@ static int teardown(void **state)
 {
 	char cmd[128];
 	(void)state;
-	for (int i = 0; i < ncases; i++)
+	for (int i = 0; i < ncases; i++) {
 		free(cases[i].bytes);
+		free(cases[i].expect);
+	}
 	refdb_close(db);
 	if (chdir(repo) != 0)
 		return -1;
@@ -177,7 +212,7 @@ static int check_case(const mcase *c, int as_script)
 {
 	char err[IM_ERRLEN], shown[120], *text_out = NULL;
 	size_t outn = 0;
-	out o = {NULL, NULL, 0, 0};
+	out o = {0};
 	im_ctx ctx;
 	workspace before;
 	int rc, bad = 0, line = 0;
@@ -213,6 +248,19 @@ static int check_case(const mcase *c, int as_script)
 			    shown);
 		bad++;
 	}
+	if (rc == -1 && c->expect) {
+		char *shown_err = NULL;
+		size_t en = 0;
+		FILE *m = open_memstream(&shown_err, &en);
+		out_text_escaped(m, err);
+		fclose(m);
+		if (!strstr(shown_err, c->expect)) {
+			print_error("%s: message '%s' does not say '%s'\n", c->name, shown_err,
+				    c->expect);
+			bad++;
+		}
+		free(shown_err);
+	}
 	if (as_script && rc == -1 && line != 1) {
 		print_error("%s: failure reported at script line %d, not 1\n", c->name, line);
 		bad++;
@@ -240,6 +288,7 @@ static void all_cases_fail_cleanly(void **state)
 	/* the corpus itself: enough cases of each kind */
 	assert_true(ntext >= 200);
 	assert_true(nbin >= 30);
+	assert_true(nexpect >= 35);
 	for (int i = 0; i < ncases; i++) {
 		/* a C string ends at a NUL: those cases go as script lines only */
 		if (memchr(cases[i].bytes, '\0', cases[i].n) == NULL) {
@@ -258,8 +307,9 @@ static void all_cases_fail_cleanly(void **state)
 		if (strcmp(e->d_name, ".") && strcmp(e->d_name, ".."))
 			fail_msg("a malformed case left %s/%s behind", dir, e->d_name);
 	closedir(d);
-	printf("malformed: %d cases (%d from lines.txt, %d .bin), %d via cmd_exec, %d as "
-	       "script lines: all failed cleanly\n", ncases, ntext, nbin, exec_runs, ncases);
+	printf("malformed: %d cases (%d from lines.txt, %d from expect.txt, %d .bin), %d via "
+	       "cmd_exec, %d as script lines: all failed cleanly\n", ncases, ntext, nexpect,
+	       nbin, exec_runs, ncases);
 }
 
 int main(void)

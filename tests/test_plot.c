@@ -246,6 +246,75 @@ static void test_svg_valid(void **st)
 	assert_int_equal(st_x, 0);
 }
 
+/* y_free: a curve far from zero (pH 7.2 to 7.4) fills the rows: its
+ * lowest point sits on the bottom row, its highest on the top row, and no
+ * zero line is drawn; tick labels carry the decimals the step needs.
+ * Notes under the legend are printed, and the SVG holds them and no zero
+ * line either. */
+static void test_y_free_and_notes(void **st)
+{
+	(void)st;
+	char err[IM_ERRLEN];
+	double y[NPT];
+	for (int k = 0; k < NPT; k++)
+		y[k] = 7.2 + 0.2 * k / (NPT - 1);
+	plot_opts o;
+	plot_opts_init(&o);
+	o.y_free = 1;
+	o.x_label = "CaCl2 (mM)";
+	const char *notes[] = {"at 22.0 C", "inside: pip & <x>"};
+	o.notes = notes;
+	o.nnotes = 2;
+	plot_curve c = {"pH", X, y, NPT};
+	int rc;
+	char *s = render(0, &c, 1, &o, &rc, err);
+	assert_int_equal(rc, 0);
+	assert_non_null(strstr(s, "at 22.0 C"));
+	assert_non_null(strstr(s, "inside: pip & <x>"));
+	assert_non_null(strstr(s, "7.20"));
+	assert_non_null(strstr(s, "7.40"));
+	assert_null(strstr(s, " 0.00 "));
+	char *ln[80];
+	int n = lines(s, ln, 80), top = -1, bottom = -1;
+	for (int i = 0; i < n; i++) {
+		char *bar = strchr(ln[i], '|'), *plus = strchr(ln[i], '+');
+		char *ax = bar && (!plus || bar < plus) ? bar : plus;
+		if (!ax || strstr(ln[i], "+--"))
+			continue;
+		if (strchr(ax + 1, '*')) {
+			if (top < 0)
+				top = i;
+			bottom = i;
+		}
+	}
+	/* no zero line: the x axis is the only line of dashes */
+	int dashes = 0;
+	for (int i = 0; i < n; i++)
+		dashes += strstr(ln[i], "-----") != NULL;
+	assert_int_equal(dashes, 1);
+	/* the curve spans the rows */
+	assert_true(bottom - top >= o.height - 3);
+	free(s);
+	s = render(1, &c, 1, &o, &rc, err);
+	assert_int_equal(rc, 0);
+	assert_non_null(strstr(s, "inside: pip &amp; &lt;x&gt;"));
+	assert_null(strstr(s, "stroke-width=\"1.2\"/>"));  /* no zero line */
+	free(s);
+	/* a curve flat to 1e-9 relative (rounding, not a trend) is drawn
+	 * flat in a range about its value, ticks and all */
+	for (int k = 0; k < NPT; k++)
+		y[k] = 5.000108545 + 1e-9 * k;
+	s = render(0, &c, 1, &o, &rc, err);
+	assert_int_equal(rc, 0);
+	free(s);
+	s = render(1, &c, 1, &o, &rc, err);
+	assert_int_equal(rc, 0);
+	free(s);
+	/* too many notes is refused */
+	o.nnotes = PLOT_MAX_NOTES + 1;
+	assert_int_equal(plot_term(stdout, &c, 1, &o, err), -1);
+}
+
 static void test_errors(void **st)
 {
 	(void)st;
@@ -313,6 +382,7 @@ int main(void)
 		cmocka_unit_test(test_term_inward_only),
 		cmocka_unit_test(test_svg_valid),
 		cmocka_unit_test(test_errors),
+		cmocka_unit_test(test_y_free_and_notes),
 	};
 	return cmocka_run_group_tests(tests, setup, NULL);
 }

@@ -4,6 +4,7 @@
 #include <string.h>
 
 #include "common.h"
+#include "eqdata.h"
 #include "refdb.h"
 
 static refdb *db;
@@ -144,10 +145,142 @@ static void image_matches_text(void **state)
 	assert_null(t);
 }
 
+static int same_num(double a, double b)
+{
+	return a == b || (isnan(a) && isnan(b));
+}
+
+static int same_str(const char *a, const char *b)
+{
+	return a == b || (a && b && strcmp(a, b) == 0);
+}
+
+/* the same source, by id (NULL matches NULL) */
+static int same_src(const rd_source *a, const rd_source *b)
+{
+	return a == b || (a && b && strcmp(a->id, b->id) == 0);
+}
+
+/* The C tables generated at build time (refdb_open) hold, field by
+ * field, what the loaders read from the embedded SQL text of data/; the
+ * name look-up (binary search on the tables) finds what a linear search
+ * of the text's arrays finds, for every name and alias in any case. */
+static void tables_match_sql(void **state)
+{
+	refdb *t;
+	char err[IM_ERRLEN];
+	(void)state;
+	assert_int_equal(refdb_open_sql(&t, refdb_sql_text(), err), 0);
+	assert_int_equal(refdb_nsources(t), refdb_nsources(db));
+	for (int i = 0; i < refdb_nsources(db); i++) {
+		const rd_source *a = refdb_source_at(db, i), *b = refdb_source_at(t, i);
+		assert_string_equal(a->id, b->id);
+		assert_string_equal(a->citation, b->citation);
+		assert_int_equal(a->common_practice, b->common_practice);
+		assert_int_equal(a->from_memory, b->from_memory);
+		assert_ptr_equal(refdb_source(db, a->id), a);
+	}
+	assert_int_equal(refdb_nions(t), refdb_nions(db));
+	for (int i = 0; i < refdb_nions(db); i++) {
+		const rd_ion *a = refdb_ion_at(db, i), *b = refdb_ion_at(t, i);
+		assert_string_equal(a->symbol, b->symbol);
+		assert_true(same_str(a->name, b->name));
+		assert_int_equal(a->z, b->z);
+		assert_true(same_num(a->lambda_S_cm2_eq, b->lambda_S_cm2_eq));
+		assert_true(same_num(a->D_1e9_m2_s, b->D_1e9_m2_s));
+		assert_true(same_src(a->mobility_source, b->mobility_source));
+		assert_true(same_num(a->kielland_a_pm, b->kielland_a_pm));
+		assert_true(same_src(a->size_source, b->size_source));
+		assert_int_equal(a->derived, b->derived);
+		assert_true(same_str(a->formula, b->formula));
+		assert_true(same_num(a->mass_g_mol, b->mass_g_mol));
+		assert_int_equal(a->mobility_class, b->mobility_class);
+		assert_true(same_num(a->mobility_rel_unc, b->mobility_rel_unc));
+		assert_ptr_equal(refdb_ion_exact(db, a->symbol), a);
+	}
+	assert_int_equal(refdb_ncompounds(t), refdb_ncompounds(db));
+	for (int i = 0; i < refdb_ncompounds(db); i++) {
+		const rd_compound *a = refdb_compound_at(db, i), *b = refdb_compound_at(t, i);
+		char up[128];
+		assert_string_equal(a->name, b->name);
+		assert_true(same_str(a->formula, b->formula));
+		assert_true(same_num(a->fw_g_mol, b->fw_g_mol));
+		assert_true(same_src(a->fw_source, b->fw_source));
+		assert_true(same_str(a->hydrate_of, b->hydrate_of));
+		assert_true(same_str(a->kind, b->kind));
+		assert_true(same_str(a->hazard, b->hazard));
+		assert_true(same_str(a->description, b->description));
+		assert_int_equal(a->nyields, b->nyields);
+		for (int k = 0; k < a->nyields; k++) {
+			assert_string_equal(a->yields[k].ion->symbol, b->yields[k].ion->symbol);
+			assert_true(a->yields[k].count == b->yields[k].count);
+		}
+		/* found by its name in upper case, as in the text's arrays */
+		snprintf(up, sizeof up, "%s", a->name);
+		for (char *p = up; *p; p++)
+			if (*p >= 'a' && *p <= 'z')
+				*p -= 32;
+		assert_ptr_equal(refdb_compound(db, up), a);
+		assert_string_equal(refdb_compound(t, up)->name, a->name);
+	}
+	assert_int_equal(refdb_naliases(t), refdb_naliases(db));
+	for (int i = 0; i < refdb_naliases(db); i++) {
+		assert_string_equal(refdb_alias_at(db, i), refdb_alias_at(t, i));
+		assert_string_equal(refdb_alias_compound(db, i)->name,
+				    refdb_alias_compound(t, i)->name);
+		assert_string_equal(refdb_compound(db, refdb_alias_at(db, i))->name,
+				    refdb_compound(t, refdb_alias_at(t, i))->name);
+	}
+	assert_null(refdb_compound(db, "no such compound"));
+	assert_null(refdb_compound(db, ""));
+	refdb_close(t);
+}
+
+/* The speciation and Pitzer tables built into the program equal, byte for
+ * byte, what the loaders read from SQL (the SQLite image), after the
+ * default selection. */
+static void chemistry_tables_match_sql(void **state)
+{
+	spec_data *a, *b;
+	osm_data *x, *y;
+	char err[IM_ERRLEN];
+	(void)state;
+	assert_int_equal(eqd_load_spec(NULL, &a, err), 0);
+	assert_int_equal(eqd_load_spec(refdb_sqlite(db), &b, err), 0);
+	assert_int_equal(a->nlig, b->nlig);
+	assert_int_equal(a->npka, b->npka);
+	assert_int_equal(a->ncx, b->ncx);
+	assert_int_equal(a->nmet, b->nmet);
+	assert_true(a->nlig > 0 && a->npka > 0 && a->ncx > 0);
+	assert_memory_equal(a->lig, b->lig, (size_t)a->nlig * sizeof *a->lig);
+	assert_memory_equal(a->pka, b->pka, (size_t)a->npka * sizeof *a->pka);
+	assert_memory_equal(a->cx, b->cx, (size_t)a->ncx * sizeof *a->cx);
+	assert_memory_equal(a->met, b->met, sizeof a->met);
+	assert_memory_equal(&a->pkw, &b->pkw, sizeof a->pkw);
+	assert_memory_equal(&a->k0, &b->k0, sizeof a->k0);
+	assert_memory_equal(&a->co2, &b->co2, sizeof a->co2);
+	assert_int_equal(eqd_load_osm(NULL, &x, err), 0);
+	assert_int_equal(eqd_load_osm(refdb_sqlite(db), &y, err), 0);
+	assert_int_equal(x->nsym, y->nsym);
+	assert_int_equal(x->npz, y->npz);
+	assert_int_equal(x->nnz, y->nnz);
+	assert_true(x->nsym > 0 && x->npz > 0);
+	assert_memory_equal(x->sym, y->sym, (size_t)x->nsym * sizeof *x->sym);
+	assert_memory_equal(x->v0_L_mol, y->v0_L_mol, (size_t)x->nsym * sizeof *x->v0_L_mol);
+	assert_memory_equal(x->pz, y->pz, (size_t)x->npz * sizeof *x->pz);
+	assert_memory_equal(x->nz, y->nz, (size_t)x->nnz * sizeof *x->nz);
+	assert_memory_equal(x->pair, y->pair, (size_t)x->nsym * (size_t)x->nsym * sizeof *x->pair);
+	eqd_free_spec(a);
+	eqd_free_spec(b);
+	eqd_free_osm(x);
+	eqd_free_osm(y);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
-		cmocka_unit_test(required_compounds), cmocka_unit_test(names_and_aliases),
+		cmocka_unit_test(required_compounds), cmocka_unit_test(tables_match_sql),
+		cmocka_unit_test(chemistry_tables_match_sql), cmocka_unit_test(names_and_aliases),
 		cmocka_unit_test(ions), cmocka_unit_test(yields_neutral),
 		cmocka_unit_test(suggestions), cmocka_unit_test(hazards),
 		cmocka_unit_test(image_matches_text),

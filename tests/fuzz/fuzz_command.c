@@ -40,10 +40,11 @@ int LLVMFuzzerInitialize(int *argc, char ***argv)
 {
 	char err[IM_ERRLEN];
 	FILE *null = fopen("/dev/null", "w");
-	out o = {null, null, 0, 0};
+	out o = {0};
 	im_ctx ctx;
 	(void)argc;
 	(void)argv;
+	o.fp = o.errfp = null;
 	FZ_CHECK(refdb_open(&ref, err) == 0, "%s", err);
 	fz_scratch("fuzz-command");
 	FZ_CHECK(chdir(fz_dir) == 0, "chdir %s", fz_dir);
@@ -103,7 +104,7 @@ static void run_line(const char *line, size_t n, int json)
 	rc = cmd_exec(&ctx, line, err);
 	FZ_CHECK(rc == 0 || rc == -1, "cmd_exec returned %d", rc);
 	if (rc) {
-		fz_check_err(err, "cmd_exec");
+		fz_check_err(err, "cmd_exec", n);
 		if (!memchr(line, ';', n) && !strstr(line, "run")) {
 			FZ_CHECK(same_workspace(&before, &ctx.ses->ws), "a failed line changed the "
 				 "workspace: %s", err);

@@ -5,11 +5,18 @@
  *
  * Input: the first byte picks one of eight option sets (columns by
  * header, by number, several, none; LJP with 0, 1 or 3 decimals, negative;
- * skip-bad on or off); the rest is the file.  Checks, besides the
- * sanitizers: a failure has a one-line message; on success the counts add
- * up (every chosen cell of every row is corrected or skipped, bad cells are
- * among the skipped), and correcting the output back by the opposite LJP
- * succeeds with the same counts.
+ * skip-bad on or off; metadata lines skipped by count; whole-cell or
+ * inside-out); the rest is the file.  Checks, besides the sanitizers: a
+ * failure has a one-line message; on success the counts add up (every
+ * chosen cell of every row is corrected or skipped, bad cells are among
+ * the skipped), correcting the output back (by the opposite LJP, or for
+ * inside-out by the same one, its own inverse) succeeds with the same
+ * counts, and no numeric output position holds NaN or infinity: text the
+ * input had ("nan" in a note column, a skipped cell) is copied, so the
+ * output may spell "nan"/"inf" exactly as often as the input and no more.
+ *
+ * Persistent: nothing is set up per input beyond the two memory streams,
+ * and the engine keeps its buffers between runs (correct.c).
  */
 #include <stdint.h>
 #include <stdio.h>
@@ -27,20 +34,33 @@ typedef struct optset {
 	const char *cols[3];
 	int ncols;
 	const char *ljp;
-	const char *back;  /* the opposite LJP */
+	const char *back;  /* the LJP that undoes the correction */
 	int skip_bad;
+	long skip;         /* metadata lines by count */
+	corr_config config;
 } optset;
 
 static const optset sets[8] = {
-	{{NULL}, 0, "14.2", "-14.2", 0},
-	{{NULL}, 0, "-3", "3", 1},
-	{{"2"}, 1, "0.125", "-0.125", 0},
-	{{"Vm (mV)"}, 1, "14.2", "-14.2", 1},
-	{{"1", "3"}, 2, "7", "-7", 0},
-	{{"V", "2", "voltage"}, 3, "-0.5", "0.5", 1},
-	{{"3"}, 1, "999.999", "-999.999", 1},
-	{{"vm"}, 1, "0", "0", 0},
+	{{NULL}, 0, "14.2", "-14.2", 0, 0, CORR_WHOLE_CELL},
+	{{NULL}, 0, "-3", "3", 1, 0, CORR_WHOLE_CELL},
+	{{"2"}, 1, "0.125", "-0.125", 0, 0, CORR_WHOLE_CELL},
+	{{"Vm (mV)"}, 1, "14.2", "-14.2", 1, 0, CORR_WHOLE_CELL},
+	{{"1", "3"}, 2, "7", "-7", 0, 0, CORR_WHOLE_CELL},
+	{{"V", "2", "voltage"}, 3, "-0.5", "0.5", 1, 0, CORR_WHOLE_CELL},
+	{{"3"}, 1, "999.999", "999.999", 1, 0, CORR_INSIDE_OUT},
+	{{"vm"}, 1, "0", "0", 0, 2, CORR_WHOLE_CELL},
 };
+
+/* How often "nan" or "inf" occurs in p[0..n), any case. */
+static long nonfinite_words(const char *p, size_t n)
+{
+	long k = 0;
+	for (size_t i = 0; i + 3 <= n; i++) {
+		char a = (char)(p[i] | 0x20), b = (char)(p[i + 1] | 0x20), c = (char)(p[i + 2] | 0x20);
+		k += (a == 'n' && b == 'a' && c == 'n') || (a == 'i' && b == 'n' && c == 'f');
+	}
+	return k;
+}
 
 static FILE *open_input(const char *p, size_t n)
 {
@@ -62,6 +82,8 @@ static int pass(const char *in, size_t n, const optset *s, const char *ljp,
 	o.columns = s->ncols ? s->cols : NULL;
 	o.ncolumns = s->ncols;
 	o.skip_bad = s->skip_bad;
+	o.skip = s->skip;
+	o.config = s->config;
 	FZ_CHECK(corr_ljp_parse(ljp, &o.ljp, err) == 0, "LJP %s: %s", ljp, err);
 	memset(r, 0, sizeof *r);
 	err[0] = '\0';
@@ -84,7 +106,7 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
 	rc = pass((const char *)data + 1, size - 1, s, s->ljp, &r, &out, &outn, err);
 	FZ_CHECK(rc == 0 || rc == -1, "corr_stream returned %d", rc);
 	if (rc) {
-		fz_check_err(err, "corr_stream");
+		fz_check_err(err, "corr_stream", 0);
 	} else {
 		FZ_CHECK(r.rows >= 0 && r.corrected >= 0 && r.skipped >= r.bad && r.bad >= 0 &&
 			 r.ragged >= 0 && r.blank >= 0, "negative counts");
@@ -92,6 +114,8 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
 		FZ_CHECK(r.corrected + r.skipped == r.rows * r.ncols,
 			 "%ld corrected + %ld skipped != %ld rows x %d columns", r.corrected,
 			 r.skipped, r.rows, r.ncols);
+		FZ_CHECK(nonfinite_words(out, outn) == nonfinite_words((const char *)data + 1, size - 1),
+			 "NaN or infinity in a numeric output position");
 		rc = pass(out, outn, s, s->back, &r2, &back, &backn, err);
 		FZ_CHECK(rc == 0, "correcting the output back failed: %s", err);
 		FZ_CHECK(r2.rows == r.rows && r2.corrected == r.corrected &&

@@ -70,7 +70,7 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
 		FZ_CHECK(isfinite(v), "units_number gave %g for '%s'", v, num);
 		check_format(v, sig);
 	} else {
-		fz_check_err(err, "units_number");
+		fz_check_err(err, "units_number", 0);
 	}
 
 	err[0] = '\0';
@@ -79,14 +79,14 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
 			 "amount %g mM from '%s' '%s'", mM, num, unit ? unit : "(none)");
 		check_format(mM, sig);
 	} else {
-		fz_check_err(err, "units_amount_mM");
+		fz_check_err(err, "units_amount_mM", 0);
 	}
 
 	err[0] = '\0';
 	if (units_volume_mL(num, unit, &mL, err) == 0)
 		FZ_CHECK(isfinite(mL) && mL > 0 && mL <= 100000.0, "volume %g mL", mL);
 	else
-		fz_check_err(err, "units_volume_mL");
+		fz_check_err(err, "units_volume_mL", 0);
 
 	if (unit)
 		(void)units_is_unit(unit);

@@ -10,9 +10,13 @@ foreign keys on, and checks:
     Debian: Coplen (2001) Pure Appl Chem 73:667-683), within 0.01 g/mol;
   - every compound yields something, and the charges of its yields sum to
     zero (an electroneutral formula unit);
-  - every ion with charge != 0 has a mobility (lambda or D) and a source,
-    except the organic ions in NO_PUBLISHED_MOBILITY, which must be present
-    and must have none;
+  - every ion with charge != 0 has a mobility (lambda or D), a source, an
+    uncertainty class and a relative uncertainty; every species a formula
+    and molar mass are given for (ions, species_parts) weighs what its
+    formula weighs (same tolerance); every species speciation can produce
+    (eq_ligand_states, eq_complexes) either is an ion row with a mobility
+    or is built of parts listed in species_parts (so that src/ljp.c can
+    estimate its mobility); the species left without either are listed;
   - every source id named by ions and compounds exists in `sources`;
   - every hazard line ends with the pointer to the safety data sheet
     (common practice, see ../shared/CONVENTIONS.md).
@@ -32,15 +36,6 @@ FW_TOL_G_MOL = 0.01
 HAZARD_END = "see the safety data sheet and local chemical-safety rules."
 DATA_FIRST = ["data/schema.sql", "data/sources.sql", "data/ions.sql",
               "data/compounds.sql"]
-
-# Charged organic ions for which no published limiting conductivity or
-# mobility is known to us; they are kept with a NULL mobility rather than a
-# guess (see data/ions.sql).  Remove an ion from here when a published value
-# is added for it.
-NO_PUBLISHED_MOBILITY = {
-    "glutamate-", "pyruvate-", "QX-314+", "4-AP+",
-    "H2ATP^2-", "H2GTP^2-", "PCr^2-",
-}
 
 passed = 0
 failed = 0
@@ -111,25 +106,53 @@ def check_yields(db):
 
 def check_mobilities(db):
     rows = db.execute(
-        "SELECT symbol, lambda_S_cm2_eq, diffusion_1e9_m2_s, mobility_source "
-        "FROM ions WHERE charge != 0 ORDER BY symbol").fetchall()
-    symbols = {r[0] for r in rows}
-    for sym in sorted(NO_PUBLISHED_MOBILITY - symbols):
-        check(False, f"NO_PUBLISHED_MOBILITY names {sym}, which is not a charged ion")
-    for sym, lam, dif, src in rows:
+        "SELECT symbol, lambda_S_cm2_eq, diffusion_1e9_m2_s, mobility_source, "
+        "mobility_class, mobility_rel_unc FROM ions WHERE charge != 0 "
+        "ORDER BY symbol").fetchall()
+    for sym, lam, dif, src, cls, unc in rows:
         has = lam is not None or dif is not None
-        if sym in NO_PUBLISHED_MOBILITY:
-            check(not has, f"{sym} now has a mobility: remove it from "
-                  "NO_PUBLISHED_MOBILITY")
-            continue
         check(has, f"{sym}: charged ion without a mobility")
         check(src is not None, f"{sym}: mobility without a source")
+        check(cls is not None and unc is not None,
+              f"{sym}: mobility without an uncertainty class")
+    # molar masses given beside formulas (IUPAC weights, periodictable)
+    for table, key in (("ions", "symbol"), ("species_parts", "part")):
+        for name, formula, mass in db.execute(
+                f"SELECT {key}, formula, mass_g_mol FROM {table} "
+                "WHERE mass_g_mol IS NOT NULL").fetchall():
+            try:
+                m = periodictable.formula(formula).mass
+            except Exception as e:  # the parser raises several kinds
+                check(False, f"{table} {name}: formula {formula!r} does not parse: {e}")
+                continue
+            check(abs(m - mass) <= FW_TOL_G_MOL,
+                  f"{table} {name}: mass_g_mol {mass} but {formula} weighs {m:.4f}")
+    # every species speciation can produce gets a mobility: a row, or parts
+    missing = []
+    states = db.execute(
+        "SELECT s.symbol, s.charge, s.ligand FROM eq_ligand_states s "
+        "WHERE s.charge != 0 AND s.symbol NOT IN (SELECT symbol FROM ions)").fetchall()
+    for sym, _, lig in states:
+        if not db.execute("SELECT 1 FROM species_parts WHERE part = ?", (lig,)).fetchone():
+            missing.append(sym)
+    cplx = db.execute(
+        "SELECT c.symbol, c.metal, c.ligand FROM eq_complexes c "
+        "WHERE c.symbol NOT IN (SELECT symbol FROM ions)").fetchall()
+    for sym, metal, lig in cplx:
+        for part in (metal, lig):
+            if not db.execute("SELECT 1 FROM species_parts WHERE part = ?",
+                              (part,)).fetchone():
+                missing.append(f"{sym} (part {part})")
+    for sym in sorted(set(missing)):
+        check(False, f"{sym}: a species of speciation without a mobility or parts")
+    check(not missing, "every species of speciation has a mobility or its parts")
 
 
 def check_sources(db):
     refs = [
         ("ions", "symbol", "mobility_source"),
         ("ions", "symbol", "size_source"),
+        ("species_parts", "part", "mass_source"),
         ("compounds", "name", "fw_source"),
     ]
     for table, key, col in refs:

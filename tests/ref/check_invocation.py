@@ -92,6 +92,56 @@ r = run(["--db", db, "--json", "-e", "temp 31", "-e", "help", "-e", "solution a"
 check("state-changing commands answer under --json, one object each",
       r.returncode == 0 and len(r.stdout.splitlines()) == 4 and
       json.loads(r.stdout.splitlines()[0]) == {"temperature_C": 31})
+
+# Input limits (issue 14 item 3): a line over 4096 bytes and a script over
+# 16 MiB end with one line naming the limit and exit 1, holding no more
+# than a few MB more than a one-line run does (peak RSS of the child, read
+# with wait4, compared with the same binary's own baseline so that the
+# sanitizer build's larger footprint does not matter).
+def run_rss(args, stdin_file=None, feed=None):
+    """Run the binary; return (status, stderr bytes, peak RSS in KiB)."""
+    env = dict(os.environ, LC_ALL="C", HOME=tmp, XDG_DATA_HOME=tmp)
+    env.pop("IONMIX_DB", None)
+    p = subprocess.Popen([binary, "--db", db] + args, stdin=stdin_file or
+                         (subprocess.PIPE if feed else subprocess.DEVNULL),
+                         stdout=subprocess.DEVNULL, stderr=subprocess.PIPE, env=env)
+    if feed:
+        import threading
+
+        def writer():
+            try:
+                while True:
+                    p.stdin.write(feed)
+            except (BrokenPipeError, OSError, ValueError):
+                pass
+        t = threading.Thread(target=writer, daemon=True)
+        t.start()
+    err = p.stderr.read()
+    _, status, ru = os.wait4(p.pid, 0)
+    p.returncode = os.waitstatus_to_exitcode(status)
+    return p.returncode, err, ru.ru_maxrss
+
+
+base_rc, _, base_rss = run_rss(["-e", "temp"])
+check("baseline run for the memory checks exits 0", base_rc == 0)
+limit_kib = base_rss + 8 * 1024
+for what, args, stdin_file, feed, word in (
+        ("ionmix /dev/zero", ["/dev/zero"], None, None, "4096 bytes"),
+        ("run /dev/zero", ["-e", "run /dev/zero"], None, None, "4096 bytes"),
+        ("ionmix < /dev/zero", [], "/dev/zero", None, "4096 bytes"),
+        ("an endless stream of comment lines", [], None,
+         b"# " + b"x" * 4000 + b"\n", "16777216 bytes"),
+        ("an endless stream of one long line", [], None, b"temp 25 " * 512, "4096 bytes")):
+    fh = open(stdin_file, "rb") if stdin_file else None
+    rc, err, rss = run_rss(args, fh, feed)
+    if fh:
+        fh.close()
+    check("%s: exit 1, one line naming the limit (%r)" % (what, err[:160]),
+          rc == 1 and err.count(b"\n") == 1 and word.encode() in err)
+    check("%s: peak RSS %d KiB within 8 MiB of a one-command run (%d KiB)"
+          % (what, rss, base_rss), rss <= limit_kib)
+r = run(["--db", db], stdin="temp 21\n" + "#" * 4096 + "\ntemp 22\n")
+check("a 4096-byte line is still a line", r.returncode == 0 and "22.0" in r.stdout)
 os.environ["IONMIX_DB"] = db
 r = subprocess.run([binary, "-e", "list"], capture_output=True, text=True,
                    env=dict(os.environ, LC_ALL="C", HOME=tmp))

@@ -7,9 +7,12 @@ bad input gets a one-line message, exit status 1 outside the shell), and
 creates nothing in the database directory.  Lines go as `-e LINE` after
 an `-e` that builds the same two solutions as tests/test_malformed.c;
 cases with a NUL byte, which an argument cannot hold, go on standard
-input.  The .bin cases run once more with --json: nothing on standard
-error, and the last line of standard output is a JSON object with an
-"error" key, in valid UTF-8.
+input.  Every case runs once more with --json: the same exit status (1),
+nothing on standard error, and the last line of standard output is a JSON
+object with an "error" key, in valid UTF-8.  The cases of expect.txt
+("WORDS<TAB>LINE") must also say what is wrong: the text message holds
+WORDS, and so does the JSON one unless WORDS show an escaped byte
+(invalid UTF-8 is \\xNN in text, U+FFFD in JSON) (issue 14 item 10).
 
 Run from the repository root with /usr/bin/python3; exits 0 when every
 check passes, else prints one line per failure and exits 1."""
@@ -35,16 +38,23 @@ def load_cases():
             line = raw.rstrip(b"\n")
             if not line or line == b"#" or line.startswith(b"# "):
                 continue
-            cases.append((f"lines.txt:{i}", line, False))
+            cases.append((f"lines.txt:{i}", line, False, None))
+    with open(os.path.join(CASE_DIR, "expect.txt"), "rb") as f:
+        for i, raw in enumerate(f, 1):
+            line = raw.rstrip(b"\n")
+            if not line or line.startswith(b"# "):
+                continue
+            words, _, cmd = line.partition(b"\t")
+            cases.append((f"expect.txt:{i}", cmd, False, words))
     for name in sorted(os.listdir(CASE_DIR)):
         if name.endswith(".bin"):
             with open(os.path.join(CASE_DIR, name), "rb") as f:
-                cases.append((name, f.read(), True))
+                cases.append((name, f.read(), True, None))
     return cases
 
 
 def run_case(ionmix, case, json_mode):
-    name, data, _ = case
+    name, data, _, words = case
     with tempfile.TemporaryDirectory(prefix="ionmix-batch-") as tmp:
         dbdir = os.path.join(tmp, "db")
         work = os.path.join(tmp, "work")
@@ -84,6 +94,9 @@ def run_case(ionmix, case, json_mode):
                 obj = json.loads(last.decode("utf-8", errors="strict"))
                 if not isinstance(obj, dict) or not obj.get("error"):
                     problems.append(f"last line has no error: {last[:120]!r}")
+                elif words and b"\\x" not in words and \
+                        words.decode("utf-8") not in obj["error"]:
+                    problems.append(f"JSON error does not say {words!r}: {last[:160]!r}")
             except (UnicodeDecodeError, ValueError) as e:
                 problems.append(f"last line is not JSON in UTF-8 ({e}): {last[:120]!r}")
         else:
@@ -93,6 +106,8 @@ def run_case(ionmix, case, json_mode):
                 problems.append(f"{nlines} lines on stderr: {err[:200]!r}")
             elif not err.startswith(b"ionmix: ") or len(err.strip()) <= len(b"ionmix:"):
                 problems.append(f"stderr is not an ionmix message: {err[:200]!r}")
+            elif words and words not in err:
+                problems.append(f"message does not say {words!r}: {err[:200]!r}")
         return [f"{name} [{mode}]: {x}: {data[:60]!r}" for x in problems]
 
 
@@ -103,7 +118,8 @@ def main():
         return 1
     ionmix = os.path.abspath(ionmix)
     cases = load_cases()
-    jobs = [(c, False) for c in cases] + [(c, True) for c in cases if c[2]]
+    # both ways: text and JSON must agree on the exit status of every case
+    jobs = [(c, False) for c in cases] + [(c, True) for c in cases]
     failures = []
     passed = 0
     if len(cases) < 230:

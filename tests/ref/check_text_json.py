@@ -1,5 +1,6 @@
 """check_text_json.py - issue 12: the text and the JSON of show, junction,
-erev, iv, weigh and review carry the same numbers.  Each command runs on
+erev, iv, weigh and review (and of correct, ratio, exchange and sweep)
+carry the same numbers.  Each command runs on
 the demo recipes twice, as text and with --json; the numbers are parsed
 out of the text and compared with the JSON within the rounding of the
 digits the text shows (half a unit of the last digit printed)."""
@@ -121,28 +122,41 @@ def check_show(text, js):
 
 
 def check_weigh(text, js):
+    """Each line of the order of work against its JSON item: final
+    concentration, formula weight and what to weigh or pipette."""
+    vol = {"mL": 1, "uL": 1e-3, "\u00b5L": 1e-3, "L": 1e3}
     for it in js["items"]:
         w = "weigh: " + it["compound"]
-        m = re.search(r"^  " + re.escape(it["compound"]) + r"\s+(" + NUM + r" \S+)\s+(" + NUM +
-                      r")\s+(" + NUM + r") (g|mg|mL|uL|\u00b5L)(.*)$", text, re.M)
+        m = re.search(r"^\s+" + re.escape(it["compound"]) + r"\s+(" + NUM + r" \S+)\s+(" + NUM +
+                      r")\s+(.*)$", text, re.M)
         check(w + ": row parses", m is not None)
         if not m:
             continue
         conc_close(w + " final", m.group(1), it["mM"])
         close(w + " FW", m.group(2), it["fw_g_mol"])
-        unit = m.group(4)
-        if "stock_mM" in it:
-            close(w + " stock volume", m.group(3), it["stock_mL"], 1e-3 if unit != "mL" else 1)
+        what = m.group(3)
+        check(w + ": the amount in both",
+              it["amount"] in what.replace("\u00b5", "u") or it["action"] == "titrate",
+              what)
+        if it["action"] == "weigh":
+            g = re.match(r"(" + NUM + r") (g|mg)\b", what)
+            check(w + ": a mass", g is not None, what)
+            if g:
+                close(w + " mass", g.group(1), it["grams"], 1e-3 if g.group(2) == "mg" else 1)
+        elif "stock_mL" in it:
+            v = re.match(r"(" + NUM + r") (mL|uL|\u00b5L|L) of ", what)
+            check(w + ": a stock volume", v is not None, what)
+            if v:
+                close(w + " stock volume", v.group(1), it["stock_mL"], vol[v.group(2)])
         else:
-            close(w + " mass", m.group(3), it["grams"], 1e-3 if unit == "mg" else 1)
-        if "advice" in it:
-            check(w + ": advice in both", it["advice"] in m.group(5))
-    m = re.search(r"^  total to weigh\s+(" + NUM + r") (g|mg)$", text, re.M)
-    check("weigh: total in the text", m is not None)
-    if m:
-        close("weigh: total", m.group(1), js["total_grams"], 1e-3 if m.group(2) == "mg" else 1)
-    for a in js.get("advice", []):
-        check("weigh: advice line in the text", a in text)
+            v = re.match(r"(" + NUM + r") mmol: ", what)
+            check(w + ": titrant amount", v is not None, what)
+            if v:
+                close(w + " mmol", v.group(1), it["mmol"])
+        check(w + ": titrant never in grams", not (it.get("titrant") and
+                                                    re.match(NUM + r" (g|mg)\b", what)))
+    for step in js["steps"]:
+        check("weigh: step in the text", step in text, step)
 
 
 def check_review(text, js):
@@ -173,17 +187,31 @@ def check_review(text, js):
 
 
 def check_junction(text, js):
-    m = re.search(r"LJP = (" + NUM + r") mV", text)
-    check("junction: LJP in the text", m is not None)
+    m = re.search(r"LJP = (" + NUM + r") mV \((" + NUM + r") to (" + NUM + r")\)", text)
+    check("junction: LJP and its range in the text", m is not None)
     if m:
         close("junction: LJP", m.group(1), js["ljp_mV"])
+        close("junction: range low", m.group(2), js["ljp_range_mV"][0])
+        close("junction: range high", m.group(3), js["ljp_range_mV"][1])
+    # the ranked breakdown shows the ions that matter, the rest summed in
+    # one "N others" line
+    rest, nrest = 0.0, 0
     for c in js["contributions"]:
         rs = rows(text, c["ion"])
-        if len(rs) != 1:
+        if len(rs) > 1:
             check("junction: one share row for " + c["ion"], False)
             continue
-        share = rs[0].split()[-1]
-        close("junction: share of " + c["ion"], share, c["share_mV"])
+        if not rs:
+            rest += c["share_mV"]
+            nrest += 1
+            continue
+        close("junction: share of " + c["ion"], rs[0].split()[1], c["share_mV"])
+    if nrest:
+        m = re.search(r"^  (\d+) others?\s+(" + NUM + r") mV", text, re.M)
+        check("junction: the rest in one line", m is not None)
+        if m:
+            check("junction: count of the rest", int(m.group(1)) == nrest)
+            close("junction: sum of the rest", m.group(2), rest)
 
 
 def check_erev(text, js):
@@ -234,6 +262,77 @@ def check_iv(text, js):
             close("iv: E_rev", m.group(1), js["E_rev_mV"])
 
 
+def check_correct(text, js):
+    m = re.search(r"LJP (" + NUM + r") mV from the Henderson equation .*: (" + NUM +
+                  r") mV, rounded to 0.1 mV \((" + NUM + r") to (" + NUM + r") mV", text)
+    check("correct: LJP, Henderson value and range in the text", m is not None)
+    if m:
+        close("correct: LJP", m.group(1), js["ljp_mV"])
+        close("correct: Henderson", m.group(2), js["henderson_ljp_mV"])
+        close("correct: range low", m.group(3), js["ljp_range_mV"][0])
+        close("correct: range high", m.group(4), js["ljp_range_mV"][1])
+    for v in js["values"]:
+        rs = [l.split() for l in text.splitlines() if re.fullmatch(r"\s+" + NUM + r"\s+" + NUM, l)]
+        hit = [r for r in rs if float(r[0]) == v["recorded_mV"]]
+        check("correct: a row for %g mV" % v["recorded_mV"], len(hit) == 1)
+        if hit:
+            close("correct: Vm of %g" % v["recorded_mV"], hit[0][1], v["Vm_mV"])
+
+
+def check_ratio(text, js):
+    m = re.search(r"P\(%s\)/P\(%s\) = (%s)" % (re.escape(js["ion"]), re.escape(js["ref"]), NUM),
+                  text)
+    check("ratio: the ratio in the text", m is not None)
+    if m:
+        close("ratio: P ratio", m.group(1), js["ratio"])
+    m = re.search(r"measured (?:shift|E_rev) (" + NUM + r") mV", text)
+    check("ratio: the measured potential in the text", m is not None)
+    if m:
+        close("ratio: measured", m.group(1), js["measured_mV"])
+    if "E_rev_from_mV" in js:
+        m = re.search(r"E_rev is (" + NUM + r") mV in \S+ and (" + NUM + r") mV", text)
+        check("ratio: both reversal potentials in the text", m is not None)
+        if m:
+            close("ratio: E_rev from", m.group(1), js["E_rev_from_mV"])
+            close("ratio: E_rev to", m.group(2), js["E_rev_to_mV"])
+
+
+def check_exchange(text, js):
+    for what, rx, key in (("shift", r"shift = (%s) mV", "shift_mV"),
+                          ("ground term", r"ground term g = (%s) mV", "ground_term_mV")):
+        m = re.search(rx % NUM, text)
+        check("exchange: %s in the text" % what, m is not None)
+        if m:
+            close("exchange: " + what, m.group(1), js[key])
+    if js["includes_tip"]:
+        m = re.search(r"old (%s) mV, \| new (%s) mV \(change (%s) mV\)" % (NUM, NUM, NUM), text)
+        check("exchange: tip junctions in the text", m is not None)
+        if m:
+            close("exchange: tip old", m.group(1), js["tip_old_mV"])
+            close("exchange: tip new", m.group(2), js["tip_new_mV"])
+            close("exchange: tip change", m.group(3), js["tip_change_mV"])
+    if "bridge" in js:
+        m = re.search(r"old bath (%s) mV, to the new (%s) mV" % (NUM, NUM), text)
+        check("exchange: bridge junctions in the text", m is not None)
+        if m:
+            close("exchange: bridge old", m.group(1), js["bridge"]["old_ljp_mV"])
+            close("exchange: bridge new", m.group(2), js["bridge"]["new_ljp_mV"])
+
+
+def check_sweep(text, js):
+    # a quantity in mV or pH: the table shows the JSON's unit unscaled
+    n = 0
+    for p in js["points"]:
+        rs = [l.split() for l in text.splitlines()
+              if re.fullmatch(r"\s+" + NUM + r"\s+" + NUM, l)
+              and abs(float(l.split()[0]) - p["x"]) <= half_ulp(l.split()[0]) * 1.0001]
+        check("sweep: one row at x = %g" % p["x"], len(rs) == 1)
+        if len(rs) == 1 and p["y"] is not None:
+            close("sweep: y at %g" % p["x"], rs[0][1], p["y"])
+            n += 1
+    check("sweep: every point compared", n == len(js["points"]) - js["failed_points"])
+
+
 CASES = [
     ([], "show k-pipette", check_show),
     ([], "show cs-pipette", check_show),
@@ -247,6 +346,15 @@ CASES = [
     ([], "erev k-pipette bath K+=1 Na+=0.04 Cl-=0.45", check_erev),
     ([], "iv k-pipette bath K+=1 Na+=0.05 step 20 plain", check_iv),
     ([], "iv cs-pipette bath Cs+=1e-6cm/s Na+=1e-7cm/s step 20 plain", check_iv),
+    ([], "correct value -70 -45.5 for k-pipette bath", check_correct),
+    ([], "correct value 12.25 for cs-pipette bath", check_correct),
+    ([], "ratio k-pipette bath Na K at -40", check_ratio),
+    ([], "ratio k-pipette bath Na K shift bath k-pipette by 12 Cl=0.3", check_ratio),
+    ([], "exchange bath k-pipette", check_exchange),
+    ([], "exchange bath k-pipette pipette cs-pipette ground bridge KCl 3 M", check_exchange),
+    ([], "sweep temp 15 to 35 show ljp k-pipette bath points 5 plain", check_sweep),
+    ([], "sweep KCl 2.5 to 20 in bath show nernst K k-pipette bath points 4 plain", check_sweep),
+    ([], "sweep NaCl 100 to 150 in bath show pH points 3 plain", check_sweep),
 ]
 
 

@@ -1,0 +1,645 @@
+/*
+ * diffusion.c - the free-diffusion liquid junction (see diffusion.h).
+ *
+ * Model.  With fluxes J_i = -D_i (dc_i/dx + z_i c_i dpsi/dx), psi = F phi/RT,
+ * zero current (sum z_i J_i = 0) gives dpsi/dx = -sum z D dc/dx / sum z^2 D c.
+ * In the Boltzmann variable zeta = x / sqrt(D_ref t) every profile is steady:
+ *     d/dzeta [d_i (c_i' + z_i c_i psi')] + (zeta / 2) c_i' = 0,
+ * d_i = D_i / D_ref, with c_i(-Z) = pipette, c_i(+Z) = bath.  Summing z_i
+ * times these gives (zeta/2) rho' = 0: the net charge keeps its step at
+ * zeta = 0 (0 for balanced solutions).  That sum says nothing at zeta = 0,
+ * so one ion's row (the ion most present on both sides) is replaced by
+ * electroneutrality, sum z c = rho; every ion stays an unknown (none is
+ * computed from the others, so none can be driven negative by them).
+ *
+ * Discretization.  Nodes zeta = Z sinh(b s) / sinh(b), s uniform on
+ * [-1, 1] (denser at the junction).  Face fluxes use the arithmetic mean of
+ * c and of the conductance K = sum z^2 d c, so the discrete current is zero
+ * at every face; the advective term (zeta/2) c' is a central difference,
+ * upwind where the cell Peclet number |zeta| h / (2 d_i) exceeds 2 (only far
+ * out, where the profiles are flat).  The potential is summed cell by cell
+ * as the Henderson potential of the cell, -G / logmean(K_a, K_b) with
+ * G = sum z d (c_b - c_a): exact for a single salt on any grid.
+ *
+ * Solution.  Newton's method with the exact Jacobian, block tridiagonal
+ * (one n x n block per node), solved by block elimination with partial
+ * pivoting; each step is cut back (halved up to 12 times) until the largest
+ * residual falls, and components that would turn negative are halved
+ * toward zero instead.  The start is Henderson's linear mixing along one
+ * erfc profile.  If Newton does not converge within max_newton iterations,
+ * the concentration step is continued: the bath is taken as
+ * pipette + lambda (bath - pipette), lambda raised from 0 to 1 in steps that
+ * double after a success and shrink fourfold after a failure (smallest
+ * DF_MIN_DLAMBDA).  Then the grid is refined (nodes doubled, the solution
+ * interpolated as the start) until |E_fine - E_coarse| / 3 (second order)
+ * is below tol_mV.
+ */
+#include "diffusion.h"
+
+#include <math.h>
+#include <stdlib.h>
+#include <string.h>
+
+#include "common.h"
+
+#define DF_ZETA_MAX 12.0
+#define DF_ZETA_CAP 40.0
+#define DF_STRETCH 2.5
+/* Newton has converged when a full step moved no scaled concentration by
+ * more than DF_NEWTON_TOL, or by less than DF_NEWTON_TOL_RES while the
+ * largest residual after it is below DF_RES_TOL: convergence being
+ * quadratic, the iterate is then exact to about 1e-12. */
+#define DF_NEWTON_TOL 1e-10
+#define DF_NEWTON_TOL_RES 1e-5
+#define DF_RES_TOL 1e-9
+#define DF_MIN_DLAMBDA (1.0 / 4096)
+#define DF_SIGNIFICANT 1e-3  /* ions below this share of the charge do not set D_ref */
+/* Trace species (H+ and OH- near neutral pH, minor protonation states and
+ * complexes) whose share of the conductance is below this on both sides
+ * are left out of the solve: such a share moves the LJP by about that
+ * fraction of RT/F times a logarithm of order one, below 1e-4 mV, far
+ * under the tolerance; it halves the work on a full internal. */
+#define DF_TRACE_COND 1e-6
+/* Largest block storage, doubles (about 100 MB). */
+#define DF_MAX_DOUBLES 12500000.0
+
+void df_defaults(df_opts *o)
+{
+	o->grid_points = 51;
+	o->max_grid_points = 3201;
+	o->tol_mV = 0.005;
+	o->max_newton = 40;
+}
+
+typedef struct sys {
+	int n, M, e;     /* e: the ion whose row is electroneutrality */
+	double rho_p, rho_b; /* net charge of each side, scaled */
+	double z[JN_MAX_IONS], d[JN_MAX_IONS], cp[JN_MAX_IONS], cb[JN_MAX_IONS];
+	double lam;        /* continuation: bath = cp + lam (cb - cp) */
+	double Z;
+	double *zeta;      /* M */
+	double *c;         /* M x n, boundaries included */
+	double *trial;     /* M x n */
+	double *R;         /* M x n (interior rows used) */
+	double *L, *Dg, *U, *X; /* M x n x n */
+	unsigned char *up; /* M x n: 1 = upwind advection */
+	int *piv;          /* n */
+	double *Fa, *Fb, *dA, *dB, *F0; /* scratch, n x n and n */
+} sys;
+
+static void sys_free(sys *s)
+{
+	free(s->zeta);
+	free(s->c);
+	free(s->trial);
+	free(s->R);
+	free(s->L);
+	free(s->Dg);
+	free(s->U);
+	free(s->X);
+	free(s->up);
+	free(s->piv);
+	free(s->Fa);
+	free(s->Fb);
+	free(s->dA);
+	free(s->dB);
+	free(s->F0);
+	s->zeta = s->c = s->trial = s->R = s->L = s->Dg = s->U = s->X = NULL;
+	s->Fa = s->Fb = s->dA = s->dB = s->F0 = NULL;
+	s->up = NULL;
+	s->piv = NULL;
+}
+
+static void sys_grid(sys *s, int M)
+{
+	int n = s->n;
+	size_t nn = (size_t)n * n;
+	sys_free(s);
+	s->M = M;
+	s->zeta = im_xmalloc(sizeof(double) * M);
+	s->c = im_xmalloc(sizeof(double) * M * n);
+	s->trial = im_xmalloc(sizeof(double) * M * n);
+	s->R = im_xmalloc(sizeof(double) * M * n);
+	s->L = im_xmalloc(sizeof(double) * M * nn);
+	s->Dg = im_xmalloc(sizeof(double) * M * nn);
+	s->U = im_xmalloc(sizeof(double) * M * nn);
+	s->X = im_xmalloc(sizeof(double) * M * nn);
+	s->up = im_xmalloc((size_t)M * n);
+	s->piv = im_xmalloc(sizeof(int) * n);
+	s->Fa = im_xmalloc(sizeof(double) * n);
+	s->Fb = im_xmalloc(sizeof(double) * n);
+	s->dA = im_xmalloc(sizeof(double) * nn * 2);
+	s->dB = im_xmalloc(sizeof(double) * nn * 2);
+	s->F0 = im_xmalloc(sizeof(double) * n);
+	for (int k = 0; k < M; k++) {
+		double sk = -1.0 + 2.0 * k / (M - 1);
+		s->zeta[k] = s->Z * sinh(DF_STRETCH * sk) / sinh(DF_STRETCH);
+	}
+	s->zeta[(M - 1) / 2] = 0.0;
+	for (int k = 1; k < M - 1; k++) {
+		double h = fmax(s->zeta[k + 1] - s->zeta[k], s->zeta[k] - s->zeta[k - 1]);
+		for (int i = 0; i < n; i++)
+			s->up[k * n + i] = fabs(s->zeta[k]) * h / (2.0 * s->d[i]) > 2.0;
+	}
+}
+
+/* Boundary rows for the current lambda. */
+static void set_ends(sys *s, double *c)
+{
+	int n = s->n;
+	for (int i = 0; i < n; i++) {
+		c[i] = s->cp[i];
+		c[(s->M - 1) * n + i] = s->cp[i] + s->lam * (s->cb[i] - s->cp[i]);
+	}
+}
+
+/* Henderson's mixing profile: every ion along one erfc. */
+static void start_profile(sys *s)
+{
+	int n = s->n;
+	double num = 0, den = 0, dm;
+	for (int i = 0; i < n; i++) {
+		double w = s->z[i] * s->z[i] * s->d[i] * (s->cp[i] + s->cb[i]);
+		num += w * s->d[i];
+		den += w;
+	}
+	dm = den > 0 ? num / den : 1.0;
+	for (int k = 0; k < s->M; k++) {
+		double th = 0.5 * erfc(-s->zeta[k] / (2.0 * sqrt(dm)));
+		for (int i = 0; i < n; i++)
+			s->c[k * n + i] = s->cp[i] + s->lam * (s->cb[i] - s->cp[i]) * th;
+	}
+	set_ends(s, s->c);
+}
+
+/* The net charge held at node k: the step between the two sides. */
+static double node_rho(const sys *s, int k)
+{
+	double rb = s->rho_p + s->lam * (s->rho_b - s->rho_p);
+	if (s->zeta[k] < 0)
+		return s->rho_p;
+	return s->zeta[k] > 0 ? rb : 0.5 * (s->rho_p + rb);
+}
+
+/* Flux term d (c' + z c psi') on the face k | k+1, times nothing else; with
+ * derivatives dA = dF/dc_k, dB = dF/dc_{k+1} (n x n, row i = flux i) when
+ * jac.  Returns -1 when the conductance is not positive. */
+static int face(const sys *s, const double *c, int k, double *F, double *dA, double *dB,
+		int jac)
+{
+	int n = s->n;
+	const double *a = c + (size_t)k * n, *b = a + n;
+	double h = s->zeta[k + 1] - s->zeta[k], G = 0, K = 0, p;
+	for (int j = 0; j < n; j++) {
+		G += s->z[j] * s->d[j] * (b[j] - a[j]);
+		K += s->z[j] * s->z[j] * s->d[j] * 0.5 * (a[j] + b[j]);
+	}
+	if (!(K > 0))
+		return -1;
+	p = -G / K;
+	for (int i = 0; i < n; i++)
+		F[i] = s->d[i] / h * (b[i] - a[i] + s->z[i] * 0.5 * (a[i] + b[i]) * p);
+	if (!jac)
+		return 0;
+	for (int i = 0; i < n; i++) {
+		double f = s->d[i] / h, zc = s->z[i] * 0.5 * (a[i] + b[i]);
+		for (int j = 0; j < n; j++) {
+			double zd = s->z[j] * s->d[j], g2 = G * s->z[j] * zd / (2.0 * K * K);
+			double pa = zd / K + g2, pb = -zd / K + g2;
+			dA[i * n + j] = f * zc * pa;
+			dB[i * n + j] = f * zc * pb;
+		}
+		dA[i * n + i] += f * (-1.0 + 0.5 * s->z[i] * p);
+		dB[i * n + i] += f * (1.0 + 0.5 * s->z[i] * p);
+	}
+	return 0;
+}
+
+/* Residual of c (and the Jacobian blocks when jac); the largest |R| in
+ * *rmax.  -1 when a conductance is not positive. */
+static int assemble(sys *s, const double *c, int jac, double *rmax)
+{
+	int n = s->n, M = s->M;
+	size_t nn = (size_t)n * n;
+	double *Fm = s->Fa, *Fp = s->Fb, *dAm = s->dA, *dBm = s->dA + nn, *dAp = s->dB,
+	       *dBp = s->dB + nn;
+	double mx = 0;
+	if (face(s, c, 0, Fm, dAm, dBm, jac))
+		return -1;
+	for (int k = 1; k < M - 1; k++) {
+		double w = 0.5 * (s->zeta[k + 1] - s->zeta[k - 1]);
+		double hm = s->zeta[k] - s->zeta[k - 1], hp = s->zeta[k + 1] - s->zeta[k];
+		double zh = 0.5 * s->zeta[k];
+		double *R = s->R + (size_t)k * n, *L = s->L + k * nn, *D = s->Dg + k * nn,
+		       *U = s->U + k * nn, *t;
+		const double *ck = c + (size_t)k * n;
+		if (face(s, c, k, Fp, dAp, dBp, jac))
+			return -1;
+		for (int i = 0; i < n; i++) {
+			double adv;
+			if (!s->up[k * n + i])
+				adv = (ck[n + i] - ck[i - n]) / (2.0 * w);
+			else if (s->zeta[k] > 0)
+				adv = (ck[n + i] - ck[i]) / hp;
+			else
+				adv = (ck[i] - ck[i - n]) / hm;
+			R[i] = (Fp[i] - Fm[i]) / w + zh * adv;
+		}
+		/* ion e's row: electroneutrality (the z-weighted sum of the rows
+		 * is (zeta/2) rho', which vanishes at zeta = 0, so without this
+		 * row the system would be singular there) */
+		R[s->e] = -node_rho(s, k);
+		for (int j = 0; j < n; j++)
+			R[s->e] += s->z[j] * ck[j];
+		for (int i = 0; i < n; i++)
+			if (fabs(R[i]) > mx)
+				mx = fabs(R[i]);
+		if (jac) {
+			for (size_t q = 0; q < nn; q++) {
+				L[q] = -dAm[q] / w;
+				D[q] = (dAp[q] - dBm[q]) / w;
+				U[q] = dBp[q] / w;
+			}
+			for (int i = 0; i < n; i++) {
+				size_t ii = (size_t)i * n + i;
+				if (!s->up[k * n + i]) {
+					L[ii] -= zh / (2.0 * w);
+					U[ii] += zh / (2.0 * w);
+				} else if (s->zeta[k] > 0) {
+					U[ii] += zh / hp;
+					D[ii] -= zh / hp;
+				} else {
+					D[ii] += zh / hm;
+					L[ii] -= zh / hm;
+				}
+			}
+			for (int j = 0; j < n; j++) {
+				L[s->e * n + j] = U[s->e * n + j] = 0.0;
+				D[s->e * n + j] = s->z[j];
+			}
+		}
+		/* this face's flux is the next node's left flux */
+		t = Fm;
+		Fm = Fp;
+		Fp = t;
+		t = dAm;
+		dAm = dAp;
+		dAp = t;
+		t = dBm;
+		dBm = dBp;
+		dBp = t;
+	}
+	*rmax = mx;
+	return 0;
+}
+
+
+/* LU with partial pivoting of the n x n a, in place; -1 if singular. */
+static int lu(double *a, int n, int *piv)
+{
+	for (int k = 0; k < n; k++) {
+		int p = k;
+		double m = fabs(a[k * n + k]);
+		for (int i = k + 1; i < n; i++)
+			if (fabs(a[i * n + k]) > m) {
+				m = fabs(a[i * n + k]);
+				p = i;
+			}
+		if (!(m > 0) || !isfinite(m))
+			return -1;
+		piv[k] = p;
+		if (p != k)
+			for (int j = 0; j < n; j++) {
+				double t = a[k * n + j];
+				a[k * n + j] = a[p * n + j];
+				a[p * n + j] = t;
+			}
+		for (int i = k + 1; i < n; i++) {
+			double f = a[i * n + k] /= a[k * n + k];
+			if (f != 0)
+				for (int j = k + 1; j < n; j++)
+					a[i * n + j] -= f * a[k * n + j];
+		}
+	}
+	return 0;
+}
+
+/* Solve with the factors of lu for `cols` right-hand sides stored as the
+ * columns of b (n x cols, row-major). */
+static void lu_solve(const double *a, int n, const int *piv, double *b, int cols)
+{
+	for (int k = 0; k < n; k++)
+		if (piv[k] != k)
+			for (int c = 0; c < cols; c++) {
+				double t = b[k * cols + c];
+				b[k * cols + c] = b[piv[k] * cols + c];
+				b[piv[k] * cols + c] = t;
+			}
+	for (int i = 1; i < n; i++)
+		for (int k = 0; k < i; k++) {
+			double f = a[i * n + k];
+			if (f != 0)
+				for (int c = 0; c < cols; c++)
+					b[i * cols + c] -= f * b[k * cols + c];
+		}
+	for (int i = n - 1; i >= 0; i--) {
+		for (int k = i + 1; k < n; k++) {
+			double f = a[i * n + k];
+			if (f != 0)
+				for (int c = 0; c < cols; c++)
+					b[i * cols + c] -= f * b[k * cols + c];
+		}
+		for (int c = 0; c < cols; c++)
+			b[i * cols + c] /= a[i * n + i];
+	}
+}
+
+/* Block elimination: on return s->R (interior rows) holds the Newton
+ * correction -J^-1 R.  -1 if a block is singular. */
+static int block_solve(sys *s)
+{
+	int n = s->n, M = s->M;
+	size_t nn = (size_t)n * n;
+	for (int k = 1; k < M - 1; k++) {
+		double *D = s->Dg + k * nn, *r = s->R + (size_t)k * n, *X = s->X + k * nn;
+		if (k > 1) {
+			const double *L = s->L + k * nn, *Xp = s->X + (k - 1) * nn,
+				     *rp = s->R + (size_t)(k - 1) * n;
+			for (int i = 0; i < n; i++)
+				for (int m = 0; m < n; m++) {
+					double l = L[i * n + m];
+					if (l == 0)
+						continue;
+					r[i] -= l * rp[m];
+					for (int j = 0; j < n; j++)
+						D[i * n + j] -= l * Xp[m * n + j];
+				}
+		}
+		if (lu(D, n, s->piv))
+			return -1;
+		lu_solve(D, n, s->piv, r, 1);
+		if (k < M - 2) {
+			memcpy(X, s->U + k * nn, nn * sizeof *X);
+			lu_solve(D, n, s->piv, X, n);
+		}
+	}
+	for (int k = M - 3; k >= 1; k--) {
+		double *r = s->R + (size_t)k * n;
+		const double *X = s->X + k * nn, *rn = s->R + (size_t)(k + 1) * n;
+		for (int i = 0; i < n; i++)
+			for (int j = 0; j < n; j++)
+				r[i] -= X[i * n + j] * rn[j];
+	}
+	for (size_t q = (size_t)n; q < (size_t)(M - 1) * n; q++)
+		s->R[q] = -s->R[q];
+	return 0;
+}
+
+/* Newton's method from s->c; 0 when the correction fell below
+ * DF_NEWTON_TOL, -1 otherwise (s->c then unspecified). */
+static int newton(sys *s, int maxit, int *its, double *res)
+{
+	int n = s->n, M = s->M;
+	size_t tot = (size_t)M * n;
+	double r0;
+	if (assemble(s, s->c, 1, &r0))
+		return -1;
+	for (int it = 0; it < maxit; it++) {
+		double dmax = 0, r1 = INFINITY, a = 1.0;
+		(*its)++;
+		if (block_solve(s))
+			return -1;
+		/* the correction, kept apart: assemble() reuses s->R */
+		memcpy(s->X, s->R, tot * sizeof *s->R);
+		for (size_t q = (size_t)n; q < tot - n; q++)
+			if (fabs(s->X[q]) > dmax)
+				dmax = fabs(s->X[q]);
+		if (!isfinite(dmax))
+			return -1;
+		for (int cut = 0; cut < 13; cut++, a *= 0.5) {
+			memcpy(s->trial, s->c, tot * sizeof *s->c);
+			for (size_t q = (size_t)n; q < tot - n; q++) {
+				double v = s->c[q] + a * s->X[q];
+				s->trial[q] = v >= 0 ? v : 0.5 * s->c[q];
+			}
+			if (assemble(s, s->trial, 0, &r1) == 0 && r1 < r0 * (1 - 1e-4 * a))
+				break;
+			if (dmax * a < DF_NEWTON_TOL)
+				break;
+		}
+		if (!isfinite(r1))
+			return -1;
+		memcpy(s->c, s->trial, tot * sizeof *s->c);
+		if (a == 1.0 &&
+		    (dmax < DF_NEWTON_TOL || (dmax < DF_NEWTON_TOL_RES && r1 < DF_RES_TOL))) {
+			*res = r1;
+			return 0;
+		}
+		if (assemble(s, s->c, 1, &r0))
+			return -1;
+	}
+	return -1;
+}
+
+/* The potential, units of RT/F, summed cell by cell. */
+static double potential(const sys *s)
+{
+	int n = s->n;
+	double E = 0;
+	for (int k = 0; k < s->M - 1; k++) {
+		const double *a = s->c + (size_t)k * n, *b = a + n;
+		double G = 0, Ka = 0, Kb = 0, lm;
+		for (int j = 0; j < n; j++) {
+			double zd = s->z[j] * s->d[j];
+			G += zd * (b[j] - a[j]);
+			Ka += s->z[j] * zd * a[j];
+			Kb += s->z[j] * zd * b[j];
+		}
+		lm = fabs(Kb - Ka) <= 1e-12 * Ka ? 0.5 * (Ka + Kb) : (Kb - Ka) / log(Kb / Ka);
+		E -= G / lm;
+	}
+	return E;
+}
+
+/* Solve on the current grid: Newton from the start (or the given guess),
+ * else continuation in lambda from Henderson's profile. */
+static int solve_grid(sys *s, const df_opts *o, int have_guess, df_report *r)
+{
+	size_t tot = (size_t)s->M * s->n;
+	double *keep, done = 0, step = 0.25;
+	s->lam = 1.0;
+	if (!have_guess)
+		start_profile(s);
+	r->continuation = 1;
+	if (newton(s, o->max_newton, &r->newton_its, &r->residual) == 0)
+		return 0;
+	keep = im_xmalloc(tot * sizeof *keep);
+	while (done < 1.0) {
+		double lam = fmin(1.0, done + step);
+		r->continuation++;
+		if (done == 0) {
+			s->lam = lam;
+			start_profile(s);
+		} else {
+			int n = s->n;
+			s->lam = lam;
+			for (int k = 0; k < s->M; k++)
+				for (int i = 0; i < n; i++) {
+					double v = s->cp[i] + lam / done * (keep[k * n + i] - s->cp[i]);
+					s->c[k * n + i] = v > 0 ? v : 0;
+				}
+			set_ends(s, s->c);
+		}
+		if (newton(s, o->max_newton, &r->newton_its, &r->residual) == 0) {
+			memcpy(keep, s->c, tot * sizeof *keep);
+			done = lam;
+			step *= 2;
+		} else {
+			step /= 4;
+			if (step < DF_MIN_DLAMBDA) {
+				free(keep);
+				return -1;
+			}
+		}
+	}
+	free(keep);
+	return 0;
+}
+
+/* The solution of the grid of M nodes interpolated onto 2M - 1 nodes. */
+static void refine(sys *s)
+{
+	int n = s->n, M = s->M, M2 = 2 * M - 1;
+	double *old = s->c, *oz = s->zeta;
+	s->c = NULL;
+	s->zeta = NULL;
+	sys_grid(s, M2);
+	for (int k = 0; k < M; k++)
+		for (int i = 0; i < n; i++)
+			s->c[2 * k * n + i] = old[k * n + i];
+	for (int k = 0; k < M - 1; k++) {
+		double t = (s->zeta[2 * k + 1] - oz[k]) / (oz[k + 1] - oz[k]);
+		for (int i = 0; i < n; i++)
+			s->c[(2 * k + 1) * n + i] =
+				(1 - t) * old[k * n + i] + t * old[(k + 1) * n + i];
+	}
+	free(old);
+	free(oz);
+}
+
+static int check_opts(const df_opts *o, char *err)
+{
+	if (o->grid_points < 21 || o->grid_points % 2 == 0 ||
+	    o->grid_points > o->max_grid_points)
+		return im_fail(err,
+			       "free diffusion: grid_points must be odd, at least 21 and "
+			       "at most max_grid_points");
+	if (!(o->tol_mV > 0) || !isfinite(o->tol_mV))
+		return im_fail(err, "free diffusion: tol_mV must be > 0");
+	if (o->max_newton < 1)
+		return im_fail(err, "free diffusion: max_newton must be at least 1");
+	return 0;
+}
+
+int df_ljp_mV(const jn_ion *ions, int n, double t_C, const df_opts *opts, df_report *rep,
+	      double *ljp_mV, char *err)
+{
+	df_opts o;
+	df_report r;
+	sys s;
+	double dref = 0, dmax = 0, cs = 0, E, Ec = NAN, rtf, Kp = 0, Kb = 0;
+	int rc = -1;
+	if (opts)
+		o = *opts;
+	else
+		df_defaults(&o);
+	if (check_opts(&o, err) || jn_check(ions, n, t_C, err))
+		return -1;
+	if (jn_identical(ions, n)) {
+		memset(&r, 0, sizeof r);
+		if (rep)
+			*rep = r;
+		*ljp_mV = 0.0;
+		return 0;
+	}
+	memset(&s, 0, sizeof s);
+	memset(&r, 0, sizeof r);
+	for (int i = 0; i < n; i++)
+		if (ions[i].z != 0 && (ions[i].pip_mM > 0 || ions[i].bath_mM > 0)) {
+			double zz = (double)ions[i].z * ions[i].z;
+			cs = fmax(cs, abs(ions[i].z) * fmax(ions[i].pip_mM, ions[i].bath_mM));
+			Kp += zz * ions[i].D_m2_s * ions[i].pip_mM;
+			Kb += zz * ions[i].D_m2_s * ions[i].bath_mM;
+		}
+	for (int i = 0; i < n; i++) {
+		const jn_ion *x = &ions[i];
+		double zz = (double)x->z * x->z;
+		if (x->z == 0 || !(x->pip_mM > 0 || x->bath_mM > 0))
+			continue;
+		if (zz * x->D_m2_s * x->pip_mM < DF_TRACE_COND * Kp &&
+		    zz * x->D_m2_s * x->bath_mM < DF_TRACE_COND * Kb) {
+			r.trace_species++;
+			continue;
+		}
+		s.z[s.n] = x->z;
+		s.d[s.n] = x->D_m2_s;
+		s.cp[s.n] = x->pip_mM / cs;
+		s.cb[s.n] = x->bath_mM / cs;
+		dmax = fmax(dmax, x->D_m2_s);
+		s.rho_p += x->z * s.cp[s.n];
+		s.rho_b += x->z * s.cb[s.n];
+		if (abs(x->z) * fmin(s.cp[s.n], s.cb[s.n]) >
+		    fabs(s.z[s.e]) * fmin(s.cp[s.e], s.cb[s.e]))
+			s.e = s.n;
+		if (abs(x->z) * fmax(s.cp[s.n], s.cb[s.n]) >= DF_SIGNIFICANT)
+			dref = fmax(dref, x->D_m2_s);
+		s.n++;
+	}
+	for (int i = 0; i < s.n; i++)
+		s.d[i] /= dref;
+	s.Z = fmin(DF_ZETA_CAP, DF_ZETA_MAX * sqrt(fmax(1.0, dmax / dref)));
+	if ((double)o.max_grid_points * s.n * s.n * 5.0 > DF_MAX_DOUBLES)
+		o.max_grid_points = (int)(DF_MAX_DOUBLES / (5.0 * s.n * s.n)) | 1;
+	if (o.grid_points > o.max_grid_points)
+		return im_fail(err, "free diffusion: too many ions for the grid (%d)", s.n);
+	r.zeta_max = s.Z;
+	sys_grid(&s, o.grid_points);
+	rtf = im_rt_f_mV(t_C);
+	if (solve_grid(&s, &o, 0, &r)) {
+		im_fail(err, "free diffusion: Newton's method did not converge on %d points, "
+			     "even by continuation in the concentration step", s.M);
+		goto out;
+	}
+	r.grids = 1;
+	E = rtf * potential(&s);
+	for (;;) {
+		if (2 * s.M - 1 > o.max_grid_points) {
+			im_fail(err,
+				"free diffusion: estimated error %.2g mV above %.2g mV on "
+				"the finest grid allowed (%d points)",
+				r.grid_err_mV, o.tol_mV, s.M);
+			goto out;
+		}
+		refine(&s);
+		Ec = E;
+		if (solve_grid(&s, &o, 1, &r)) {
+			im_fail(err, "free diffusion: Newton's method did not converge on %d "
+				     "points", s.M);
+			goto out;
+		}
+		r.grids++;
+		E = rtf * potential(&s);
+		r.grid_err_mV = fabs(E - Ec) / 3.0;
+		if (r.grid_err_mV <= o.tol_mV)
+			break;
+	}
+	r.grid_points = s.M;
+	r.coarse_ljp_mV = Ec;
+	*ljp_mV = E;
+	if (rep)
+		*rep = r;
+	rc = 0;
+out:
+	sys_free(&s);
+	return rc;
+}
