@@ -26,20 +26,54 @@ typedef struct node {
 	int nlist;
 } node;
 
+/* Every string of a result lives in an arena of blocks freed at once
+ * (a result holds hundreds of small strings: one malloc a block). */
+typedef struct ablock {
+	struct ablock *next;
+	size_t used, cap;
+	char data[];
+} ablock;
+
 struct render {
 	out *o;
 	node *n;
 	int count, cap;
 	int in_table;
+	ablock *arena;
 };
 
-static char *dup(const char *s)
+#define ARENA_BLOCK 8192
+
+static char *ar_alloc(render *r, size_t n)
 {
-	return s ? im_xstrdup(s) : NULL;
+	ablock *b = r->arena;
+	n = (n + 7) & ~(size_t)7;
+	if (!b || b->cap - b->used < n) {
+		size_t cap = n > ARENA_BLOCK ? n : ARENA_BLOCK;
+		b = im_xmalloc(sizeof *b + cap);
+		b->next = r->arena;
+		b->used = 0;
+		b->cap = cap;
+		r->arena = b;
+	}
+	b->used += n;
+	return b->data + b->used - n;
 }
 
-/* printf into a new string of whatever length it needs. */
-static char *vfmt(const char *fmt, va_list ap)
+static char *ar_dup(render *r, const char *s)
+{
+	size_t n;
+	char *d;
+	if (!s)
+		return NULL;
+	n = strlen(s) + 1;
+	d = ar_alloc(r, n);
+	memcpy(d, s, n);
+	return d;
+}
+
+/* printf into the arena, at whatever length it needs. */
+static char *vfmt(render *r, const char *fmt, va_list ap)
 {
 	va_list aq;
 	int len;
@@ -49,7 +83,7 @@ static char *vfmt(const char *fmt, va_list ap)
 	va_end(aq);
 	if (len < 0)
 		len = 0;
-	s = im_xmalloc((size_t)len + 1);
+	s = ar_alloc(r, (size_t)len + 1);
 	vsnprintf(s, (size_t)len + 1, fmt, ap);
 	return s;
 }
@@ -58,15 +92,15 @@ static node *add(render *r, nkind k, const char *key, const char *label, const c
 {
 	node *x;
 	if (r->count == r->cap) {
-		r->cap = r->cap ? 2 * r->cap : 32;
+		r->cap = r->cap ? 2 * r->cap : 128;
 		r->n = im_xrealloc(r->n, (size_t)r->cap * sizeof *r->n);
 	}
 	x = &r->n[r->count++];
 	memset(x, 0, sizeof *x);
 	x->k = k;
-	x->key = dup(key);
-	x->label = dup(label);
-	x->unit = dup(unit);
+	x->key = ar_dup(r, key);
+	x->label = ar_dup(r, label);
+	x->unit = ar_dup(r, unit);
 	x->jsig = 10;
 	return x;
 }
@@ -80,7 +114,7 @@ render *render_new(out *o)
 
 void render_str(render *r, const char *key, const char *label, const char *val)
 {
-	add(r, N_STR, key, label, NULL)->s = dup(val);
+	add(r, N_STR, key, label, NULL)->s = ar_dup(r, val);
 }
 
 void render_numj(render *r, const char *key, const char *label, const char *unit,
@@ -148,9 +182,9 @@ void render_null(render *r, const char *key, const char *label)
 void render_list(render *r, const char *key, const char *label, const char *const *v, int n)
 {
 	node *x = add(r, N_LIST, key, label, NULL);
-	x->list = im_xcalloc(n > 0 ? (size_t)n : 1, sizeof *x->list);
+	x->list = (char **)ar_alloc(r, (n > 0 ? (size_t)n : 1) * sizeof *x->list);
 	for (int i = 0; i < n; i++)
-		x->list[i] = im_xstrdup(v[i]);
+		x->list[i] = ar_dup(r, v[i]);
 	x->nlist = n;
 }
 
@@ -158,7 +192,7 @@ void render_text(render *r, const char *fmt, ...)
 {
 	va_list ap;
 	va_start(ap, fmt);
-	add(r, N_TEXT, NULL, NULL, NULL)->s = vfmt(fmt, ap);
+	add(r, N_TEXT, NULL, NULL, NULL)->s = vfmt(r, fmt, ap);
 	va_end(ap);
 }
 
@@ -171,17 +205,15 @@ void render_text_more(render *r, const char *fmt, ...)
 		if (r->n[i].k == N_TEXT)
 			x = &r->n[i];
 	va_start(ap, fmt);
-	more = vfmt(fmt, ap);
+	more = vfmt(r, fmt, ap);
 	va_end(ap);
 	if (!x) {
 		add(r, N_TEXT, NULL, NULL, NULL)->s = more;
 		return;
 	}
-	s = im_xmalloc(strlen(x->s) + strlen(more) + 1);
+	s = ar_alloc(r, strlen(x->s) + strlen(more) + 1);
 	strcpy(s, x->s);
 	strcat(s, more);
-	free(x->s);
-	free(more);
 	x->s = s;
 }
 
@@ -190,7 +222,7 @@ void render_note(render *r, const char *fmt, ...)
 	va_list ap;
 	node *x = add(r, N_NOTE, "notes", "note: ", NULL);
 	va_start(ap, fmt);
-	x->s = vfmt(fmt, ap);
+	x->s = vfmt(r, fmt, ap);
 	va_end(ap);
 }
 
@@ -199,7 +231,7 @@ void render_note_as(render *r, const char *key, const char *prefix, const char *
 	va_list ap;
 	node *x = add(r, N_NOTE, key, prefix, NULL);
 	va_start(ap, fmt);
-	x->s = vfmt(fmt, ap);
+	x->s = vfmt(r, fmt, ap);
 	va_end(ap);
 }
 
@@ -222,22 +254,17 @@ void render_table_end(render *r)
 
 void render_table_empty(render *r, const char *text)
 {
-	add(r, N_TEMPTY, NULL, NULL, NULL)->s = dup(text);
+	add(r, N_TEMPTY, NULL, NULL, NULL)->s = ar_dup(r, text);
 }
 
 void render_drop(render *r)
 {
 	if (!r)
 		return;
-	for (int i = 0; i < r->count; i++) {
-		node *x = &r->n[i];
-		free(x->key);
-		free(x->label);
-		free(x->unit);
-		free(x->s);
-		for (int j = 0; j < x->nlist; j++)
-			free(x->list[j]);
-		free(x->list);
+	while (r->arena) {
+		ablock *b = r->arena;
+		r->arena = b->next;
+		free(b);
 	}
 	free(r->n);
 	free(r);
@@ -260,14 +287,14 @@ static int width(const char *s)
 }
 
 /* The text of a value, with its unit when with_unit; caller frees. */
-static char *value_text(const node *x, int utf8, int with_unit)
+static const char *value_text(render *r, const node *x, int utf8, int with_unit)
 {
-	char num[64];
+	char num[64], hi[64];
 	size_t len = 0;
 	char *s;
 	switch (x->k) {
 	case N_STR:
-		return im_xstrdup(x->s ? x->s : "-");
+		return x->s ? x->s : "-";
 	case N_NUM:
 		units_fmt_num(num, sizeof num, x->v, x->digits);
 		break;
@@ -278,37 +305,36 @@ static char *value_text(const node *x, int utf8, int with_unit)
 		snprintf(num, sizeof num, x->digits ? "%+ld" : "%ld", x->i);
 		break;
 	case N_BOOL:
-		return im_xstrdup(x->i ? "yes" : "no");
-	case N_RANGE: {
-		char hi[64];
+		return x->i ? "yes" : "no";
+	case N_RANGE:
 		units_fmt_num(num, sizeof num, x->v, x->digits);
 		units_fmt_num(hi, sizeof hi, x->v2, x->digits);
-		s = im_xmalloc(strlen(num) + strlen(hi) + (x->unit ? strlen(x->unit) : 0) + 8);
+		s = ar_alloc(r, strlen(num) + strlen(hi) + (x->unit ? strlen(x->unit) : 0) + 8);
 		sprintf(s, "%s to %s%s%s", num, hi, with_unit && x->unit ? " " : "",
 			with_unit && x->unit ? x->unit : "");
 		return s;
-	}
 	case N_LIST:
+		if (x->nlist == 0)
+			return "-";
 		for (int j = 0; j < x->nlist; j++)
 			len += strlen(x->list[j]) + 2;
-		s = im_xcalloc(len + 2, 1);
+		s = ar_alloc(r, len + 2);
+		s[0] = '\0';
 		for (int j = 0; j < x->nlist; j++) {
 			if (j)
 				strcat(s, ", ");
 			strcat(s, x->list[j]);
 		}
-		if (x->nlist == 0)
-			strcpy(s, "-");
 		return s;
 	default:
-		return im_xstrdup("-");
+		return "-";
 	}
 	if (with_unit && x->unit && x->k == N_NUM && isfinite(x->v)) {
-		s = im_xmalloc(strlen(num) + strlen(x->unit) + 2);
+		s = ar_alloc(r, strlen(num) + strlen(x->unit) + 2);
 		sprintf(s, "%s %s", num, x->unit);
 		return s;
 	}
-	return im_xstrdup(num);
+	return ar_dup(r, num);
 }
 
 /* Print a line without trailing blanks. */
@@ -329,21 +355,24 @@ typedef struct sbuf {
 
 static void sb_add(sbuf *b, const char *s, int pad_to, int right)
 {
-	int w = width(s), pad = pad_to > w ? pad_to - w : 0;
-	size_t need = b->len + strlen(s) + (size_t)pad + 1;
-	if (need > b->cap) {
-		b->cap = need * 2;
+	size_t n = strlen(s), pad = 0;
+	if (pad_to > 0) {
+		int w = width(s);
+		pad = pad_to > w ? (size_t)(pad_to - w) : 0;
+	}
+	if (b->len + n + pad + 1 > b->cap) {
+		b->cap = 2 * (b->len + n + pad + 1) + 64;
 		b->s = im_xrealloc(b->s, b->cap);
 	}
-	if (right) {
-		memset(b->s + b->len, ' ', (size_t)pad);
-		b->len += (size_t)pad;
+	if (right && pad) {
+		memset(b->s + b->len, ' ', pad);
+		b->len += pad;
 	}
-	memcpy(b->s + b->len, s, strlen(s));
-	b->len += strlen(s);
-	if (!right) {
-		memset(b->s + b->len, ' ', (size_t)pad);
-		b->len += (size_t)pad;
+	memcpy(b->s + b->len, s, n);
+	b->len += n;
+	if (!right && pad) {
+		memset(b->s + b->len, ' ', pad);
+		b->len += pad;
 	}
 	b->s[b->len] = '\0';
 }
@@ -356,26 +385,34 @@ static const char *colid(const node *x)
 
 /* The text of the table that starts at node t (an N_TABLE); returns the
  * index of its N_TEND. */
-static int text_table(const render *r, int t)
+static int text_table(render *r, int t)
 {
 	FILE *fp = r->o->fp;
 	int end = t + 1, ncol = 0, nrow = 0, header = 0, utf8 = r->o->utf8;
 	const node **col;
 	int *w, *right;
-	char ***cell;
+	const char ***cell;
+	sbuf lb = {0}; /* one line buffer for every row */
 	while (end < r->count && r->n[end].k != N_TEND)
 		end++;
 	/* columns: every labelled key, in the order of first appearance */
 	col = im_xcalloc((size_t)(end - t) + 1, sizeof *col);
-	for (int i = t + 1; i < end; i++) {
+	for (int i = t + 1, guess = 0; i < end; i++) {
 		const node *x = &r->n[i];
 		int k = 0;
-		if (x->k == N_ROW)
+		if (x->k == N_ROW) {
 			nrow++;
+			guess = 0;
+		}
 		if (!is_value(x->k) || !x->label)
 			continue;
-		while (k < ncol && strcmp(colid(col[k]), colid(x)) != 0)
-			k++;
+		/* cells come in column order: the next column first */
+		if (guess < ncol && strcmp(colid(col[guess]), colid(x)) == 0)
+			k = guess;
+		else
+			while (k < ncol && strcmp(colid(col[k]), colid(x)) != 0)
+				k++;
+		guess = k + 1;
 		if (k == ncol)
 			col[ncol++] = x;
 		else if (!col[k]->unit && x->unit) /* a null first: take the unit */
@@ -397,22 +434,28 @@ static int text_table(const render *r, int t)
 		free(h);
 		right[k] = col[k]->k != N_STR && col[k]->k != N_LIST;
 	}
-	for (int i = t + 1, row = -1; i < end; i++) {
+	for (int i = t + 1, row = -1, guess = 0; i < end; i++) {
 		const node *x = &r->n[i];
 		if (x->k == N_ROW) {
 			cell[++row] = im_xcalloc((size_t)ncol + 1, sizeof **cell);
+			guess = 0;
 			continue;
 		}
 		if (!is_value(x->k) || !x->label || row < 0)
 			continue;
-		for (int k = 0; k < ncol; k++)
-			if (strcmp(colid(col[k]), colid(x)) == 0) {
-				free(cell[row][k]);
-				cell[row][k] = value_text(x, utf8, 0);
-				if (width(cell[row][k]) > w[k])
-					w[k] = width(cell[row][k]);
+		for (int m = 0; m < ncol; m++) {
+			/* cells come in column order: try the next column first */
+			int k = (guess + m) % ncol;
+			if (col[k] == x || strcmp(colid(col[k]), colid(x)) == 0) {
+				int cw;
+				cell[row][k] = value_text(r, x, utf8, 0);
+				cw = width(cell[row][k]);
+				if (cw > w[k])
+					w[k] = cw;
+				guess = k + 1;
 				break;
 			}
+		}
 	}
 	if (r->n[t].label && nrow > 0 && ncol > 0)
 		fprintf(fp, "%s\n", r->n[t].label);
@@ -434,24 +477,23 @@ static int text_table(const render *r, int t)
 		free(b.s);
 	}
 	for (int row = 0; row < nrow; row++) {
-		sbuf b = {0};
 		if (ncol == 0) { /* a table for the JSON only */
 			free(cell[row]);
 			continue;
 		}
-		sb_add(&b, "", 0, 0);
+		lb.len = 0;
+		sb_add(&lb, "", 0, 0);
 		for (int k = 0; k < ncol; k++) {
-			sb_add(&b, "  ", 0, 0);
-			sb_add(&b, cell[row][k] ? cell[row][k] : "", w[k], right[k]);
-			free(cell[row][k]);
+			sb_add(&lb, "  ", 0, 0);
+			sb_add(&lb, cell[row][k] ? cell[row][k] : "", w[k], right[k]);
 		}
-		put_line(fp, b.s);
-		free(b.s);
+		put_line(fp, lb.s);
 		free(cell[row]);
 	}
 	for (int i = t + 1; i < end; i++)
 		if (r->n[i].k == N_TEMPTY && (nrow == 0 || !r->n[i].s[0]))
 			fprintf(fp, "%s\n", r->n[i].s);
+	free(lb.s);
 	free(cell);
 	free(col);
 	free(w);
@@ -459,7 +501,7 @@ static int text_table(const render *r, int t)
 	return end;
 }
 
-static void emit_text(const render *r)
+static void emit_text(render *r)
 {
 	FILE *fp = r->o->fp;
 	int lw = 0;
@@ -482,10 +524,9 @@ static void emit_text(const render *r)
 		} else if (x->k == N_NOTE) { /* no prefix: a line of its own, not indented */
 			fprintf(fp, "%s\n", x->s);
 		} else if (is_value(x->k) && x->label) {
-			char *v = value_text(x, r->o->utf8, 1);
+			const char *v = value_text(r, x, r->o->utf8, 1);
 			int pad = lw - width(x->label);
 			fprintf(fp, "  %s%*s  %s\n", x->label, pad, "", v);
-			free(v);
 		}
 	}
 }
