@@ -15,53 +15,7 @@
 #include "common.h"
 #include "sweep.h"
 
-static refdb *db;
-static im_ctx ctx;
-static out o;
-static char *buf;
-static size_t len;
-
-static int setup(void **state)
-{
-	char err[IM_ERRLEN];
-	(void)state;
-	return refdb_open(&db, err);
-}
-
-static int teardown(void **state)
-{
-	(void)state;
-	refdb_close(db);
-	return 0;
-}
-
-static int fresh(void **state)
-{
-	char err[IM_ERRLEN];
-	(void)state;
-	o.fp = open_memstream(&buf, &len);
-	o.errfp = stderr;
-	ctx_init(&ctx, db, &o);
-	ctx.ses->db_path = "/nonexistent/ionmix-test.db";
-	return ctx_load_chemistry(&ctx, err);
-}
-
-static int done(void **state)
-{
-	(void)state;
-	ctx_free(&ctx);
-	fclose(o.fp);
-	free(buf);
-	buf = NULL;
-	return 0;
-}
-
-static void ok(const char *line)
-{
-	char err[IM_ERRLEN];
-	if (cmd_exec(&ctx, line, err))
-		fail_msg("'%s' failed: %s", line, err);
-}
+#include "testctx.h"
 
 /* A Cs/K pipette with 10 mM EGTA, titrated to pH 7.2 (demo recipe). */
 static void egta_pipette(void)
