@@ -345,11 +345,10 @@ static inline __attribute__((always_inline)) int emit_u64(char *out, uint64_t R,
 	return len + (int)el;
 }
 
-/* The common cell, fast: exactly [+-]digits[.digits] over s[0..e) with at
- * least one and at most 18 digits, nothing else (no blanks, exponent or
- * CR).  Returns 0 with m filled as parse_num would, or -1 to let
- * parse_num decide. */
-static inline int parse_plain(const char *s, const char *e, num *m)
+/* A plain number at the start of s[0..e): [+-]digits[.digits], 1 to 18
+ * digits.  Returns the byte after it (the caller checks what follows) with
+ * m filled as parse_num would for a cell holding exactly it, or NULL. */
+static inline const char *plain_prefix(const char *s, const char *e, num *m)
 {
 	const char *p = s;
 	uint64_t v = 0;
@@ -372,14 +371,23 @@ static inline int parse_plain(const char *s, const char *e, num *m)
 			v = v * 10 + (uint64_t)(*p++ - '0');
 		m->nf = (int)(p - m->fp);
 	}
-	if (p != e || m->ni + m->nf == 0 || m->ni + m->nf > 18)
-		return -1;
+	if (m->ni + m->nf == 0 || m->ni + m->nf > 18)
+		return NULL;
 	m->val = v;
 	m->ns = s;
-	m->ne = e;
-	m->ep = m->epe = e;
+	m->ne = p;
+	m->ep = m->epe = p;
 	m->exp = 0;
-	return 0;
+	return p;
+}
+
+/* The common cell, fast: exactly [+-]digits[.digits] over s[0..e) with at
+ * least one and at most 18 digits, nothing else (no blanks, exponent or
+ * CR).  Returns 0 with m filled as parse_num would, or -1 to let
+ * parse_num decide. */
+static inline int parse_plain(const char *s, const char *e, num *m)
+{
+	return plain_prefix(s, e, m) == e ? 0 : -1;
 }
 
 /* The corrected number for m (without blanks) at out, room NUM_OUT_MAX.
@@ -1077,42 +1085,6 @@ static int row_done(eng *e, int col, long rec_line)
 	e->r->bad += missing;
 	e->r->skipped += missing;
 	return 0;
-}
-
-/* A plain number at the start of s[0..e): [+-]digits[.digits], 1 to 18
- * digits.  Returns the byte after it (the caller checks what follows) with
- * m filled as parse_num would for a cell holding exactly it, or NULL. */
-static inline const char *plain_prefix(const char *s, const char *e, num *m)
-{
-	const char *p = s;
-	uint64_t v = 0;
-	m->neg = m->plus = m->dot = 0;
-	if (p < e && (*p == '-' || *p == '+')) {
-		m->neg = *p == '-';
-		m->plus = *p == '+';
-		p++;
-	}
-	m->ip = p;
-	while (p < e && (unsigned)(*p - '0') < 10)
-		v = v * 10 + (uint64_t)(*p++ - '0');
-	m->ni = (int)(p - m->ip);
-	m->fp = p;
-	m->nf = 0;
-	if (p < e && *p == '.') {
-		m->dot = 1;
-		m->fp = ++p;
-		while (p < e && (unsigned)(*p - '0') < 10)
-			v = v * 10 + (uint64_t)(*p++ - '0');
-		m->nf = (int)(p - m->fp);
-	}
-	if (m->ni + m->nf == 0 || m->ni + m->nf > 18)
-		return NULL;
-	m->val = v;
-	m->ns = s;
-	m->ne = p;
-	m->ep = m->epe = p;
-	m->exp = 0;
-	return p;
 }
 
 /* "000\0" .. "999\0": three digits in one copy; filled on first use. */
