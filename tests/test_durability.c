@@ -52,27 +52,8 @@
 #define KILL_MAX_US 20000
 #define CHILD_MAX_S 30   /* a child that is never killed gives up */
 
-static refdb *db;
-static char dir[64];
-
-static int setup(void **state)
-{
-	char err[IM_ERRLEN];
-	(void)state;
-	snprintf(dir, sizeof dir, "/tmp/ionmix-durable-XXXXXX");
-	if (!mkdtemp(dir))
-		return -1;
-	return refdb_open(&db, err);
-}
-
-static int teardown(void **state)
-{
-	char cmd[128];
-	(void)state;
-	refdb_close(db);
-	snprintf(cmd, sizeof cmd, "rm -rf %s", dir);
-	return system(cmd) == 0 ? 0 : -1;
-}
+#define TESTDIR_TAG "durable"
+#include "testdir.h"
 
 static void path_in(char *buf, size_t n, const char *sub, const char *name)
 {

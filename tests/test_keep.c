@@ -19,27 +19,8 @@
 #include "common.h"
 #include "userdb.h"
 
-static refdb *db;
-static char dir[64];
-
-static int setup(void **state)
-{
-	char err[IM_ERRLEN];
-	(void)state;
-	snprintf(dir, sizeof dir, "/tmp/ionmix-keep-XXXXXX");
-	if (!mkdtemp(dir))
-		return -1;
-	return refdb_open(&db, err);
-}
-
-static int teardown(void **state)
-{
-	char cmd[128];
-	(void)state;
-	refdb_close(db);
-	snprintf(cmd, sizeof cmd, "rm -rf %s", dir);
-	return system(cmd) == 0 ? 0 : -1;
-}
+#define TESTDIR_TAG "keep"
+#include "testdir.h"
 
 static const rd_compound *cmp(const char *name)
 {

@@ -20,27 +20,8 @@
 #include "common.h"
 #include "userdb.h"
 
-static refdb *db;
-static char dir[64];
-
-static int setup(void **state)
-{
-	char err[IM_ERRLEN];
-	(void)state;
-	snprintf(dir, sizeof dir, "/tmp/ionmix-udb-XXXXXX");
-	if (!mkdtemp(dir))
-		return -1;
-	return refdb_open(&db, err);
-}
-
-static int teardown(void **state)
-{
-	char cmd[128];
-	(void)state;
-	refdb_close(db);
-	snprintf(cmd, sizeof cmd, "rm -rf %s", dir);
-	return system(cmd) == 0 ? 0 : -1;
-}
+#define TESTDIR_TAG "udb"
+#include "testdir.h"
 
 static void path(char *buf, const char *name)
 {
