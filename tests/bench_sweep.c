@@ -13,6 +13,7 @@
 #include <time.h>
 
 #include "command.h"
+#include "benchpair.h"
 #include "common.h"
 
 #define RUNS 15
@@ -48,32 +49,11 @@ static double median_ms(im_ctx *ctx, const char *line)
 
 int main(void)
 {
-	char err[IM_ERRLEN];
 	refdb *db;
 	im_ctx ctx;
 	out o = {NULL, stderr, 0, 1};
-	if (refdb_open(&db, err)) {
-		fprintf(stderr, "%s\n", err);
+	if (bench_pair(&db, &ctx, &o))
 		return 1;
-	}
-	o.fp = fopen("/dev/null", "w");
-	ctx_init(&ctx, db, &o);
-	ctx.ses->db_path = "/nonexistent/bench.db";
-	if (ctx_load_chemistry(&ctx, err)) {
-		fprintf(stderr, "%s\n", err);
-		return 1;
-	}
-	if (cmd_exec(&ctx, "solution bath; add NaCl 125; add KCl 2.5; add CaCl2.2H2O 2;"
-			   "add MgCl2.6H2O 1; add NaHCO3 26; add NaH2PO4.H2O 1.25;"
-			   "add glucose 25; add HEPES 5; add Na-pyruvate 2; add sucrose 5;"
-			   "add MgSO4.7H2O 0.5; add \"choline chloride\" 1; gas co2 5%", err) ||
-	    cmd_exec(&ctx, "solution pip; add K-gluconate 120; add KCl 10; add HEPES 10;"
-			   "add EGTA 0.5; add MgCl2.6H2O 2; add Na2ATP 4; add Na2GTP 0.3;"
-			   "add Na2-phosphocreatine 10; add NaCl 2; add CaCl2 0.1; add sucrose 5;"
-			   "ph 7.3 with KOH", err)) {
-		fprintf(stderr, "set-up: %s\n", err);
-		return 1;
-	}
 	printf("bench|sweep temp, 200 points, LJP of a 12-compound pair (both speciated each point)|%.1f ms|< 100 ms|-\n",
 	       median_ms(&ctx, "sweep temp 10 to 37 show ljp pip bath points 200"));
 	printf("bench|sweep KCl in the bath, 200 points, LJP of a 12-compound pair|%.1f ms|< 100 ms|-\n",
