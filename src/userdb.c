@@ -711,6 +711,38 @@ done:
 	return ok ? 0 : -1;
 }
 
+/* Do the saved targets of name equal those of s (in order, numbers
+ * exactly)?  1 yes, 0 no, -1 on a database error. */
+static int same_targets_as_saved(userdb *u, const solution *s)
+{
+	sqlite3_stmt *st;
+	int same = 1, n = 0, rc;
+	if (sqlite3_prepare_v2(u->db, "SELECT kind, value, compound, metal, at_C FROM"
+			       " solution_targets WHERE scope = ?1 AND solution = ?2 AND"
+			       " version = 0 ORDER BY position", -1, &st, NULL))
+		return -1;
+	sqlite3_bind_int(st, 1, ROWS_SAVED);
+	sqlite3_bind_text(st, 2, s->name, -1, SQLITE_STATIC);
+	while ((rc = sqlite3_step(st)) == SQLITE_ROW) {
+		const char *kind = (const char *)sqlite3_column_text(st, 0);
+		const char *with = (const char *)sqlite3_column_text(st, 2);
+		const char *metal = (const char *)sqlite3_column_text(st, 3);
+		const sol_target *t = n < s->ntg ? &s->tg[n] : NULL;
+		if (!t || !kind || strcmp(kind, target_kind[t->kind]) != 0 ||
+		    sqlite3_column_double(st, 1) != t->value ||
+		    !with || strcmp(with, t->with->name) != 0 ||
+		    (metal == NULL) != (t->metal == NULL) ||
+		    (metal && strcmp(metal, t->metal->symbol) != 0) ||
+		    sqlite3_column_double(st, 4) != t->at_C)
+			same = 0;
+		n++;
+	}
+	sqlite3_finalize(st);
+	if (rc != SQLITE_DONE)
+		return -1;
+	return same && n == s->ntg;
+}
+
 /* Do the saved rows of name equal s (compounds by name, numbers
  * exactly)?  1 yes, 0 no or nothing saved, -1 on a database error. */
 static int same_as_saved(userdb *u, const solution *s)
@@ -753,7 +785,9 @@ static int same_as_saved(userdb *u, const solution *s)
 	sqlite3_finalize(st);
 	if (rc != SQLITE_DONE)
 		return -1;
-	return same && n == s->n;
+	if (same && n == s->n)
+		return same_targets_as_saved(u, s);
+	return 0;
 }
 
 /* The one-line summary of a version: its compounds with amounts (the

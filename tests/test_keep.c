@@ -79,6 +79,54 @@ static void ten_versions(void **state)
 	udb_close(u);
 }
 
+/* A change of targets alone is a new version, and loads back with them:
+ * adding a target, then dropping it again, each keep a version; saving
+ * the same targets again keeps none. */
+static void targets_alone_are_a_version(void **state)
+{
+	char p[256], err[IM_ERRLEN];
+	solution s, got;
+	userdb *u;
+	int version, sup;
+	(void)state;
+	snprintf(p, sizeof p, "%s/targets.db", dir);
+	assert_int_equal(udb_open(p, 1, &u, err), 0);
+	sol_init(&s, "bath");
+	sol_set(&s, cmp("NaCl"), 140);
+	sol_set(&s, cmp("sucrose"), 10);
+	assert_int_equal(udb_save_v(u, &s, &version, &sup, err), 0);
+	assert_int_equal(version, 1);
+	/* the same items, now holding an osmolality target at 32 C */
+	s.tg[0] = (sol_target){SOL_TG_OSMO, 300, cmp("sucrose"), NULL, 32};
+	s.ntg = 1;
+	assert_int_equal(udb_save_v(u, &s, &version, &sup, err), 0);
+	assert_int_equal(version, 2);
+	assert_int_equal(sup, 1);
+	assert_int_equal(udb_save_v(u, &s, &version, &sup, err), 0);
+	assert_int_equal(version, 2); /* unchanged: no new version */
+	assert_int_equal(udb_load(u, db, "bath", &got, err), 0);
+	assert_true(sol_equal(&got, &s));
+	assert_int_equal(got.ntg, 1);
+	sol_free(&got);
+	/* another temperature for the same target is a change too */
+	s.tg[0].at_C = 35;
+	assert_int_equal(udb_save_v(u, &s, &version, &sup, err), 0);
+	assert_int_equal(version, 3);
+	/* the target dropped */
+	s.ntg = 0;
+	assert_int_equal(udb_save_v(u, &s, &version, &sup, err), 0);
+	assert_int_equal(version, 4);
+	assert_int_equal(udb_load(u, db, "bath", &got, err), 0);
+	assert_int_equal(got.ntg, 0);
+	sol_free(&got);
+	assert_int_equal(udb_load_version(u, db, "bath", 3, &got, err), 0);
+	assert_int_equal(got.ntg, 1);
+	assert_true(got.tg[0].at_C == 35);
+	sol_free(&got);
+	sol_free(&s);
+	udb_close(u);
+}
+
 /* A schema-1 file (as the first release wrote it) with one solution. */
 static void older_db_upgraded(void **state)
 {
@@ -278,6 +326,7 @@ int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(ten_versions),
+		cmocka_unit_test(targets_alone_are_a_version),
 		cmocka_unit_test(older_db_upgraded),
 		cmocka_unit_test(index_matches_linear),
 		cmocka_unit_test(journal_is_proportional),
