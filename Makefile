@@ -78,6 +78,7 @@ help:
 	@echo "make check      check dependencies, run every test, plain and under ASan+UBSan"
 	@echo "make bench      run the benchmarks and print a table of figures and goals"
 	@echo "make fuzz       run each libFuzzer target for FUZZ_SECONDS (default 60)"
+	@echo "make fuzz-merge add the inputs make fuzz found that reach new code to tests/fuzz/corpus"
 	@echo "make check-valgrind  every test program and golden script under valgrind"
 	@echo "make install    install to \$$(DESTDIR)\$$(PREFIX) (PREFIX=$(PREFIX))"
 	@echo "make clean      remove $(BUILD)/ (BUILD=DIR: another build directory)"
@@ -225,7 +226,7 @@ VALGRIND           ?= valgrind
 VALGRIND_FLAGS     := -q --error-exitcode=1 --leak-check=full \
                       --errors-for-leak-kinds=definite,indirect
 
-.PHONY: fuzz fuzz-smoke fuzz-build fuzz-lib fuzz-bins check-valgrind
+.PHONY: fuzz fuzz-merge fuzz-smoke fuzz-build fuzz-lib fuzz-bins check-valgrind
 
 fuzz-build:
 	@$(MAKE) --no-print-directory fuzz-lib BUILD=$(FUZZ_BUILD) SAN= \
@@ -247,6 +248,10 @@ $(FUZZ_BUILD)/bin/%: tests/fuzz/%.c tests/fuzz/fuzzutil.h $(FUZZ_BUILD)/libionmi
 
 fuzz: fuzz-build
 	@sh tests/fuzz/run.sh $(FUZZ_BUILD) $(FUZZ_SECONDS) $(FUZZ_NAMES)
+
+# add what `make fuzz` found that reaches new code to tests/fuzz/corpus
+fuzz-merge: fuzz-build
+	@sh tests/fuzz/merge.sh $(FUZZ_BUILD) $(FUZZ_NAMES)
 
 fuzz-smoke: fuzz-build
 	@FUZZ_FRESH=1 sh tests/fuzz/run.sh $(FUZZ_BUILD) $(FUZZ_SMOKE_SECONDS) $(FUZZ_NAMES)
