@@ -803,7 +803,10 @@ static void summarize(const solution *s, char *buf, size_t n)
 	if (s->n > 4 && len < n)
 		len += snprintf(buf + len, n - len, ", ...");
 	if (isfinite(s->ph_target) && len < n)
-		snprintf(buf + len, n - len, "; pH %.2f", s->ph_target);
+		len += snprintf(buf + len, n - len, "; pH %.2f", s->ph_target);
+	for (int k = 0; k < s->ntg && len < n; k++)
+		len += snprintf(buf + len, n - len, "%s%s", k ? ", " : "; targets: ",
+				target_kind[s->tg[k].kind]);
 }
 
 /* The highest version of name (0: none), or -1 on error. */
