@@ -427,6 +427,32 @@ static int migrate_keep(userdb *u)
 
 static int (*const migrate_step[])(userdb *u) = {migrate_targets, migrate_keep};
 
+/* Write the copy kept before an upgrade: VACUUM INTO a name of this
+ * process's own, then link it to `copy`, so that several processes
+ * upgrading the same file at once never write into one another's copy
+ * (VACUUM INTO an existing database fails); the first copy made stands. */
+static int keep_backup(userdb *u, const char *copy, char *err)
+{
+	char *tmp = im_xmalloc(strlen(copy) + 32), *sql;
+	int rc, e = 0;
+	sprintf(tmp, "%s.%ld.tmp", copy, (long)getpid());
+	unlink(tmp);
+	sql = sqlite3_mprintf("VACUUM INTO %Q", tmp);
+	rc = sqlite3_exec(u->db, sql, NULL, NULL, NULL);
+	sqlite3_free(sql);
+	if (rc != SQLITE_OK)
+		im_fail(err, "%s: could not keep a copy as %s before upgrading it (%s); it was "
+			     "left untouched", u->path, copy, sqlite3_errmsg(u->db));
+	else if (link(tmp, copy) != 0 && (e = errno) != EEXIST) {
+		im_fail(err, "%s: could not keep a copy as %s before upgrading it (%s); it was "
+			     "left untouched", u->path, copy, strerror(e));
+		rc = SQLITE_ERROR;
+	}
+	unlink(tmp);
+	free(tmp);
+	return rc == SQLITE_OK ? 0 : -1;
+}
+
 /* Keep a copy of the file as it is beside it (PATH.vV-backup), then run
  * the missing steps and set the version in one transaction (a file just
  * created, keep_copy 0, has nothing to keep); the version
@@ -435,23 +461,17 @@ static int (*const migrate_step[])(userdb *u) = {migrate_targets, migrate_keep};
 static int migrate(userdb *u, int keep_copy, char *err)
 {
 	int v = 0, rc = SQLITE_OK;
-	char *copy, *sql;
+	char *copy;
 	if (user_version(u, &v) != SQLITE_OK)
 		return fail_db(u, err, "reading");
 	if (v >= UDB_SCHEMA_VERSION)
 		return 0;
 	copy = im_xmalloc(strlen(u->path) + 32);
 	sprintf(copy, "%s.v%d-backup", u->path, v);
-	sql = sqlite3_mprintf("VACUUM INTO %Q", copy);
-	if (keep_copy && access(copy, F_OK) != 0 &&
-	    sqlite3_exec(u->db, sql, NULL, NULL, NULL) != SQLITE_OK) {
-		sqlite3_free(sql);
-		im_fail(err, "%s: could not keep a copy as %s before upgrading it (%s); it was "
-			     "left untouched", u->path, copy, sqlite3_errmsg(u->db));
+	if (keep_copy && access(copy, F_OK) != 0 && keep_backup(u, copy, err)) {
 		free(copy);
 		return -1;
 	}
-	sqlite3_free(sql);
 	free(copy);
 	if (sqlite3_exec(u->db, "BEGIN IMMEDIATE", NULL, NULL, NULL) != SQLITE_OK)
 		return fail_db(u, err, "upgrading");

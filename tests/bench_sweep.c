@@ -51,7 +51,7 @@ int main(void)
 {
 	refdb *db;
 	im_ctx ctx;
-	out o = {NULL, stderr, 0, 1};
+	out o = {.errfp = stderr, .utf8 = 1};
 	if (bench_pair(&db, &ctx, &o))
 		return 1;
 	printf("bench|sweep temp, 200 points, LJP of a 12-compound pair (both speciated each point)|%.1f ms|< 100 ms|-\n",

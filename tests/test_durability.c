@@ -624,7 +624,7 @@ static void full_disk_child(const char *sub, long limit_extra, const char *fille
 	full_report rep;
 	userdb *u = NULL;
 	solution s;
-	out o = {NULL, NULL, 0, 0};
+	out o = {0};
 	im_ctx ctx;
 	int n = refdb_ncompounds(db);
 	child_dies_with_parent();
