@@ -34,7 +34,7 @@ typedef struct perm {
 
 /* The two sides, computed at the context's temperature and model. */
 typedef struct side {
-	solution *sol;
+	const solution *sol;
 	sol_state st;
 	int have;
 } side;
@@ -153,7 +153,7 @@ static int parse_rest(im_ctx *ctx, int argc, char **argv, int first, int with_iv
 static int side_open(im_ctx *ctx, const char *name, side *s, char *err)
 {
 	memset(s, 0, sizeof *s);
-	if (ses_solution(ctx->ses, name, &s->sol, err))
+	if (ses_solution_read(ctx->ses, name, &s->sol, err))
 		return -1;
 	if (ses_compute(ctx->ses, s->sol, &s->st, err))
 		return -1;

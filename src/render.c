@@ -72,20 +72,44 @@ static char *ar_dup(render *r, const char *s)
 	return d;
 }
 
-/* printf into the arena, at whatever length it needs. */
+/* printf into the arena, at whatever length it needs: once into a
+ * buffer on the stack, a second time only for a longer text. */
 static char *vfmt(render *r, const char *fmt, va_list ap)
 {
+	char first[256];
 	va_list aq;
 	int len;
 	char *s;
 	va_copy(aq, ap);
-	len = vsnprintf(NULL, 0, fmt, aq);
+	len = vsnprintf(first, sizeof first, fmt, aq);
 	va_end(aq);
 	if (len < 0)
-		len = 0;
+		len = first[0] = 0;
 	s = ar_alloc(r, (size_t)len + 1);
-	vsnprintf(s, (size_t)len + 1, fmt, ap);
+	if ((size_t)len < sizeof first)
+		memcpy(s, first, (size_t)len + 1);
+	else
+		vsnprintf(s, (size_t)len + 1, fmt, ap);
 	return s;
+}
+
+/* a, b and c joined, in the arena. */
+static char *ar_cat3(render *r, const char *a, const char *b, const char *c)
+{
+	size_t na = strlen(a), nb = strlen(b), nc = strlen(c);
+	char *s = ar_alloc(r, na + nb + nc + 1);
+	memcpy(s, a, na);
+	memcpy(s + na, b, nb);
+	memcpy(s + na + nb, c, nc + 1);
+	return s;
+}
+
+/* n zeroed bytes in the arena. */
+static void *ar_zero(render *r, size_t n)
+{
+	void *p = ar_alloc(r, n);
+	memset(p, 0, n);
+	return p;
 }
 
 static node *add(render *r, nkind k, const char *key, const char *label, const char *unit)
@@ -309,10 +333,8 @@ static const char *value_text(render *r, const node *x, int utf8, int with_unit)
 	case N_RANGE:
 		units_fmt_num(num, sizeof num, x->v, x->digits);
 		units_fmt_num(hi, sizeof hi, x->v2, x->digits);
-		s = ar_alloc(r, strlen(num) + strlen(hi) + (x->unit ? strlen(x->unit) : 0) + 8);
-		sprintf(s, "%s to %s%s%s", num, hi, with_unit && x->unit ? " " : "",
-			with_unit && x->unit ? x->unit : "");
-		return s;
+		s = ar_cat3(r, num, " to ", hi);
+		return with_unit && x->unit ? ar_cat3(r, s, " ", x->unit) : s;
 	case N_LIST:
 		if (x->nlist == 0)
 			return "-";
@@ -329,21 +351,25 @@ static const char *value_text(render *r, const node *x, int utf8, int with_unit)
 	default:
 		return "-";
 	}
-	if (with_unit && x->unit && x->k == N_NUM && isfinite(x->v)) {
-		s = ar_alloc(r, strlen(num) + strlen(x->unit) + 2);
-		sprintf(s, "%s %s", num, x->unit);
-		return s;
-	}
+	if (with_unit && x->unit && x->k == N_NUM && isfinite(x->v))
+		return ar_cat3(r, num, " ", x->unit);
 	return ar_dup(r, num);
 }
 
-/* Print a line without trailing blanks. */
-static void put_line(FILE *fp, char *line)
+/* Print a line of n bytes without trailing blanks. */
+static void put_line(FILE *fp, char *line, size_t n)
 {
-	size_t n = strlen(line);
 	while (n > 0 && line[n - 1] == ' ')
-		line[--n] = '\0';
-	fputs(line, fp);
+		n--;
+	line[n] = '\n';
+	fwrite(line, 1, n + 1, fp);
+	line[n] = '\0';
+}
+
+/* s and a line end. */
+static void put_text(FILE *fp, const char *s)
+{
+	fputs(s, fp);
 	fputc('\n', fp);
 }
 
@@ -391,12 +417,12 @@ static int text_table(render *r, int t)
 	int end = t + 1, ncol = 0, nrow = 0, header = 0, utf8 = r->o->utf8;
 	const node **col;
 	int *w, *right;
-	const char ***cell;
-	sbuf lb = {0}; /* one line buffer for every row */
+	const char ***cell, **head;
+	sbuf lb = {0}; /* one line buffer for the header and every row */
 	while (end < r->count && r->n[end].k != N_TEND)
 		end++;
 	/* columns: every labelled key, in the order of first appearance */
-	col = im_xcalloc((size_t)(end - t) + 1, sizeof *col);
+	col = ar_zero(r, ((size_t)(end - t) + 1) * sizeof *col);
 	for (int i = t + 1, guess = 0; i < end; i++) {
 		const node *x = &r->n[i];
 		int k = 0;
@@ -418,26 +444,24 @@ static int text_table(render *r, int t)
 		else if (!col[k]->unit && x->unit) /* a null first: take the unit */
 			col[k] = x;
 	}
-	w = im_xcalloc((size_t)ncol + 1, sizeof *w);
-	right = im_xcalloc((size_t)ncol + 1, sizeof *right);
-	cell = im_xcalloc((size_t)nrow + 1, sizeof *cell);
+	w = ar_zero(r, ((size_t)ncol + 1) * sizeof *w);
+	right = ar_zero(r, ((size_t)ncol + 1) * sizeof *right);
+	head = ar_zero(r, ((size_t)ncol + 1) * sizeof *head);
+	cell = ar_zero(r, ((size_t)nrow + 1) * sizeof *cell);
 	for (int k = 0; k < ncol; k++) {
-		char *h = NULL;
 		if (col[k]->label[0])
 			header = 1;
-		if (col[k]->unit && col[k]->k == N_NUM) {
-			h = im_xmalloc(strlen(col[k]->label) + strlen(col[k]->unit) + 2);
-			sprintf(h, "%s%s%s", col[k]->label, col[k]->label[0] ? " " : "",
-				col[k]->unit);
-		}
-		w[k] = width(h ? h : col[k]->label);
-		free(h);
+		head[k] = col[k]->label;
+		if (col[k]->unit && col[k]->k == N_NUM)
+			head[k] = ar_cat3(r, col[k]->label, col[k]->label[0] ? " " : "",
+					  col[k]->unit);
+		w[k] = width(head[k]);
 		right[k] = col[k]->k != N_STR && col[k]->k != N_LIST;
 	}
 	for (int i = t + 1, row = -1, guess = 0; i < end; i++) {
 		const node *x = &r->n[i];
 		if (x->k == N_ROW) {
-			cell[++row] = im_xcalloc((size_t)ncol + 1, sizeof **cell);
+			cell[++row] = ar_zero(r, ((size_t)ncol + 1) * sizeof **cell);
 			guess = 0;
 			continue;
 		}
@@ -458,46 +482,29 @@ static int text_table(render *r, int t)
 		}
 	}
 	if (r->n[t].label && nrow > 0 && ncol > 0)
-		fprintf(fp, "%s\n", r->n[t].label);
+		put_text(fp, r->n[t].label);
 	if (header && nrow > 0) {
-		sbuf b = {0};
-		sb_add(&b, "", 0, 0);
+		lb.len = 0;
+		sb_add(&lb, "", 0, 0);
 		for (int k = 0; k < ncol; k++) {
-			char *h = NULL;
-			if (col[k]->unit && col[k]->k == N_NUM) {
-				h = im_xmalloc(strlen(col[k]->label) + strlen(col[k]->unit) + 2);
-				sprintf(h, "%s%s%s", col[k]->label, col[k]->label[0] ? " " : "",
-					col[k]->unit);
-			}
-			sb_add(&b, "  ", 0, 0);
-			sb_add(&b, h ? h : col[k]->label, w[k], right[k]);
-			free(h);
+			sb_add(&lb, "  ", 0, 0);
+			sb_add(&lb, head[k], w[k], right[k]);
 		}
-		put_line(fp, b.s);
-		free(b.s);
+		put_line(fp, lb.s, lb.len);
 	}
-	for (int row = 0; row < nrow; row++) {
-		if (ncol == 0) { /* a table for the JSON only */
-			free(cell[row]);
-			continue;
-		}
+	for (int row = 0; row < nrow && ncol > 0; row++) { /* ncol 0: for the JSON only */
 		lb.len = 0;
 		sb_add(&lb, "", 0, 0);
 		for (int k = 0; k < ncol; k++) {
 			sb_add(&lb, "  ", 0, 0);
 			sb_add(&lb, cell[row][k] ? cell[row][k] : "", w[k], right[k]);
 		}
-		put_line(fp, lb.s);
-		free(cell[row]);
+		put_line(fp, lb.s, lb.len);
 	}
 	for (int i = t + 1; i < end; i++)
 		if (r->n[i].k == N_TEMPTY && (nrow == 0 || !r->n[i].s[0]))
-			fprintf(fp, "%s\n", r->n[i].s);
+			put_text(fp, r->n[i].s);
 	free(lb.s);
-	free(cell);
-	free(col);
-	free(w);
-	free(right);
 	return end;
 }
 
@@ -518,11 +525,11 @@ static void emit_text(render *r)
 		if (x->k == N_TABLE) {
 			i = text_table(r, i);
 		} else if (x->k == N_TEXT) {
-			fprintf(fp, "%s\n", x->s);
+			put_text(fp, x->s);
 		} else if (x->k == N_NOTE && x->label) {
 			fprintf(fp, "  %s%s\n", x->label, x->s);
 		} else if (x->k == N_NOTE) { /* no prefix: a line of its own, not indented */
-			fprintf(fp, "%s\n", x->s);
+			put_text(fp, x->s);
 		} else if (is_value(x->k) && x->label) {
 			const char *v = value_text(r, x, r->o->utf8, 1);
 			int pad = lw - width(x->label);

@@ -238,6 +238,7 @@ int ses_solution(session *s, const char *name, solution **out, char *err)
 	    (u = ses_userdb(s, 0, uerr, &failed)) != NULL) {
 		sv = im_xmalloc(sizeof *sv);
 		if (udb_load(u, s->ref, name, sv, uerr) == 0) {
+			fflush(stdout); /* the results before it first (a script's, see ctx->batch) */
 			fprintf(s->wait_notice ? s->wait_notice : stderr,
 				"note: '%s' is not in the workspace; using the saved solution "
 				"(now in the workspace)\n", name);
@@ -253,6 +254,20 @@ int ses_solution(session *s, const char *name, solution **out, char *err)
 	}
 	return im_fail(err, "unknown solution '%.60s' (neither in the workspace nor saved; see "
 			    "`list`)", name);
+}
+
+int ses_solution_read(session *s, const char *name, const solution **out, char *err)
+{
+	solution *sv;
+	int i = name ? ws_index_of(&s->ws, name) : s->ws.current;
+	if (i >= 0) {
+		*out = s->ws.sol[i];
+		return 0;
+	}
+	if (ses_solution(s, name, &sv, err))
+		return -1;
+	*out = sv;
+	return 0;
 }
 
 int ses_compound(session *s, const char *name, const rd_compound **out, char *err)

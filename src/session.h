@@ -95,6 +95,11 @@ struct userdb *ses_userdb(session *s, int create, char *err, int *failed);
  * with err ("unknown solution 'X' ..." / "no current solution") when
  * absent from both. */
 int ses_solution(session *s, const char *name, solution **out, char *err);
+/* As ses_solution, for a command that only reads the solution: one in
+ * the workspace is not copied into the command's mark (nothing to put
+ * back), so a read costs no allocation.  The pointer is the workspace's;
+ * valid until the workspace changes. */
+int ses_solution_read(session *s, const char *name, const solution **out, char *err);
 /* A compound by name or alias: the shipped ones, then those the user
  * defined (read from the user database the first time one is needed);
  * the error suggests the nearest names. */

@@ -180,10 +180,58 @@ int units_volume_mL(const char *num, const char *unit, double *mL, char *err)
 	return 0;
 }
 
+/* Powers of ten that a double holds exactly. */
+static const double pow10_exact[] = {
+	1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11,
+	1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22,
+};
+
+/* snprintf(buf, n, "%.*f", dec, v), the same bytes, without printf's
+ * arbitrary-precision machinery when that is not needed: the exact value
+ * |v| 10^dec lies within half an ulp of its double product x, so where
+ * x's fraction is further than two ulps from one half, rounding x to the
+ * nearest integer rounds the exact value the same way.  Anything else
+ * (near a tie, too large, not finite, too many decimals) goes to snprintf,
+ * which rounds the exact binary value.  Returns what snprintf returns. */
+static int fmt_fixed(char *buf, size_t n, double v, int dec)
+{
+	char dig[32];
+	double a = fabs(v), x, fl, f;
+	unsigned long long m;
+	int nd = 0, len, neg = signbit(v) != 0;
+	if (!isfinite(v) || dec < 0 || dec >= (int)IM_COUNT(pow10_exact) ||
+	    !((x = a * pow10_exact[dec]) < 4503599627370496.0)) /* 2^52 */
+		return snprintf(buf, n, "%.*f", dec, v);
+	fl = floor(x);
+	f = x - fl; /* exact: x < 2^52 */
+	if (fabs(f - 0.5) <= x * 4.5e-16)
+		return snprintf(buf, n, "%.*f", dec, v);
+	m = (unsigned long long)fl + (f > 0.5);
+	do {
+		dig[nd++] = (char)('0' + m % 10);
+		m /= 10;
+	} while (m);
+	while (nd <= dec) /* at least one digit before the point */
+		dig[nd++] = '0';
+	len = neg + nd + (dec > 0);
+	if ((size_t)len >= n)
+		return snprintf(buf, n, "%.*f", dec, v);
+	char *p = buf;
+	if (neg)
+		*p++ = '-';
+	for (int i = nd - 1; i >= 0; i--) {
+		*p++ = dig[i];
+		if (i == dec && dec > 0)
+			*p++ = '.';
+	}
+	*p = '\0';
+	return len;
+}
+
 void units_fmt_sig(char *buf, size_t n, double v, int sig)
 {
 	double a = fabs(v);
-	int dec;
+	int dec, len;
 	if (v == 0 || !isfinite(v)) {
 		snprintf(buf, n, isfinite(v) ? "0" : "-");
 		return;
@@ -195,9 +243,9 @@ void units_fmt_sig(char *buf, size_t n, double v, int sig)
 	dec = sig - 1 - (int)floor(log10(a));
 	if (dec < 0)
 		dec = 0;
-	snprintf(buf, n, "%.*f", dec, v);
+	len = fmt_fixed(buf, n, v, dec);
 	if (dec > 0) { /* strip trailing zeros, and a bare point */
-		char *p = buf + strlen(buf) - 1;
+		char *p = buf + (len >= 0 && (size_t)len < n ? (size_t)len : strlen(buf)) - 1;
 		while (*p == '0')
 			*p-- = '\0';
 		if (*p == '.')
@@ -214,11 +262,14 @@ void units_fmt_num(char *buf, size_t n, double v, int digits)
 		snprintf(buf, n, "-");
 	} else {
 		dec = -1 - digits;
-		snprintf(buf, n, "%.*f", dec, v);
+		fmt_fixed(buf, n, v, dec);
 	}
 	/* a negative value that rounds to zero prints as zero */
-	if (buf[0] == '-' && buf[1] != '\0' && strspn(buf + 1, "0.") == strlen(buf + 1))
-		memmove(buf, buf + 1, strlen(buf));
+	if (buf[0] == '-' && buf[1] != '\0') {
+		size_t z = strspn(buf + 1, "0."), rest = strlen(buf + 1);
+		if (z == rest)
+			memmove(buf, buf + 1, rest + 1);
+	}
 }
 
 void units_fmt_conc(char *buf, size_t n, double mM, int utf8)
