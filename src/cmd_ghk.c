@@ -80,7 +80,7 @@ static int parse_perm(im_ctx *ctx, const char *arg, opts *o, char *err)
 	if (o->np == MAX_PERM)
 		return im_fail(err, "at most %d ions", MAX_PERM);
 	double P;
-	char what[80], num[64];
+	char num[64], e2[IM_ERRLEN];
 	const char *val = eq + 1;
 	size_t vl = strlen(val);
 	int abs_ = vl > 4 && strcmp(val + vl - 4, "cm/s") == 0;
@@ -94,9 +94,8 @@ static int parse_perm(im_ctx *ctx, const char *arg, opts *o, char *err)
 	if (o->absolute && o->absolute != (abs_ ? 1 : -1))
 		return im_fail(err, "give every permeability in cm/s or none (got '%.40s')", arg);
 	o->absolute = abs_ ? 1 : -1;
-	snprintf(what, sizeof what, "permeability of %s", ion->symbol);
-	if (parse_num(val, what, &P, err))
-		return -1;
+	if (units_number(val, &P, e2)) /* as parse_num, the name built only when needed */
+		return im_fail(err, "permeability of %s: %s", ion->symbol, e2);
 	if (P < 0)
 		return im_fail(err, "permeability of %s is negative", ion->symbol);
 	o->p[o->np].ion = ion;
@@ -277,6 +276,7 @@ int cmd_ghk_erev(im_ctx *ctx, int argc, char **argv, char *err)
 	side ins, outs;
 	ghk_ion x[MAX_PERM];
 	double E, t = ctx->ses->temp_C;
+	char num[48];
 	render *r;
 	memset(&o, 0, sizeof o);
 	if (parse_rest(ctx, argc, argv, 3, 0, &o, err))
@@ -292,15 +292,17 @@ int cmd_ghk_erev(im_ctx *ctx, int argc, char **argv, char *err)
 		return -1;
 	}
 	r = render_new(ctx->out);
-	render_text(r, "GHK reversal potential: %s inside, %s outside, %.1f C, from %s",
-		    ins.sol->name, outs.sol->name, t, basis(&o));
+	units_fmt_fixed(num, sizeof num, t, 1, 0);
+	render_text(r, "GHK reversal potential: %s inside, %s outside, %s C, from %s",
+		    ins.sol->name, outs.sol->name, num, basis(&o));
 	render_head(r, &ins, &outs, &o, x, t);
 	render_table(r, "ions", NULL);
 	for (int i = 0; i < o.np; i++)
 		erev_row(r, &x[i], o.activities, t);
 	render_table_end(r);
 	render_numj(r, "E_rev_mV", NULL, "mV", E, UNITS_DEC(2), 8);
-	render_text(r, "  E_rev = %+.2f mV", E);
+	units_fmt_fixed(num, sizeof num, E, 2, 1);
+	render_text(r, "  E_rev = %s mV", num);
 	if (o.corrected)
 		erev_corrected(r, &ins, &outs, E, t);
 	render_str(r, "convention", NULL, CONVENTION);

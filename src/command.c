@@ -150,7 +150,7 @@ const cmd_def *cmd_table(int *n)
 const cmd_def *cmd_lookup(const char *name)
 {
 	for (size_t i = 0; i < IM_COUNT(table); i++)
-		if (strcmp(table[i].name, name) == 0)
+		if (table[i].name[0] == name[0] && strcmp(table[i].name, name) == 0)
 			return &table[i];
 	return NULL;
 }

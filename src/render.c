@@ -62,14 +62,57 @@ static char *ar_alloc(render *r, size_t n)
 
 static char *ar_dup(render *r, const char *s)
 {
+	ablock *b = r->arena;
 	size_t n;
 	char *d;
 	if (!s)
 		return NULL;
+	if (b) { /* one pass: copy into the block while it has room */
+		size_t room = b->cap - b->used;
+		d = b->data + b->used;
+		for (size_t i = 0; i < room; i++)
+			if ((d[i] = s[i]) == '\0') {
+				b->used += (i + 8) & ~(size_t)7;
+				return d;
+			}
+	}
 	n = strlen(s) + 1;
 	d = ar_alloc(r, n);
 	memcpy(d, s, n);
 	return d;
+}
+
+/* fmt with its "%s" (and "%%") filled in, into buf of n bytes: the
+ * length, or -1 when fmt has another conversion or the text does not
+ * fit (then vsnprintf does it). */
+static int fmt_strings(char *buf, size_t n, const char *fmt, va_list ap)
+{
+	size_t len = 0;
+	for (const char *f = fmt; *f; f++) {
+		const char *s = f;
+		size_t k = 1;
+		if (*f != '%') { /* the literal run up to the next '%' */
+			while (f[k] && f[k] != '%')
+				k++;
+			f += k - 1;
+		} else if (f[1] == 's') {
+			s = va_arg(ap, const char *);
+			if (!s)
+				return -1; /* printf's "(null)" */
+			k = strlen(s);
+			f++;
+		} else if (f[1] == '%') {
+			f++; /* s: one '%' */
+		} else {
+			return -1;
+		}
+		if (len + k >= n)
+			return -1;
+		memcpy(buf + len, s, k);
+		len += k;
+	}
+	buf[len] = '\0';
+	return (int)len;
 }
 
 /* printf into the arena, at whatever length it needs: once into a
@@ -80,6 +123,14 @@ static char *vfmt(render *r, const char *fmt, va_list ap)
 	va_list aq;
 	int len;
 	char *s;
+	va_copy(aq, ap);
+	len = fmt_strings(first, sizeof first, fmt, aq);
+	va_end(aq);
+	if (len >= 0) {
+		s = ar_alloc(r, (size_t)len + 1);
+		memcpy(s, first, (size_t)len + 1);
+		return s;
+	}
 	va_copy(aq, ap);
 	len = vsnprintf(first, sizeof first, fmt, aq);
 	va_end(aq);
@@ -379,28 +430,31 @@ typedef struct sbuf {
 	size_t len, cap;
 } sbuf;
 
-static void sb_add(sbuf *b, const char *s, int pad_to, int right)
+/* A cell: two blanks, then s (w columns wide) padded to pad_to columns,
+ * on the right when `right`. */
+static void sb_cell(sbuf *b, const char *s, int w, int pad_to, int right)
 {
-	size_t n = strlen(s), pad = 0;
-	if (pad_to > 0) {
-		int w = width(s);
-		pad = pad_to > w ? (size_t)(pad_to - w) : 0;
-	}
-	if (b->len + n + pad + 1 > b->cap) {
-		b->cap = 2 * (b->len + n + pad + 1) + 64;
+	size_t n = strlen(s), pad = pad_to > w ? (size_t)(pad_to - w) : 0;
+	char *p;
+	if (b->len + n + pad + 3 > b->cap) {
+		b->cap = 2 * (b->len + n + pad + 3) + 64;
 		b->s = im_xrealloc(b->s, b->cap);
 	}
-	if (right && pad) {
-		memset(b->s + b->len, ' ', pad);
-		b->len += pad;
+	p = b->s + b->len;
+	*p++ = ' ';
+	*p++ = ' ';
+	if (right) {
+		memset(p, ' ', pad);
+		p += pad;
 	}
-	memcpy(b->s + b->len, s, n);
-	b->len += n;
-	if (!right && pad) {
-		memset(b->s + b->len, ' ', pad);
-		b->len += pad;
+	memcpy(p, s, n);
+	p += n;
+	if (!right) {
+		memset(p, ' ', pad);
+		p += pad;
 	}
-	b->s[b->len] = '\0';
+	*p = '\0';
+	b->len = (size_t)(p - b->s);
 }
 
 /* What makes cells one column: the key, or the label of a text-only cell. */
@@ -418,6 +472,7 @@ static int text_table(render *r, int t)
 	const node **col;
 	int *w, *right;
 	const char ***cell, **head;
+	int **cellw; /* the columns each cell takes */
 	sbuf lb = {0}; /* one line buffer for the header and every row */
 	while (end < r->count && r->n[end].k != N_TEND)
 		end++;
@@ -448,6 +503,7 @@ static int text_table(render *r, int t)
 	right = ar_zero(r, ((size_t)ncol + 1) * sizeof *right);
 	head = ar_zero(r, ((size_t)ncol + 1) * sizeof *head);
 	cell = ar_zero(r, ((size_t)nrow + 1) * sizeof *cell);
+	cellw = ar_zero(r, ((size_t)nrow + 1) * sizeof *cellw);
 	for (int k = 0; k < ncol; k++) {
 		if (col[k]->label[0])
 			header = 1;
@@ -462,6 +518,7 @@ static int text_table(render *r, int t)
 		const node *x = &r->n[i];
 		if (x->k == N_ROW) {
 			cell[++row] = ar_zero(r, ((size_t)ncol + 1) * sizeof **cell);
+			cellw[row] = ar_zero(r, ((size_t)ncol + 1) * sizeof **cellw);
 			guess = 0;
 			continue;
 		}
@@ -473,7 +530,7 @@ static int text_table(render *r, int t)
 			if (col[k] == x || strcmp(colid(col[k]), colid(x)) == 0) {
 				int cw;
 				cell[row][k] = value_text(r, x, utf8, 0);
-				cw = width(cell[row][k]);
+				cw = cellw[row][k] = width(cell[row][k]);
 				if (cw > w[k])
 					w[k] = cw;
 				guess = k + 1;
@@ -485,20 +542,15 @@ static int text_table(render *r, int t)
 		put_text(fp, r->n[t].label);
 	if (header && nrow > 0) {
 		lb.len = 0;
-		sb_add(&lb, "", 0, 0);
-		for (int k = 0; k < ncol; k++) {
-			sb_add(&lb, "  ", 0, 0);
-			sb_add(&lb, head[k], w[k], right[k]);
-		}
+		for (int k = 0; k < ncol; k++)
+			sb_cell(&lb, head[k], width(head[k]), w[k], right[k]);
 		put_line(fp, lb.s, lb.len);
 	}
 	for (int row = 0; row < nrow && ncol > 0; row++) { /* ncol 0: for the JSON only */
 		lb.len = 0;
-		sb_add(&lb, "", 0, 0);
-		for (int k = 0; k < ncol; k++) {
-			sb_add(&lb, "  ", 0, 0);
-			sb_add(&lb, cell[row][k] ? cell[row][k] : "", w[k], right[k]);
-		}
+		for (int k = 0; k < ncol; k++)
+			sb_cell(&lb, cell[row][k] ? cell[row][k] : "", cellw[row][k], w[k],
+				right[k]);
 		put_line(fp, lb.s, lb.len);
 	}
 	for (int i = t + 1; i < end; i++)

@@ -41,6 +41,46 @@ static int nonfinite_word(const char *s)
 	       im_strcaseeq(s, "infinity") || strncasecmp(s, "nan(", 4) == 0;
 }
 
+/* Powers of ten that a double holds exactly. */
+static const double pow10_exact[] = {
+	1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11,
+	1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22,
+};
+
+/* The value of s[0..n) when it is a plain decimal of at most 15 digits
+ * and 22 after the point ('140', '-0.05'): the digits as an integer
+ * (exact below 2^53) divided by a power of ten (exact up to 1e22) is one
+ * correctly rounded division, the value strtod gives (Clinger's fast
+ * path).  0 for anything else, which strtod reads. */
+static int plain_decimal(const char *s, size_t n, double *v)
+{
+	unsigned long long m = 0;
+	int nd = 0, frac = -1, neg = 0;
+	size_t i = 0;
+#if !defined(FLT_EVAL_METHOD) || FLT_EVAL_METHOD != 0
+	return 0; /* wider intermediates would round twice */
+#endif
+	if (s[0] == '+' || s[0] == '-')
+		neg = s[i++] == '-';
+	for (; i < n; i++) {
+		if (s[i] == '.' && frac < 0) {
+			frac = 0;
+			continue;
+		}
+		if (s[i] < '0' || s[i] > '9' || ++nd > 15)
+			return 0;
+		m = m * 10 + (unsigned)(s[i] - '0');
+		if (frac >= 0)
+			frac++;
+	}
+	if (nd == 0 || frac > 22)
+		return 0;
+	*v = frac > 0 ? (double)m / pow10_exact[frac] : (double)m;
+	if (neg)
+		*v = -*v;
+	return 1;
+}
+
 int units_number(const char *s, double *v, char *err)
 {
 	char w[48];
@@ -64,9 +104,11 @@ int units_number(const char *s, double *v, char *err)
 			       UNITS_DIGITS_MAX);
 	if (n == 0 || ndig == 0 || s[n] != '\0')
 		return im_fail(err, "'%s' is not a number", w);
-	x = strtod(s, &end);
-	if (end != s + n)
-		return im_fail(err, "'%s' is not a number", w);
+	if (!plain_decimal(s, n, &x)) {
+		x = strtod(s, &end);
+		if (end != s + n)
+			return im_fail(err, "'%s' is not a number", w);
+	}
 	if (!isfinite(x) || (x != 0 && fabs(x) < DBL_MIN) || (x == 0 && nonzero))
 		return im_fail(err, "'%s' is out of range: a number's size must be 0 or "
 			       "between %.1e and %.1e", w, DBL_MIN, DBL_MAX);
@@ -180,12 +222,6 @@ int units_volume_mL(const char *num, const char *unit, double *mL, char *err)
 	return 0;
 }
 
-/* Powers of ten that a double holds exactly. */
-static const double pow10_exact[] = {
-	1e0, 1e1, 1e2, 1e3, 1e4, 1e5, 1e6, 1e7, 1e8, 1e9, 1e10, 1e11,
-	1e12, 1e13, 1e14, 1e15, 1e16, 1e17, 1e18, 1e19, 1e20, 1e21, 1e22,
-};
-
 /* snprintf(buf, n, "%.*f", dec, v), the same bytes, without printf's
  * arbitrary-precision machinery when that is not needed: the exact value
  * |v| 10^dec lies within half an ulp of its double product x, so where
@@ -228,6 +264,31 @@ static int fmt_fixed(char *buf, size_t n, double v, int dec)
 	return len;
 }
 
+void units_fmt_fixed(char *buf, size_t n, double v, int dec, int plus)
+{
+	if (plus && n > 1 && !signbit(v)) { /* "+nan" and "+inf" too, as printf */
+		buf[0] = '+';
+		buf++;
+		n--;
+	}
+	fmt_fixed(buf, n, v, dec);
+}
+
+/* floor(log10(a)) for 1e-4 <= a < 1e7, as that expression gives it: by
+ * comparison with the powers of ten, and by log10 itself within a
+ * millionth of one, where its rounding decides. */
+static int decade(double a)
+{
+	static const double lo[] = {1e-4, 1e-3, 1e-2, 1e-1, 1e0, 1e1, 1e2, 1e3,
+				    1e4, 1e5, 1e6, 1e7};
+	int e = 0;
+	while (e + 1 < (int)IM_COUNT(lo) && a >= lo[e + 1])
+		e++;
+	if (a < lo[e] * 1.000001 || (e + 1 < (int)IM_COUNT(lo) && a > lo[e + 1] * 0.999999))
+		return (int)floor(log10(a));
+	return e - 4;
+}
+
 void units_fmt_sig(char *buf, size_t n, double v, int sig)
 {
 	double a = fabs(v);
@@ -240,7 +301,7 @@ void units_fmt_sig(char *buf, size_t n, double v, int sig)
 		snprintf(buf, n, "%.*g", sig, v);
 		return;
 	}
-	dec = sig - 1 - (int)floor(log10(a));
+	dec = sig - 1 - decade(a);
 	if (dec < 0)
 		dec = 0;
 	len = fmt_fixed(buf, n, v, dec);

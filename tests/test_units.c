@@ -3,6 +3,7 @@
 
 #include <math.h>
 #include <stdio.h>
+#include <stdlib.h>
 #include <string.h>
 
 #include "common.h"
@@ -193,6 +194,55 @@ static void formatter_matches_printf(void **state)
 		units_fmt_num(got, sizeof got, v, dg);
 		printf_model(want, sizeof want, v, dg);
 		assert_string_equal(got, want);
+		/* printf's own forms, signed zeros and all */
+		int dec = (int)((s >> 30) % 8), plus = (int)((s >> 40) & 1);
+		units_fmt_fixed(got, sizeof got, v, dec, plus);
+		snprintf(want, sizeof want, plus ? "%+.*f" : "%.*f", dec, v);
+		assert_string_equal(got, want);
+	}
+	units_fmt_fixed(got, sizeof got, -0.001, 2, 1);
+	assert_string_equal(got, "-0.00");
+	units_fmt_fixed(got, sizeof got, 0.0, 1, 1);
+	assert_string_equal(got, "+0.0");
+	units_fmt_fixed(got, sizeof got, 2.5, 0, 0);
+	assert_string_equal(got, "2");
+}
+
+/* The number parser gives strtod's value, bit for bit, for the plain
+ * decimals it reads without strtod and for the rest: a deterministic
+ * spread of digit counts, point positions and signs. */
+static void parser_matches_strtod(void **state)
+{
+	char txt[64], err[IM_ERRLEN];
+	unsigned long long s = 0x9e3779b97f4a7c15ull;
+	(void)state;
+	for (int i = 0; i < 200000; i++) {
+		double got, want;
+		int nd, pt, len = 0;
+		s ^= s << 13;
+		s ^= s >> 7;
+		s ^= s << 17;
+		nd = 1 + (int)(s % 18);        /* 1 to 18 digits: both sides of 15 */
+		pt = (int)((s >> 8) % (nd + 2)); /* the point anywhere, or none */
+		if ((s >> 16) & 1)
+			txt[len++] = '-';
+		for (int d = 0; d < nd; d++) {
+			if (d == pt)
+				txt[len++] = '.';
+			txt[len++] = (char)('0' + (s >> (20 + 2 * (d % 20))) % 10);
+		}
+		if (i % 3 == 0) /* leading zeros after the point: small values */
+			len = snprintf(txt, sizeof txt, "0.%0*d%llu", (int)(s % 12), 0,
+				       (s >> 24) % 100000);
+		txt[len] = '\0';
+		want = strtod(txt, NULL);
+		if (units_number(txt, &got, err) != 0) {
+			assert_true(want == 0 || fabs(want) < 1e-300);
+			continue;
+		}
+		if (want == 0)
+			want = 0; /* the parser never gives -0 */
+		assert_memory_equal(&got, &want, sizeof got);
 	}
 }
 
@@ -202,6 +252,7 @@ int main(void)
 		cmocka_unit_test(numbers), cmocka_unit_test(amounts),
 		cmocka_unit_test(volumes), cmocka_unit_test(formatting),
 		cmocka_unit_test(one_formatter), cmocka_unit_test(formatter_matches_printf),
+		cmocka_unit_test(parser_matches_strtod),
 	};
 	return cmocka_run_group_tests(tests, NULL, NULL);
 }
