@@ -35,8 +35,8 @@ typedef struct perm {
 /* The two sides, computed at the context's temperature and model. */
 typedef struct side {
 	const solution *sol;
-	sol_state st;
-	int have;
+	const sol_state *st; /* the session's, held until side_close */
+	session *ses;
 } side;
 
 typedef struct opts {
@@ -154,22 +154,22 @@ static int side_open(im_ctx *ctx, const char *name, side *s, char *err)
 	memset(s, 0, sizeof *s);
 	if (ses_solution_read(ctx->ses, name, &s->sol, err))
 		return -1;
-	if (ses_compute(ctx->ses, s->sol, &s->st, err))
+	if (ses_compute_hold(ctx->ses, s->sol, &s->st, err))
 		return -1;
-	s->have = 1;
+	s->ses = ctx->ses;
 	return 0;
 }
 
 static void side_close(side *s)
 {
-	if (s->have)
-		sol_state_free(&s->st);
-	s->have = 0;
+	if (s->st)
+		ses_state_release(s->ses, s->st);
+	s->st = NULL;
 }
 
 static double conc(const side *s, const rd_ion *ion, int act)
 {
-	const sol_species *sp = sol_state_find(&s->st, ion);
+	const sol_species *sp = sol_state_find(s->st, ion);
 	return sp ? (act ? sp->act_mM : sp->mM) : 0.0;
 }
 
@@ -196,7 +196,7 @@ static const char *basis(const opts *o)
 static int ljp(const side *pip, const side *bath, double t_C, double *ljp_mV,
 	       double *lo_mV, double *hi_mV, char *err)
 {
-	return ljp_pair_mV(&pip->st, &bath->st, 0, t_C, ljp_mV, lo_mV, hi_mV, err);
+	return ljp_pair_mV(pip->st, bath->st, 0, t_C, ljp_mV, lo_mV, hi_mV, err);
 }
 
 /* The same head as a render: the pair, temperature, basis and the

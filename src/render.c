@@ -34,15 +34,21 @@ typedef struct ablock {
 	char data[];
 } ablock;
 
+#define FIRST_NODES 64   /* nodes that come with the result itself */
+#define ARENA_BLOCK 8192
+
+/* A result, its first FIRST_NODES nodes and its first arena block are one
+ * allocation (a typical result needs nothing more); more nodes or
+ * strings take blocks of their own. */
 struct render {
 	out *o;
-	node *n;
+	node *n; /* first, or an allocation once they are full */
 	int count, cap;
 	int in_table;
-	ablock *arena;
+	ablock *arena; /* the newest block first; the last is first_block */
+	ablock *first_block;
+	node first[FIRST_NODES];
 };
-
-#define ARENA_BLOCK 8192
 
 static char *ar_alloc(render *r, size_t n)
 {
@@ -167,8 +173,13 @@ static node *add(render *r, nkind k, const char *key, const char *label, const c
 {
 	node *x;
 	if (r->count == r->cap) {
-		r->cap = r->cap ? 2 * r->cap : 128;
-		r->n = im_xrealloc(r->n, (size_t)r->cap * sizeof *r->n);
+		r->cap *= 2;
+		if (r->n == r->first) {
+			r->n = im_xmalloc((size_t)r->cap * sizeof *r->n);
+			memcpy(r->n, r->first, sizeof r->first);
+		} else {
+			r->n = im_xrealloc(r->n, (size_t)r->cap * sizeof *r->n);
+		}
 	}
 	x = &r->n[r->count++];
 	memset(x, 0, sizeof *x);
@@ -182,8 +193,17 @@ static node *add(render *r, nkind k, const char *key, const char *label, const c
 
 render *render_new(out *o)
 {
-	render *r = im_xcalloc(1, sizeof *r);
+	/* the block after the struct: its size is a multiple of 8 (doubles) */
+	render *r = im_xmalloc(sizeof *r + sizeof(ablock) + ARENA_BLOCK);
 	r->o = o;
+	r->n = r->first;
+	r->count = 0;
+	r->cap = FIRST_NODES;
+	r->in_table = 0;
+	r->first_block = r->arena = (ablock *)(r + 1);
+	r->arena->next = NULL;
+	r->arena->used = 0;
+	r->arena->cap = ARENA_BLOCK;
 	return r;
 }
 
@@ -336,12 +356,13 @@ void render_drop(render *r)
 {
 	if (!r)
 		return;
-	while (r->arena) {
+	while (r->arena != r->first_block) {
 		ablock *b = r->arena;
 		r->arena = b->next;
 		free(b);
 	}
-	free(r->n);
+	if (r->n != r->first)
+		free(r->n);
 	free(r);
 }
 
@@ -463,6 +484,12 @@ static const char *colid(const node *x)
 	return x->key ? x->key : x->label;
 }
 
+static int same_col(const node *a, const node *b)
+{
+	const char *p = colid(a), *q = colid(b);
+	return p[0] == q[0] && strcmp(p, q) == 0;
+}
+
 /* The text of the table that starts at node t (an N_TABLE); returns the
  * index of its N_TEND. */
 static int text_table(render *r, int t)
@@ -488,10 +515,10 @@ static int text_table(render *r, int t)
 		if (!is_value(x->k) || !x->label)
 			continue;
 		/* cells come in column order: the next column first */
-		if (guess < ncol && strcmp(colid(col[guess]), colid(x)) == 0)
+		if (guess < ncol && same_col(col[guess], x))
 			k = guess;
 		else
-			while (k < ncol && strcmp(colid(col[k]), colid(x)) != 0)
+			while (k < ncol && !same_col(col[k], x))
 				k++;
 		guess = k + 1;
 		if (k == ncol)
@@ -527,7 +554,7 @@ static int text_table(render *r, int t)
 		for (int m = 0; m < ncol; m++) {
 			/* cells come in column order: try the next column first */
 			int k = (guess + m) % ncol;
-			if (col[k] == x || strcmp(colid(col[k]), colid(x)) == 0) {
+			if (col[k] == x || same_col(col[k], x)) {
 				int cw;
 				cell[row][k] = value_text(r, x, utf8, 0);
 				cw = cellw[row][k] = width(cell[row][k]);

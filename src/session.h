@@ -82,6 +82,11 @@ const sol_env *ses_env(session *s);
  * sol_state_free), exactly as after sol_compute.  -1 with err as
  * sol_compute (failures are not cached). */
 int ses_compute(session *s, const solution *sol, sol_state *st, char *err);
+/* As ses_compute, without a copy: *st is the cache's own state, kept
+ * (never replaced) until ses_state_release(s, *st), which every
+ * successful call needs once.  For a command that only reads the state. */
+int ses_compute_hold(session *s, const solution *sol, const sol_state **st, char *err);
+void ses_state_release(session *s, const sol_state *st);
 
 /* The user's database, opened on first use.  create = 1 creates the file;
  * create = 0 returns NULL with *failed == 0 when it does not exist yet.
