@@ -47,6 +47,8 @@ struct render {
 	int in_table;
 	ablock *arena; /* the newest block first; the last is first_block */
 	ablock *first_block;
+	int json;   /* o->json when the result began: the form it is written in */
+	node spare; /* where a field the form does not show is set, unkept */
 	node first[FIRST_NODES];
 };
 
@@ -169,9 +171,28 @@ static void *ar_zero(render *r, size_t n)
 	return p;
 }
 
+/* Whether the form r is written in shows a node: the text shows values
+ * with a label, prose and tables; the JSON values with a key, objects,
+ * notes and tables. */
+static int shown(const render *r, nkind k, const char *key, const char *label)
+{
+	if (k <= N_RANGE)
+		return r->json ? key != NULL : label != NULL;
+	if (k == N_OBJ || k == N_OEND)
+		return r->json;
+	if (k == N_TEXT || k == N_TEMPTY)
+		return !r->json;
+	return 1;
+}
+
+/* A new node, or r->spare (cleared) for one the form does not show. */
 static node *add(render *r, nkind k, const char *key, const char *label, const char *unit)
 {
 	node *x;
+	if (!shown(r, k, key, label)) {
+		memset(&r->spare, 0, sizeof r->spare);
+		return &r->spare;
+	}
 	if (r->count == r->cap) {
 		r->cap *= 2;
 		if (r->n == r->first) {
@@ -200,6 +221,7 @@ render *render_new(out *o)
 	r->count = 0;
 	r->cap = FIRST_NODES;
 	r->in_table = 0;
+	r->json = o->json;
 	r->first_block = r->arena = (ablock *)(r + 1);
 	r->arena->next = NULL;
 	r->arena->used = 0;
@@ -209,7 +231,8 @@ render *render_new(out *o)
 
 void render_str(render *r, const char *key, const char *label, const char *val)
 {
-	add(r, N_STR, key, label, NULL)->s = ar_dup(r, val);
+	if (shown(r, N_STR, key, label))
+		add(r, N_STR, key, label, NULL)->s = ar_dup(r, val);
 }
 
 void render_numj(render *r, const char *key, const char *label, const char *unit,
@@ -276,7 +299,10 @@ void render_null(render *r, const char *key, const char *label)
 
 void render_list(render *r, const char *key, const char *label, const char *const *v, int n)
 {
-	node *x = add(r, N_LIST, key, label, NULL);
+	node *x;
+	if (!shown(r, N_LIST, key, label))
+		return;
+	x = add(r, N_LIST, key, label, NULL);
 	x->list = (char **)ar_alloc(r, (n > 0 ? (size_t)n : 1) * sizeof *x->list);
 	for (int i = 0; i < n; i++)
 		x->list[i] = ar_dup(r, v[i]);
@@ -286,6 +312,8 @@ void render_list(render *r, const char *key, const char *label, const char *cons
 void render_text(render *r, const char *fmt, ...)
 {
 	va_list ap;
+	if (r->json) /* prose is the text's only */
+		return;
 	va_start(ap, fmt);
 	add(r, N_TEXT, NULL, NULL, NULL)->s = vfmt(r, fmt, ap);
 	va_end(ap);
@@ -296,6 +324,8 @@ void render_text_more(render *r, const char *fmt, ...)
 	va_list ap;
 	node *x = NULL;
 	char *more, *s;
+	if (r->json)
+		return;
 	for (int i = r->count - 1; i >= 0 && !x; i--)
 		if (r->n[i].k == N_TEXT)
 			x = &r->n[i];
@@ -349,7 +379,8 @@ void render_table_end(render *r)
 
 void render_table_empty(render *r, const char *text)
 {
-	add(r, N_TEMPTY, NULL, NULL, NULL)->s = ar_dup(r, text);
+	if (!r->json)
+		add(r, N_TEMPTY, NULL, NULL, NULL)->s = ar_dup(r, text);
 }
 
 void render_drop(render *r)
@@ -708,7 +739,7 @@ int render_done(render *r)
 {
 	if (r->in_table)
 		render_table_end(r);
-	if (r->o->json)
+	if (r->json)
 		emit_json(r);
 	else
 		emit_text(r);
