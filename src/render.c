@@ -185,14 +185,12 @@ static int shown(const render *r, nkind k, const char *key, const char *label)
 	return 1;
 }
 
-/* A new node, or r->spare (cleared) for one the form does not show. */
+/* A new node, or r->spare for one the form does not show. */
 static node *add(render *r, nkind k, const char *key, const char *label, const char *unit)
 {
 	node *x;
-	if (!shown(r, k, key, label)) {
-		memset(&r->spare, 0, sizeof r->spare);
-		return &r->spare;
-	}
+	if (!shown(r, k, key, label))
+		return &r->spare; /* written, never read */
 	if (r->count == r->cap) {
 		r->cap *= 2;
 		if (r->n == r->first) {

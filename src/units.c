@@ -37,6 +37,8 @@ static int nonfinite_word(const char *s)
 {
 	if (*s == '+' || *s == '-')
 		s++;
+	if ((*s >= '0' && *s <= '9') || *s == '.') /* each spelling starts with a letter */
+		return 0;
 	return im_strcaseeq(s, "nan") || im_strcaseeq(s, "inf") ||
 	       im_strcaseeq(s, "infinity") || strncasecmp(s, "nan(", 4) == 0;
 }
@@ -96,22 +98,22 @@ int units_number(const char *s, double *v, char *err)
 			ndig++;
 			nonzero |= s[i] != '0';
 		}
-	out_clip(w, sizeof w, s);
 	if (nonfinite_word(s))
-		return im_fail(err, "'%s' is not a finite number: give a value", w);
+		return im_fail(err, "'%s' is not a finite number: give a value",
+			       out_clip(w, sizeof w, s));
 	if (ndig > UNITS_DIGITS_MAX)
-		return im_fail(err, "'%s' has too many digits (%zu; at most %d)", w, ndig,
-			       UNITS_DIGITS_MAX);
+		return im_fail(err, "'%s' has too many digits (%zu; at most %d)",
+			       out_clip(w, sizeof w, s), ndig, UNITS_DIGITS_MAX);
 	if (n == 0 || ndig == 0 || s[n] != '\0')
-		return im_fail(err, "'%s' is not a number", w);
+		return im_fail(err, "'%s' is not a number", out_clip(w, sizeof w, s));
 	if (!plain_decimal(s, n, &x)) {
 		x = strtod(s, &end);
 		if (end != s + n)
-			return im_fail(err, "'%s' is not a number", w);
+			return im_fail(err, "'%s' is not a number", out_clip(w, sizeof w, s));
 	}
 	if (!isfinite(x) || (x != 0 && fabs(x) < DBL_MIN) || (x == 0 && nonzero))
 		return im_fail(err, "'%s' is out of range: a number's size must be 0 or "
-			       "between %.1e and %.1e", w, DBL_MIN, DBL_MAX);
+			       "between %.1e and %.1e", out_clip(w, sizeof w, s), DBL_MIN, DBL_MAX);
 	*v = x == 0 ? 0.0 : x; /* '-0' is 0: nothing prints "-0.0" */
 	return 0;
 }
@@ -255,11 +257,12 @@ static int fmt_fixed(char *buf, size_t n, double v, int dec)
 	char *p = buf;
 	if (neg)
 		*p++ = '-';
-	for (int i = nd - 1; i >= 0; i--) {
+	for (int i = nd - 1; i >= dec; i--)
 		*p++ = dig[i];
-		if (i == dec && dec > 0)
-			*p++ = '.';
-	}
+	if (dec > 0)
+		*p++ = '.';
+	for (int i = dec - 1; i >= 0; i--)
+		*p++ = dig[i];
 	*p = '\0';
 	return len;
 }
