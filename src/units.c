@@ -230,7 +230,9 @@ int units_volume_mL(const char *num, const char *unit, double *mL, char *err)
  * x's fraction is further than two ulps from one half, rounding x to the
  * nearest integer rounds the exact value the same way.  Anything else
  * (near a tie, too large, not finite, too many decimals) goes to snprintf,
- * which rounds the exact binary value.  Returns what snprintf returns. */
+ * which rounds the exact binary value, except an exact tie (the product
+ * exact, fma says): printf rounds it to even.  Returns what snprintf
+ * returns. */
 static int fmt_fixed(char *buf, size_t n, double v, int dec)
 {
 	char dig[32];
@@ -242,9 +244,13 @@ static int fmt_fixed(char *buf, size_t n, double v, int dec)
 		return snprintf(buf, n, "%.*f", dec, v);
 	fl = floor(x);
 	f = x - fl; /* exact: x < 2^52 */
-	if (fabs(f - 0.5) <= x * 4.5e-16)
+	m = (unsigned long long)fl;
+	if (fabs(f - 0.5) > x * 4.5e-16)
+		m += f > 0.5;
+	else if (f == 0.5 && fma(a, pow10_exact[dec], -x) == 0)
+		m += m & 1; /* an exact tie (154.25 to 1 decimal): to even, as printf */
+	else
 		return snprintf(buf, n, "%.*f", dec, v);
-	m = (unsigned long long)fl + (f > 0.5);
 	do {
 		dig[nd++] = (char)('0' + m % 10);
 		m /= 10;
