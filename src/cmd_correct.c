@@ -581,6 +581,7 @@ static int correct_text(im_ctx *ctx, const char *in, const file_args *a, const l
 	/* the data went to the result stream: the summary goes beside it */
 	out side = *ctx->out;
 	side.fp = ctx->out->errfp;
+	fflush(ctx->out->fp); /* the data first, also in a script (ctx->batch) */
 	report(&side, src, ctx->ses->temp_C, in, "-", NULL, &r);
 	fflush(side.fp);
 	return 0;

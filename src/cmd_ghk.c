@@ -34,9 +34,9 @@ typedef struct perm {
 
 /* The two sides, computed at the context's temperature and model. */
 typedef struct side {
-	solution *sol;
-	sol_state st;
-	int have;
+	const solution *sol;
+	const sol_state *st; /* the session's, held until side_close */
+	session *ses;
 } side;
 
 typedef struct opts {
@@ -80,7 +80,7 @@ static int parse_perm(im_ctx *ctx, const char *arg, opts *o, char *err)
 	if (o->np == MAX_PERM)
 		return im_fail(err, "at most %d ions", MAX_PERM);
 	double P;
-	char what[80], num[64];
+	char num[64], e2[IM_ERRLEN];
 	const char *val = eq + 1;
 	size_t vl = strlen(val);
 	int abs_ = vl > 4 && strcmp(val + vl - 4, "cm/s") == 0;
@@ -94,9 +94,8 @@ static int parse_perm(im_ctx *ctx, const char *arg, opts *o, char *err)
 	if (o->absolute && o->absolute != (abs_ ? 1 : -1))
 		return im_fail(err, "give every permeability in cm/s or none (got '%.40s')", arg);
 	o->absolute = abs_ ? 1 : -1;
-	snprintf(what, sizeof what, "permeability of %s", ion->symbol);
-	if (parse_num(val, what, &P, err))
-		return -1;
+	if (units_number(val, &P, e2)) /* as parse_num, the name built only when needed */
+		return im_fail(err, "permeability of %s: %s", ion->symbol, e2);
 	if (P < 0)
 		return im_fail(err, "permeability of %s is negative", ion->symbol);
 	o->p[o->np].ion = ion;
@@ -153,24 +152,24 @@ static int parse_rest(im_ctx *ctx, int argc, char **argv, int first, int with_iv
 static int side_open(im_ctx *ctx, const char *name, side *s, char *err)
 {
 	memset(s, 0, sizeof *s);
-	if (ses_solution(ctx->ses, name, &s->sol, err))
+	if (ses_solution_read(ctx->ses, name, &s->sol, err))
 		return -1;
-	if (ses_compute(ctx->ses, s->sol, &s->st, err))
+	if (ses_compute_hold(ctx->ses, s->sol, &s->st, err))
 		return -1;
-	s->have = 1;
+	s->ses = ctx->ses;
 	return 0;
 }
 
 static void side_close(side *s)
 {
-	if (s->have)
-		sol_state_free(&s->st);
-	s->have = 0;
+	if (s->st)
+		ses_state_release(s->ses, s->st);
+	s->st = NULL;
 }
 
 static double conc(const side *s, const rd_ion *ion, int act)
 {
-	const sol_species *sp = sol_state_find(&s->st, ion);
+	const sol_species *sp = sol_state_find(s->st, ion);
 	return sp ? (act ? sp->act_mM : sp->mM) : 0.0;
 }
 
@@ -197,7 +196,7 @@ static const char *basis(const opts *o)
 static int ljp(const side *pip, const side *bath, double t_C, double *ljp_mV,
 	       double *lo_mV, double *hi_mV, char *err)
 {
-	return ljp_pair_mV(&pip->st, &bath->st, 0, t_C, ljp_mV, lo_mV, hi_mV, err);
+	return ljp_pair_mV(pip->st, bath->st, 0, t_C, ljp_mV, lo_mV, hi_mV, err);
 }
 
 /* The same head as a render: the pair, temperature, basis and the
@@ -277,6 +276,7 @@ int cmd_ghk_erev(im_ctx *ctx, int argc, char **argv, char *err)
 	side ins, outs;
 	ghk_ion x[MAX_PERM];
 	double E, t = ctx->ses->temp_C;
+	char num[48];
 	render *r;
 	memset(&o, 0, sizeof o);
 	if (parse_rest(ctx, argc, argv, 3, 0, &o, err))
@@ -292,15 +292,17 @@ int cmd_ghk_erev(im_ctx *ctx, int argc, char **argv, char *err)
 		return -1;
 	}
 	r = render_new(ctx->out);
-	render_text(r, "GHK reversal potential: %s inside, %s outside, %.1f C, from %s",
-		    ins.sol->name, outs.sol->name, t, basis(&o));
+	units_fmt_fixed(num, sizeof num, t, 1, 0);
+	render_text(r, "GHK reversal potential: %s inside, %s outside, %s C, from %s",
+		    ins.sol->name, outs.sol->name, num, basis(&o));
 	render_head(r, &ins, &outs, &o, x, t);
 	render_table(r, "ions", NULL);
 	for (int i = 0; i < o.np; i++)
 		erev_row(r, &x[i], o.activities, t);
 	render_table_end(r);
 	render_numj(r, "E_rev_mV", NULL, "mV", E, UNITS_DEC(2), 8);
-	render_text(r, "  E_rev = %+.2f mV", E);
+	units_fmt_fixed(num, sizeof num, E, 2, 1);
+	render_text(r, "  E_rev = %s mV", num);
 	if (o.corrected)
 		erev_corrected(r, &ins, &outs, E, t);
 	render_str(r, "convention", NULL, CONVENTION);

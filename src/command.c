@@ -14,6 +14,7 @@
 #include <errno.h>
 #include <stdlib.h>
 #include <string.h>
+#include <sys/stat.h>
 
 #include "cmd_bench.h"
 #include "cmd_chem.h"
@@ -149,7 +150,7 @@ const cmd_def *cmd_table(int *n)
 const cmd_def *cmd_lookup(const char *name)
 {
 	for (size_t i = 0; i < IM_COUNT(table); i++)
-		if (strcmp(table[i].name, name) == 0)
+		if (table[i].name[0] == name[0] && strcmp(table[i].name, name) == 0)
 			return &table[i];
 	return NULL;
 }
@@ -286,7 +287,7 @@ static int exec_one(im_ctx *ctx, char *cmd, char *err)
 	if (!d->keep_on_fail)
 		ses_mark_take(ctx->ses, &mark);
 	rc = d->fn(ctx, argc, argv, err);
-	if (rc == 0 && out_failed(ctx->out))
+	if (rc == 0 && (ctx->batch ? out_write_failed(ctx->out) : out_failed(ctx->out)))
 		rc = im_fail(err, "cannot write the result of %s to %s: %s", d->name,
 			     ctx->out->name ? ctx->out->name : "standard output",
 			     strerror(ctx->out->werrno ? ctx->out->werrno : EIO));
@@ -451,10 +452,19 @@ int cmd_loop(im_ctx *ctx, const cmd_reader *rd, int *line_out, char *err)
 int cmd_run_stream(im_ctx *ctx, FILE *fp, int *line_out, char *err)
 {
 	cmd_reader rd;
-	int rc;
+	struct stat sb;
+	int rc, batch = ctx->batch;
+	/* A script in a file, not typed: its results need not reach the
+	 * output command by command (a write each); stdio writes them as its
+	 * buffer fills, and the first out_failed after the script the rest.
+	 * A pipe or a terminal may be a program or a person waiting for each
+	 * answer: flushed after every command. */
+	if (!ctx->interactive && fstat(fileno(fp), &sb) == 0 && S_ISREG(sb.st_mode))
+		ctx->batch = 1;
 	cmd_reader_file(&rd, fp);
 	rc = cmd_loop(ctx, &rd, line_out, err);
 	cmd_reader_file_done(&rd);
+	ctx->batch = batch;
 	return rc;
 }
 

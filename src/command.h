@@ -17,6 +17,9 @@ typedef struct im_ctx {
 	int interactive;          /* 1 in the readline shell */
 	int run_depth;            /* nesting of `run`, to stop recursion */
 	int quit;                 /* set by `quit`: every loop stops */
+	int batch;                /* 1 while a script from a file runs: results
+				   * are not flushed command by command
+				   * (cmd_run_stream) */
 	/* Where the last failure happened when it was inside a script run by
 	 * `run` (NULL otherwise; owned, set by cmd_loop); the top level
 	 * reports it. */

@@ -232,6 +232,9 @@ int fio_open(fio_file **out, const char *path, char *err)
 	if (exists && !S_ISREG(st.st_mode)) {
 		free(f->target);
 		f->target = NULL;
+		/* a terminal or /dev/stdout may be where the results go: those
+		 * a script's stdio still holds come first */
+		fflush(stdout);
 		rc = open_direct(f, err);
 	} else {
 		rc = open_temp(f, exists ? &st : NULL, err);

@@ -19,6 +19,12 @@ int out_failed(out *o)
 	return 0;
 }
 
+int out_write_failed(out *o)
+{
+	/* out_failed's flush tries the write again, for the cause in errno */
+	return ferror(o->fp) ? out_failed(o) : 0;
+}
+
 void out_printf(out *o, const char *fmt, ...)
 {
 	va_list ap;

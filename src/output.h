@@ -21,6 +21,10 @@ typedef struct out {
  * a closed pipe, /dev/full); o->werrno then holds the cause.  The line
  * loop turns it into a failed command and main into exit status 1. */
 int out_failed(out *o);
+/* As out_failed without the flush: 1 when a write stdio has made so far
+ * failed (a script from a file leaves the writing to stdio's buffer, see
+ * cmd_run_stream). */
+int out_write_failed(out *o);
 
 /* Human text; nothing is printed in JSON mode. */
 void out_printf(out *o, const char *fmt, ...) __attribute__((format(printf, 2, 3)));

@@ -483,12 +483,20 @@ static size_t base_len(const char *sym)
 	return n;
 }
 
+/* ASCII upper case to lower (what im_strcaseeq folds). */
+static int fold(int c)
+{
+	return c >= 'A' && c <= 'Z' ? c + ('a' - 'A') : c;
+}
+
 const rd_ion *refdb_ion(const refdb *r, const char *sym)
 {
 	const rd_ion *hit = NULL;
 	size_t n = strlen(sym);
-	for (int i = 0; i < r->nion; i++)
-		if (im_strcaseeq(r->ion[i].symbol, sym))
+	int c0 = fold((unsigned char)sym[0]);
+	for (int i = 0; i < r->nion; i++) /* the first letter sorts most out */
+		if (fold((unsigned char)r->ion[i].symbol[0]) == c0 &&
+		    im_strcaseeq(r->ion[i].symbol, sym))
 			return &r->ion[i];
 	for (int i = 0; i < r->nion; i++) {
 		const rd_ion *x = &r->ion[i];

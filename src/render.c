@@ -34,15 +34,23 @@ typedef struct ablock {
 	char data[];
 } ablock;
 
+#define FIRST_NODES 64   /* nodes that come with the result itself */
+#define ARENA_BLOCK 8192
+
+/* A result, its first FIRST_NODES nodes and its first arena block are one
+ * allocation (a typical result needs nothing more); more nodes or
+ * strings take blocks of their own. */
 struct render {
 	out *o;
-	node *n;
+	node *n; /* first, or an allocation once they are full */
 	int count, cap;
 	int in_table;
-	ablock *arena;
+	ablock *arena; /* the newest block first; the last is first_block */
+	ablock *first_block;
+	int json;   /* o->json when the result began: the form it is written in */
+	node spare; /* where a field the form does not show is set, unkept */
+	node first[FIRST_NODES];
 };
-
-#define ARENA_BLOCK 8192
 
 static char *ar_alloc(render *r, size_t n)
 {
@@ -62,38 +70,135 @@ static char *ar_alloc(render *r, size_t n)
 
 static char *ar_dup(render *r, const char *s)
 {
+	ablock *b = r->arena;
 	size_t n;
 	char *d;
 	if (!s)
 		return NULL;
+	if (b) { /* one pass: copy into the block while it has room */
+		size_t room = b->cap - b->used;
+		d = b->data + b->used;
+		for (size_t i = 0; i < room; i++)
+			if ((d[i] = s[i]) == '\0') {
+				b->used += (i + 8) & ~(size_t)7;
+				return d;
+			}
+	}
 	n = strlen(s) + 1;
 	d = ar_alloc(r, n);
 	memcpy(d, s, n);
 	return d;
 }
 
-/* printf into the arena, at whatever length it needs. */
+/* fmt with its "%s" (and "%%") filled in, into buf of n bytes: the
+ * length, or -1 when fmt has another conversion or the text does not
+ * fit (then vsnprintf does it). */
+static int fmt_strings(char *buf, size_t n, const char *fmt, va_list ap)
+{
+	size_t len = 0;
+	for (const char *f = fmt; *f; f++) {
+		const char *s = f;
+		size_t k = 1;
+		if (*f != '%') { /* the literal run up to the next '%' */
+			while (f[k] && f[k] != '%')
+				k++;
+			f += k - 1;
+		} else if (f[1] == 's') {
+			s = va_arg(ap, const char *);
+			if (!s)
+				return -1; /* printf's "(null)" */
+			k = strlen(s);
+			f++;
+		} else if (f[1] == '%') {
+			f++; /* s: one '%' */
+		} else {
+			return -1;
+		}
+		if (len + k >= n)
+			return -1;
+		memcpy(buf + len, s, k);
+		len += k;
+	}
+	buf[len] = '\0';
+	return (int)len;
+}
+
+/* printf into the arena, at whatever length it needs: once into a
+ * buffer on the stack, a second time only for a longer text. */
 static char *vfmt(render *r, const char *fmt, va_list ap)
 {
+	char first[256];
 	va_list aq;
 	int len;
 	char *s;
 	va_copy(aq, ap);
-	len = vsnprintf(NULL, 0, fmt, aq);
+	len = fmt_strings(first, sizeof first, fmt, aq);
+	va_end(aq);
+	if (len >= 0) {
+		s = ar_alloc(r, (size_t)len + 1);
+		memcpy(s, first, (size_t)len + 1);
+		return s;
+	}
+	va_copy(aq, ap);
+	len = vsnprintf(first, sizeof first, fmt, aq);
 	va_end(aq);
 	if (len < 0)
-		len = 0;
+		len = first[0] = 0;
 	s = ar_alloc(r, (size_t)len + 1);
-	vsnprintf(s, (size_t)len + 1, fmt, ap);
+	if ((size_t)len < sizeof first)
+		memcpy(s, first, (size_t)len + 1);
+	else
+		vsnprintf(s, (size_t)len + 1, fmt, ap);
 	return s;
 }
 
+/* a, b and c joined, in the arena. */
+static char *ar_cat3(render *r, const char *a, const char *b, const char *c)
+{
+	size_t na = strlen(a), nb = strlen(b), nc = strlen(c);
+	char *s = ar_alloc(r, na + nb + nc + 1);
+	memcpy(s, a, na);
+	memcpy(s + na, b, nb);
+	memcpy(s + na + nb, c, nc + 1);
+	return s;
+}
+
+/* n zeroed bytes in the arena. */
+static void *ar_zero(render *r, size_t n)
+{
+	void *p = ar_alloc(r, n);
+	memset(p, 0, n);
+	return p;
+}
+
+/* Whether the form r is written in shows a node: the text shows values
+ * with a label, prose and tables; the JSON values with a key, objects,
+ * notes and tables. */
+static int shown(const render *r, nkind k, const char *key, const char *label)
+{
+	if (k <= N_RANGE)
+		return r->json ? key != NULL : label != NULL;
+	if (k == N_OBJ || k == N_OEND)
+		return r->json;
+	if (k == N_TEXT || k == N_TEMPTY)
+		return !r->json;
+	return 1;
+}
+
+/* A new node, or r->spare for one the form does not show. */
 static node *add(render *r, nkind k, const char *key, const char *label, const char *unit)
 {
 	node *x;
+	if (!shown(r, k, key, label))
+		return &r->spare; /* written, never read */
 	if (r->count == r->cap) {
-		r->cap = r->cap ? 2 * r->cap : 128;
-		r->n = im_xrealloc(r->n, (size_t)r->cap * sizeof *r->n);
+		r->cap *= 2;
+		if (r->n == r->first) {
+			r->n = im_xmalloc((size_t)r->cap * sizeof *r->n);
+			memcpy(r->n, r->first, sizeof r->first);
+		} else {
+			r->n = im_xrealloc(r->n, (size_t)r->cap * sizeof *r->n);
+		}
 	}
 	x = &r->n[r->count++];
 	memset(x, 0, sizeof *x);
@@ -107,14 +212,25 @@ static node *add(render *r, nkind k, const char *key, const char *label, const c
 
 render *render_new(out *o)
 {
-	render *r = im_xcalloc(1, sizeof *r);
+	/* the block after the struct: its size is a multiple of 8 (doubles) */
+	render *r = im_xmalloc(sizeof *r + sizeof(ablock) + ARENA_BLOCK);
 	r->o = o;
+	r->n = r->first;
+	r->count = 0;
+	r->cap = FIRST_NODES;
+	r->in_table = 0;
+	r->json = o->json;
+	r->first_block = r->arena = (ablock *)(r + 1);
+	r->arena->next = NULL;
+	r->arena->used = 0;
+	r->arena->cap = ARENA_BLOCK;
 	return r;
 }
 
 void render_str(render *r, const char *key, const char *label, const char *val)
 {
-	add(r, N_STR, key, label, NULL)->s = ar_dup(r, val);
+	if (shown(r, N_STR, key, label))
+		add(r, N_STR, key, label, NULL)->s = ar_dup(r, val);
 }
 
 void render_numj(render *r, const char *key, const char *label, const char *unit,
@@ -181,7 +297,10 @@ void render_null(render *r, const char *key, const char *label)
 
 void render_list(render *r, const char *key, const char *label, const char *const *v, int n)
 {
-	node *x = add(r, N_LIST, key, label, NULL);
+	node *x;
+	if (!shown(r, N_LIST, key, label))
+		return;
+	x = add(r, N_LIST, key, label, NULL);
 	x->list = (char **)ar_alloc(r, (n > 0 ? (size_t)n : 1) * sizeof *x->list);
 	for (int i = 0; i < n; i++)
 		x->list[i] = ar_dup(r, v[i]);
@@ -191,6 +310,8 @@ void render_list(render *r, const char *key, const char *label, const char *cons
 void render_text(render *r, const char *fmt, ...)
 {
 	va_list ap;
+	if (r->json) /* prose is the text's only */
+		return;
 	va_start(ap, fmt);
 	add(r, N_TEXT, NULL, NULL, NULL)->s = vfmt(r, fmt, ap);
 	va_end(ap);
@@ -201,6 +322,8 @@ void render_text_more(render *r, const char *fmt, ...)
 	va_list ap;
 	node *x = NULL;
 	char *more, *s;
+	if (r->json)
+		return;
 	for (int i = r->count - 1; i >= 0 && !x; i--)
 		if (r->n[i].k == N_TEXT)
 			x = &r->n[i];
@@ -254,19 +377,21 @@ void render_table_end(render *r)
 
 void render_table_empty(render *r, const char *text)
 {
-	add(r, N_TEMPTY, NULL, NULL, NULL)->s = ar_dup(r, text);
+	if (!r->json)
+		add(r, N_TEMPTY, NULL, NULL, NULL)->s = ar_dup(r, text);
 }
 
 void render_drop(render *r)
 {
 	if (!r)
 		return;
-	while (r->arena) {
+	while (r->arena != r->first_block) {
 		ablock *b = r->arena;
 		r->arena = b->next;
 		free(b);
 	}
-	free(r->n);
+	if (r->n != r->first)
+		free(r->n);
 	free(r);
 }
 
@@ -309,10 +434,8 @@ static const char *value_text(render *r, const node *x, int utf8, int with_unit)
 	case N_RANGE:
 		units_fmt_num(num, sizeof num, x->v, x->digits);
 		units_fmt_num(hi, sizeof hi, x->v2, x->digits);
-		s = ar_alloc(r, strlen(num) + strlen(hi) + (x->unit ? strlen(x->unit) : 0) + 8);
-		sprintf(s, "%s to %s%s%s", num, hi, with_unit && x->unit ? " " : "",
-			with_unit && x->unit ? x->unit : "");
-		return s;
+		s = ar_cat3(r, num, " to ", hi);
+		return with_unit && x->unit ? ar_cat3(r, s, " ", x->unit) : s;
 	case N_LIST:
 		if (x->nlist == 0)
 			return "-";
@@ -329,21 +452,25 @@ static const char *value_text(render *r, const node *x, int utf8, int with_unit)
 	default:
 		return "-";
 	}
-	if (with_unit && x->unit && x->k == N_NUM && isfinite(x->v)) {
-		s = ar_alloc(r, strlen(num) + strlen(x->unit) + 2);
-		sprintf(s, "%s %s", num, x->unit);
-		return s;
-	}
+	if (with_unit && x->unit && x->k == N_NUM && isfinite(x->v))
+		return ar_cat3(r, num, " ", x->unit);
 	return ar_dup(r, num);
 }
 
-/* Print a line without trailing blanks. */
-static void put_line(FILE *fp, char *line)
+/* Print a line of n bytes without trailing blanks. */
+static void put_line(FILE *fp, char *line, size_t n)
 {
-	size_t n = strlen(line);
 	while (n > 0 && line[n - 1] == ' ')
-		line[--n] = '\0';
-	fputs(line, fp);
+		n--;
+	line[n] = '\n';
+	fwrite(line, 1, n + 1, fp);
+	line[n] = '\0';
+}
+
+/* s and a line end. */
+static void put_text(FILE *fp, const char *s)
+{
+	fputs(s, fp);
 	fputc('\n', fp);
 }
 
@@ -353,34 +480,43 @@ typedef struct sbuf {
 	size_t len, cap;
 } sbuf;
 
-static void sb_add(sbuf *b, const char *s, int pad_to, int right)
+/* A cell: two blanks, then s (w columns wide) padded to pad_to columns,
+ * on the right when `right`. */
+static void sb_cell(sbuf *b, const char *s, int w, int pad_to, int right)
 {
-	size_t n = strlen(s), pad = 0;
-	if (pad_to > 0) {
-		int w = width(s);
-		pad = pad_to > w ? (size_t)(pad_to - w) : 0;
-	}
-	if (b->len + n + pad + 1 > b->cap) {
-		b->cap = 2 * (b->len + n + pad + 1) + 64;
+	size_t n = strlen(s), pad = pad_to > w ? (size_t)(pad_to - w) : 0;
+	char *p;
+	if (b->len + n + pad + 3 > b->cap) {
+		b->cap = 2 * (b->len + n + pad + 3) + 64;
 		b->s = im_xrealloc(b->s, b->cap);
 	}
-	if (right && pad) {
-		memset(b->s + b->len, ' ', pad);
-		b->len += pad;
+	p = b->s + b->len;
+	*p++ = ' ';
+	*p++ = ' ';
+	if (right) {
+		memset(p, ' ', pad);
+		p += pad;
 	}
-	memcpy(b->s + b->len, s, n);
-	b->len += n;
-	if (!right && pad) {
-		memset(b->s + b->len, ' ', pad);
-		b->len += pad;
+	memcpy(p, s, n);
+	p += n;
+	if (!right) {
+		memset(p, ' ', pad);
+		p += pad;
 	}
-	b->s[b->len] = '\0';
+	*p = '\0';
+	b->len = (size_t)(p - b->s);
 }
 
 /* What makes cells one column: the key, or the label of a text-only cell. */
 static const char *colid(const node *x)
 {
 	return x->key ? x->key : x->label;
+}
+
+static int same_col(const node *a, const node *b)
+{
+	const char *p = colid(a), *q = colid(b);
+	return p[0] == q[0] && strcmp(p, q) == 0;
 }
 
 /* The text of the table that starts at node t (an N_TABLE); returns the
@@ -391,12 +527,13 @@ static int text_table(render *r, int t)
 	int end = t + 1, ncol = 0, nrow = 0, header = 0, utf8 = r->o->utf8;
 	const node **col;
 	int *w, *right;
-	const char ***cell;
-	sbuf lb = {0}; /* one line buffer for every row */
+	const char ***cell, **head;
+	int **cellw; /* the columns each cell takes */
+	sbuf lb = {0}; /* one line buffer for the header and every row */
 	while (end < r->count && r->n[end].k != N_TEND)
 		end++;
 	/* columns: every labelled key, in the order of first appearance */
-	col = im_xcalloc((size_t)(end - t) + 1, sizeof *col);
+	col = ar_zero(r, ((size_t)(end - t) + 1) * sizeof *col);
 	for (int i = t + 1, guess = 0; i < end; i++) {
 		const node *x = &r->n[i];
 		int k = 0;
@@ -407,10 +544,10 @@ static int text_table(render *r, int t)
 		if (!is_value(x->k) || !x->label)
 			continue;
 		/* cells come in column order: the next column first */
-		if (guess < ncol && strcmp(colid(col[guess]), colid(x)) == 0)
+		if (guess < ncol && same_col(col[guess], x))
 			k = guess;
 		else
-			while (k < ncol && strcmp(colid(col[k]), colid(x)) != 0)
+			while (k < ncol && !same_col(col[k], x))
 				k++;
 		guess = k + 1;
 		if (k == ncol)
@@ -418,26 +555,26 @@ static int text_table(render *r, int t)
 		else if (!col[k]->unit && x->unit) /* a null first: take the unit */
 			col[k] = x;
 	}
-	w = im_xcalloc((size_t)ncol + 1, sizeof *w);
-	right = im_xcalloc((size_t)ncol + 1, sizeof *right);
-	cell = im_xcalloc((size_t)nrow + 1, sizeof *cell);
+	w = ar_zero(r, ((size_t)ncol + 1) * sizeof *w);
+	right = ar_zero(r, ((size_t)ncol + 1) * sizeof *right);
+	head = ar_zero(r, ((size_t)ncol + 1) * sizeof *head);
+	cell = ar_zero(r, ((size_t)nrow + 1) * sizeof *cell);
+	cellw = ar_zero(r, ((size_t)nrow + 1) * sizeof *cellw);
 	for (int k = 0; k < ncol; k++) {
-		char *h = NULL;
 		if (col[k]->label[0])
 			header = 1;
-		if (col[k]->unit && col[k]->k == N_NUM) {
-			h = im_xmalloc(strlen(col[k]->label) + strlen(col[k]->unit) + 2);
-			sprintf(h, "%s%s%s", col[k]->label, col[k]->label[0] ? " " : "",
-				col[k]->unit);
-		}
-		w[k] = width(h ? h : col[k]->label);
-		free(h);
+		head[k] = col[k]->label;
+		if (col[k]->unit && col[k]->k == N_NUM)
+			head[k] = ar_cat3(r, col[k]->label, col[k]->label[0] ? " " : "",
+					  col[k]->unit);
+		w[k] = width(head[k]);
 		right[k] = col[k]->k != N_STR && col[k]->k != N_LIST;
 	}
 	for (int i = t + 1, row = -1, guess = 0; i < end; i++) {
 		const node *x = &r->n[i];
 		if (x->k == N_ROW) {
-			cell[++row] = im_xcalloc((size_t)ncol + 1, sizeof **cell);
+			cell[++row] = ar_zero(r, ((size_t)ncol + 1) * sizeof **cell);
+			cellw[row] = ar_zero(r, ((size_t)ncol + 1) * sizeof **cellw);
 			guess = 0;
 			continue;
 		}
@@ -446,10 +583,10 @@ static int text_table(render *r, int t)
 		for (int m = 0; m < ncol; m++) {
 			/* cells come in column order: try the next column first */
 			int k = (guess + m) % ncol;
-			if (col[k] == x || strcmp(colid(col[k]), colid(x)) == 0) {
+			if (col[k] == x || same_col(col[k], x)) {
 				int cw;
 				cell[row][k] = value_text(r, x, utf8, 0);
-				cw = width(cell[row][k]);
+				cw = cellw[row][k] = width(cell[row][k]);
 				if (cw > w[k])
 					w[k] = cw;
 				guess = k + 1;
@@ -458,46 +595,24 @@ static int text_table(render *r, int t)
 		}
 	}
 	if (r->n[t].label && nrow > 0 && ncol > 0)
-		fprintf(fp, "%s\n", r->n[t].label);
+		put_text(fp, r->n[t].label);
 	if (header && nrow > 0) {
-		sbuf b = {0};
-		sb_add(&b, "", 0, 0);
-		for (int k = 0; k < ncol; k++) {
-			char *h = NULL;
-			if (col[k]->unit && col[k]->k == N_NUM) {
-				h = im_xmalloc(strlen(col[k]->label) + strlen(col[k]->unit) + 2);
-				sprintf(h, "%s%s%s", col[k]->label, col[k]->label[0] ? " " : "",
-					col[k]->unit);
-			}
-			sb_add(&b, "  ", 0, 0);
-			sb_add(&b, h ? h : col[k]->label, w[k], right[k]);
-			free(h);
-		}
-		put_line(fp, b.s);
-		free(b.s);
-	}
-	for (int row = 0; row < nrow; row++) {
-		if (ncol == 0) { /* a table for the JSON only */
-			free(cell[row]);
-			continue;
-		}
 		lb.len = 0;
-		sb_add(&lb, "", 0, 0);
-		for (int k = 0; k < ncol; k++) {
-			sb_add(&lb, "  ", 0, 0);
-			sb_add(&lb, cell[row][k] ? cell[row][k] : "", w[k], right[k]);
-		}
-		put_line(fp, lb.s);
-		free(cell[row]);
+		for (int k = 0; k < ncol; k++)
+			sb_cell(&lb, head[k], width(head[k]), w[k], right[k]);
+		put_line(fp, lb.s, lb.len);
+	}
+	for (int row = 0; row < nrow && ncol > 0; row++) { /* ncol 0: for the JSON only */
+		lb.len = 0;
+		for (int k = 0; k < ncol; k++)
+			sb_cell(&lb, cell[row][k] ? cell[row][k] : "", cellw[row][k], w[k],
+				right[k]);
+		put_line(fp, lb.s, lb.len);
 	}
 	for (int i = t + 1; i < end; i++)
 		if (r->n[i].k == N_TEMPTY && (nrow == 0 || !r->n[i].s[0]))
-			fprintf(fp, "%s\n", r->n[i].s);
+			put_text(fp, r->n[i].s);
 	free(lb.s);
-	free(cell);
-	free(col);
-	free(w);
-	free(right);
 	return end;
 }
 
@@ -518,11 +633,11 @@ static void emit_text(render *r)
 		if (x->k == N_TABLE) {
 			i = text_table(r, i);
 		} else if (x->k == N_TEXT) {
-			fprintf(fp, "%s\n", x->s);
+			put_text(fp, x->s);
 		} else if (x->k == N_NOTE && x->label) {
 			fprintf(fp, "  %s%s\n", x->label, x->s);
 		} else if (x->k == N_NOTE) { /* no prefix: a line of its own, not indented */
-			fprintf(fp, "%s\n", x->s);
+			put_text(fp, x->s);
 		} else if (is_value(x->k) && x->label) {
 			const char *v = value_text(r, x, r->o->utf8, 1);
 			int pad = lw - width(x->label);
@@ -622,7 +737,7 @@ int render_done(render *r)
 {
 	if (r->in_table)
 		render_table_end(r);
-	if (r->o->json)
+	if (r->json)
 		emit_json(r);
 	else
 		emit_text(r);

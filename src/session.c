@@ -27,6 +27,7 @@ typedef struct ses_entry {
 	const osm_data *osm;
 	unsigned long chem_gen, osm_gen;
 	sol_state st;          /* the result, owned */
+	int holds;             /* ses_compute_hold's not yet released */
 } ses_entry;
 
 struct ses_cache {
@@ -95,24 +96,35 @@ static int entry_fits(const ses_entry *x, const solution *sol, const sol_env *en
 	       (!env->osm || x->osm_gen == env->osm->gen) && sol_equal(&x->key, sol);
 }
 
-int ses_compute(session *s, const solution *sol, sol_state *st, char *err)
+/* The cached entry of sol, or NULL. */
+static ses_entry *cache_find(session *s, const solution *sol, const sol_env *env)
 {
-	const sol_env *env = ses_env(s);
-	struct ses_cache *c;
-	ses_entry *x;
 	if (!s->cache)
 		s->cache = im_xcalloc(1, sizeof *s->cache);
-	c = s->cache;
 	for (int i = 0; i < SES_CACHE_N; i++)
-		if (entry_fits(&c->e[i], sol, env)) {
-			state_copy(st, &c->e[i].st);
-			return 0;
+		if (entry_fits(&s->cache->e[i], sol, env))
+			return &s->cache->e[i];
+	return NULL;
+}
+
+/* An entry for a new state, the oldest not held, emptied; NULL when
+ * every one is held. */
+static ses_entry *cache_victim(struct ses_cache *c)
+{
+	for (int k = 0; k < SES_CACHE_N; k++) {
+		ses_entry *x = &c->e[(c->next + k) % SES_CACHE_N];
+		if (x->holds == 0) {
+			c->next = (int)(x - c->e + 1) % SES_CACHE_N;
+			entry_clear(x);
+			return x;
 		}
-	if (sol_compute(sol, env, st, err))
-		return -1;
-	x = &c->e[c->next];
-	c->next = (c->next + 1) % SES_CACHE_N;
-	entry_clear(x);
+	}
+	return NULL;
+}
+
+/* Fill x (from cache_victim) with sol's key; the caller sets x->st. */
+static void entry_key(ses_entry *x, const solution *sol, const sol_env *env)
+{
 	sol_copy(&x->key, sol, sol->name);
 	x->t_C = env->t_C;
 	x->model = env->model;
@@ -120,8 +132,61 @@ int ses_compute(session *s, const solution *sol, sol_state *st, char *err)
 	x->osm = env->osm;
 	x->chem_gen = env->chem ? env->chem->gen : 0;
 	x->osm_gen = env->osm ? env->osm->gen : 0;
-	state_copy(&x->st, st);
 	x->used = 1;
+}
+
+int ses_compute_hold(session *s, const solution *sol, const sol_state **st, char *err)
+{
+	const sol_env *env = ses_env(s);
+	ses_entry *x = cache_find(s, sol, env);
+	sol_state fresh;
+	if (x) {
+		x->holds++;
+		*st = &x->st;
+		return 0;
+	}
+	if (sol_compute(sol, env, &fresh, err))
+		return -1;
+	x = cache_victim(s->cache);
+	if (!x) { /* every entry held: a state of the caller's own */
+		sol_state *own = im_xmalloc(sizeof *own);
+		*own = fresh;
+		*st = own;
+		return 0;
+	}
+	entry_key(x, sol, env);
+	x->st = fresh;
+	x->holds = 1;
+	*st = &x->st;
+	return 0;
+}
+
+void ses_state_release(session *s, const sol_state *st)
+{
+	for (int i = 0; s->cache && i < SES_CACHE_N; i++)
+		if (st == &s->cache->e[i].st) {
+			s->cache->e[i].holds--;
+			return;
+		}
+	sol_state_free((sol_state *)st); /* ses_compute_hold's own */
+	free((sol_state *)st);
+}
+
+int ses_compute(session *s, const solution *sol, sol_state *st, char *err)
+{
+	const sol_env *env = ses_env(s);
+	ses_entry *x = cache_find(s, sol, env);
+	if (x) {
+		state_copy(st, &x->st);
+		return 0;
+	}
+	if (sol_compute(sol, env, st, err))
+		return -1;
+	x = cache_victim(s->cache);
+	if (!x)
+		return 0; /* every entry held: not kept */
+	entry_key(x, sol, env);
+	state_copy(&x->st, st);
 	return 0;
 }
 
@@ -238,6 +303,7 @@ int ses_solution(session *s, const char *name, solution **out, char *err)
 	    (u = ses_userdb(s, 0, uerr, &failed)) != NULL) {
 		sv = im_xmalloc(sizeof *sv);
 		if (udb_load(u, s->ref, name, sv, uerr) == 0) {
+			fflush(stdout); /* the results before it first (a script's, see ctx->batch) */
 			fprintf(s->wait_notice ? s->wait_notice : stderr,
 				"note: '%s' is not in the workspace; using the saved solution "
 				"(now in the workspace)\n", name);
@@ -253,6 +319,20 @@ int ses_solution(session *s, const char *name, solution **out, char *err)
 	}
 	return im_fail(err, "unknown solution '%.60s' (neither in the workspace nor saved; see "
 			    "`list`)", name);
+}
+
+int ses_solution_read(session *s, const char *name, const solution **out, char *err)
+{
+	solution *sv;
+	int i = name ? ws_index_of(&s->ws, name) : s->ws.current;
+	if (i >= 0) {
+		*out = s->ws.sol[i];
+		return 0;
+	}
+	if (ses_solution(s, name, &sv, err))
+		return -1;
+	*out = sv;
+	return 0;
 }
 
 int ses_compound(session *s, const char *name, const rd_compound **out, char *err)

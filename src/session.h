@@ -82,6 +82,11 @@ const sol_env *ses_env(session *s);
  * sol_state_free), exactly as after sol_compute.  -1 with err as
  * sol_compute (failures are not cached). */
 int ses_compute(session *s, const solution *sol, sol_state *st, char *err);
+/* As ses_compute, without a copy: *st is the cache's own state, kept
+ * (never replaced) until ses_state_release(s, *st), which every
+ * successful call needs once.  For a command that only reads the state. */
+int ses_compute_hold(session *s, const solution *sol, const sol_state **st, char *err);
+void ses_state_release(session *s, const sol_state *st);
 
 /* The user's database, opened on first use.  create = 1 creates the file;
  * create = 0 returns NULL with *failed == 0 when it does not exist yet.
@@ -95,6 +100,11 @@ struct userdb *ses_userdb(session *s, int create, char *err, int *failed);
  * with err ("unknown solution 'X' ..." / "no current solution") when
  * absent from both. */
 int ses_solution(session *s, const char *name, solution **out, char *err);
+/* As ses_solution, for a command that only reads the solution: one in
+ * the workspace is not copied into the command's mark (nothing to put
+ * back), so a read costs no allocation.  The pointer is the workspace's;
+ * valid until the workspace changes. */
+int ses_solution_read(session *s, const char *name, const solution **out, char *err);
 /* A compound by name or alias: the shipped ones, then those the user
  * defined (read from the user database the first time one is needed);
  * the error suggests the nearest names. */

@@ -456,8 +456,12 @@ void ws_journal_begin(workspace *w, ws_journal *jr)
 {
 	memset(jr, 0, sizeof *jr);
 	jr->serial = ++w->serial;
-	if (w->current >= 0)
-		snprintf(jr->current, sizeof jr->current, "%s", w->sol[w->current]->name);
+	if (w->current >= 0) { /* cut to fit, as snprintf would */
+		const char *name = w->sol[w->current]->name;
+		size_t n = strnlen(name, sizeof jr->current - 1);
+		memcpy(jr->current, name, n);
+		jr->current[n] = '\0';
+	}
 	w->jr = jr;
 }
 

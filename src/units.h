@@ -65,6 +65,11 @@ void units_fmt_conc(char *buf, size_t n, double mM, int utf8);
  * a value that is not finite. */
 void units_fmt_num(char *buf, size_t n, double v, int digits);
 
+/* printf's "%.*f" of v with dec decimals ("%+.*f" when plus), the same
+ * bytes, "-0.00" included, for prose that prints a number as printf
+ * would; quicker than printf for ordinary values. */
+void units_fmt_fixed(char *buf, size_t n, double v, int dec, int plus);
+
 /* Format v with `sig` significant digits, no exponent for ordinary
  * magnitudes (1e-4 to 1e7), trailing zeros after the point dropped. */
 void units_fmt_sig(char *buf, size_t n, double v, int sig);

@@ -9,6 +9,7 @@
  */
 #include "testutil.h"
 
+#include <stdio.h>
 #include <string.h>
 
 #include "common.h"
@@ -213,11 +214,59 @@ static void pick_invalidates(void **state)
 	ses_free(&s);
 }
 
+/* States held by ses_compute_hold stay as computed while more solutions
+ * than the cache holds pass through it (none replaces a held one), even
+ * when every entry is held; released, they make room again. */
+static void held_states_stay(void **state)
+{
+	session s;
+	const sol_state *held[12];
+	sol_state fresh, copy;
+	solution *x[12];
+	char err[IM_ERRLEN];
+	(void)state;
+	ses_init(&s, db);
+	assert_int_equal(ses_load_chemistry(&s, err), 0);
+	for (int k = 0; k < 12; k++) { /* 12 held: more than the 8 entries */
+		char name[16];
+		snprintf(name, sizeof name, "h%d", k);
+		x[k] = ws_open(&s.ws, name);
+		sol_add(x[k], C("KCl"), 100 + k);
+		sol_add(x[k], C("HEPES"), 10);
+		assert_int_equal(ses_compute_hold(&s, x[k], &held[k], err), 0);
+	}
+	for (int k = 0; k < 20; k++) { /* others come and go, copied */
+		char name[16];
+		snprintf(name, sizeof name, "o%d", k);
+		solution *o = ws_open(&s.ws, name);
+		sol_add(o, C("NaCl"), 50 + k);
+		check_now(&s, o, &copy);
+		sol_state_free(&copy);
+	}
+	for (int k = 0; k < 12; k++) {
+		const sol_state *again;
+		assert_int_equal(sol_compute(x[k], ses_env(&s), &fresh, err), 0);
+		assert_states_equal(held[k], &fresh);
+		assert_int_equal(ses_compute_hold(&s, x[k], &again, err), 0);
+		assert_states_equal(again, &fresh);
+		ses_state_release(&s, again);
+		sol_state_free(&fresh);
+	}
+	for (int k = 0; k < 12; k++)
+		ses_state_release(&s, held[k]);
+	for (int k = 0; k < 12; k++) { /* released: the cache works on */
+		check_now(&s, x[k], &copy);
+		sol_state_free(&copy);
+	}
+	ses_free(&s);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
 		cmocka_unit_test(cache_follows_every_change),
 		cmocka_unit_test(pick_invalidates),
+		cmocka_unit_test(held_states_stay),
 	};
 	return cmocka_run_group_tests(tests, setup, teardown);
 }

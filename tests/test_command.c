@@ -303,6 +303,28 @@ static void render_long_note(void **state)
 	free(long_note);
 }
 
+/* Prose lines come out as printf writes them, whether they hold only
+ * strings (filled without printf) or numbers too; a string past the
+ * stack buffer, and "%%". */
+static void render_text_printf(void **state)
+{
+	char big[400], want[600];
+	render *r;
+	(void)state;
+	memset(big, 'y', sizeof big - 1);
+	big[sizeof big - 1] = '\0';
+	r = render_new(&o);
+	render_text(r, "a %s b %% c %s", "one", "two");
+	render_text(r, "%s|%s", big, "end");
+	render_text(r, "%s at %.1f C, %+.2f mV, %g %%", "pip", 22.04, -0.001, 5.0);
+	render_text(r, "%%s stays %s", "put");
+	render_done(r);
+	fflush(o.fp);
+	snprintf(want, sizeof want, "a one b %% c two\n%s|end\npip at 22.0 C, -0.00 mV, 5 %%\n"
+		 "%%s stays put\n", big);
+	assert_string_equal(buf, want);
+}
+
 /* The line loop: quit stops a script there; run, help and quit are
  * commands of the table; a script run from the shell still stops at its
  * first error while the shell goes on. */
@@ -352,6 +374,7 @@ int main(void)
 		cmocka_unit_test_setup_teardown(json_show, fresh, done),
 		cmocka_unit_test_setup_teardown(render_both, fresh, done),
 		cmocka_unit_test_setup_teardown(render_long_note, fresh, done),
+		cmocka_unit_test_setup_teardown(render_text_printf, fresh, done),
 		cmocka_unit_test_setup_teardown(loop_rules, fresh, done),
 	};
 	return cmocka_run_group_tests(tests, setup, teardown);
