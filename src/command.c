@@ -287,7 +287,8 @@ static int exec_one(im_ctx *ctx, char *cmd, char *err)
 	if (!d->keep_on_fail)
 		ses_mark_take(ctx->ses, &mark);
 	rc = d->fn(ctx, argc, argv, err);
-	if (rc == 0 && (ctx->batch ? out_write_failed(ctx->out) : out_failed(ctx->out)))
+	if (rc == 0 && (ctx->batch ? out_write_failed(ctx->out) : out_failed(ctx->out)) &&
+	    !ctx->out->wsaid++)
 		rc = im_fail(err, "cannot write the result of %s to %s: %s", d->name,
 			     ctx->out->name ? ctx->out->name : "standard output",
 			     strerror(ctx->out->werrno ? ctx->out->werrno : EIO));

@@ -181,17 +181,17 @@ static int check_stdout(out *o, int status)
 	int failed = out_failed(o);
 	if (fclose(stdout) != 0)
 		failed = 1;
-	if (failed && status == 0) { /* else the failing command said it */
+	if (failed && !o->wsaid) { /* else a message has said it */
 		fprintf(stderr, "ionmix: cannot write to standard output: %s\n",
 			strerror(o->werrno ? o->werrno : errno ? errno : EIO));
 		return 1;
 	}
-	return status;
+	return failed && status == 0 ? 1 : status;
 }
 
 int main(int argc, char **argv)
 {
-	out o = {stdout, stderr, 0, 0, NULL, 0};
+	out o = {.fp = stdout, .errfp = stderr};
 	opts op = {0};
 	int status;
 	char err[IM_ERRLEN];

@@ -155,7 +155,13 @@ void out_error(out *o, const char *file, int line, const char *msg)
 		fflush(o->fp);
 		return;
 	}
-	fflush(o->fp);
+	/* results still in stdio's buffer (a script in a file) go first; if
+	 * they cannot be written, that is said once, before this message */
+	if (out_failed(o) && !o->wsaid) {
+		o->wsaid = 1;
+		fprintf(o->errfp, "ionmix: cannot write to %s: %s\n",
+			o->name ? o->name : "standard output", strerror(o->werrno));
+	}
 	fputs("ionmix: ", o->errfp);
 	if (file) {
 		out_text_escaped(o->errfp, file);

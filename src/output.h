@@ -15,6 +15,7 @@ typedef struct out {
 	int utf8;       /* 1: the terminal takes UTF-8 (plots, micro sign) */
 	const char *name; /* fp's name for messages; NULL: "standard output" */
 	int werrno;     /* errno of the first failed write, set by out_failed */
+	int wsaid;      /* 1 once a message has said that writing to fp failed */
 } out;
 
 /* 1 when a write to o->fp has failed (it is flushed first: a full disk,

@@ -86,7 +86,7 @@ static void run_line(const char *line, size_t n, int json)
 	char err[IM_ERRLEN];
 	char *buf = NULL;
 	size_t len = 0;
-	out o = {NULL, NULL, 0, 0, NULL, 0};
+	out o = {0};
 	im_ctx ctx;
 	workspace before;
 	int rc;

@@ -54,7 +54,7 @@ static void run_script(const char *bytes, size_t n, int json)
 	char err[IM_ERRLEN];
 	char *buf = NULL;
 	size_t len = 0, lines = 1;
-	out o = {NULL, NULL, 0, 0, NULL, 0};
+	out o = {0};
 	im_ctx ctx;
 	int rc;
 	FILE *in;
