@@ -7,6 +7,7 @@
 
 #include "common.h"
 #include "fileio.h"
+#include "h5undo.h"
 
 #include "h5lazy.h" /* <hdf5.h>, the library loaded on first use */
 
@@ -329,7 +330,11 @@ static int read_open(hid_t fid, const char *path, nwb_file *f, char *err)
 
 int nwb_read(const char *path, nwb_file *f, char *err)
 {
+	char note[IM_ERRLEN];
 	memset(f, 0, sizeof *f);
+	int rec = h5u_recover(path, note, sizeof note, err);
+	if (rec < 0)
+		return -1;
 	if (im_h5_load(err))
 		return -1;
 	quiet();
@@ -340,6 +345,8 @@ int nwb_read(const char *path, nwb_file *f, char *err)
 	H5Fclose(fid);
 	if (rc)
 		nwb_file_free(f);
+	else if (rec == 1)
+		f->recovered = im_xstrdup(note);
 	return rc;
 }
 
@@ -354,6 +361,7 @@ void nwb_file_free(nwb_file *f)
 	}
 	free(f->s);
 	free(f->version);
+	free(f->recovered);
 	memset(f, 0, sizeof *f);
 }
 
@@ -365,6 +373,7 @@ void nwb_result_free(nwb_result *r)
 		free(r->c[i].unit);
 	}
 	free(r->c);
+	free(r->recovered);
 	memset(r, 0, sizeof *r);
 }
 
@@ -573,6 +582,85 @@ static int apply(hid_t fid, const nwb_series *const *pick, int n, const nwb_reco
 	return 0;
 }
 
+/* The corrected copy: copy in_path to out_path's temporary, change the
+ * copy, fsync and rename it into place (the copy's cost grows with the
+ * file; a new file has to be written whole). */
+static int to_copy(const char *in_path, const char *out_path, const nwb_series *const *pick,
+		   int np, const nwb_record *rec, nwb_result *res, char *err)
+{
+	fio_file *out;
+	char note[IM_ERRLEN];
+	if (h5u_recover(out_path, note, sizeof note, err) < 0) /* its journal is stale now */
+		return -1;
+	if (fio_open(&out, out_path, err))
+		return -1;
+	if (fio_is_direct(out)) {
+		fio_abort(out);
+		return im_fail(err, "cannot write %s: an NWB file must go to a regular file",
+			       out_path);
+	}
+	fflush(fio_stream(out));
+	if (copy_bytes(in_path, fileno(fio_stream(out)), out_path, err)) {
+		fio_abort(out);
+		return -1;
+	}
+	hid_t fid = H5Fopen(fio_temp_path(out), H5F_ACC_RDWR, H5P_DEFAULT);
+	if (fid < 0) {
+		char cause[160];
+		h5_cause(cause);
+		fio_abort(out);
+		return im_fail(err, "cannot open the copy of %s: %s", in_path, cause);
+	}
+	int arc = apply(fid, pick, np, rec, res, err);
+	if (H5Fclose(fid) < 0 && arc == 0) {
+		char cause[160];
+		h5_cause(cause);
+		arc = im_fail(err, "cannot write %s: %s", out_path, cause);
+	}
+	if (arc) {
+		fio_abort(out);
+		nwb_result_free(res);
+		return -1;
+	}
+	if (fio_commit(out, err)) {
+		nwb_result_free(res);
+		return -1;
+	}
+	return 0;
+}
+
+/* In place, through the undo driver (h5undo.h): HDF5's writes are kept in
+ * memory and reach the file with an undo journal at h5u_commit, so the
+ * cost follows the metadata changed, not the size of the data, and the
+ * file has every change or none. */
+static int in_place(const char *path, const nwb_series *const *pick, int np,
+		    const nwb_record *rec, nwb_result *res, char *err)
+{
+	hid_t fapl = h5u_fapl(err);
+	if (fapl < 0)
+		return -1;
+	hid_t fid = H5Fopen(path, H5F_ACC_RDWR, fapl);
+	H5Pclose(fapl);
+	if (fid < 0) {
+		char cause[160];
+		h5_cause(cause);
+		h5u_discard();
+		return im_fail(err, "cannot open %s for writing: %s", path, cause);
+	}
+	int arc = apply(fid, pick, np, rec, res, err);
+	if (H5Fclose(fid) < 0 && arc == 0) {
+		char cause[160];
+		h5_cause(cause);
+		arc = im_fail(err, "cannot write %s: %s", path, cause);
+	}
+	if (arc || h5u_commit(path, err)) {
+		h5u_discard();
+		nwb_result_free(res);
+		return -1;
+	}
+	return 0;
+}
+
 int nwb_correct(const char *in_path, const char *out_path, const char *const *names,
 		int nnames, int again, const nwb_record *rec, nwb_result *res, char *err)
 {
@@ -635,43 +723,12 @@ int nwb_correct(const char *in_path, const char *out_path, const char *const *na
 		}
 	}
 
-	/* copy, change the copy, commit */
-	fio_file *out;
-	const char *target = out_path ? out_path : in_path;
-	if (fio_open(&out, target, err))
+	if (out_path ? to_copy(in_path, out_path, pick, np, rec, res, err)
+		     : in_place(in_path, pick, np, rec, res, err))
 		goto out;
-	if (fio_is_direct(out)) {
-		fio_abort(out);
-		im_fail(err, "cannot write %s: an NWB file must go to a regular file", target);
-		goto out;
-	}
-	fflush(fio_stream(out));
-	if (copy_bytes(in_path, fileno(fio_stream(out)), target, err)) {
-		fio_abort(out);
-		goto out;
-	}
-	hid_t fid = H5Fopen(fio_temp_path(out), H5F_ACC_RDWR, H5P_DEFAULT);
-	if (fid < 0) {
-		char cause[160];
-		h5_cause(cause);
-		fio_abort(out);
-		im_fail(err, "cannot open the copy of %s: %s", in_path, cause);
-		goto out;
-	}
-	int arc = apply(fid, pick, np, rec, res, err);
-	if (H5Fclose(fid) < 0 && arc == 0) {
-		char cause[160];
-		h5_cause(cause);
-		arc = im_fail(err, "cannot write %s: %s", target, cause);
-	}
-	if (arc) {
-		fio_abort(out);
-		nwb_result_free(res);
-		goto out;
-	}
-	if (fio_commit(out, err)) {
-		nwb_result_free(res);
-		goto out;
+	if (f.recovered) {
+		res->recovered = f.recovered;
+		f.recovered = NULL;
 	}
 	rc = 0;
 out:
