@@ -45,8 +45,9 @@ typedef struct ufile {
 	int nx, capx;
 } ufile;
 
-/* The file closed by HDF5 whose changes await h5u_commit (one slot). */
-static ufile *pending;
+/* The file closed by HDF5 whose changes await h5u_commit (one slot), and
+ * the one open read-write. */
+static ufile *pending, *live;
 
 static void ufile_free(ufile *f)
 {
@@ -146,7 +147,7 @@ static H5FD_t *u_open(const char *name, unsigned flags, hid_t fapl, haddr_t maxa
 	int rw = (flags & H5F_ACC_RDWR) != 0;
 	if (flags & (H5F_ACC_TRUNC | H5F_ACC_CREAT | H5F_ACC_EXCL))
 		return NULL; /* only existing files are changed through this driver */
-	if (rw && pending)
+	if (rw && (pending || live))
 		return NULL; /* one change at a time */
 	int fd = open(name, (rw ? O_RDWR : O_RDONLY) | O_CLOEXEC);
 	if (fd < 0)
@@ -163,12 +164,16 @@ static H5FD_t *u_open(const char *name, unsigned flags, hid_t fapl, haddr_t maxa
 	f->dev = st.st_dev;
 	f->ino = st.st_ino;
 	f->orig_len = f->disk_valid = f->eof = (uint64_t)st.st_size;
+	if (rw)
+		live = f;
 	return &f->pub;
 }
 
 static herr_t u_close(H5FD_t *file)
 {
 	ufile *f = (ufile *)file;
+	if (f == live)
+		live = NULL;
 	if (f->rw && f->nx > 0 && !pending) {
 		pending = f; /* h5u_commit writes it, h5u_discard forgets it */
 		return 0;
@@ -414,6 +419,8 @@ static int fault(int n)
 		return 0;
 	if (sscanf(e, "crash:%d", &k) == 1 && k == n)
 		_exit(99);
+	if (sscanf(e, "signal:%d", &k) == 1 && k == n)
+		raise(SIGTERM); /* held back until the commit is complete */
 	if (sscanf(e, "fail:%d", &k) == 1 && k == n) {
 		errno = EIO;
 		return -1;
@@ -592,6 +599,11 @@ int h5u_commit(const char *path, char *err)
 {
 	ufile *f = pending;
 	pending = NULL;
+	if (live) { /* an HDF5 object left open: its changes are not all here */
+		ufile_free(f);
+		return im_fail(err, "cannot write %s: the HDF5 library still holds it open"
+			       " (nothing was written)", path);
+	}
 	if (!f)
 		return 0; /* nothing changed */
 	size_t n = 0;
@@ -728,6 +740,7 @@ int h5u_recover(const char *path, char *note, size_t nn, char *err)
 		goto out;
 	}
 	if (fstat(fd, &st) != 0 || (uint64_t)st.st_dev != j.dev || (uint64_t)st.st_ino != j.ino ||
+	    (uint64_t)st.st_size > (j.orig_len > j.final_len ? j.orig_len : j.final_len) ||
 	    !matches(fd, &j, (uint64_t)st.st_size)) {
 		im_fail(err, "the undo journal %s does not match %s (another file, or changed"
 			" since): both left alone; remove the journal once the file is known to be"

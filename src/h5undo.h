@@ -23,7 +23,8 @@
  * For tests only: the environment variable IONMIX_TEST_NWB_FAULT set to
  * "fail:N" makes the N-th write into the file fail (EIO) during a commit,
  * "crash:N" ends the process (_exit(99)) just before it, leaving the
- * journal and the N-1 writes done.
+ * journal and the N-1 writes done; "signal:N" sends the process SIGTERM
+ * there (held back until the commit is complete).
  */
 #ifndef IONMIX_H5UNDO_H
 #define IONMIX_H5UNDO_H
