@@ -16,6 +16,11 @@
 #define IONMIX_H5LAZY_H
 
 #include <hdf5.h>
+#if H5_VERSION_GE(1, 13, 0)
+/* from 1.13 on, H5FDregister and the file driver's structures (h5undo.c)
+ * are declared apart */
+#include <H5FDdevelop.h>
+#endif
 
 /* every HDF5 function nwb.c and h5undo.c call, and those their macros call */
 #define IM_H5_FUNCS(X) \
