@@ -554,7 +554,7 @@ static int apply(const ufile *f)
 			return -1;
 	if (f->eof != disk && (fault(++w) || ftruncate(f->fd, (off_t)f->eof) != 0))
 		return -1;
-	return fsync(f->fd);
+	return fdatasync(f->fd); /* the data and the length: all a reader needs */
 }
 
 /* Hold SIGINT, SIGTERM and SIGHUP back (block 1) or let them in (0). */
@@ -578,7 +578,7 @@ static int write_journal(const char *jp, const unsigned char *p, size_t n)
 	int fd = open(jp, O_WRONLY | O_CREAT | O_EXCL | O_CLOEXEC, 0600);
 	if (fd < 0)
 		return -1;
-	if (write_all(fd, p, n, -1) || fsync(fd) != 0) {
+	if (write_all(fd, p, n, -1) || fdatasync(fd) != 0) {
 		int e = errno;
 		close(fd);
 		unlink(jp);

@@ -280,8 +280,9 @@ static herr_t visit(hid_t parent, const char *name, const H5L_info_t *info, void
 	return 0;
 }
 
-/* Open path read-only, or -1 with a one-line err. */
-static hid_t open_h5(const char *path, unsigned flags, char *err)
+/* Open path (flags: H5F_ACC_RDONLY or _RDWR, through fapl), or -1 with a
+ * one-line err. */
+static hid_t open_h5(const char *path, unsigned flags, hid_t fapl, char *err)
 {
 	struct stat st;
 	if (stat(path, &st) != 0)
@@ -291,7 +292,7 @@ static hid_t open_h5(const char *path, unsigned flags, char *err)
 	htri_t is = H5Fis_hdf5(path);
 	if (is == 0)
 		return im_fail(err, "%s is not an HDF5 file (an NWB 2.x recording is one)", path);
-	hid_t f = H5Fopen(path, flags, H5P_DEFAULT);
+	hid_t f = H5Fopen(path, flags, fapl);
 	if (f < 0) {
 		char cause[160];
 		h5_cause(cause);
@@ -328,26 +329,41 @@ static int read_open(hid_t fid, const char *path, nwb_file *f, char *err)
 	return 0;
 }
 
-int nwb_read(const char *path, nwb_file *f, char *err)
+/* Read path into f (as nwb_read).  keep NULL: read-only, closed again;
+ * otherwise opened read-write through the undo driver (h5undo.h) and left
+ * open in *keep for the change, so the file is opened and its metadata
+ * read once. */
+static int read_file(const char *path, hid_t *keep, nwb_file *f, char *err)
 {
 	char note[IM_ERRLEN];
 	memset(f, 0, sizeof *f);
 	int rec = h5u_recover(path, note, sizeof note, err);
-	if (rec < 0)
-		return -1;
-	if (im_h5_load(err))
+	if (rec < 0 || im_h5_load(err))
 		return -1;
 	quiet();
-	hid_t fid = open_h5(path, H5F_ACC_RDONLY, err);
-	if (fid < 0)
+	hid_t fapl = keep ? h5u_fapl(err) : H5P_DEFAULT;
+	if (fapl < 0)
 		return -1;
-	int rc = read_open(fid, path, f, err);
-	H5Fclose(fid);
+	hid_t fid = open_h5(path, keep ? H5F_ACC_RDWR : H5F_ACC_RDONLY, fapl, err);
+	if (keep)
+		H5Pclose(fapl);
+	int rc = fid < 0 ? -1 : read_open(fid, path, f, err);
+	if (fid >= 0 && (rc || !keep))
+		H5Fclose(fid);
+	if (keep && (rc || fid < 0))
+		h5u_discard(); /* nothing was written */
 	if (rc)
 		nwb_file_free(f);
-	else if (rec == 1)
+	else if (keep)
+		*keep = fid;
+	if (rc == 0 && rec == 1)
 		f->recovered = im_xstrdup(note);
 	return rc;
+}
+
+int nwb_read(const char *path, nwb_file *f, char *err)
+{
+	return read_file(path, NULL, f, err);
 }
 
 void nwb_file_free(nwb_file *f)
@@ -629,26 +645,18 @@ static int to_copy(const char *in_path, const char *out_path, const nwb_series *
 	return 0;
 }
 
-/* In place, through the undo driver (h5undo.h): HDF5's writes are kept in
- * memory and reach the file with an undo journal at h5u_commit, so the
- * cost follows the metadata changed, not the size of the data, and the
- * file has every change or none. */
-static int in_place(const char *path, const nwb_series *const *pick, int np,
+/* In place, on *fid opened by read_file through the undo driver
+ * (h5undo.h): HDF5's writes are kept in memory and reach the file with
+ * an undo journal at h5u_commit, so the cost follows the metadata
+ * changed, not the size of the data, and the file has every change or
+ * none.  *fid is closed (-1) on return. */
+static int in_place(const char *path, hid_t *fid, const nwb_series *const *pick, int np,
 		    const nwb_record *rec, nwb_result *res, char *err)
 {
-	hid_t fapl = h5u_fapl(err);
-	if (fapl < 0)
-		return -1;
-	hid_t fid = H5Fopen(path, H5F_ACC_RDWR, fapl);
-	H5Pclose(fapl);
-	if (fid < 0) {
-		char cause[160];
-		h5_cause(cause);
-		h5u_discard();
-		return im_fail(err, "cannot open %s for writing: %s", path, cause);
-	}
-	int arc = apply(fid, pick, np, rec, res, err);
-	if (H5Fclose(fid) < 0 && arc == 0) {
+	int arc = apply(*fid, pick, np, rec, res, err);
+	herr_t closed = H5Fclose(*fid);
+	*fid = -1;
+	if (closed < 0 && arc == 0) {
 		char cause[160];
 		h5_cause(cause);
 		arc = im_fail(err, "cannot write %s: %s", path, cause);
@@ -661,6 +669,14 @@ static int in_place(const char *path, const nwb_series *const *pick, int np,
 	return 0;
 }
 
+/* 1 when path is a file ionmix may change in place. */
+static int writable(const char *path)
+{
+	struct stat st;
+	return stat(path, &st) == 0 && S_ISREG(st.st_mode) && access(path, W_OK) == 0 &&
+	       (st.st_mode & (S_IWUSR | S_IWGRP | S_IWOTH));
+}
+
 int nwb_correct(const char *in_path, const char *out_path, const char *const *names,
 		int nnames, int again, const nwb_record *rec, nwb_result *res, char *err)
 {
@@ -670,7 +686,8 @@ int nwb_correct(const char *in_path, const char *out_path, const char *const *na
 		return im_fail(err, "the LJP is not a finite number");
 	if (out_path && fio_same_file(in_path, out_path))
 		out_path = NULL;
-	if (nwb_read(in_path, &f, err))
+	hid_t fid = -1; /* in place: the file, open read-write */
+	if (read_file(in_path, !out_path && writable(in_path) ? &fid : NULL, &f, err))
 		return -1;
 
 	/* choose and check, before anything is written */
@@ -714,9 +731,7 @@ int nwb_correct(const char *in_path, const char *out_path, const char *const *na
 		if (check_series(&f, pick[i], in_path, again, err))
 			goto out;
 	if (!out_path) {
-		struct stat st;
-		if (stat(in_path, &st) != 0 || access(in_path, W_OK) != 0 ||
-		    !(st.st_mode & (S_IWUSR | S_IWGRP | S_IWOTH))) {
+		if (fid < 0) {
 			im_fail(err, "%s is read-only: write the corrected copy elsewhere with"
 				" `to OUT.nwb`", in_path);
 			goto out;
@@ -724,7 +739,7 @@ int nwb_correct(const char *in_path, const char *out_path, const char *const *na
 	}
 
 	if (out_path ? to_copy(in_path, out_path, pick, np, rec, res, err)
-		     : in_place(in_path, pick, np, rec, res, err))
+		     : in_place(in_path, &fid, pick, np, rec, res, err))
 		goto out;
 	if (f.recovered) {
 		res->recovered = f.recovered;
@@ -732,6 +747,10 @@ int nwb_correct(const char *in_path, const char *out_path, const char *const *na
 	}
 	rc = 0;
 out:
+	if (fid >= 0) { /* refused before any change */
+		H5Fclose(fid);
+		h5u_discard();
+	}
 	free(pick);
 	nwb_file_free(&f);
 	return rc;
