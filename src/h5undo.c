@@ -48,6 +48,13 @@ typedef struct ufile {
 /* The file closed by HDF5 whose changes await h5u_commit (one slot), and
  * the one open read-write. */
 static ufile *pending, *live;
+/* 1: the last open found the file locked by another process */
+static int locked;
+
+int h5u_was_locked(void)
+{
+	return locked;
+}
 
 static void ufile_free(ufile *f)
 {
@@ -153,8 +160,9 @@ static H5FD_t *u_open(const char *name, unsigned flags, hid_t fapl, haddr_t maxa
 	if (fd < 0)
 		return NULL;
 	struct stat st;
+	locked = 0;
 	if (fstat(fd, &st) != 0 || !S_ISREG(st.st_mode) ||
-	    (rw && flock(fd, LOCK_EX | LOCK_NB) != 0 && errno == EWOULDBLOCK)) {
+	    (rw && flock(fd, LOCK_EX | LOCK_NB) != 0 && (locked = errno == EWOULDBLOCK))) {
 		close(fd);
 		return NULL;
 	}

@@ -36,6 +36,10 @@
  * it with H5Pclose), or -1 with err.  The HDF5 library must be loaded. */
 int64_t h5u_fapl(char *err);
 
+/* 1 when the last open through the driver failed because another process
+ * holds a lock on the file (an HDF5 reader has it open), 0 otherwise. */
+int h5u_was_locked(void);
+
 /* After a successful H5Fclose of the file opened read-write through
  * h5u_fapl: write the changes as described above.  On failure the file is
  * as it was before (or, when even the undo failed, the journal stays for

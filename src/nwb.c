@@ -347,6 +347,9 @@ static int read_file(const char *path, hid_t *keep, nwb_file *f, char *err)
 	hid_t fid = open_h5(path, keep ? H5F_ACC_RDWR : H5F_ACC_RDONLY, fapl, err);
 	if (keep)
 		H5Pclose(fapl);
+	if (keep && fid < 0 && h5u_was_locked())
+		im_fail(err, "cannot change %s in place: another program has it open (locked);"
+			" close it there, or write a corrected copy with `to OUT.nwb`", path);
 	int rc = fid < 0 ? -1 : read_open(fid, path, f, err);
 	if (fid >= 0 && (rc || !keep))
 		H5Fclose(fid);

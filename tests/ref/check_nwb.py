@@ -30,6 +30,7 @@ What is checked, and against what:
    `to` give a one-line error, exit status 1, the original untouched and
    no file left behind.
 """
+import fcntl
 import hashlib
 import json
 import os
@@ -317,6 +318,20 @@ try:
     check(r.returncode == 0 and "incomplete undo journal" in r.stdout and
           not os.path.exists(JF) and sha(F) == a_sha,
           "an incomplete journal removed with a note: %r %r" % (r.stdout, r.stderr))
+    # an HDF5 reader holding the file (HDF5's file lock, when the library
+    # takes one): in place is refused in one line, the file untouched
+    shutil.copy(A, F)
+    with h5py.File(F, "r"):
+        with open(F, "rb") as fp:
+            try:
+                fcntl.flock(fp, fcntl.LOCK_EX | fcntl.LOCK_NB)
+                held = False
+            except BlockingIOError:
+                held = True
+        if held:
+            r = run("correct f.nwb by 1")
+            one_line_error(r, "in place while another program holds the file", "another program")
+            check(sha(F) == a_sha and not os.path.exists(JF), "a locked file untouched")
     os.unlink(F)
     os.unlink(E)
 
