@@ -609,7 +609,9 @@ static int to_copy(const char *in_path, const char *out_path, const nwb_series *
 {
 	fio_file *out;
 	char note[IM_ERRLEN];
-	if (h5u_recover(out_path, note, sizeof note, err) < 0) /* its journal is stale now */
+	/* an interrupted change of the file replaced: undone first, or its
+	 * journal would not match the new file */
+	if (h5u_recover(out_path, note, sizeof note, err) < 0)
 		return -1;
 	if (fio_open(&out, out_path, err))
 		return -1;
