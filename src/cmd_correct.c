@@ -347,6 +347,8 @@ static void nwb_render(im_ctx *ctx, const char *in, const nwb_args *a, const ljp
 			    res->c[i].old_offset, res->c[i].new_offset, res->c[i].unit,
 			    res->c[i].again ? " (corrected before: again)" : "");
 	render_text(r, "what was done is recorded in each series' comments");
+	if (res->recovered)
+		render_note(r, "%s", res->recovered);
 	render_str(r, "input", NULL, in);
 	render_str(r, "output", NULL, dest);
 	render_bool(r, "in_place", NULL, a->to == NULL || fio_same_file(in, a->to));
@@ -456,6 +458,8 @@ int cmd_correct_list_nwb(im_ctx *ctx, const char *path, char *err)
 			    "conversion", "offset", "LJP correction");
 	for (int i = 0; i < f.n; i++)
 		list_line(r, &f.s[i]);
+	if (f.recovered)
+		render_note(r, "%s", f.recovered);
 	render_str(r, "file", NULL, path);
 	render_str(r, "nwb_version", NULL, f.version);
 	render_table(r, "series", NULL);

@@ -3,9 +3,10 @@
  *
  * Linking libhdf5 pulls in some 35 shared libraries (curl, TLS, Kerberos,
  * LDAP ...) whose relocation cost more than half of every start of
- * ionmix, though only the NWB commands use HDF5.  nwb.c includes this
- * header in place of <hdf5.h>: every HDF5 function and global it names is
- * redirected through the table im_h5, which im_h5_load fills with dlopen
+ * ionmix, though only the NWB commands use HDF5.  nwb.c and h5undo.c
+ * include this header in place of <hdf5.h>: every HDF5 function and
+ * global it names is redirected through the table im_h5, which
+ * im_h5_load fills with dlopen
  * and dlsym.  Call im_h5_load (0, or -1 with err naming the library and
  * the loader's reason) before the first HDF5 call; later calls return at
  * once.  Types, constants and headers are HDF5's own, so a mismatch with
@@ -15,8 +16,13 @@
 #define IONMIX_H5LAZY_H
 
 #include <hdf5.h>
+#if H5_VERSION_GE(1, 13, 0)
+/* from 1.13 on, H5FDregister and the file driver's structures (h5undo.c)
+ * are declared apart */
+#include <H5FDdevelop.h>
+#endif
 
-/* every HDF5 function nwb.c calls, and those its macros call */
+/* every HDF5 function nwb.c and h5undo.c call, and those their macros call */
 #define IM_H5_FUNCS(X) \
 	X(H5open) X(H5check_version) X(H5free_memory) \
 	X(H5Aclose) X(H5Acreate2) X(H5Adelete) X(H5Aexists) X(H5Aget_space) \
@@ -27,9 +33,11 @@
 	X(H5Sclose) X(H5Screate) X(H5Sget_simple_extent_npoints) \
 	X(H5Tclose) X(H5Tcopy) X(H5Tget_class) X(H5Tget_cset) X(H5Tget_size) \
 	X(H5Tget_strpad) X(H5Tis_variable_str) X(H5Tset_cset) X(H5Tset_size) \
-	X(H5Tset_strpad)
-/* the library's globals behind H5T_NATIVE_DOUBLE and H5T_C_S1 */
-#define IM_H5_VARS(X) X(H5T_NATIVE_DOUBLE_g) X(H5T_C_S1_g)
+	X(H5Tset_strpad) \
+	X(H5FDregister) X(H5Pcreate) X(H5Pclose) X(H5Pset_driver)
+/* the library's globals behind H5T_NATIVE_DOUBLE, H5T_C_S1 and
+ * H5P_FILE_ACCESS */
+#define IM_H5_VARS(X) X(H5T_NATIVE_DOUBLE_g) X(H5T_C_S1_g) X(H5P_CLS_FILE_ACCESS_ID_g)
 
 #define IM_H5_FIELD(f) __typeof__(&f) p_##f;
 typedef struct im_h5_api {
@@ -83,6 +91,10 @@ int im_h5_load(char *err);
 #undef H5Tset_cset
 #undef H5Tset_size
 #undef H5Tset_strpad
+#undef H5FDregister
+#undef H5Pcreate
+#undef H5Pclose
+#undef H5Pset_driver
 #define H5open (*im_h5.p_H5open)
 #define H5check_version (*im_h5.p_H5check_version)
 #define H5free_memory (*im_h5.p_H5free_memory)
@@ -122,8 +134,13 @@ int im_h5_load(char *err);
 #define H5Tset_cset (*im_h5.p_H5Tset_cset)
 #define H5Tset_size (*im_h5.p_H5Tset_size)
 #define H5Tset_strpad (*im_h5.p_H5Tset_strpad)
+#define H5FDregister (*im_h5.p_H5FDregister)
+#define H5Pcreate (*im_h5.p_H5Pcreate)
+#define H5Pclose (*im_h5.p_H5Pclose)
+#define H5Pset_driver (*im_h5.p_H5Pset_driver)
 #define H5T_NATIVE_DOUBLE_g (*im_h5.p_H5T_NATIVE_DOUBLE_g)
 #define H5T_C_S1_g (*im_h5.p_H5T_C_S1_g)
+#define H5P_CLS_FILE_ACCESS_ID_g (*im_h5.p_H5P_CLS_FILE_ACCESS_ID_g)
 #endif
 
 #endif

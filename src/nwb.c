@@ -7,6 +7,7 @@
 
 #include "common.h"
 #include "fileio.h"
+#include "h5undo.h"
 
 #include "h5lazy.h" /* <hdf5.h>, the library loaded on first use */
 
@@ -279,8 +280,9 @@ static herr_t visit(hid_t parent, const char *name, const H5L_info_t *info, void
 	return 0;
 }
 
-/* Open path read-only, or -1 with a one-line err. */
-static hid_t open_h5(const char *path, unsigned flags, char *err)
+/* Open path (flags: H5F_ACC_RDONLY or _RDWR, through fapl), or -1 with a
+ * one-line err. */
+static hid_t open_h5(const char *path, unsigned flags, hid_t fapl, char *err)
 {
 	struct stat st;
 	if (stat(path, &st) != 0)
@@ -290,7 +292,7 @@ static hid_t open_h5(const char *path, unsigned flags, char *err)
 	htri_t is = H5Fis_hdf5(path);
 	if (is == 0)
 		return im_fail(err, "%s is not an HDF5 file (an NWB 2.x recording is one)", path);
-	hid_t f = H5Fopen(path, flags, H5P_DEFAULT);
+	hid_t f = H5Fopen(path, flags, fapl);
 	if (f < 0) {
 		char cause[160];
 		h5_cause(cause);
@@ -327,20 +329,44 @@ static int read_open(hid_t fid, const char *path, nwb_file *f, char *err)
 	return 0;
 }
 
-int nwb_read(const char *path, nwb_file *f, char *err)
+/* Read path into f (as nwb_read).  keep NULL: read-only, closed again;
+ * otherwise opened read-write through the undo driver (h5undo.h) and left
+ * open in *keep for the change, so the file is opened and its metadata
+ * read once. */
+static int read_file(const char *path, hid_t *keep, nwb_file *f, char *err)
 {
+	char note[IM_ERRLEN];
 	memset(f, 0, sizeof *f);
-	if (im_h5_load(err))
+	int rec = h5u_recover(path, note, sizeof note, err);
+	if (rec < 0 || im_h5_load(err))
 		return -1;
 	quiet();
-	hid_t fid = open_h5(path, H5F_ACC_RDONLY, err);
-	if (fid < 0)
+	hid_t fapl = keep ? h5u_fapl(err) : H5P_DEFAULT;
+	if (fapl < 0)
 		return -1;
-	int rc = read_open(fid, path, f, err);
-	H5Fclose(fid);
+	hid_t fid = open_h5(path, keep ? H5F_ACC_RDWR : H5F_ACC_RDONLY, fapl, err);
+	if (keep)
+		H5Pclose(fapl);
+	if (keep && fid < 0 && h5u_was_locked())
+		im_fail(err, "cannot change %s in place: another program has it open (locked);"
+			" close it there, or write a corrected copy with `to OUT.nwb`", path);
+	int rc = fid < 0 ? -1 : read_open(fid, path, f, err);
+	if (fid >= 0 && (rc || !keep))
+		H5Fclose(fid);
+	if (keep && (rc || fid < 0))
+		h5u_discard(); /* nothing was written */
 	if (rc)
 		nwb_file_free(f);
+	else if (keep)
+		*keep = fid;
+	if (rc == 0 && rec == 1)
+		f->recovered = im_xstrdup(note);
 	return rc;
+}
+
+int nwb_read(const char *path, nwb_file *f, char *err)
+{
+	return read_file(path, NULL, f, err);
 }
 
 void nwb_file_free(nwb_file *f)
@@ -354,6 +380,7 @@ void nwb_file_free(nwb_file *f)
 	}
 	free(f->s);
 	free(f->version);
+	free(f->recovered);
 	memset(f, 0, sizeof *f);
 }
 
@@ -365,6 +392,7 @@ void nwb_result_free(nwb_result *r)
 		free(r->c[i].unit);
 	}
 	free(r->c);
+	free(r->recovered);
 	memset(r, 0, sizeof *r);
 }
 
@@ -573,6 +601,87 @@ static int apply(hid_t fid, const nwb_series *const *pick, int n, const nwb_reco
 	return 0;
 }
 
+/* The corrected copy: copy in_path to out_path's temporary, change the
+ * copy, fsync and rename it into place (the copy's cost grows with the
+ * file; a new file has to be written whole). */
+static int to_copy(const char *in_path, const char *out_path, const nwb_series *const *pick,
+		   int np, const nwb_record *rec, nwb_result *res, char *err)
+{
+	fio_file *out;
+	char note[IM_ERRLEN];
+	/* an interrupted change of the file replaced: undone first, or its
+	 * journal would not match the new file */
+	if (h5u_recover(out_path, note, sizeof note, err) < 0)
+		return -1;
+	if (fio_open(&out, out_path, err))
+		return -1;
+	if (fio_is_direct(out)) {
+		fio_abort(out);
+		return im_fail(err, "cannot write %s: an NWB file must go to a regular file",
+			       out_path);
+	}
+	fflush(fio_stream(out));
+	if (copy_bytes(in_path, fileno(fio_stream(out)), out_path, err)) {
+		fio_abort(out);
+		return -1;
+	}
+	hid_t fid = H5Fopen(fio_temp_path(out), H5F_ACC_RDWR, H5P_DEFAULT);
+	if (fid < 0) {
+		char cause[160];
+		h5_cause(cause);
+		fio_abort(out);
+		return im_fail(err, "cannot open the copy of %s: %s", in_path, cause);
+	}
+	int arc = apply(fid, pick, np, rec, res, err);
+	if (H5Fclose(fid) < 0 && arc == 0) {
+		char cause[160];
+		h5_cause(cause);
+		arc = im_fail(err, "cannot write %s: %s", out_path, cause);
+	}
+	if (arc) {
+		fio_abort(out);
+		nwb_result_free(res);
+		return -1;
+	}
+	if (fio_commit(out, err)) {
+		nwb_result_free(res);
+		return -1;
+	}
+	return 0;
+}
+
+/* In place, on *fid opened by read_file through the undo driver
+ * (h5undo.h): HDF5's writes are kept in memory and reach the file with
+ * an undo journal at h5u_commit, so the cost follows the metadata
+ * changed, not the size of the data, and the file has every change or
+ * none.  *fid is closed (-1) on return. */
+static int in_place(const char *path, hid_t *fid, const nwb_series *const *pick, int np,
+		    const nwb_record *rec, nwb_result *res, char *err)
+{
+	int arc = apply(*fid, pick, np, rec, res, err);
+	herr_t closed = H5Fclose(*fid);
+	*fid = -1;
+	if (closed < 0 && arc == 0) {
+		char cause[160];
+		h5_cause(cause);
+		arc = im_fail(err, "cannot write %s: %s", path, cause);
+	}
+	if (arc || h5u_commit(path, err)) {
+		h5u_discard();
+		nwb_result_free(res);
+		return -1;
+	}
+	return 0;
+}
+
+/* 1 when path is a file ionmix may change in place. */
+static int writable(const char *path)
+{
+	struct stat st;
+	return stat(path, &st) == 0 && S_ISREG(st.st_mode) && access(path, W_OK) == 0 &&
+	       (st.st_mode & (S_IWUSR | S_IWGRP | S_IWOTH));
+}
+
 int nwb_correct(const char *in_path, const char *out_path, const char *const *names,
 		int nnames, int again, const nwb_record *rec, nwb_result *res, char *err)
 {
@@ -582,7 +691,8 @@ int nwb_correct(const char *in_path, const char *out_path, const char *const *na
 		return im_fail(err, "the LJP is not a finite number");
 	if (out_path && fio_same_file(in_path, out_path))
 		out_path = NULL;
-	if (nwb_read(in_path, &f, err))
+	hid_t fid = -1; /* in place: the file, open read-write */
+	if (read_file(in_path, !out_path && writable(in_path) ? &fid : NULL, &f, err))
 		return -1;
 
 	/* choose and check, before anything is written */
@@ -626,55 +736,26 @@ int nwb_correct(const char *in_path, const char *out_path, const char *const *na
 		if (check_series(&f, pick[i], in_path, again, err))
 			goto out;
 	if (!out_path) {
-		struct stat st;
-		if (stat(in_path, &st) != 0 || access(in_path, W_OK) != 0 ||
-		    !(st.st_mode & (S_IWUSR | S_IWGRP | S_IWOTH))) {
+		if (fid < 0) {
 			im_fail(err, "%s is read-only: write the corrected copy elsewhere with"
 				" `to OUT.nwb`", in_path);
 			goto out;
 		}
 	}
 
-	/* copy, change the copy, commit */
-	fio_file *out;
-	const char *target = out_path ? out_path : in_path;
-	if (fio_open(&out, target, err))
+	if (out_path ? to_copy(in_path, out_path, pick, np, rec, res, err)
+		     : in_place(in_path, &fid, pick, np, rec, res, err))
 		goto out;
-	if (fio_is_direct(out)) {
-		fio_abort(out);
-		im_fail(err, "cannot write %s: an NWB file must go to a regular file", target);
-		goto out;
-	}
-	fflush(fio_stream(out));
-	if (copy_bytes(in_path, fileno(fio_stream(out)), target, err)) {
-		fio_abort(out);
-		goto out;
-	}
-	hid_t fid = H5Fopen(fio_temp_path(out), H5F_ACC_RDWR, H5P_DEFAULT);
-	if (fid < 0) {
-		char cause[160];
-		h5_cause(cause);
-		fio_abort(out);
-		im_fail(err, "cannot open the copy of %s: %s", in_path, cause);
-		goto out;
-	}
-	int arc = apply(fid, pick, np, rec, res, err);
-	if (H5Fclose(fid) < 0 && arc == 0) {
-		char cause[160];
-		h5_cause(cause);
-		arc = im_fail(err, "cannot write %s: %s", target, cause);
-	}
-	if (arc) {
-		fio_abort(out);
-		nwb_result_free(res);
-		goto out;
-	}
-	if (fio_commit(out, err)) {
-		nwb_result_free(res);
-		goto out;
+	if (f.recovered) {
+		res->recovered = f.recovered;
+		f.recovered = NULL;
 	}
 	rc = 0;
 out:
+	if (fid >= 0) { /* refused before any change */
+		H5Fclose(fid);
+		h5u_discard();
+	}
 	free(pick);
 	nwb_file_free(&f);
 	return rc;

@@ -19,12 +19,16 @@
  *
  * Each correction appends a record to the series' `comments` attribute
  * (text starting NWB_RECORD_MARK), which is how a second correction is
- * recognised and refused unless asked for.  A correction works on a copy
- * made in the target's directory through fileio (so a signal handler's
- * fio_remove_temps removes it), changed, fsync'ed and renamed over the
- * target: a reader sees the old file or the whole new one.  Files are
- * checked before anything is written, so a refused correction leaves no
- * file behind.
+ * recognised and refused unless asked for.  A correction to another file
+ * works on a copy made in the target's directory through fileio (so a
+ * signal handler's fio_remove_temps removes it), changed, fsync'ed and
+ * renamed over the target: a reader sees the old file or the whole new
+ * one.  A correction in place changes the file itself through h5undo.h:
+ * only the changed metadata is written, after an undo journal, so it
+ * costs the same whatever the size of the data and the file gets every
+ * change or none, also across a crash (the next read of the file undoes
+ * an interrupted one: nwb_file.recovered).  Files are checked before
+ * anything is written, so a refused correction leaves no file behind.
  *
  * Every function silences HDF5's own error printing and returns 0, or -1
  * with a one-line message in err.
@@ -62,6 +66,8 @@ typedef struct nwb_file {
 	char *version;       /* root attribute nwb_version, "" when missing (owned) */
 	nwb_series *s;       /* patch-clamp series, in file order (owned) */
 	int n;
+	char *recovered;     /* one line when an interrupted correction was undone
+				before reading, else NULL (owned) */
 } nwb_file;
 
 /* 1 when path names an .nwb file (by extension, any case) or a file that
@@ -108,6 +114,8 @@ typedef struct nwb_change {
 typedef struct nwb_result {
 	nwb_change *c;        /* owned */
 	int n;
+	char *recovered;      /* as nwb_file's: an earlier interrupted correction
+				 undone first, else NULL (owned) */
 } nwb_result;
 
 /* Correct in_path for rec->ljp_mV.  names[0..nnames) choose series by

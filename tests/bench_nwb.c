@@ -4,12 +4,14 @@
  *
  * The files are written by tests/ref/nwbfiles.py (python3-h5py, the NWB
  * 2.x layout) in $TMPDIR (or /tmp): 100 series of 2,000 samples (under
- * 1 MB) and of 200,000 samples (about 75 MB).  Each run corrects every
- * potential series to a new file (copy, change the offsets and comments,
- * fsync, rename); best of several runs, CLOCK_MONOTONIC.  Goal: under
- * 50 ms whatever the data size.  The copy is the part that grows with the
- * data (copy_file_range: a clone on filesystems with reflinks, a byte copy
- * on ext4), so the time of a plain copy of the same file is printed too.
+ * 1 MB) and of 200,000 samples (about 80 MB).  In place (the file
+ * itself, through the undo driver of h5undo.c: only the changed metadata
+ * is written, after its undo journal) every potential series is
+ * corrected; best of several runs, CLOCK_MONOTONIC.  Goal: under 50 ms
+ * whatever the data size.  `to OUT.nwb` has to write a whole new file:
+ * its time is printed beside the time of a plain copy of the same file
+ * (copy_file_range: a clone on filesystems with reflinks, a byte copy on
+ * ext4), its floor.
  * Prints bench|WHAT|FIGURE|GOAL|RATIO lines.
  */
 #define _GNU_SOURCE
@@ -55,6 +57,30 @@ static double copy_time(const char *src, const char *dst)
 	return now_s() - t0;
 }
 
+/* The best of RUNS corrections of path, in place (out NULL) or to out;
+ * ms, or -1 with err.  *nser: the series changed. */
+static double best_ms(const char *path, const char *out, int *nser, char *err)
+{
+	nwb_record rec = { .ljp_text = "14.6", .ljp_mV = 14.6, .model = "given by the user",
+			   .version = "bench", .date = "2026-01-01T00:00:00Z" };
+	double best = 1e30;
+	for (int r = 0; r < RUNS; r++) {
+		nwb_result res;
+		if (out)
+			unlink(out);
+		double t0 = now_s();
+		/* in place the file keeps each correction: the later runs add one */
+		if (nwb_correct(path, out, NULL, 0, 1, &rec, &res, err))
+			return -1;
+		double t = now_s() - t0;
+		*nser = res.n;
+		nwb_result_free(&res);
+		if (t < best)
+			best = t;
+	}
+	return best * 1e3;
+}
+
 static int one(const char *dir, int samples, const char *label)
 {
 	char path[600], outp[620], cmd[1600], err[IM_ERRLEN];
@@ -71,33 +97,31 @@ static int one(const char *dir, int samples, const char *label)
 	}
 	struct stat st;
 	stat(path, &st);
-	nwb_record rec = { .ljp_text = "14.6", .ljp_mV = 14.6, .model = "given by the user",
-			   .version = "bench", .date = "2026-01-01T00:00:00Z" };
-	double best = 1e30, cbest = 1e30;
+	int fd = open(path, O_RDONLY); /* the file on disk first: its writing is not measured */
+	if (fd >= 0) {
+		fsync(fd);
+		close(fd);
+	}
 	int nser = 0;
-	for (int r = 0; r < RUNS; r++) {
-		nwb_result res;
-		unlink(outp);
-		double t0 = now_s();
-		if (nwb_correct(path, outp, NULL, 0, 0, &rec, &res, err)) {
-			printf("bench|nwb correct, %s: %s|-|-|-\n", label, err);
-			unlink(path);
-			return 1;
-		}
-		double t = now_s() - t0;
-		nser = res.n;
-		nwb_result_free(&res);
-		if (t < best)
-			best = t;
+	/* in place first, before the copies fill the disk's queue */
+	double inpl = best_ms(path, NULL, &nser, err);
+	double to = inpl >= 0 ? best_ms(path, outp, &nser, err) : -1;
+	double cbest = 1e30;
+	for (int r = 0; r < RUNS && to >= 0; r++) {
 		double c = copy_time(path, outp);
 		if (c >= 0 && c < cbest)
 			cbest = c;
 	}
 	unlink(outp);
 	unlink(path);
-	printf("bench|nwb correct, 100 series (%d potential), %s, %.1f MB|%.1f ms|< 50 ms|%.2f\n",
-	       nser, label, st.st_size / 1e6, best * 1e3, best * 1e3 / 50.0);
-	printf("bench|  of which a plain copy of the same file (copy_file_range + fsync)|%.1f ms|-|-\n",
+	if (to < 0 || inpl < 0) {
+		printf("bench|nwb correct, %s: %s|-|-|-\n", label, err);
+		return 1;
+	}
+	printf("bench|nwb correct in place, 100 series (%d potential), %s, %.1f MB|%.1f ms|< 50 ms|%.2f\n",
+	       nser, label, st.st_size / 1e6, inpl, inpl / 50.0);
+	printf("bench|nwb correct to OUT.nwb (a full copy), same file|%.1f ms|floor: the copy|-\n", to);
+	printf("bench|  the floor: a plain copy of the same file (copy_file_range + fsync)|%.1f ms|-|-\n",
 	       cbest * 1e3);
 	return 0;
 }

@@ -17,12 +17,20 @@ What is checked, and against what:
  - the LJP of `for PIPETTE BATH` is the one `correct value 0 for ...`
    subtracts (the program's one Henderson path), and the record carries
    the range `junction` gives for the same pair;
+ - in place: the same file (inode) changed, every data byte kept; a
+   write that fails during the commit (test hook IONMIX_TEST_NWB_FAULT)
+   leaves the file byte-identical and no journal; a crash at any write
+   (the hook ends the process) is undone by the next `list` or `correct`
+   to the original bytes; a journal that does not match the file (another
+   inode, bytes changed since) is left alone with an error, one cut short
+   is removed;
  - a second correction refused, `again` accepted; NWB 2.4 (no offset)
    refused with a message naming 2.5; truncated and non-HDF5 files, a
    missing series, a series of another kind and a read-only file without
    `to` give a one-line error, exit status 1, the original untouched and
    no file left behind.
 """
+import fcntl
 import hashlib
 import json
 import os
@@ -197,6 +205,135 @@ try:
     check(data_hashes(C) == (a_vals, a_raw), "in place: data bytes unchanged")
     check(not [f for f in listing() if f.startswith(".") or "tmp" in f],
           "no temporary file left: %r" % listing())
+
+    # -- in place: the same inode changed, data bytes and values kept,
+    # offsets by exactly -LJP (float32), no journal left
+    E = os.path.join(WORK, "e.nwb")
+    shutil.copy(A, E)
+    ino = os.stat(E).st_ino
+    r = run("correct e.nwb by 7.5")
+    check(r.returncode == 0, "in place, every potential series: %s" % r.stderr)
+    check(os.stat(E).st_ino == ino, "in place changes the file itself (same inode)")
+    check(data_hashes(E) == (a_vals, a_raw), "in place, all series: data bytes unchanged")
+    for s in (CCS, IZ, VCSS):
+        want = np.float32(float(before[s]["offset"]) - 0.0075)
+        check(attrs(E, s)["offset"] == want, "in place: %s offset %r, want %r"
+              % (s, attrs(E, s)["offset"], want))
+    for s in (VCS, CCSS):
+        check(attrs(E, s) == before[s], "in place: %s (a current) untouched" % s)
+    check(not [f for f in listing() if f.endswith(".ionmix-undo")], "in place: no journal left")
+
+    # -- a write that fails during the commit (the test hook fails the
+    # N-th write into the file): the file byte-identical, no journal
+    def fault(cmd, env_value):
+        os.environ["IONMIX_TEST_NWB_FAULT"] = env_value
+        try:
+            return run(cmd)
+        finally:
+            del os.environ["IONMIX_TEST_NWB_FAULT"]
+
+    F = os.path.join(WORK, "f.nwb")
+    JF = os.path.join(WORK, ".f.nwb.ionmix-undo")
+    fired = 0
+    for n in range(1, 40):
+        shutil.copy(A, F)
+        r = fault("correct f.nwb by 7.5", "fail:%d" % n)
+        if r.returncode == 0:
+            break
+        fired += 1
+        one_line_error(r, "injected failure of write %d" % n, "undone")
+        check(sha(F) == a_sha, "failure at write %d: f.nwb byte-identical" % n)
+        check(not os.path.exists(JF), "failure at write %d: no journal left" % n)
+    check(fired >= 2, "the failure hook fired at several writes (%d)" % fired)
+    nwrites = fired
+    print("in place: %d writes into the file per correction, each failed and crashed once" % nwrites)
+    check(r.returncode == 0 and attrs(F, CCS)["offset"] == np.float32(-0.0075),
+          "past the last write the hook does not fire and the correction is made")
+
+    # -- a crash in the middle (the hook ends the process before the N-th
+    # write, after the journal): the next `list` or `correct` undoes it
+    for n in range(1, nwrites + 1):
+        shutil.copy(A, F)
+        r = fault("correct f.nwb by 7.5", "crash:%d" % n)
+        check(r.returncode == 99, "crash before write %d: the process ended (%d)"
+              % (n, r.returncode))
+        check(os.path.exists(JF), "crash before write %d: the journal is left" % n)
+        if n == nwrites:
+            check(sha(F) != a_sha, "crash before the last write: the file was half-changed")
+        r = run("list f.nwb")
+        check(r.returncode == 0 and "interrupted correction was undone" in r.stdout,
+              "list after a crash at write %d says it undid it: %r %r" % (n, r.stdout, r.stderr))
+        check(sha(F) == a_sha, "crash at write %d undone: f.nwb byte-identical" % n)
+        check(not os.path.exists(JF), "crash at write %d undone: the journal removed" % n)
+    # SIGTERM in the middle of the commit waits for its end: the process
+    # ends by the signal with every change made and no journal
+    shutil.copy(A, F)
+    r = fault("correct f.nwb by 7.5", "signal:%d" % max(2, nwrites // 2))
+    check(r.returncode == -15, "SIGTERM during the commit ends the process (%d)" % r.returncode)
+    check(not os.path.exists(JF) and attrs(F, VCSS)["offset"] == np.float32(-0.0075) and
+          attrs(F, CCS)["offset"] == np.float32(-0.0075),
+          "SIGTERM during the commit: held back until every change was written")
+    shutil.copy(A, F)
+    fault("correct f.nwb by 7.5", "crash:2")
+    r = run("correct f.nwb by 3", json_out=True)
+    check(r.returncode == 0, "correct after a crash: %s" % r.stderr)
+    check(any("interrupted correction was undone" in n
+              for n in json.loads(r.stdout).get("notes", [])),
+          "correct after a crash notes the undo in JSON: %r" % r.stdout)
+    check(attrs(F, CCS)["offset"] == np.float32(-0.003) and
+          attrs(F, CCS)["comments"].count("ionmix LJP correction:") == 1,
+          "correct after a crash: one correction, from the original offset")
+    check(data_hashes(F) == (a_vals, a_raw), "correct after a crash: data bytes unchanged")
+
+    # -- a journal that does not match the file: error, both left alone
+    shutil.copy(A, F)
+    fault("correct f.nwb by 7.5", "crash:1")
+    G = os.path.join(WORK, "g.nwb")
+    JG = os.path.join(WORK, ".g.nwb.ionmix-undo")
+    shutil.copy(A, G)
+    shutil.copy(JF, JG)  # another file's journal (another inode)
+    jg = sha(JG)
+    r = run("list g.nwb")
+    one_line_error(r, "another file's journal", "does not match")
+    check(sha(G) == a_sha and sha(JG) == jg, "another file's journal: both left alone")
+    os.unlink(JG)
+    with open(JF, "rb") as fp:  # the first range of f's journal: offset, length
+        head = fp.read(16 + 7 * 8)
+    off, ln = np.frombuffer(head[56:72], dtype="<u8")
+    with open(F, "r+b") as fp:  # changed since: neither the old nor the new bytes
+        fp.seek(int(off))
+        fp.write(bytes([0xA5]) * int(ln))
+    f_sha, jf = sha(F), sha(JF)
+    r = run("correct f.nwb by 1")
+    one_line_error(r, "a journal that no longer matches", "does not match")
+    check(sha(F) == f_sha and sha(JF) == jf, "a mismatched journal: file and journal left alone")
+    os.unlink(JF)
+    # a journal cut short (a crash while it was written): the file was not
+    # touched yet, the journal is removed with a note
+    shutil.copy(A, F)
+    fault("correct f.nwb by 7.5", "crash:1")
+    with open(JF, "r+b") as fp:
+        fp.truncate(os.path.getsize(JF) - 5)
+    r = run("list f.nwb")
+    check(r.returncode == 0 and "incomplete undo journal" in r.stdout and
+          not os.path.exists(JF) and sha(F) == a_sha,
+          "an incomplete journal removed with a note: %r %r" % (r.stdout, r.stderr))
+    # an HDF5 reader holding the file (HDF5's file lock, when the library
+    # takes one): in place is refused in one line, the file untouched
+    shutil.copy(A, F)
+    with h5py.File(F, "r"):
+        with open(F, "rb") as fp:
+            try:
+                fcntl.flock(fp, fcntl.LOCK_EX | fcntl.LOCK_NB)
+                held = False
+            except BlockingIOError:
+                held = True
+        if held:
+            r = run("correct f.nwb by 1")
+            one_line_error(r, "in place while another program holds the file", "another program")
+            check(sha(F) == a_sha and not os.path.exists(JF), "a locked file untouched")
+    os.unlink(F)
+    os.unlink(E)
 
     # -- dispatch by the HDF5 signature, whatever the extension
     H = os.path.join(WORK, "rec.h5")
