@@ -512,30 +512,46 @@ static int lower(int c)
 	return (c >= 'A' && c <= 'Z') ? c + 32 : c;
 }
 
-/* Edit distance, case-insensitive, capped at strings of 63 bytes. */
-static int distance(const char *a, const char *b)
+/* Edit distance between a (already lower case, la <= 63 bytes) and b
+ * (case-insensitive, its first 63 bytes), when it is at most max; any
+ * larger distance comes back as max + 1.  Only the band |i - j| <= max of
+ * the table is filled (a cell outside it is at least |i - j|), every value
+ * is clamped to max + 1 (the recurrence keeps min(D, max + 1) exact), and
+ * the search stops at the first row whose every cell exceeds max: the
+ * distance can only grow from there. */
+static int distance_within(const char *a, int la, const char *b, int max)
 {
-	int la = (int)strlen(a), lb = (int)strlen(b), row[64];
-	if (la > 63)
-		la = 63;
-	if (lb > 63)
-		lb = 63;
+	int lb = 0, row[64], far = max + 1;
+	char lb_[64];
+	while (lb < 63 && b[lb]) {
+		lb_[lb] = (char)lower((unsigned char)b[lb]);
+		lb++;
+	}
+	if (la - lb > max || lb - la > max)
+		return far;
 	for (int j = 0; j <= lb; j++)
-		row[j] = j;
+		row[j] = j <= max ? j : far;
 	for (int i = 1; i <= la; i++) {
-		int diag = row[0];
-		row[0] = i;
-		for (int j = 1; j <= lb; j++) {
+		int lo = i - max > 1 ? i - max : 1, hi = i + max < lb ? i + max : lb;
+		int diag = row[lo - 1], least;
+		row[lo - 1] = lo == 1 ? (i <= max ? i : far) : far;
+		least = row[lo - 1];
+		for (int j = lo; j <= hi; j++) {
 			int up = row[j];
-			int cost = lower((unsigned char)a[i - 1]) != lower((unsigned char)b[j - 1]);
-			int best = diag + cost;
+			int best = diag + (a[i - 1] != lb_[j - 1]);
 			if (row[j - 1] + 1 < best)
 				best = row[j - 1] + 1;
 			if (up + 1 < best)
 				best = up + 1;
+			if (best > far)
+				best = far;
 			row[j] = best;
 			diag = up;
+			if (best < least)
+				least = best;
 		}
+		if (least > max)
+			return far;
 	}
 	return row[lb];
 }
@@ -553,15 +569,23 @@ static int cand_cmp(const void *a, const void *b)
 
 int refdb_suggest(const refdb *r, const char *name, const char **out, int max)
 {
-	int total = r->ncmp + r->nal, k = 0, nc = 0;
+	int total = r->ncmp + r->nal, k = 0, nc = 0, la = 0;
 	size_t len = strlen(name);
+	int reach = 2 + (int)len / 4; /* the farthest a suggestion may be */
+	char low[64];
 	cand *c = im_xcalloc(total, sizeof *c);
+	while (la < 63 && name[la]) {
+		low[la] = (char)lower((unsigned char)name[la]);
+		la++;
+	}
 	for (int i = 0; i < total; i++) {
 		const char *s = i < r->ncmp ? r->cmp[i].name : r->al[i - r->ncmp].alias;
-		int d = distance(name, s);
+		int d;
 		if (len >= 2 && strncasecmp(s, name, len) == 0)
 			d = 1; /* a prefix counts as close */
-		if (d <= 2 + (int)len / 4) {
+		else
+			d = distance_within(low, la, s, reach);
+		if (d <= reach) {
 			c[nc].d = d;
 			c[nc++].canon = i < r->ncmp ? s : r->al[i - r->ncmp].c->name;
 		}
