@@ -41,6 +41,7 @@
 #include <string.h>
 
 #include "common.h"
+#include "signals.h"
 
 #define DF_ZETA_MAX 12.0
 #define DF_ZETA_CAP 40.0
@@ -396,7 +397,8 @@ static int block_solve(sys *s)
 }
 
 /* Newton's method from s->c; 0 when the correction fell below
- * DF_NEWTON_TOL, -1 otherwise (s->c then unspecified). */
+ * DF_NEWTON_TOL, -1 otherwise (s->c then unspecified), -2 when a Ctrl-C
+ * in the shell cancelled it (polled at every iteration). */
 static int newton(sys *s, int maxit, int *its, double *res)
 {
 	int n = s->n, M = s->M;
@@ -406,6 +408,8 @@ static int newton(sys *s, int maxit, int *its, double *res)
 		return -1;
 	for (int it = 0; it < maxit; it++) {
 		double dmax = 0, r1 = INFINITY, a = 1.0;
+		if (sig_cancelled())
+			return -2;
 		(*its)++;
 		if (block_solve(s))
 			return -1;
@@ -462,17 +466,20 @@ static double potential(const sys *s)
 }
 
 /* Solve on the current grid: Newton from the start (or the given guess),
- * else continuation in lambda from Henderson's profile. */
+ * else continuation in lambda from Henderson's profile.  0, -1 (no
+ * convergence) or -2 (cancelled). */
 static int solve_grid(sys *s, const df_opts *o, int have_guess, df_report *r)
 {
 	size_t tot = (size_t)s->M * s->n;
 	double *keep, done = 0, step = 0.25;
+	int rc;
 	s->lam = 1.0;
 	if (!have_guess)
 		start_profile(s);
 	r->continuation = 1;
-	if (newton(s, o->max_newton, &r->newton_its, &r->residual) == 0)
-		return 0;
+	rc = newton(s, o->max_newton, &r->newton_its, &r->residual);
+	if (rc != -1)
+		return rc;
 	keep = im_xmalloc(tot * sizeof *keep);
 	while (done < 1.0) {
 		double lam = fmin(1.0, done + step);
@@ -490,7 +497,12 @@ static int solve_grid(sys *s, const df_opts *o, int have_guess, df_report *r)
 				}
 			set_ends(s, s->c);
 		}
-		if (newton(s, o->max_newton, &r->newton_its, &r->residual) == 0) {
+		rc = newton(s, o->max_newton, &r->newton_its, &r->residual);
+		if (rc == -2) {
+			free(keep);
+			return -2;
+		}
+		if (rc == 0) {
 			memcpy(keep, s->c, tot * sizeof *keep);
 			done = lam;
 			step *= 2;
@@ -548,7 +560,7 @@ int df_ljp_mV(const jn_ion *ions, int n, double t_C, const df_opts *opts, df_rep
 	df_report r;
 	sys s;
 	double dref = 0, dmax = 0, cs = 0, E, Ec = NAN, rtf, Kp = 0, Kb = 0;
-	int rc = -1;
+	int rc = -1, grid_rc;
 	if (opts)
 		o = *opts;
 	else
@@ -605,7 +617,12 @@ int df_ljp_mV(const jn_ion *ions, int n, double t_C, const df_opts *opts, df_rep
 	r.zeta_max = s.Z;
 	sys_grid(&s, o.grid_points);
 	rtf = im_rt_f_mV(t_C);
-	if (solve_grid(&s, &o, 0, &r)) {
+	grid_rc = solve_grid(&s, &o, 0, &r);
+	if (grid_rc == -2) {
+		im_fail(err, "free diffusion: %s", SIG_CANCELLED_MSG);
+		goto out;
+	}
+	if (grid_rc) {
 		im_fail(err, "free diffusion: Newton's method did not converge on %d points, "
 			     "even by continuation in the concentration step", s.M);
 		goto out;
@@ -622,7 +639,12 @@ int df_ljp_mV(const jn_ion *ions, int n, double t_C, const df_opts *opts, df_rep
 		}
 		refine(&s);
 		Ec = E;
-		if (solve_grid(&s, &o, 1, &r)) {
+		grid_rc = solve_grid(&s, &o, 1, &r);
+		if (grid_rc == -2) {
+			im_fail(err, "free diffusion: %s", SIG_CANCELLED_MSG);
+			goto out;
+		}
+		if (grid_rc) {
 			im_fail(err, "free diffusion: Newton's method did not converge on %d "
 				     "points", s.M);
 			goto out;
