@@ -41,6 +41,9 @@ struct refdb {
 	int builtin;          /* 1: the arrays are the generated tables */
 	char **strings; /* every string the arrays point to */
 	int nstr, capstr;
+	unsigned char (*counts)[32]; /* letter_counts of each compound name, then
+				      * of each alias: made by the first
+				      * refdb_suggest; owned */
 };
 
 static const char *keep(refdb *r, const unsigned char *s)
@@ -392,6 +395,7 @@ void refdb_close(refdb *r)
 	if (!r)
 		return;
 	sqlite3_close(r->db);
+	free(r->counts);
 	if (r->builtin) {
 		free(r);
 		return;
@@ -556,6 +560,18 @@ static int distance_within(const char *a, int la, const char *b, int max)
 	return row[lb];
 }
 
+/* The letters of the first 63 bytes of s counted in 32 classes (case
+ * folded, by the low 5 bits).  An insertion or a deletion changes one
+ * count by 1, a substitution at most two, so the edit distance of two
+ * strings is at least half the summed differences of their counts: a
+ * cheap test that spares most names the table of distance_within. */
+static void letter_counts(const char *s, unsigned char *h)
+{
+	memset(h, 0, 32);
+	for (int i = 0; i < 63 && s[i]; i++)
+		h[lower((unsigned char)s[i]) & 31]++;
+}
+
 typedef struct cand {
 	int d;
 	const char *canon;
@@ -573,16 +589,30 @@ int refdb_suggest(const refdb *r, const char *name, const char **out, int max)
 	size_t len = strlen(name);
 	int reach = 2 + (int)len / 4; /* the farthest a suggestion may be */
 	char low[64];
+	unsigned char mine[32];
 	cand *c = im_xcalloc(total, sizeof *c);
+	if (!r->counts) {
+		/* made once; r was allocated writable (as in refdb_sqlite) */
+		refdb *w = (refdb *)r;
+		w->counts = im_xmalloc((size_t)(total ? total : 1) * sizeof *w->counts);
+		for (int i = 0; i < total; i++)
+			letter_counts(i < r->ncmp ? r->cmp[i].name : r->al[i - r->ncmp].alias,
+				      w->counts[i]);
+	}
 	while (la < 63 && name[la]) {
 		low[la] = (char)lower((unsigned char)name[la]);
 		la++;
 	}
+	letter_counts(name, mine);
 	for (int i = 0; i < total; i++) {
 		const char *s = i < r->ncmp ? r->cmp[i].name : r->al[i - r->ncmp].alias;
-		int d;
+		int d, diff = 0;
+		for (int q = 0; q < 32; q++)
+			diff += abs(mine[q] - r->counts[i][q]);
 		if (len >= 2 && strncasecmp(s, name, len) == 0)
 			d = 1; /* a prefix counts as close */
+		else if ((diff + 1) / 2 > reach)
+			d = reach + 1; /* farther than a suggestion may be */
 		else
 			d = distance_within(low, la, s, reach);
 		if (d <= reach) {
