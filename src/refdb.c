@@ -8,6 +8,7 @@
 
 #include <math.h>
 #include <stdio.h>
+#include <stdint.h>
 #include <stdlib.h>
 #include <string.h>
 #include <strings.h>
@@ -516,48 +517,50 @@ static int lower(int c)
 	return (c >= 'A' && c <= 'Z') ? c + 32 : c;
 }
 
-/* Edit distance between a (already lower case, la <= 63 bytes) and b
- * (case-insensitive, its first 63 bytes), when it is at most max; any
- * larger distance comes back as max + 1.  Only the band |i - j| <= max of
- * the table is filled (a cell outside it is at least |i - j|), every value
- * is clamped to max + 1 (the recurrence keeps min(D, max + 1) exact), and
- * the search stops at the first row whose every cell exceeds max: the
- * distance can only grow from there. */
-static int distance_within(const char *a, int la, const char *b, int max)
+/* A typed name prepared for edit distances (case-insensitive, its first
+ * 63 bytes): for each byte, the positions where the lower-cased name has
+ * it, as bits. */
+typedef struct pattern {
+	uint64_t at[256];
+	int m; /* bytes, <= 63 */
+} pattern;
+
+static void pattern_make(pattern *p, const char *name)
 {
-	int lb = 0, row[64], far = max + 1;
-	char lb_[64];
-	while (lb < 63 && b[lb]) {
-		lb_[lb] = (char)lower((unsigned char)b[lb]);
-		lb++;
+	memset(p->at, 0, sizeof p->at);
+	for (p->m = 0; p->m < 63 && name[p->m]; p->m++)
+		p->at[lower((unsigned char)name[p->m])] |= (uint64_t)1 << p->m;
+}
+
+/* The edit distance between the pattern and the first 63 bytes of b,
+ * case-insensitive: the bit-parallel form of the usual table (Myers 1999,
+ * in Hyyro's formulation for the whole-string distance), one machine word
+ * holding a column of vertical differences, so a character of b costs a
+ * dozen word operations instead of a row of the table. */
+static int pattern_distance(const pattern *p, const char *b)
+{
+	uint64_t pv = ~(uint64_t)0, mv = 0, top;
+	int score = p->m, j;
+	if (p->m == 0) {
+		for (j = 0; j < 63 && b[j]; j++)
+			;
+		return j;
 	}
-	if (la - lb > max || lb - la > max)
-		return far;
-	for (int j = 0; j <= lb; j++)
-		row[j] = j <= max ? j : far;
-	for (int i = 1; i <= la; i++) {
-		int lo = i - max > 1 ? i - max : 1, hi = i + max < lb ? i + max : lb;
-		int diag = row[lo - 1], least;
-		row[lo - 1] = lo == 1 ? (i <= max ? i : far) : far;
-		least = row[lo - 1];
-		for (int j = lo; j <= hi; j++) {
-			int up = row[j];
-			int best = diag + (a[i - 1] != lb_[j - 1]);
-			if (row[j - 1] + 1 < best)
-				best = row[j - 1] + 1;
-			if (up + 1 < best)
-				best = up + 1;
-			if (best > far)
-				best = far;
-			row[j] = best;
-			diag = up;
-			if (best < least)
-				least = best;
-		}
-		if (least > max)
-			return far;
+	top = (uint64_t)1 << (p->m - 1);
+	for (j = 0; j < 63 && b[j]; j++) {
+		uint64_t eq = p->at[lower((unsigned char)b[j])];
+		uint64_t xv = eq | mv, xh = (((eq & pv) + pv) ^ pv) | eq;
+		uint64_t ph = mv | ~(xh | pv), mh = pv & xh;
+		if (ph & top)
+			score++;
+		else if (mh & top)
+			score--;
+		ph = ph << 1 | 1; /* the first row: distance j from the empty prefix */
+		mh <<= 1;
+		pv = mh | ~(xv | ph);
+		mv = ph & xv;
 	}
-	return row[lb];
+	return score;
 }
 
 /* The letters of the first 63 bytes of s counted in 32 classes (case
@@ -585,11 +588,11 @@ static int cand_cmp(const void *a, const void *b)
 
 int refdb_suggest(const refdb *r, const char *name, const char **out, int max)
 {
-	int total = r->ncmp + r->nal, k = 0, nc = 0, la = 0;
+	int total = r->ncmp + r->nal, k = 0, nc = 0;
 	size_t len = strlen(name);
 	int reach = 2 + (int)len / 4; /* the farthest a suggestion may be */
-	char low[64];
 	unsigned char mine[32];
+	pattern pat;
 	cand *c = im_xcalloc(total, sizeof *c);
 	if (!r->counts) {
 		/* made once; r was allocated writable (as in refdb_sqlite) */
@@ -599,10 +602,7 @@ int refdb_suggest(const refdb *r, const char *name, const char **out, int max)
 			letter_counts(i < r->ncmp ? r->cmp[i].name : r->al[i - r->ncmp].alias,
 				      w->counts[i]);
 	}
-	while (la < 63 && name[la]) {
-		low[la] = (char)lower((unsigned char)name[la]);
-		la++;
-	}
+	pattern_make(&pat, name);
 	letter_counts(name, mine);
 	for (int i = 0; i < total; i++) {
 		const char *s = i < r->ncmp ? r->cmp[i].name : r->al[i - r->ncmp].alias;
@@ -614,7 +614,7 @@ int refdb_suggest(const refdb *r, const char *name, const char **out, int max)
 		else if ((diff + 1) / 2 > reach)
 			d = reach + 1; /* farther than a suggestion may be */
 		else
-			d = distance_within(low, la, s, reach);
+			d = pattern_distance(&pat, s);
 		if (d <= reach) {
 			c[nc].d = d;
 			c[nc++].canon = i < r->ncmp ? s : r->al[i - r->ncmp].c->name;
