@@ -209,13 +209,18 @@ static int face(const sys *s, const double *c, int k, double *F, double *dA, dou
 		F[i] = s->d[i] / h * (b[i] - a[i] + s->z[i] * 0.5 * (a[i] + b[i]) * p);
 	if (!jac)
 		return 0;
+	/* dp/dc of each side, the same for every row */
+	double pa[JN_MAX_IONS], pb[JN_MAX_IONS];
+	for (int j = 0; j < n; j++) {
+		double zd = s->z[j] * s->d[j], g2 = G * s->z[j] * zd / (2.0 * K * K);
+		pa[j] = zd / K + g2;
+		pb[j] = -zd / K + g2;
+	}
 	for (int i = 0; i < n; i++) {
 		double f = s->d[i] / h, zc = s->z[i] * 0.5 * (a[i] + b[i]);
 		for (int j = 0; j < n; j++) {
-			double zd = s->z[j] * s->d[j], g2 = G * s->z[j] * zd / (2.0 * K * K);
-			double pa = zd / K + g2, pb = -zd / K + g2;
-			dA[i * n + j] = f * zc * pa;
-			dB[i * n + j] = f * zc * pb;
+			dA[i * n + j] = f * zc * pa[j];
+			dB[i * n + j] = f * zc * pb[j];
 		}
 		dA[i * n + i] += f * (-1.0 + 0.5 * s->z[i] * p);
 		dB[i * n + i] += f * (1.0 + 0.5 * s->z[i] * p);
