@@ -30,6 +30,7 @@
 #include "cmd_store.h"
 #include "common.h"
 #include "render.h"
+#include "signals.h"
 
 static int cmd_run(im_ctx *ctx, int argc, char **argv, char *err);
 static int cmd_help(im_ctx *ctx, int argc, char **argv, char *err);
@@ -422,7 +423,9 @@ int cmd_loop(im_ctx *ctx, const cmd_reader *rd, int *line_out, char *err)
 			len--;
 		if (len > 0 && line[len - 1] == '\r')
 			len--;
-		if (len > CMD_LINE_MAX)
+		if (sig_cancelled()) /* Ctrl-C in the shell: a script stops between lines */
+			rc = im_fail(err, "%s", SIG_CANCELLED_MSG);
+		else if (len > CMD_LINE_MAX)
 			rc = im_fail(err, "line is longer than %d bytes, the limit of one line",
 				     CMD_LINE_MAX);
 		else if (memchr(line, '\0', len))

@@ -23,7 +23,8 @@
  *
  * Solution.  Newton's method with the exact Jacobian, block tridiagonal
  * (one n x n block per node), solved by block elimination with partial
- * pivoting; each step is cut back (halved up to 12 times) until the largest
+ * pivoting, the forward sweep done node by node as the Jacobian is
+ * assembled (only the eliminated upper blocks are kept); each step is cut back (halved up to 12 times) until the largest
  * residual falls, and components that would turn negative are halved
  * toward zero instead.  The start is Henderson's linear mixing along one
  * erfc profile.  If Newton does not converge within max_newton iterations,
@@ -41,6 +42,7 @@
 #include <string.h>
 
 #include "common.h"
+#include "signals.h"
 
 #define DF_ZETA_MAX 12.0
 #define DF_ZETA_CAP 40.0
@@ -81,7 +83,11 @@ typedef struct sys {
 	double *c;         /* M x n, boundaries included */
 	double *trial;     /* M x n */
 	double *R;         /* M x n (interior rows used) */
-	double *L, *Dg, *U, *X; /* M x n x n */
+	double *dx;        /* M x n: the Newton correction */
+	double *X;         /* M x n x n: D_k^-1 U_k after elimination */
+	double *L, *Dg, *U; /* n x n: the blocks of the node being eliminated */
+	int singular;      /* 1: a diagonal block was singular in the last
+			    * assembly of the Jacobian */
 	unsigned char *up; /* M x n: 1 = upwind advection */
 	int *piv;          /* n */
 	double *Fa, *Fb, *dA, *dB, *F0; /* scratch, n x n and n */
@@ -93,6 +99,7 @@ static void sys_free(sys *s)
 	free(s->c);
 	free(s->trial);
 	free(s->R);
+	free(s->dx);
 	free(s->L);
 	free(s->Dg);
 	free(s->U);
@@ -104,7 +111,7 @@ static void sys_free(sys *s)
 	free(s->dA);
 	free(s->dB);
 	free(s->F0);
-	s->zeta = s->c = s->trial = s->R = s->L = s->Dg = s->U = s->X = NULL;
+	s->zeta = s->c = s->trial = s->R = s->dx = s->L = s->Dg = s->U = s->X = NULL;
 	s->Fa = s->Fb = s->dA = s->dB = s->F0 = NULL;
 	s->up = NULL;
 	s->piv = NULL;
@@ -120,9 +127,10 @@ static void sys_grid(sys *s, int M)
 	s->c = im_xmalloc(sizeof(double) * M * n);
 	s->trial = im_xmalloc(sizeof(double) * M * n);
 	s->R = im_xmalloc(sizeof(double) * M * n);
-	s->L = im_xmalloc(sizeof(double) * M * nn);
-	s->Dg = im_xmalloc(sizeof(double) * M * nn);
-	s->U = im_xmalloc(sizeof(double) * M * nn);
+	s->dx = im_xmalloc(sizeof(double) * M * n);
+	s->L = im_xmalloc(sizeof(double) * nn);
+	s->Dg = im_xmalloc(sizeof(double) * nn);
+	s->U = im_xmalloc(sizeof(double) * nn);
 	s->X = im_xmalloc(sizeof(double) * M * nn);
 	s->up = im_xmalloc((size_t)M * n);
 	s->piv = im_xmalloc(sizeof(int) * n);
@@ -201,13 +209,18 @@ static int face(const sys *s, const double *c, int k, double *F, double *dA, dou
 		F[i] = s->d[i] / h * (b[i] - a[i] + s->z[i] * 0.5 * (a[i] + b[i]) * p);
 	if (!jac)
 		return 0;
+	/* dp/dc of each side, the same for every row */
+	double pa[JN_MAX_IONS], pb[JN_MAX_IONS];
+	for (int j = 0; j < n; j++) {
+		double zd = s->z[j] * s->d[j], g2 = G * s->z[j] * zd / (2.0 * K * K);
+		pa[j] = zd / K + g2;
+		pb[j] = -zd / K + g2;
+	}
 	for (int i = 0; i < n; i++) {
 		double f = s->d[i] / h, zc = s->z[i] * 0.5 * (a[i] + b[i]);
 		for (int j = 0; j < n; j++) {
-			double zd = s->z[j] * s->d[j], g2 = G * s->z[j] * zd / (2.0 * K * K);
-			double pa = zd / K + g2, pb = -zd / K + g2;
-			dA[i * n + j] = f * zc * pa;
-			dB[i * n + j] = f * zc * pb;
+			dA[i * n + j] = f * zc * pa[j];
+			dB[i * n + j] = f * zc * pb[j];
 		}
 		dA[i * n + i] += f * (-1.0 + 0.5 * s->z[i] * p);
 		dB[i * n + i] += f * (1.0 + 0.5 * s->z[i] * p);
@@ -215,8 +228,43 @@ static int face(const sys *s, const double *c, int k, double *F, double *dA, dou
 	return 0;
 }
 
-/* Residual of c (and the Jacobian blocks when jac); the largest |R| in
- * *rmax.  -1 when a conductance is not positive. */
+static int lu(double *a, int n, int *piv);
+static void lu_solve(const double *a, int n, const int *piv, double *b, int cols);
+
+/* The forward sweep of block elimination at node k, whose blocks are in
+ * s->L, s->Dg, s->U and residual in R: R becomes D'^-1 (R - L R_{k-1}'),
+ * X_k = D'^-1 U with D' = D - L X_{k-1}.  Sets s->singular when D' is. */
+static void eliminate(sys *s, int k, double *R)
+{
+	int n = s->n, M = s->M;
+	size_t nn = (size_t)n * n;
+	double *D = s->Dg, *X = s->X + k * nn;
+	if (k > 1) {
+		const double *L = s->L, *Xp = s->X + (k - 1) * nn, *rp = R - n;
+		for (int i = 0; i < n; i++)
+			for (int m = 0; m < n; m++) {
+				double l = L[i * n + m];
+				if (l == 0)
+					continue;
+				R[i] -= l * rp[m];
+				for (int j = 0; j < n; j++)
+					D[i * n + j] -= l * Xp[m * n + j];
+			}
+	}
+	if (lu(D, n, s->piv)) {
+		s->singular = 1;
+		return;
+	}
+	lu_solve(D, n, s->piv, R, 1);
+	if (k < M - 2) {
+		memcpy(X, s->U, nn * sizeof *X);
+		lu_solve(D, n, s->piv, X, n);
+	}
+}
+
+/* Residual of c; the largest |R| in *rmax.  When jac, also the Jacobian,
+ * eliminated node by node as it is built (block_solve finishes).  -1 when
+ * a conductance is not positive. */
 static int assemble(sys *s, const double *c, int jac, double *rmax)
 {
 	int n = s->n, M = s->M;
@@ -224,14 +272,15 @@ static int assemble(sys *s, const double *c, int jac, double *rmax)
 	double *Fm = s->Fa, *Fp = s->Fb, *dAm = s->dA, *dBm = s->dA + nn, *dAp = s->dB,
 	       *dBp = s->dB + nn;
 	double mx = 0;
+	if (jac)
+		s->singular = 0;
 	if (face(s, c, 0, Fm, dAm, dBm, jac))
 		return -1;
 	for (int k = 1; k < M - 1; k++) {
 		double w = 0.5 * (s->zeta[k + 1] - s->zeta[k - 1]);
 		double hm = s->zeta[k] - s->zeta[k - 1], hp = s->zeta[k + 1] - s->zeta[k];
 		double zh = 0.5 * s->zeta[k];
-		double *R = s->R + (size_t)k * n, *L = s->L + k * nn, *D = s->Dg + k * nn,
-		       *U = s->U + k * nn, *t;
+		double *R = s->R + (size_t)k * n, *L = s->L, *D = s->Dg, *U = s->U, *t;
 		const double *ck = c + (size_t)k * n;
 		if (face(s, c, k, Fp, dAp, dBp, jac))
 			return -1;
@@ -277,6 +326,8 @@ static int assemble(sys *s, const double *c, int jac, double *rmax)
 				L[s->e * n + j] = U[s->e * n + j] = 0.0;
 				D[s->e * n + j] = s->z[j];
 			}
+			if (!s->singular)
+				eliminate(s, k, R);
 		}
 		/* this face's flux is the next node's left flux */
 		t = Fm;
@@ -354,35 +405,15 @@ static void lu_solve(const double *a, int n, const int *piv, double *b, int cols
 	}
 }
 
-/* Block elimination: on return s->R (interior rows) holds the Newton
- * correction -J^-1 R.  -1 if a block is singular. */
+/* Block elimination, finished: the forward sweep was done by assemble
+ * (jac); the backward one here.  On return s->R (interior rows) holds the
+ * Newton correction -J^-1 R.  -1 if a block was singular. */
 static int block_solve(sys *s)
 {
 	int n = s->n, M = s->M;
 	size_t nn = (size_t)n * n;
-	for (int k = 1; k < M - 1; k++) {
-		double *D = s->Dg + k * nn, *r = s->R + (size_t)k * n, *X = s->X + k * nn;
-		if (k > 1) {
-			const double *L = s->L + k * nn, *Xp = s->X + (k - 1) * nn,
-				     *rp = s->R + (size_t)(k - 1) * n;
-			for (int i = 0; i < n; i++)
-				for (int m = 0; m < n; m++) {
-					double l = L[i * n + m];
-					if (l == 0)
-						continue;
-					r[i] -= l * rp[m];
-					for (int j = 0; j < n; j++)
-						D[i * n + j] -= l * Xp[m * n + j];
-				}
-		}
-		if (lu(D, n, s->piv))
-			return -1;
-		lu_solve(D, n, s->piv, r, 1);
-		if (k < M - 2) {
-			memcpy(X, s->U + k * nn, nn * sizeof *X);
-			lu_solve(D, n, s->piv, X, n);
-		}
-	}
+	if (s->singular)
+		return -1;
 	for (int k = M - 3; k >= 1; k--) {
 		double *r = s->R + (size_t)k * n;
 		const double *X = s->X + k * nn, *rn = s->R + (size_t)(k + 1) * n;
@@ -396,7 +427,8 @@ static int block_solve(sys *s)
 }
 
 /* Newton's method from s->c; 0 when the correction fell below
- * DF_NEWTON_TOL, -1 otherwise (s->c then unspecified). */
+ * DF_NEWTON_TOL, -1 otherwise (s->c then unspecified), -2 when a Ctrl-C
+ * in the shell cancelled it (polled at every iteration). */
 static int newton(sys *s, int maxit, int *its, double *res)
 {
 	int n = s->n, M = s->M;
@@ -406,20 +438,22 @@ static int newton(sys *s, int maxit, int *its, double *res)
 		return -1;
 	for (int it = 0; it < maxit; it++) {
 		double dmax = 0, r1 = INFINITY, a = 1.0;
+		if (sig_cancelled())
+			return -2;
 		(*its)++;
 		if (block_solve(s))
 			return -1;
 		/* the correction, kept apart: assemble() reuses s->R */
-		memcpy(s->X, s->R, tot * sizeof *s->R);
+		memcpy(s->dx, s->R, tot * sizeof *s->R);
 		for (size_t q = (size_t)n; q < tot - n; q++)
-			if (fabs(s->X[q]) > dmax)
-				dmax = fabs(s->X[q]);
+			if (fabs(s->dx[q]) > dmax)
+				dmax = fabs(s->dx[q]);
 		if (!isfinite(dmax))
 			return -1;
 		for (int cut = 0; cut < 13; cut++, a *= 0.5) {
 			memcpy(s->trial, s->c, tot * sizeof *s->c);
 			for (size_t q = (size_t)n; q < tot - n; q++) {
-				double v = s->c[q] + a * s->X[q];
+				double v = s->c[q] + a * s->dx[q];
 				s->trial[q] = v >= 0 ? v : 0.5 * s->c[q];
 			}
 			if (assemble(s, s->trial, 0, &r1) == 0 && r1 < r0 * (1 - 1e-4 * a))
@@ -462,17 +496,20 @@ static double potential(const sys *s)
 }
 
 /* Solve on the current grid: Newton from the start (or the given guess),
- * else continuation in lambda from Henderson's profile. */
+ * else continuation in lambda from Henderson's profile.  0, -1 (no
+ * convergence) or -2 (cancelled). */
 static int solve_grid(sys *s, const df_opts *o, int have_guess, df_report *r)
 {
 	size_t tot = (size_t)s->M * s->n;
 	double *keep, done = 0, step = 0.25;
+	int rc;
 	s->lam = 1.0;
 	if (!have_guess)
 		start_profile(s);
 	r->continuation = 1;
-	if (newton(s, o->max_newton, &r->newton_its, &r->residual) == 0)
-		return 0;
+	rc = newton(s, o->max_newton, &r->newton_its, &r->residual);
+	if (rc != -1)
+		return rc;
 	keep = im_xmalloc(tot * sizeof *keep);
 	while (done < 1.0) {
 		double lam = fmin(1.0, done + step);
@@ -490,7 +527,12 @@ static int solve_grid(sys *s, const df_opts *o, int have_guess, df_report *r)
 				}
 			set_ends(s, s->c);
 		}
-		if (newton(s, o->max_newton, &r->newton_its, &r->residual) == 0) {
+		rc = newton(s, o->max_newton, &r->newton_its, &r->residual);
+		if (rc == -2) {
+			free(keep);
+			return -2;
+		}
+		if (rc == 0) {
 			memcpy(keep, s->c, tot * sizeof *keep);
 			done = lam;
 			step *= 2;
@@ -548,7 +590,7 @@ int df_ljp_mV(const jn_ion *ions, int n, double t_C, const df_opts *opts, df_rep
 	df_report r;
 	sys s;
 	double dref = 0, dmax = 0, cs = 0, E, Ec = NAN, rtf, Kp = 0, Kb = 0;
-	int rc = -1;
+	int rc = -1, grid_rc;
 	if (opts)
 		o = *opts;
 	else
@@ -605,7 +647,12 @@ int df_ljp_mV(const jn_ion *ions, int n, double t_C, const df_opts *opts, df_rep
 	r.zeta_max = s.Z;
 	sys_grid(&s, o.grid_points);
 	rtf = im_rt_f_mV(t_C);
-	if (solve_grid(&s, &o, 0, &r)) {
+	grid_rc = solve_grid(&s, &o, 0, &r);
+	if (grid_rc == -2) {
+		im_fail(err, "free diffusion: %s", SIG_CANCELLED_MSG);
+		goto out;
+	}
+	if (grid_rc) {
 		im_fail(err, "free diffusion: Newton's method did not converge on %d points, "
 			     "even by continuation in the concentration step", s.M);
 		goto out;
@@ -622,7 +669,12 @@ int df_ljp_mV(const jn_ion *ions, int n, double t_C, const df_opts *opts, df_rep
 		}
 		refine(&s);
 		Ec = E;
-		if (solve_grid(&s, &o, 1, &r)) {
+		grid_rc = solve_grid(&s, &o, 1, &r);
+		if (grid_rc == -2) {
+			im_fail(err, "free diffusion: %s", SIG_CANCELLED_MSG);
+			goto out;
+		}
+		if (grid_rc) {
 			im_fail(err, "free diffusion: Newton's method did not converge on %d "
 				     "points", s.M);
 			goto out;

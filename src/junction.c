@@ -13,6 +13,7 @@
 #include <string.h>
 
 #include "common.h"
+#include "signals.h"
 
 /* Largest concentration accepted, mM (100 M: beyond any solution, and far
  * from overflow in the sums). */
@@ -370,24 +371,41 @@ int jn_check(const jn_ion *ions, int n, double t_C, char *err)
 typedef struct pl_sys {
 	int n, e;
 	double z[JN_MAX_IONS], d[JN_MAX_IONS], cp[JN_MAX_IONS], cb[JN_MAX_IONS];
+	double zz[JN_MAX_IONS]; /* z_i^2 */
 	double rho_p, rho_b, K0;
 } pl_sys;
 
-/* d/dt of y = (c_0 .. c_n-1, x, psi) for the unknowns P = (J, S). */
-static int pl_rhs(const pl_sys *q, const double *P, const double *y, double *dy)
+/* What the right-hand side takes from the unknowns P = (J, S), fixed
+ * for a whole shot: -J_i / d_i and the numerator of -psi' K. */
+typedef struct pl_flux {
+	double a[JN_MAX_IONS];  /* -J_i / d_i */
+	double num;             /* rho_b - rho_p + sum z_i J_i / d_i */
+	double S;
+} pl_flux;
+
+static void pl_flux_of(const pl_sys *q, const double *P, pl_flux *f)
+{
+	f->num = q->rho_b - q->rho_p;
+	for (int i = 0; i < q->n; i++) {
+		f->num += q->z[i] * P[i] / q->d[i];
+		f->a[i] = -P[i] / q->d[i];
+	}
+	f->S = P[q->n];
+}
+
+/* d/dt of y = (c_0 .. c_n-1, x, psi) for the unknowns in f. */
+static int pl_rhs(const pl_sys *q, const pl_flux *f, const double *y, double *dy)
 {
 	int n = q->n;
-	double num = q->rho_b - q->rho_p, K = 0, p, g;
-	for (int i = 0; i < n; i++) {
-		num += q->z[i] * P[i] / q->d[i];
-		K += q->z[i] * q->z[i] * y[i];
-	}
+	double K = 0, p, g;
+	for (int i = 0; i < n; i++)
+		K += q->zz[i] * y[i];
 	if (!(K > 0) || !isfinite(K))
 		return -1;
-	p = -num / K;
-	g = P[n] * K / q->K0;
+	p = -f->num / K;
+	g = f->S * K / q->K0;
 	for (int i = 0; i < n; i++)
-		dy[i] = g * (-P[i] / q->d[i] - q->z[i] * y[i] * p);
+		dy[i] = g * (f->a[i] - q->z[i] * y[i] * p);
 	dy[n] = g;
 	dy[n + 1] = g * p;
 	return 0;
@@ -400,22 +418,24 @@ static int pl_shoot(const pl_sys *q, const double *P, int N, double *y1)
 	int m = q->n + 2;
 	double y[JN_MAX_IONS + 2], t[JN_MAX_IONS + 2], k1[JN_MAX_IONS + 2],
 		k2[JN_MAX_IONS + 2], k3[JN_MAX_IONS + 2], k4[JN_MAX_IONS + 2], h = 1.0 / N;
+	pl_flux f;
+	pl_flux_of(q, P, &f);
 	memcpy(y, q->cp, q->n * sizeof *y);
 	y[q->n] = y[q->n + 1] = 0.0;
 	for (int s = 0; s < N; s++) {
-		if (pl_rhs(q, P, y, k1))
+		if (pl_rhs(q, &f, y, k1))
 			return -1;
 		for (int i = 0; i < m; i++)
 			t[i] = y[i] + 0.5 * h * k1[i];
-		if (pl_rhs(q, P, t, k2))
+		if (pl_rhs(q, &f, t, k2))
 			return -1;
 		for (int i = 0; i < m; i++)
 			t[i] = y[i] + 0.5 * h * k2[i];
-		if (pl_rhs(q, P, t, k3))
+		if (pl_rhs(q, &f, t, k3))
 			return -1;
 		for (int i = 0; i < m; i++)
 			t[i] = y[i] + h * k3[i];
-		if (pl_rhs(q, P, t, k4))
+		if (pl_rhs(q, &f, t, k4))
 			return -1;
 		for (int i = 0; i < m; i++)
 			y[i] += h / 6.0 * (k1[i] + 2 * k2[i] + 2 * k3[i] + k4[i]);
@@ -483,9 +503,40 @@ static int pl_solve(double *a, double *b, int n)
 	return 0;
 }
 
+/* The Jacobian of the residual at P (m x m, row-major, into J) by
+ * forward differences; r is the residual at P. */
+static int pl_jacobian(const pl_sys *q, const double *P, int N, const double *r, double *J)
+{
+	int m = q->n + 1;
+	double rt[JN_MAX_IONS + 1], Pt[JN_MAX_IONS + 1], nt, pt, jmax = 0;
+	for (int j = 0; j < m - 1; j++)
+		jmax = fmax(jmax, fabs(P[j]));
+	for (int j = 0; j < m; j++) {
+		double h = j < m - 1 ? 1e-7 * fmax(fabs(P[j]), 1e-3 * fmax(jmax, 1e-12))
+				     : 1e-7 * P[j];
+		memcpy(Pt, P, m * sizeof *P);
+		Pt[j] += h;
+		if (pl_res(q, Pt, N, rt, &nt, &pt))
+			return -1;
+		for (int i = 0; i < m; i++)
+			J[i * m + j] = (rt[i] - r[i]) / h;
+	}
+	return 0;
+}
+
 /* Newton on the unknowns P = (J, S) (in place) with N steps; psi at the
- * solution. */
-static int pl_newton(const pl_sys *q, double *P, int N, double *psi)
+ * solution.  J (m x m) carries a Jacobian between calls: when *have_jac,
+ * it is tried first as it stands (a chord step, full length only, kept
+ * while it divides the residual by ten or more); a chord step that does
+ * not lower the residual is dropped and the Jacobian recomputed, after
+ * which the step is cut back until the residual falls.  The answer meets
+ * the same test either way: the max norm of the residual below
+ * PL_RES_TOL (or no decrease possible below 1e3 PL_RES_TOL).  A refined
+ * grid starts from the last one's answer, where a shot or two with the
+ * kept Jacobian replace the n + 1 shots of a new one.  -2 when a Ctrl-C
+ * in the shell cancelled it (polled at every iteration). */
+static int pl_newton(const pl_sys *q, double *P, int N, double *J, int *have_jac,
+		     double *psi)
 {
 	int m = q->n + 1;
 	double r[JN_MAX_IONS + 1], rt[JN_MAX_IONS + 1], Pt[JN_MAX_IONS + 1], nrm, nt, pt;
@@ -494,29 +545,32 @@ static int pl_newton(const pl_sys *q, double *P, int N, double *psi)
 	if (pl_res(q, P, N, r, &nrm, psi))
 		goto out;
 	for (int it = 0; it < PL_MAXIT; it++) {
-		double a = 1.0, jmax = 0;
+		double a = 1.0;
+		int chord = *have_jac;
 		if (nrm < PL_RES_TOL) {
 			rc = 0;
 			goto out;
 		}
-		for (int j = 0; j < m - 1; j++)
-			jmax = fmax(jmax, fabs(P[j]));
-		for (int j = 0; j < m; j++) {
-			double h = j < m - 1 ? 1e-7 * fmax(fabs(P[j]), 1e-3 * fmax(jmax, 1e-12))
-					     : 1e-7 * P[j];
-			memcpy(Pt, P, m * sizeof *P);
-			Pt[j] += h;
-			if (pl_res(q, Pt, N, rt, &nt, &pt))
-				goto out;
-			for (int i = 0; i < m; i++)
-				A[i * m + j] = (rt[i] - r[i]) / h;
+		if (sig_cancelled()) {
+			rc = -2;
+			goto out;
 		}
+		if (!chord) {
+			if (pl_jacobian(q, P, N, r, J))
+				goto out;
+			*have_jac = 1;
+		}
+		memcpy(A, J, sizeof(double) * m * m);
 		for (int i = 0; i < m; i++)
 			rt[i] = -r[i];
-		if (pl_solve(A, rt, m))
+		if (pl_solve(A, rt, m)) {
+			*have_jac = 0;
+			if (chord)
+				continue;
 			goto out;
+		}
 		nt = INFINITY;
-		for (int cut = 0; cut < 30; cut++, a *= 0.5) {
+		for (int cut = 0; cut < (chord ? 1 : 30); cut++, a *= 0.5) {
 			double rr[JN_MAX_IONS + 1];
 			for (int j = 0; j < m; j++)
 				Pt[j] = P[j] + a * rt[j];
@@ -527,10 +581,15 @@ static int pl_newton(const pl_sys *q, double *P, int N, double *psi)
 			nt = INFINITY;
 		}
 		if (!(nt < nrm)) {
+			*have_jac = 0;
+			if (chord)
+				continue; /* a new Jacobian next */
 			/* no decrease: converged to rounding, or stuck */
 			rc = nrm < 1e3 * PL_RES_TOL ? 0 : -1;
 			goto out;
 		}
+		if (chord && !(nt < 0.1 * nrm))
+			*have_jac = 0; /* slow: a new Jacobian next */
 		memcpy(P, Pt, m * sizeof *P);
 		nrm = nt;
 		*psi = pt;
@@ -546,8 +605,8 @@ int jn_planck_mV(const jn_ion *ions, int n, double t_C, double *ljp_mV, char *er
 	pl_sys q;
 	double dmax, cs = 0, P[JN_MAX_IONS + 1], rtf, psi = 0, prev, hend, best = -1, Kb = 0,
 							       ratio;
-	double tot[2] = {0, 0};
-	int N;
+	double tot[2] = {0, 0}, *J;
+	int N, have_jac = 0, rc = -1, nrc;
 	if (check(ions, n, t_C, &dmax, err) < 0)
 		return -1;
 	if (jn_identical(ions, n)) {
@@ -564,6 +623,7 @@ int jn_planck_mV(const jn_ion *ions, int n, double t_C, double *ljp_mV, char *er
 		if (!present(x))
 			continue;
 		q.z[k] = x->z;
+		q.zz[k] = q.z[k] * q.z[k];
 		q.d[k] = x->D_m2_s / dmax;
 		q.cp[k] = x->pip_mM / cs;
 		q.cb[k] = x->bath_mM / cs;
@@ -599,20 +659,37 @@ int jn_planck_mV(const jn_ion *ions, int n, double t_C, double *ljp_mV, char *er
 	ratio = Kb / q.K0;
 	P[q.n] = fabs(ratio - 1.0) < 1e-9 ? 1.0 : log(ratio) / (ratio - 1.0);
 	N = PL_STEPS0;
-	if (pl_newton(&q, P, N, &psi))
-		return im_fail(err, "Planck: the shooting method did not converge");
+	J = im_xmalloc(sizeof(double) * (q.n + 1) * (q.n + 1));
+	nrc = pl_newton(&q, P, N, J, &have_jac, &psi);
+	if (nrc) {
+		im_fail(err, "Planck: %s", nrc == -2 ? SIG_CANCELLED_MSG
+					: "the shooting method did not converge");
+		goto out;
+	}
 	for (;;) {
 		prev = psi;
 		N *= 2;
-		if (N > PL_STEPS_MAX)
-			return im_fail(err, "Planck: no agreement between step sizes "
-					    "within %d steps", PL_STEPS_MAX);
-		if (pl_newton(&q, P, N, &psi))
-			return im_fail(err, "Planck: the shooting method did not converge "
-					    "on %d steps", N);
+		if (N > PL_STEPS_MAX) {
+			im_fail(err, "Planck: no agreement between step sizes within %d steps",
+				PL_STEPS_MAX);
+			goto out;
+		}
+		nrc = pl_newton(&q, P, N, J, &have_jac, &psi);
+		if (nrc == -2) {
+			im_fail(err, "Planck: %s", SIG_CANCELLED_MSG);
+			goto out;
+		}
+		if (nrc) {
+			im_fail(err, "Planck: the shooting method did not converge on %d steps",
+				N);
+			goto out;
+		}
 		if (fabs(psi - prev) * rtf < PL_TOL_mV)
 			break;
 	}
 	*ljp_mV = rtf * psi;
-	return 0;
+	rc = 0;
+out:
+	free(J);
+	return rc;
 }

@@ -13,6 +13,7 @@
 
 #include "common.h"
 #include "electrode.h"
+#include "signals.h"
 
 /* Net charge above this fraction of the cations earns a caution. */
 #define NEUTRAL_CAUTION_REL 0.02
@@ -265,7 +266,7 @@ static void run_models(ljp_result *r, jn_ion *x)
 	if (m[LJP_PLANCK].asked)
 		m[LJP_PLANCK].ok =
 			jn_planck_mV(x, r->n, r->t_C, &m[LJP_PLANCK].ljp_mV, m[LJP_PLANCK].why) == 0;
-	if (m[LJP_DIFFUSION].asked)
+	if (m[LJP_DIFFUSION].asked && !sig_cancelled())
 		m[LJP_DIFFUSION].ok = df_ljp_mV(x, r->n, r->t_C, NULL, &r->diffusion,
 						&m[LJP_DIFFUSION].ljp_mV,
 						m[LJP_DIFFUSION].why) == 0;
@@ -422,6 +423,10 @@ int ljp_compute(const refdb *ref, const sol_state *pip, const sol_state *bath, i
 						 : LJP_HENDERSON;
 	r->main_model = one;
 	run_models(r, x);
+	if (sig_cancelled()) { /* Ctrl-C in the shell: the junction fails whole */
+		im_fail(err, "%s", SIG_CANCELLED_MSG);
+		goto fail;
+	}
 	if (!r->model[one].ok) {
 		im_fail(err, "%s", r->model[one].why);
 		goto fail;

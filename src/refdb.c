@@ -8,6 +8,7 @@
 
 #include <math.h>
 #include <stdio.h>
+#include <stdint.h>
 #include <stdlib.h>
 #include <string.h>
 #include <strings.h>
@@ -41,6 +42,9 @@ struct refdb {
 	int builtin;          /* 1: the arrays are the generated tables */
 	char **strings; /* every string the arrays point to */
 	int nstr, capstr;
+	unsigned char (*counts)[32]; /* letter_counts of each compound name, then
+				      * of each alias: made by the first
+				      * refdb_suggest; owned */
 };
 
 static const char *keep(refdb *r, const unsigned char *s)
@@ -392,6 +396,7 @@ void refdb_close(refdb *r)
 	if (!r)
 		return;
 	sqlite3_close(r->db);
+	free(r->counts);
 	if (r->builtin) {
 		free(r);
 		return;
@@ -520,32 +525,62 @@ static int lower(int c)
 	return (c >= 'A' && c <= 'Z') ? c + 32 : c;
 }
 
-/* Edit distance, case-insensitive, capped at strings of 63 bytes. */
-static int distance(const char *a, const char *b)
+/* A typed name prepared for edit distances (case-insensitive, its first
+ * 63 bytes): for each byte, the positions where the lower-cased name has
+ * it, as bits. */
+typedef struct pattern {
+	uint64_t at[256];
+	int m; /* bytes, <= 63 */
+} pattern;
+
+static void pattern_make(pattern *p, const char *name)
 {
-	int la = (int)strlen(a), lb = (int)strlen(b), row[64];
-	if (la > 63)
-		la = 63;
-	if (lb > 63)
-		lb = 63;
-	for (int j = 0; j <= lb; j++)
-		row[j] = j;
-	for (int i = 1; i <= la; i++) {
-		int diag = row[0];
-		row[0] = i;
-		for (int j = 1; j <= lb; j++) {
-			int up = row[j];
-			int cost = lower((unsigned char)a[i - 1]) != lower((unsigned char)b[j - 1]);
-			int best = diag + cost;
-			if (row[j - 1] + 1 < best)
-				best = row[j - 1] + 1;
-			if (up + 1 < best)
-				best = up + 1;
-			row[j] = best;
-			diag = up;
-		}
+	memset(p->at, 0, sizeof p->at);
+	for (p->m = 0; p->m < 63 && name[p->m]; p->m++)
+		p->at[lower((unsigned char)name[p->m])] |= (uint64_t)1 << p->m;
+}
+
+/* The edit distance between the pattern and the first 63 bytes of b,
+ * case-insensitive: the bit-parallel form of the usual table (Myers 1999,
+ * in Hyyro's formulation for the whole-string distance), one machine word
+ * holding a column of vertical differences, so a character of b costs a
+ * dozen word operations instead of a row of the table. */
+static int pattern_distance(const pattern *p, const char *b)
+{
+	uint64_t pv = ~(uint64_t)0, mv = 0, top;
+	int score = p->m, j;
+	if (p->m == 0) {
+		for (j = 0; j < 63 && b[j]; j++)
+			;
+		return j;
 	}
-	return row[lb];
+	top = (uint64_t)1 << (p->m - 1);
+	for (j = 0; j < 63 && b[j]; j++) {
+		uint64_t eq = p->at[lower((unsigned char)b[j])];
+		uint64_t xv = eq | mv, xh = (((eq & pv) + pv) ^ pv) | eq;
+		uint64_t ph = mv | ~(xh | pv), mh = pv & xh;
+		if (ph & top)
+			score++;
+		else if (mh & top)
+			score--;
+		ph = ph << 1 | 1; /* the first row: distance j from the empty prefix */
+		mh <<= 1;
+		pv = mh | ~(xv | ph);
+		mv = ph & xv;
+	}
+	return score;
+}
+
+/* The letters of the first 63 bytes of s counted in 32 classes (case
+ * folded, by the low 5 bits).  An insertion or a deletion changes one
+ * count by 1, a substitution at most two, so the edit distance of two
+ * strings is at least half the summed differences of their counts: a
+ * cheap test that spares most names the table of distance_within. */
+static void letter_counts(const char *s, unsigned char *h)
+{
+	memset(h, 0, 32);
+	for (int i = 0; i < 63 && s[i]; i++)
+		h[lower((unsigned char)s[i]) & 31]++;
 }
 
 typedef struct cand {
@@ -563,13 +598,32 @@ int refdb_suggest(const refdb *r, const char *name, const char **out, int max)
 {
 	int total = r->ncmp + r->nal, k = 0, nc = 0;
 	size_t len = strlen(name);
+	int reach = 2 + (int)len / 4; /* the farthest a suggestion may be */
+	unsigned char mine[32];
+	pattern pat;
 	cand *c = im_xcalloc(total, sizeof *c);
+	if (!r->counts) {
+		/* made once; r was allocated writable (as in refdb_sqlite) */
+		refdb *w = (refdb *)r;
+		w->counts = im_xmalloc((size_t)(total ? total : 1) * sizeof *w->counts);
+		for (int i = 0; i < total; i++)
+			letter_counts(i < r->ncmp ? r->cmp[i].name : r->al[i - r->ncmp].alias,
+				      w->counts[i]);
+	}
+	pattern_make(&pat, name);
+	letter_counts(name, mine);
 	for (int i = 0; i < total; i++) {
 		const char *s = i < r->ncmp ? r->cmp[i].name : r->al[i - r->ncmp].alias;
-		int d = distance(name, s);
+		int d, diff = 0;
+		for (int q = 0; q < 32; q++)
+			diff += abs(mine[q] - r->counts[i][q]);
 		if (len >= 2 && strncasecmp(s, name, len) == 0)
 			d = 1; /* a prefix counts as close */
-		if (d <= 2 + (int)len / 4) {
+		else if ((diff + 1) / 2 > reach)
+			d = reach + 1; /* farther than a suggestion may be */
+		else
+			d = pattern_distance(&pat, s);
+		if (d <= reach) {
 			c[nc].d = d;
 			c[nc++].canon = i < r->ncmp ? s : r->al[i - r->ncmp].c->name;
 		}

@@ -8,9 +8,14 @@
  * signal number in a shell).  No partial output and no side note is left.
  *
  * In the interactive shell SIGINT does not end the program: it sets a
- * cancel flag that long-running loops poll (sig_cancelled); such a loop
- * stops, its command fails with "cancelled" and is rolled back like any
- * failed command, and the shell returns to its prompt.  The shell clears
+ * cancel flag that long-running loops poll (sig_cancelled): the CSV
+ * correction at every buffer refill, `sweep` before each point, Planck's
+ * and the free-diffusion solvers at every Newton iteration (and
+ * ljp_compute after its models, so `junction ... model all` fails whole),
+ * and the line loop before each line (a cancelled `run` stops its
+ * script).  Such a loop stops, its command fails with SIG_CANCELLED_MSG
+ * and is rolled back like any failed command, and the shell returns to
+ * its prompt.  The shell clears
  * the flag before each command (sig_clear).  SIGTERM and SIGHUP end the
  * shell as outside it.
  *

@@ -19,6 +19,7 @@
 #include "ljp.h"
 #include "common.h"
 #include "ghk.h"
+#include "signals.h"
 
 /* 1: the quantity reads two solutions (inside | outside). */
 static int is_pair(sweep_qty q)
@@ -351,6 +352,11 @@ int sweep_run(const sweep_spec *sp, const sol_env *env, sweep_result *r,
 		sol_env e = *env;
 		sol_state st[2];
 		int ok = 1;
+		if (sig_cancelled()) { /* Ctrl-C in the shell: between points */
+			im_fail(err, "%s", SIG_CANCELLED_MSG);
+			sweep_free(r);
+			goto done;
+		}
 		r->x[i] = x;
 		r->y[i] = NAN;
 		if (sp->var == SWEEP_TEMP) {

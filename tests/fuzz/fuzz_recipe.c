@@ -60,7 +60,7 @@ static void run_script(const char *bytes, size_t n, int json)
 	FILE *in;
 	int line = 0, says_run = 0;
 	for (size_t i = 0; i + 3 <= n && !says_run; i++)
-		says_run = memcmp(bytes + i, "run", 3) == 0;
+		says_run = fz_eq(bytes + i, "run", 3);
 	if (says_run) {
 		FILE *f = fopen(script, "wb");
 		FZ_CHECK(f != NULL, "cannot write %s", script);
