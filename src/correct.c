@@ -1631,6 +1631,7 @@ typedef struct helper {
 	pthread_mutex_t mu;
 	pthread_cond_t cv;
 	int busy, quit;     /* under mu */
+	int running;        /* under mu: 1 once the helper has begun the job */
 	const char *p;      /* in: the cut; out: where the helper stopped */
 	int col;            /* out: the field it stopped at (1: a record start) */
 	eng sh;             /* the engine's copy; sh.wb is the helper's buffer */
@@ -1648,11 +1649,13 @@ static void *helper_main(void *arg)
 			break;
 		const char *p = h->p;
 		int col = 1;
+		h->running = 1;
 		pthread_mutex_unlock(&h->mu);
 		fast_run(&h->sh, &p, &col, h->sh.buf + h->sh.len);
 		pthread_mutex_lock(&h->mu);
 		h->p = p;
 		h->col = col;
+		h->running = 0;
 		h->busy = 0;
 		pthread_cond_broadcast(&h->cv);
 	}
@@ -1751,11 +1754,17 @@ static const char *par_start(eng *e, const char *p)
 
 /* Wait for the helper's half; take it when this thread stopped at the cut
  * (*p, *col) at a record start, and move *p and *col to where the helper
- * stopped. */
+ * stopped.  A half the helper has not begun (no processor free for it)
+ * is taken back and done here. */
 static void par_finish(eng *e, const char *cut, const char **p, int *col, int ok)
 {
 	helper *h = e->hp;
 	pthread_mutex_lock(&h->mu);
+	if (h->busy && !h->running) {
+		h->busy = 0;
+		pthread_mutex_unlock(&h->mu);
+		return;
+	}
 	while (h->busy)
 		pthread_cond_wait(&h->cv, &h->mu);
 	pthread_mutex_unlock(&h->mu);
