@@ -1370,12 +1370,9 @@ static inline int quick_emit(const quick *q, const ljp_prep *lp, char *out)
 	 * when the signs differ, else the smaller is taken from the larger;
 	 * lanes compare as the numbers do */
 	int D = q->nf, add = q->neg != lp->neg, lt = A < B;
-	/* both results, one kept by a mask (a branch here would be taken
-	 * at random) */
-	uint64_t addm = -(uint64_t)add, ltm = -(uint64_t)lt;
-	uint64_t big = (B & ltm) | (A & ~ltm), small = (A & ltm) | (B & ~ltm);
+	uint64_t big = lt ? B : A, small = lt ? A : B;
 	uint64_t sum = lanes_add(A, B), dif = lanes_sub(big, small);
-	uint64_t R = (sum & addm) | (dif & ~addm);
+	uint64_t R = add ? sum : dif;
 	int neg = q->neg ^ (lt & !add) ^ lp->flip;
 	int nd = R ? 8 - (__builtin_clzll(R) >> 3) : 0;
 	int nint = nd > D ? nd - D : (q->ni > 0 || D == 0);
