@@ -9,19 +9,28 @@
  * correct.h.
  *
  * Two loops share that state.  fast_run takes plain records (no quoted
- * field, no NUL, inside the buffer) as many as come in a row and does the
- * common cell with the least work (plain_fast, fix_plain); at anything else
- * it stops at the start of a field and the general per-field loop in run()
+ * field, no NUL, inside the buffer) as many as come in a row: fields are
+ * found from a bitmask of the separators, 64 bytes at a time (seps), and
+ * the common cell is corrected in decimal on its digit bytes (quick_parse,
+ * quick_emit), else with plain_fast and fix_plain; at anything else it
+ * stops at the start of a field and the general per-field loop in run()
  * (scan, do_cell) takes over, and hands back at the next record.  Both
  * write the same bytes (test_fast_path_same).  Past one write buffer of
- * output a writer thread writes full buffers while the next one fills.
+ * output a writer thread writes full buffers while the next one fills,
+ * and a full read buffer is cut in two for a helper thread that does the
+ * second half (par_start; test_parallel_same).
  */
 #include "correct.h"
+
+#ifdef __SSE2__
+#include <emmintrin.h>
+#endif
 
 #include <errno.h>
 #include <pthread.h>
 #include <signal.h>
 #include <stdarg.h>
+#include <stddef.h>
 #include <time.h>
 #include <limits.h>
 #include <math.h>
@@ -36,10 +45,10 @@
 #include "signals.h"
 #include "version.h"
 
-#define RD_CHUNK (512 * 1024)                   /* at least this much per read */
+#define RD_CHUNK (512 * 1024)                  /* at least this much per read */
 #define RD_CAP (RD_CHUNK + CORR_FIELD_MAX + 64) /* read buffer (+1 sentinel) */
-#define RD_SLACK 32                             /* readable bytes past the sentinel */
-#define WR_CAP (512 * 1024)                     /* write buffer */
+#define RD_SLACK 96                             /* readable bytes past the sentinel */
+#define WR_CAP (512 * 1024)                    /* write buffer */
 #define NUM_OUT_MAX (CORR_DIGITS_MAX + 24)      /* one formatted number */
 #define COL_NUMBER_MAX 1000000                  /* largest column number taken */
 
@@ -76,6 +85,9 @@ typedef struct ljp_prep {
 	uint64_t bn[19]; /* for a plain cell with nf decimals: mag aligned to
 			  * them, mag * 10^(nf - k0); UINT64_MAX when nf < k0
 			  * or that has more than 18 digits (see fix_plain) */
+	uint64_t lanes[8]; /* bn[nf] one decimal digit a byte, the last
+			    * lowest (see quick_emit); UINT64_MAX when it
+			    * has more than 7 digits or nf < k0 */
 } ljp_prep;
 
 static int is_digit(int c)
@@ -260,6 +272,15 @@ static void ljp_prepare(const corr_ljp *l, int unit_exp, ljp_prep *lp)
 	for (int nf = 0; nf < 19; nf++) {
 		int z = nf - lp->k0;
 		lp->bn[nf] = z < 0 || lp->ndig + z > 18 ? UINT64_MAX : lp->mag * pow10_u64[z];
+		if (nf < 8) {
+			lp->lanes[nf] = UINT64_MAX;
+			if (z >= 0 && lp->ndig + z <= 7) {
+				uint64_t v = lp->bn[nf], l = 0;
+				for (int i = 0; v; i++, v /= 10)
+					l |= (v % 10) << (8 * i);
+				lp->lanes[nf] = l;
+			}
+		}
 	}
 }
 
@@ -743,6 +764,10 @@ typedef struct eng {
 	char *wb;           /* WR_CAP bytes: the buffer being filled */
 	char *wb2;          /* the other one (in flight, or free) */
 	writer w;
+	struct helper *hp;  /* the second reader of large buffers; NULL: none yet */
+	int hp_failed;      /* 1: no helper could be started */
+	int par_miss;       /* cuts not taken since the last refill */
+	int worker;         /* 1: this is the helper's copy (see fast_run) */
 	int last;           /* 1: the run's last flush comes */
 	size_t wl;
 	int werr;           /* errno of a failed write, 0 if none */
@@ -754,17 +779,7 @@ typedef struct eng {
 	unsigned char *corr;       /* corr[c] = 1 + index in r->cols; c < maxcol */
 	int maxcol;                /* largest corrected column number */
 	ljp_prep prep[CORR_MAXCOLS]; /* the LJP for each of r->cols */
-	const char *nul_at;        /* the first NUL in buf (buf + len: none) */
-	const char *qpos;          /* the next '"' at or after where it was looked for */
-	int qvalid;                /* 0: qpos must be looked for again */
 } eng;
-
-/* After buf changed: where its first NUL is; the quote search restarts. */
-static void buf_changed(eng *e)
-{
-	e->nul_at = e->buf + strlen(e->buf);
-	e->qvalid = 0;
-}
 
 /* ---- the writer thread ----
  * Once the output passes one write buffer, full buffers are handed to a
@@ -911,10 +926,10 @@ static int refill(eng *e, size_t keep)
 	w_put(e, e->span, (size_t)(e->buf + keep - e->span));
 	memmove(e->buf, e->buf + keep, n);
 	e->len = n;
+	e->par_miss = 0;
 	e->span = e->buf;
 	if (e->eof) {
 		e->buf[e->len] = '\0';
-		buf_changed(e);
 		return 0;
 	}
 	if (sig_cancelled())
@@ -923,7 +938,6 @@ static int refill(eng *e, size_t keep)
 	got = fread(e->buf + n, 1, RD_CAP - n, e->in);
 	e->len += got;
 	e->buf[e->len] = '\0';
-	buf_changed(e);
 	if (got < RD_CAP - n) {
 		if (ferror(e->in))
 			return im_fail(e->err, "%s: read error: %s", e->name,
@@ -1255,32 +1269,216 @@ static inline const char *plain_fast(const char *s, const char *e, num *m)
 #endif
 }
 
-/* Where the unquoted field at p ends: its delimiter, LF, or a NUL byte
- * (the buffer's sentinel at the latest). */
-static inline const char *field_end(const char *p, const unsigned char *stop)
+#if defined(__BYTE_ORDER__) && __BYTE_ORDER__ == __ORDER_LITTLE_ENDIAN__ && \
+	defined(__SIZEOF_INT128__)
+#define HAVE_QUICK 1
+/* The commonest cell, in one pass: [+-]digits[.digits] with at most 7
+ * digits in all, corrected in decimal on the digits themselves: one digit
+ * to a byte of a word, the last digit lowest ("lanes"), added or
+ * subtracted with the carries between lanes done by the adder (a lane
+ * holds digit + 246, so that it carries at 10), the result written back
+ * as one word.  No conversion to binary and back.  quick_parse reads the
+ * cell, quick_emit writes the corrected number as fix_num would (the same
+ * bytes: test_fast_path_same). */
+typedef struct quick {
+	uint64_t lanes; /* the ni + nf digits, the last in the lowest byte */
+	int ni, nf;     /* integer and fraction digits, 1 <= ni + nf <= 7 */
+	int neg, plus, dot;
+} quick;
+
+#define LANES_ONE 0x0101010101010101ULL
+
+/* 0 in each byte of x that is '0'..'9' up to the first that is not (see
+ * swar_digits; lanes after a non-digit may be wrong, only the first one
+ * is used). */
+static inline uint64_t nondigits(uint64_t x)
 {
-	while (!stop[(unsigned char)*p])
-		p++;
+	const uint64_t hi = 0xF0F0F0F0F0F0F0F0ULL, threes = 0x3030303030303030ULL;
+	return ((x & hi) ^ threes) | (((x + 0x0606060606060606ULL) & hi) ^ threes);
+}
+
+/* The plain number at s (in the read buffer: 17 bytes readable past the
+ * data), or NULL when it is not one quick_emit can take (more than 7
+ * digits, none, or no number): the byte after it; the caller checks what
+ * follows. */
+static inline const char *quick_parse(const char *s, quick *q)
+{
+	const uint64_t threes = 0x3030303030303030ULL;
+	const char *p = s;
+	uint64_t x, y, t, u;
+	q->neg = *p == '-';
+	q->plus = *p == '+';
+	q->ni = q->nf = 0;
+	p += q->neg | q->plus;
+	memcpy(&x, p, 8);
+	t = nondigits(x);
+	if (!t)
+		return NULL;
+	int ni = __builtin_ctzll(t) >> 3, nf = 0;
+	p += ni;
+	q->dot = *p == '.';
+	uint64_t dx = x ^ threes, df = 0;
+	if (q->dot) {
+		memcpy(&y, ++p, 8);
+		u = nondigits(y);
+		if (!u)
+			return NULL;
+		nf = __builtin_ctzll(u) >> 3;
+		df = y ^ threes;
+		p += nf;
+	}
+	if (ni + nf == 0 || ni + nf > 7)
+		return NULL;
+	/* the digits side by side at the top of a word in reading order
+	 * (shifts of 64 split in two: ni or nf may be 0), then reversed */
+	uint64_t d = ((dx << (8 * (7 - ni))) << 8) >> (8 * nf);
+	d |= (df << (8 * (7 - nf))) << 8;
+	q->lanes = __builtin_bswap64(d);
+	q->ni = ni;
+	q->nf = nf;
 	return p;
 }
 
-/* The common records, fast, as many as come in a row.  A field is found
- * with the stop table of an unquoted field; a corrected cell that is a
- * plain number ending at its delimiter or the line end (a CR allowed
- * before it) is rewritten here (fix_num), any other cell
- * goes through do_cell; after the last corrected column the rest of the
- * line is found with memchr when no quote can hide a line end in it.
+/* Lanes a + b (each at most 7 digits).  A lane of a + 246 carries into
+ * the next exactly when the digit sum (and carry in) reaches 10; the
+ * lanes that did not carry get their 246 back. */
+static inline uint64_t lanes_add(uint64_t a, uint64_t b)
+{
+	uint64_t x = a + 0xF6 * LANES_ONE, s = x + b;
+	uint64_t carried = ((x ^ b ^ s) >> 8) & LANES_ONE;
+	return s - (carried ^ LANES_ONE) * 0xF6;
+}
+
+/* Lanes a - b for a >= b: a lane that borrowed holds digit + 256 - 10
+ * after the subtraction and gets 246 taken off. */
+static inline uint64_t lanes_sub(uint64_t a, uint64_t b)
+{
+	uint64_t s = a - b;
+	return s - (((a ^ b ^ s) >> 8) & LANES_ONE) * 0xF6;
+}
+
+/* The corrected number for q at out (18 bytes writable), as fix_num would
+ * write it, when the LJP has no more decimals than the cell and at most 7
+ * digits in the cell's unit; its length, or -1 (then fix_plain). */
+static inline int quick_emit(const quick *q, const ljp_prep *lp, char *out)
+{
+	uint64_t A = q->lanes, B = lp->lanes[q->nf];
+	if (B == UINT64_MAX)
+		return -1;
+	/* r = a - b with a = +-A, b = +-B, without branches on the data (the
+	 * signs of a column's cells come in no order): the magnitudes add
+	 * when the signs differ, else the smaller is taken from the larger;
+	 * lanes compare as the numbers do */
+	int D = q->nf, add = q->neg != lp->neg, lt = A < B;
+	uint64_t big = lt ? B : A, small = lt ? A : B;
+	uint64_t sum = lanes_add(A, B), dif = lanes_sub(big, small);
+	uint64_t R = add ? sum : dif;
+	int neg = q->neg ^ (lt & !add) ^ lp->flip;
+	int nd = R ? 8 - (__builtin_clzll(R) >> 3) : 0;
+	int nint = nd > D ? nd - D : (q->ni > 0 || D == 0);
+	/* reading order again, as text */
+	uint64_t w = __builtin_bswap64(R) | 0x3030303030303030ULL;
+	/* the integer digits, a dot, the D decimals, as three stores (what
+	 * lies past the number is written over next) */
+	int minus = neg && R;
+	out[0] = minus ? '-' : '+';
+	char *o = out + (minus | q->plus);
+	uint64_t ip = w >> (8 * (8 - D - nint)), fp = (w >> (8 * (7 - D))) >> 8;
+	memcpy(o, &ip, 8);
+	o[nint] = '.';
+	memcpy(o + nint + 1, &fp, 8);
+	return (int)(o - out) + nint + (D ? D + 1 : q->dot);
+}
+#endif
+
+/* The separators of an unquoted field (the delimiter, LF, and NUL: the
+ * buffer's sentinel or a binary byte) as bits, one per byte, 64 bytes at
+ * a time, handed out in order.  Rows are found from these bits, so that
+ * where one row starts does not wait for the reading of the one before
+ * (a chain of loads per row otherwise), and the cells of successive rows
+ * are worked on side by side. */
+typedef struct seps {
+	const char *base;   /* bit i of bits: base[i] */
+	uint64_t bits;      /* separators not handed out yet */
+#ifdef __SSE2__
+	__m128i vd, lf;
+#else
+	const unsigned char *stop;
+#endif
+} seps;
+
+/* The separator bits of the 64 bytes at p (readable: the buffer has
+ * RD_SLACK bytes past its sentinel). */
+static inline uint64_t seps64(const seps *it, const char *p)
+{
+#ifdef __SSE2__
+	const __m128i zero = _mm_setzero_si128();
+	uint64_t m = 0;
+	for (int i = 0; i < 4; i++) {
+		__m128i x = _mm_loadu_si128((const __m128i *)(const void *)(p + 16 * i));
+		__m128i hit = _mm_or_si128(_mm_or_si128(_mm_cmpeq_epi8(x, it->vd),
+							 _mm_cmpeq_epi8(x, it->lf)),
+					   _mm_cmpeq_epi8(x, zero));
+		m |= (uint64_t)(unsigned)_mm_movemask_epi8(hit) << (16 * i);
+	}
+	return m;
+#else
+	uint64_t m = 0;
+	for (int i = 0; i < 64; i++)
+		m |= (uint64_t)it->stop[(unsigned char)p[i]] << i;
+	return m;
+#endif
+}
+
+/* Start handing out the separators at or after p. */
+static inline void seps_at(seps *it, const char *p)
+{
+	it->base = p;
+	it->bits = seps64(it, p);
+}
+
+static void seps_init(seps *it, const char *p, char delim, const unsigned char *stop)
+{
+#ifdef __SSE2__
+	it->vd = _mm_set1_epi8(delim);
+	it->lf = _mm_set1_epi8('\n');
+	(void)stop;
+#else
+	(void)delim;
+	it->stop = stop;
+#endif
+	seps_at(it, p);
+}
+
+/* The next separator (the sentinel NUL at the latest). */
+static inline const char *seps_next(seps *it)
+{
+	while (!it->bits) {
+		it->base += 64;
+		it->bits = seps64(it, it->base);
+	}
+	const char *q = it->base + __builtin_ctzll(it->bits);
+	it->bits &= it->bits - 1;
+	return q;
+}
+
+/* The common records, fast, as many as come in a row.  Fields end at the
+ * separators (seps); a corrected cell that is a plain number ending at
+ * its delimiter or the line end (a CR allowed before it) is rewritten
+ * here (quick_emit, else fix_plain), any other cell goes through do_cell.
  * Anything else - a quoted field, a NUL byte, the end of the buffer, a
  * field too long - stops the loop at the start of that field: *pp and
  * *colp say where the general loop goes on (a new record when *colp is 1).
  * The output position and counts are kept in locals and stored back.
- * Returns 0, or -1 on error. */
-static int fast_run(eng *e, const char **pp, int *colp)
+ * Records are begun only before lim (a record start, or the end).  In the
+ * helper's copy (e->worker) anything that would write to the stream
+ * itself - a cell for do_cell, a short row, a full buffer - stops the
+ * loop too.  Returns 0, or -1 on error. */
+static __attribute__((noinline)) int fast_run(eng *e, const char **pp, int *colp,
+						const char *lim)
 {
 	const char *p = *pp, *const end = e->buf + e->len;
-	const char delim = e->delim;
 	const int maxcol = e->maxcol;
-	const unsigned char *const stop = e->stop_u;
 	char *wb = e->wb;
 	size_t wl = e->wl;
 	const char *span = e->span;
@@ -1293,26 +1491,43 @@ static int fast_run(eng *e, const char **pp, int *colp)
 	ljp_prep lp1;
 	if (one)
 		lp1 = e->prep[0];
+	seps it;
+	seps_init(&it, p, e->delim, e->stop_u);
 
-	while (p < end) {
+	while (p < lim) {
 		if (*p == '\n' || (*p == '\r' && p[1] == '\n')) {
 			e->r->blank++;
 			line++;
 			p += *p == '\n' ? 1 : 2;
+			seps_next(&it);   /* that LF */
 			continue;
 		}
 		fs = p;
 		for (col = 1;; col++) {
-			const char *fe;
 			if (*fs == '"')
 				goto out;
+			const char *fe = seps_next(&it);
+			if (*fe == '\0' || fe - fs > CORR_FIELD_MAX)
+				goto out;
+			if (e->worker && *fe == '\n' && col < maxcol)
+				goto out;   /* a short row: for the general loop */
 			if (one ? col == one : col <= maxcol && e->corr[col - 1]) {
 				num m;
+#ifdef HAVE_QUICK
+				quick q;
+				const char *ne = quick_parse(fs, &q);
+				int viaq = ne != NULL;
+				if (!viaq)
+					ne = plain_fast(fs, end, &m);
+#else
 				const char *ne = plain_fast(fs, end, &m);
-				if (ne && (*ne == delim || *ne == '\n' || (*ne == '\r' && ne[1] == '\n'))) {
+#endif
+				if (ne == fe || (ne + 1 == fe && *ne == '\r' && *fe == '\n')) {
 					const ljp_prep *lp = one ? &lp1 : &e->prep[e->corr[col - 1] - 1];
 					size_t n = (size_t)(fs - span);
 					if (WR_CAP - wl < n + 16 + NUM_OUT_MAX) {
+						if (e->worker)
+							goto out;   /* its buffer is full */
 						e->wl = wl;
 						w_put(e, span, n);
 						if (WR_CAP - e->wl < NUM_OUT_MAX)
@@ -1328,13 +1543,21 @@ static int fast_run(eng *e, const char **pp, int *colp)
 						memcpy(wb + wl, span, n);
 						wl += n;
 					}
+#ifdef HAVE_QUICK
+					int k = viaq ? quick_emit(&q, lp, wb + wl) : -1;
+					if (k < 0) {
+						if (viaq)
+							plain_fast(fs, end, &m);
+						k = fix_plain(&m, lp, wb + wl);
+					}
+					wl += (size_t)k;
+#else
 					wl += (size_t)fix_plain(&m, lp, wb + wl);
+#endif
 					span = ne;
 					corrected++;
-					fe = *ne == '\r' ? ne + 1 : ne;
 				} else {
-					fe = field_end(fs, stop);
-					if (*fe == '\0' || fe - fs > CORR_FIELD_MAX)
+					if (e->worker)
 						goto out;
 					field f = {fs, fe, fe, 0, 0};
 					e->wl = wl;
@@ -1346,10 +1569,6 @@ static int fast_run(eng *e, const char **pp, int *colp)
 					if (rc < 0)
 						goto out;
 				}
-			} else {
-				fe = field_end(fs, stop);
-				if (*fe == '\0' || fe - fs > CORR_FIELD_MAX)
-					goto out;
 			}
 			if (*fe == '\n') {
 				if (col < maxcol) {
@@ -1367,21 +1586,6 @@ static int fast_run(eng *e, const char **pp, int *colp)
 				break;
 			}
 			fs = fe + 1;
-			if (col >= maxcol) {   /* the rest of the line, when it is plain */
-				const char *nl = memchr(fs, '\n', (size_t)(end - fs));
-				if (!e->qvalid || e->qpos < fs) {
-					const char *q = memchr(fs, '"', (size_t)(end - fs));
-					e->qpos = q ? q : end;
-					e->qvalid = 1;
-				}
-				if (!nl || nl > e->nul_at || e->qpos < nl || nl - fs > CORR_FIELD_MAX) {
-					col++;
-					goto out;
-				}
-				rows++;
-				p = nl + 1;
-				break;
-			}
 		}
 		line++;
 		col = 1;
@@ -1396,6 +1600,184 @@ out:
 	*pp = fs;
 	*colp = col;
 	return rc;
+}
+
+/* ---- the helper thread ----
+ * A full read buffer is cut in two at a line end near its middle; a
+ * second thread runs fast_run over the second half on a copy of the
+ * engine (e->worker) into a buffer of its own, while this one does the
+ * first half.  When this one reaches the cut at a record start with
+ * nothing unusual before it (so that the cut is a record start), the
+ * helper's output and counts are taken as if this thread had made them,
+ * and the rest goes on from where the helper stopped; otherwise its work
+ * is dropped and the second half is done here, as without it.  Either
+ * way the bytes are those of the one-thread run (test_fast_path_same,
+ * test_parallel_same); errors and their lines come from this thread. */
+
+#define PAR_MIN (128 * 1024)   /* bytes left in the buffer worth a cut */
+
+static int par_on = 1;   /* corr_set_parallel; -1: only one processor */
+
+void corr_set_parallel(int on)
+{
+	par_on = on != 0;
+}
+
+typedef struct helper {
+	pthread_t th;
+	pthread_mutex_t mu;
+	pthread_cond_t cv;
+	int busy, quit;     /* under mu */
+	int running;        /* under mu: 1 once the helper has begun the job */
+	const char *p;      /* in: the cut; out: where the helper stopped */
+	int col;            /* out: the field it stopped at (1: a record start) */
+	eng sh;             /* the engine's copy; sh.wb is the helper's buffer */
+	corr_result res;    /* sh.r: its counts */
+} helper;
+
+static void *helper_main(void *arg)
+{
+	helper *h = arg;
+	pthread_mutex_lock(&h->mu);
+	for (;;) {
+		while (!h->busy && !h->quit)
+			pthread_cond_wait(&h->cv, &h->mu);
+		if (!h->busy)
+			break;
+		const char *p = h->p;
+		int col = 1;
+		h->running = 1;
+		pthread_mutex_unlock(&h->mu);
+		fast_run(&h->sh, &p, &col, h->sh.buf + h->sh.len);
+		pthread_mutex_lock(&h->mu);
+		h->p = p;
+		h->col = col;
+		h->running = 0;
+		h->busy = 0;
+		pthread_cond_broadcast(&h->cv);
+	}
+	pthread_mutex_unlock(&h->mu);
+	return NULL;
+}
+
+/* Start the helper; e->hp, or NULL when it cannot be had (then never
+ * asked again: e->hp_failed). */
+static helper *helper_start(eng *e)
+{
+	helper *h = im_xcalloc(1, sizeof *h);
+	sigset_t all, old;
+	h->sh.wb = im_xmalloc(WR_CAP);
+	if (pthread_mutex_init(&h->mu, NULL) != 0)
+		goto fail_mu;
+	if (pthread_cond_init(&h->cv, NULL) != 0)
+		goto fail_cv;
+	sigfillset(&all);
+	pthread_sigmask(SIG_BLOCK, &all, &old);
+	int rc = pthread_create(&h->th, NULL, helper_main, h);
+	pthread_sigmask(SIG_SETMASK, &old, NULL);
+	if (rc != 0)
+		goto fail_th;
+	return h;
+fail_th:
+	pthread_cond_destroy(&h->cv);
+fail_cv:
+	pthread_mutex_destroy(&h->mu);
+fail_mu:
+	free(h->sh.wb);
+	free(h);
+	e->hp_failed = 1;
+	return NULL;
+}
+
+static void helper_stop(eng *e)
+{
+	helper *h = e->hp;
+	if (!h)
+		return;
+	pthread_mutex_lock(&h->mu);
+	while (h->busy)
+		pthread_cond_wait(&h->cv, &h->mu);
+	h->quit = 1;
+	pthread_cond_broadcast(&h->cv);
+	pthread_mutex_unlock(&h->mu);
+	pthread_join(h->th, NULL);
+	pthread_cond_destroy(&h->cv);
+	pthread_mutex_destroy(&h->mu);
+	free(h->sh.wb);
+	free(h);
+	e->hp = NULL;
+}
+
+/* Cut the buffer from p (a record start) and hand the second half to the
+ * helper; the cut, or NULL when there is none (too little left, no line
+ * end, no helper). */
+static const char *par_start(eng *e, const char *p)
+{
+	const char *end = e->buf + e->len;
+	if (par_on == 1 && sysconf(_SC_NPROCESSORS_ONLN) < 2)
+		par_on = -1;   /* asked once: a second thread would only wait */
+	/* a buffer with records fast_run stops at is read here alone, after
+	 * two tries */
+	if (par_on != 1 || e->hp_failed || e->par_miss >= 2 || end - p < PAR_MIN)
+		return NULL;
+	const char *half = p + (end - p) / 2;
+	const char *nl = memchr(half, '\n', (size_t)(end - half));
+	if (!nl || end - nl < 2)
+		return NULL;
+	if (!e->hp && !(e->hp = helper_start(e)))
+		return NULL;
+	helper *h = e->hp;
+	char *wb = h->sh.wb;
+	/* the engine as it stands, less the writer (its thread owns it) */
+	memcpy(&h->sh, e, offsetof(eng, w));
+	memcpy((char *)&h->sh + offsetof(eng, hp), (const char *)e + offsetof(eng, hp),
+	       sizeof(eng) - offsetof(eng, hp));
+	memcpy(&h->res, e->r, sizeof h->res);
+	h->res.rows = h->res.corrected = h->res.blank = 0;
+	h->sh.r = &h->res;
+	h->sh.worker = 1;
+	h->sh.hp = NULL;
+	h->sh.wb = wb;
+	h->sh.wl = 0;
+	h->sh.span = nl + 1;
+	h->sh.line = 0;
+	pthread_mutex_lock(&h->mu);
+	h->p = nl + 1;
+	h->busy = 1;
+	pthread_cond_broadcast(&h->cv);
+	pthread_mutex_unlock(&h->mu);
+	return nl + 1;
+}
+
+/* Wait for the helper's half; take it when this thread stopped at the cut
+ * (*p, *col) at a record start, and move *p and *col to where the helper
+ * stopped.  A half the helper has not begun (no processor free for it)
+ * is taken back and done here. */
+static void par_finish(eng *e, const char *cut, const char **p, int *col, int ok)
+{
+	helper *h = e->hp;
+	pthread_mutex_lock(&h->mu);
+	if (h->busy && !h->running) {
+		h->busy = 0;
+		pthread_mutex_unlock(&h->mu);
+		return;
+	}
+	while (h->busy)
+		pthread_cond_wait(&h->cv, &h->mu);
+	pthread_mutex_unlock(&h->mu);
+	if (!ok || *p != cut || *col != 1 || e->werr) {
+		e->par_miss++;
+		return;
+	}
+	w_put(e, e->span, (size_t)(cut - e->span));
+	w_put(e, h->sh.wb, h->sh.wl);
+	e->span = h->sh.span;
+	e->r->rows += h->res.rows;
+	e->r->corrected += h->res.corrected;
+	e->r->blank += h->res.blank;
+	e->line += h->sh.line;
+	*p = h->p;
+	*col = h->col;
 }
 
 /* The rows from p on. */
@@ -1415,7 +1797,11 @@ static int run(eng *e, const char *p)
 			continue;
 		}
 		int col = 1;
-		if (fast_run(e, &p, &col) < 0)
+		const char *cut = par_start(e, p);
+		int frc = fast_run(e, &p, &col, cut ? cut : end);
+		if (cut)
+			par_finish(e, cut, &p, &col, frc == 0);
+		if (frc < 0)
 			return -1;
 		if (e->werr)
 			return write_failed(e);
@@ -1845,7 +2231,6 @@ int corr_stream(FILE *in, const char *in_name, FILE *out, const corr_opts *o,
 	got = fread(e.buf, 1, RD_CAP, in);
 	e.len = got;
 	e.buf[got] = '\0';
-	buf_changed(&e);
 	if (got < RD_CAP) {
 		if (ferror(in)) {
 			im_fail(err, "%s: read error: %s", e.name, strerror(errno ? errno : EIO));
@@ -1926,6 +2311,7 @@ int corr_stream(FILE *in, const char *in_name, FILE *out, const corr_opts *o,
 done:
 	hdr_free(&h);
 	free(e.corr);
+	helper_stop(&e);
 	writer_stop(&e);
 	bufs_put(e.buf, e.wb, e.wb2);
 	return rc;

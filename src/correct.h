@@ -89,6 +89,10 @@
  * through and gets no note.  The CSV itself stays byte-for-byte pure
  * unless a comment line is asked for (above).
  *
+ * Speed.  Plain records (no quoted field) take a fast path, and a large
+ * buffer of them is shared with a second thread (corr_set_parallel);
+ * neither changes a byte of the output.
+ *
  * Cancellation.  The engine polls sig_cancelled() at every refill of its
  * read buffer (every 512 KiB) and stops with SIG_CANCELLED_MSG.
  *
@@ -237,6 +241,12 @@ int corr_stream(FILE *in, const char *in_name, FILE *out, const corr_opts *o,
  * (flushed) and no note. */
 int corr_file(const char *in_path, const char *out_path, FILE *out_fp,
 	      const corr_opts *o, corr_result *r, char *err);
+
+/* Whether corr_stream may cut a large read buffer in two and have a
+ * second thread do the second half (on: the default, where there is more
+ * than one processor) or not.  The output, counts and messages are the
+ * same either way; for tests and measurements. */
+void corr_set_parallel(int on);
 
 /* The side note's text: what was subtracted (the formula of r->config),
  * the LJP, its range, pipette, bath, temperature, model, ionmix version and

@@ -1099,6 +1099,150 @@ static void test_fast_path_same(void **state)
 		}
 }
 
+/* One run of corr_stream over in[0..inl) with the second thread allowed
+ * or not: its output (malloc'd, *outl bytes), rc, counts and message. */
+static char *run_par(const char *in, size_t inl, const corr_opts *o, int par,
+		     size_t *outl, int *rc, corr_result *r, char *err)
+{
+	char *out = NULL;
+	FILE *ifp = fmemopen((void *)in, inl, "rb"), *ofp = open_memstream(&out, outl);
+	assert_non_null(ifp);
+	assert_non_null(ofp);
+	corr_set_parallel(par);
+	*rc = corr_stream(ifp, "mem.csv", ofp, o, r, err);
+	corr_set_parallel(1);
+	fclose(ifp);
+	fclose(ofp);
+	return out;
+}
+
+/* The second thread (a large buffer cut in two) writes the same bytes,
+ * counts and messages as one thread, over records of every kind: plain
+ * numbers, blank lines, CRLF, quoted fields (with line ends inside, so
+ * that a cut may fall inside one), blanks, exponents, empty and bad
+ * cells, short rows, two corrected columns; and an error deep in the
+ * file names the same line. */
+static void test_parallel_same(void **state)
+{
+	(void)state;
+	gen g = {4242};
+	char err[IM_ERRLEN], err1[IM_ERRLEN];
+	char *in = NULL;
+	size_t inl = 0;
+	FILE *fi = open_memstream(&in, &inl);
+	fputs("t,Vm (mV),note,Vc (V)\n", fi);
+	/* (open_memstream's size shows only after a flush: count the bytes) */
+	for (long i = 0, n = 0; n < 6L * 1024 * 1024; i++) {
+		unsigned k = rnd(&g) % 1000;
+		long mv = (long)(rnd(&g) % 2000001) - 1000000;
+		char v[40];
+		fmt_milli(v, mv);
+		if (k < 850)        /* the common record */
+			n += fprintf(fi, "%ld,%s,x,%s\n", i, v, v);
+		else if (k < 860)
+			n += fprintf(fi, "\n");
+		else if (k < 880)
+			n += fprintf(fi, "%ld,%s,y,-0.%03u\r\n", i, v, rnd(&g) % 1000);
+		else if (k < 890)
+			n += fprintf(fi, "%ld,%s,\"q,\n%u\",1.5e-3\n", i, v, rnd(&g));
+		else if (k < 900)
+			n += fprintf(fi, "%ld, %s ,z,\"7\"\n", i, v);
+		else if (k < 910)
+			n += fprintf(fi, "%ld,,z,\n", i);
+		else if (k < 920)
+			n += fprintf(fi, "%ld,abc,z,12345678901234567890.5\n", i);
+		else if (k < 930)
+			n += fprintf(fi, "%ld,%s\n", i, v);
+		else if (k < 940)
+			n += fprintf(fi, "%ld,+%u.,w,.%u\n", i, rnd(&g) % 100, rnd(&g) % 1000);
+		else if (k < 950)
+			n += fprintf(fi, "%ld,%s,\"\"\"q\"\"\",%s\n", i, v, v);
+		else
+			n += fprintf(fi, "%ld,%s%u,x,%s\n", i, v, rnd(&g) % 10, v);
+	}
+	fclose(fi);
+
+	const char *cols[] = {"2", "4"};
+	corr_opts o = {0};
+	assert_int_equal(corr_ljp_parse("14.2", &o.ljp, err), 0);
+	o.columns = cols;
+	o.ncolumns = 2;
+	o.skip_bad = 1;
+	for (int pass = 0; pass < 2; pass++) {
+		corr_result r1, r2;
+		size_t l1 = 0, l2 = 0;
+		int rc1, rc2;
+		o.config = pass ? CORR_INSIDE_OUT : CORR_WHOLE_CELL;
+		char *o1 = run_par(in, inl, &o, 0, &l1, &rc1, &r1, err1);
+		char *o2 = run_par(in, inl, &o, 1, &l2, &rc2, &r2, err);
+		if (rc1 != 0)
+			fail_msg("one thread: %s", err1);
+		assert_int_equal(rc2, 0);
+		assert_true(r1.corrected > 100000);
+		assert_int_equal(l1, l2);
+		assert_memory_equal(o1, o2, l1);
+		assert_int_equal(r1.rows, r2.rows);
+		assert_int_equal(r1.corrected, r2.corrected);
+		assert_int_equal(r1.skipped, r2.skipped);
+		assert_int_equal(r1.bad, r2.bad);
+		assert_int_equal(r1.ragged, r2.ragged);
+		assert_int_equal(r1.blank, r2.blank);
+		free(o1);
+		free(o2);
+	}
+	/* without skip-bad: the first bad cell stops both, at the same line
+	 * (near the start), and one deep in a file of plain records */
+	{
+		corr_result r1, r2;
+		size_t l1 = 0, l2 = 0;
+		int rc1, rc2;
+		o.skip_bad = 0;
+		char *o1 = run_par(in, inl, &o, 0, &l1, &rc1, &r1, err1);
+		char *o2 = run_par(in, inl, &o, 1, &l2, &rc2, &r2, err);
+		assert_int_equal(rc1, -1);
+		assert_int_equal(rc2, -1);
+		assert_string_equal(err1, err);
+		free(o1);
+		free(o2);
+	}
+	free(in);
+	in = NULL;
+	inl = 0;
+	fi = open_memstream(&in, &inl);
+	fputs("t,Vm (mV)\n", fi);
+	int bad_at = 0;
+	for (int i = 0, n = 0; n < 3 * 1024 * 1024; i++) {
+		char v[40];
+		fmt_milli(v, (long)(rnd(&g) % 200001) - 120000);
+		if (i == 150000) {
+			n += fprintf(fi, "%d,12abc\n", i);
+			bad_at = i + 2;   /* the header is line 1 */
+		} else {
+			n += fprintf(fi, "%d,%s\n", i, v);
+		}
+	}
+	fclose(fi);
+	{
+		corr_result r1, r2;
+		size_t l1 = 0, l2 = 0;
+		int rc1, rc2;
+		char want[80];
+		const char *one[] = {"2"};
+		o.columns = one;
+		o.ncolumns = 1;
+		char *o1 = run_par(in, inl, &o, 0, &l1, &rc1, &r1, err1);
+		char *o2 = run_par(in, inl, &o, 1, &l2, &rc2, &r2, err);
+		assert_int_equal(rc1, -1);
+		assert_int_equal(rc2, -1);
+		assert_string_equal(err1, err);
+		snprintf(want, sizeof want, "mem.csv:%d:2: '12abc' is not a number", bad_at);
+		assert_prefix(err, want);
+		free(o1);
+		free(o2);
+	}
+	free(in);
+}
+
 /* A full disk (/dev/full, ENOSPC on every write) is reported, whether the
  * output is small (written at the end) or large (the writer thread). */
 static void test_write_error(void **state)
@@ -1650,6 +1794,7 @@ int main(void)
 		cmocka_unit_test(test_big_file),
 		cmocka_unit_test(test_boundaries),
 		cmocka_unit_test(test_fast_path_same),
+		cmocka_unit_test(test_parallel_same),
 		cmocka_unit_test(test_write_error),
 		cmocka_unit_test(test_tty_refusal),
 		cmocka_unit_test(test_metadata),
