@@ -1522,7 +1522,7 @@ static __attribute__((noinline)) int fast_run(eng *e, const char **pp, int *colp
 #else
 				const char *ne = plain_fast(fs, end, &m);
 #endif
-				if (ne == fe || (ne + 1 == fe && *ne == '\r' && *fe == '\n')) {
+				if (ne == fe || (ne && ne + 1 == fe && *ne == '\r' && *fe == '\n')) {
 					const ljp_prep *lp = one ? &lp1 : &e->prep[e->corr[col - 1] - 1];
 					size_t n = (size_t)(fs - span);
 					if (WR_CAP - wl < n + 16 + NUM_OUT_MAX) {

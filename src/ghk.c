@@ -22,6 +22,7 @@
 
 #include "common.h"
 #include "nernst.h"
+#include "signals.h"
 
 /* 1 A/m2 = 1e-4 A/cm2 and P[m/s] = 1e-2 P[cm/s]; mM == mol/m3. */
 #define A_CM2_PER_CM_S_MM_F (1e-6 * IM_FARADAY_C_MOL)
@@ -609,6 +610,10 @@ int ghk_iv(const ghk_ion *ions, int n, double t_C, double v1_mV, double v2_mV,
 	iv->ion_A_cm2 = im_xmalloc((size_t)np * (size_t)n * sizeof(double));
 	for (int k = 0; k < np; k++) {
 		double V = v1_mV + k * dv_mV, s = 0.0;
+		if ((k & 4095) == 4095 && sig_cancelled()) { /* Ctrl-C in the shell */
+			ghk_iv_free(iv);
+			return im_fail(err, SIG_CANCELLED_MSG);
+		}
 		if (V > v2_mV)
 			V = v2_mV;
 		iv->V_mV[k] = V;
@@ -654,6 +659,8 @@ int ghk_iv_fill(const ghk_ion *ions, int n, double t_C, double v1_mV,
 		double V = k == npts - 1 ? v2_mV
 			: v1_mV + (v2_mV - v1_mV) * k / (npts - 1), s = 0.0;
 		V_mV[k] = V;
+		if ((k & 4095) == 4095 && sig_cancelled()) /* Ctrl-C in the shell */
+			return im_fail(err, SIG_CANCELLED_MSG);
 		for (int i = 0; i < n; i++) {
 			const ghk_ion *x = &ions[i];
 			double I = x->P > 0 ? ghk_current_A_cm2(x->z, x->P, x->in_mM,

@@ -338,6 +338,26 @@ static void test_cancel_sweep(void **state)
 	defaults();
 }
 
+/* `iv` on the finest grid (100,001 voltages) with an SVG, Ctrl-C pending:
+ * cancelled, no figure; once the flag is cleared it runs. */
+static void test_cancel_iv(void **state)
+{
+	(void)state;
+	char svg[600], line[1400];
+	interactive();
+	pair();
+	snprintf(svg, sizeof svg, "%s/iv.svg", dir);
+	snprintf(line, sizeof line, "iv pip bath K+=1 Na+=0.05 Cl-=0.45 from -100 to 100 "
+		 "step 0.002 svg '%s'", svg);
+	raise(SIGINT); /* the computing loops see it (writing the table does not poll) */
+	cancelled(line, svg);
+	sig_clear();
+	ok(line);
+	assert_int_equal(access(svg, F_OK), 0);
+	unlink(svg);
+	defaults();
+}
+
 static void test_cancel_junction(void **state)
 {
 	(void)state;
@@ -544,6 +564,7 @@ int main(void)
 		cmocka_unit_test(test_cancel_flag),
 		cmocka_unit_test_setup_teardown(test_cancel_sweep, fresh, done),
 		cmocka_unit_test_setup_teardown(test_cancel_junction, fresh, done),
+		cmocka_unit_test_setup_teardown(test_cancel_iv, fresh, done),
 		cmocka_unit_test_setup_teardown(test_cancel_run, fresh, done),
 		cmocka_unit_test(test_cancel_diffusion_solver),
 		cmocka_unit_test(test_fatal_signals),

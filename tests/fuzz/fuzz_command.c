@@ -50,6 +50,7 @@ int LLVMFuzzerInitialize(int *argc, char ***argv)
 	FZ_CHECK(chdir(fz_dir) == 0, "chdir %s", fz_dir);
 	snprintf(dbpath, sizeof dbpath, "%s/user.db", fz_dir);
 	ctx_init(&ctx, ref, &o);
+	FZ_CHECK(ctx_load_chemistry(&ctx, err) == 0, "chemistry: %s", err);
 	FZ_CHECK(cmd_exec(&ctx, setup_lines, err) == 0, "setup: %s", err);
 	ws_copy(&base, &ctx.ses->ws);
 	ctx_free(&ctx);
@@ -96,6 +97,10 @@ static void run_line(const char *line, size_t n, int json)
 	o.utf8 = json;
 	FZ_CHECK(o.fp != NULL, "open_memstream");
 	ctx_init(&ctx, ref, &o);
+	/* the chemistry as the program has it (speciation, titration,
+	 * targets); loaded per input (about 2 us) because `constants`
+	 * changes its picks */
+	FZ_CHECK(ctx_load_chemistry(&ctx, err) == 0, "chemistry: %s", err);
 	ctx.ses->db_path = dbpath;
 	ws_free(&ctx.ses->ws);
 	ws_copy(&ctx.ses->ws, &base);
