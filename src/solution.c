@@ -247,7 +247,8 @@ int sol_compute(const solution *s, const sol_env *env, sol_state *st, char *err)
 	st->t_C = t_C;
 	st->model = env->model;
 	totals(s, 0, st);
-	if (env->chem && st->n > 0 && speciate(s, env, st, err)) {
+	/* water alone has no species to solve for, but water under CO2 has */
+	if (env->chem && (st->n > 0 || s->co2_frac > 0) && speciate(s, env, st, err)) {
 		sol_state_free(st);
 		return -1;
 	}

@@ -11,6 +11,7 @@
 
 #include "command.h"
 #include "common.h"
+#include "speciation.h"
 
 #include "testctx.h"
 
@@ -136,6 +137,29 @@ static void bicarbonate_bath(void **state)
 	sol_state_free(&st);
 	ok("gas off");
 	assert_close(ws_current(&ctx.ses->ws)->co2_frac, 0, 0, 0);
+}
+
+/* Water alone under 5 % CO2 (an empty solution, found by fuzz_command:
+ * its pH was NaN): carbonic acid alone sets the pH.  The closed form for a
+ * weak acid much stronger than water, [H+] = sqrt(K1 CO2), with the
+ * program's own dissolved CO2 and apparent pK', must agree to 0.01; and
+ * the pH must lie near 4.6, the textbook value for water under 5 % CO2
+ * (common practice: rain under 0.04 % CO2 is about pH 5.6, and each
+ * tenfold more CO2 lowers it by half a unit). */
+static void water_under_co2(void **state)
+{
+	sol_state st;
+	double pk, ph_closed;
+	(void)state;
+	ok("solution wet; gas co2 5%");
+	forward(&st);
+	assert_non_null(st.chem);
+	assert_true(isfinite(st.pH));
+	pk = spec_co2_pk_app(ctx.ses->chem, st.t_C, st.pH, st.ionic_strength_mM);
+	ph_closed = -0.5 * log10(pow(10, -pk) * st.chem->co2_mM * 1e-3);
+	assert_close(st.pH, ph_closed, 0, 0.01);
+	assert_true(st.pH > 4.4 && st.pH < 4.8);
+	sol_state_free(&st);
 }
 
 /* issue 10: `free Ca 100 nM` with 0.3 mM GTP present (almost every
@@ -316,6 +340,7 @@ int main(void)
 		cmocka_unit_test_setup_teardown(substitution_ratio, fresh, done),
 		cmocka_unit_test_setup_teardown(refusals_change_nothing, fresh, done),
 		cmocka_unit_test_setup_teardown(recipe_replays_titration, fresh, done),
+		cmocka_unit_test_setup_teardown(water_under_co2, fresh, done),
 	};
 	return cmocka_run_group_tests(tests, setup, teardown);
 }
