@@ -1462,6 +1462,135 @@ static inline const char *seps_next(seps *it)
 	return q;
 }
 
+#if defined(HAVE_QUICK) && defined(__SSE2__)
+#define HAVE_ONE_RUN 1
+/* The first delimiter (vd), LF or NUL in p[0..48) (readable: the buffer
+ * has RD_SLACK bytes past its sentinel), or NULL when there is none. */
+static inline const char *field_end48(const char *p, __m128i vd)
+{
+	const __m128i lf = _mm_set1_epi8('\n'), zero = _mm_setzero_si128();
+	for (int i = 0; i < 3; i++) {
+		__m128i x = _mm_loadu_si128((const __m128i *)(const void *)(p + 16 * i));
+		__m128i hit = _mm_or_si128(_mm_or_si128(_mm_cmpeq_epi8(x, vd),
+							 _mm_cmpeq_epi8(x, lf)),
+					   _mm_cmpeq_epi8(x, zero));
+		unsigned m = (unsigned)_mm_movemask_epi8(hit);
+		if (m)
+			return p + 16 * i + __builtin_ctz(m);
+	}
+	return NULL;
+}
+
+/* Write the first n (<= 16) bytes of t over dst, keeping dst[n..16). */
+static inline void patch16(char *dst, const char *t, int n)
+{
+	/* 16 bytes of ones then 16 of zeros: loaded at 16 - n, n ones */
+	static const signed char ones[32] = {-1, -1, -1, -1, -1, -1, -1, -1, -1, -1, -1, -1,
+					     -1, -1, -1, -1};
+	__m128i keep = _mm_loadu_si128((const __m128i *)(const void *)(ones + 16 - n));
+	__m128i old = _mm_loadu_si128((const __m128i *)(const void *)dst);
+	__m128i neu = _mm_loadu_si128((const __m128i *)(const void *)t);
+	_mm_storeu_si128((__m128i *)(void *)dst,
+			 _mm_or_si128(_mm_and_si128(keep, neu), _mm_andnot_si128(keep, old)));
+}
+
+/* The commonest records, leanest: one corrected column (number `one`,
+ * LJP lp), its cell a number quick_parse and quick_emit take, ending at
+ * its delimiter or the line end (a CR allowed before the LF), every
+ * other field unquoted and shorter than 48 bytes.  A record is looked at
+ * whole before anything is written, so where this stops (the returned
+ * record start, before lim) nothing of it is done and fast_run goes on
+ * there.  The unchanged bytes are left in the read buffer as one span
+ * (written in one copy later); a corrected number of the cell's length
+ * is written over the cell in place, one of another length ends the span
+ * there.  The helper's copy (e->worker) must not change the buffer (its
+ * work may be dropped and the half done again): it copies every record
+ * to its own buffer, and stops when that is full.  *rowsp: the records
+ * done. */
+static inline const char *one_run(eng *e, const char *p, const char *lim, int one,
+				  const ljp_prep *lp, char **wbp, size_t *wlp,
+				  const char **spanp, long *rowsp)
+{
+	const __m128i vd = _mm_set1_epi8(e->delim);
+	const char delim = e->delim;
+	const int inplace = !e->worker;
+	char *wb = *wbp;
+	size_t wl = *wlp;
+	const char *span = *spanp;
+	long rows = 0;
+	char tmp[32];
+
+	while (p < lim) {
+		const char *fs = p, *ne, *eol;
+		quick q;
+		for (int c = 1; c < one; c++) {
+			const char *fe = field_end48(fs, vd);
+			if (*fs == '"' || !fe || *fe != delim)
+				goto stop;
+			fs = fe + 1;
+		}
+		ne = quick_parse(fs, &q);
+		if (!ne)
+			goto stop;
+		if (*ne == '\n') {
+			eol = ne;
+		} else if (*ne == '\r' && ne[1] == '\n') {
+			eol = ne + 1;
+		} else if (*ne == delim) {
+			/* the fields after the cell, to the line end */
+			const char *s = ne + 1;
+			for (;;) {
+				const char *fe = field_end48(s, vd);
+				if (*s == '"' || !fe || *fe == '\0')
+					goto stop;
+				if (*fe == '\n') {
+					eol = fe;
+					break;
+				}
+				s = fe + 1;
+			}
+		} else {
+			goto stop;
+		}
+		int k = quick_emit(&q, lp, tmp);
+		if (k < 0)
+			goto stop;
+		if (inplace && k == ne - fs && lim - fs >= 16) {
+			patch16((char *)fs, tmp, k);
+		} else {
+			size_t n = (size_t)(fs - span);
+			if (WR_CAP - wl < n + 16 + NUM_OUT_MAX) {
+				if (!inplace)
+					goto stop;   /* its buffer is full */
+				e->wl = wl;
+				w_put(e, span, n);
+				if (WR_CAP - e->wl < NUM_OUT_MAX)
+					w_flush(e);
+				wl = e->wl;
+				wb = e->wb;   /* a flush swaps the buffers */
+			} else if (n <= 16) {
+				memcpy(wb + wl, span, 16);
+				wl += n;
+			} else {
+				memcpy(wb + wl, span, n);
+				wl += n;
+			}
+			memcpy(wb + wl, tmp, 24);
+			wl += (size_t)k;
+			span = ne;
+		}
+		rows++;
+		p = eol + 1;
+	}
+stop:
+	*wbp = wb;
+	*wlp = wl;
+	*spanp = span;
+	*rowsp = rows;
+	return p;
+}
+#endif
+
 /* The common records, fast, as many as come in a row.  Fields end at the
  * separators (seps); a corrected cell that is a plain number ending at
  * its delimiter or the line end (a CR allowed before it) is rewritten
@@ -1494,11 +1623,34 @@ static __attribute__((noinline)) int fast_run(eng *e, const char **pp, int *colp
 	seps it;
 	seps_init(&it, p, e->delim, e->stop_u);
 
+#ifdef HAVE_ONE_RUN
+	int cool = 0;   /* records before one_run is tried again */
+#endif
 	while (p < lim) {
+#ifdef HAVE_ONE_RUN
+		if (one && !cool) {
+			long n;
+			const char *q = one_run(e, p, lim, one, &lp1, &wb, &wl, &span, &n);
+			if (n) {
+				rows += n;
+				corrected += n;
+				line += n;
+				p = fs = q;
+				if (p >= lim)
+					break;
+				seps_at(&it, p);
+			} else {
+				cool = 32;   /* not that shape: a while in the loop below */
+			}
+		} else if (cool) {
+			cool--;
+		}
+#endif
 		if (*p == '\n' || (*p == '\r' && p[1] == '\n')) {
 			e->r->blank++;
 			line++;
 			p += *p == '\n' ? 1 : 2;
+			fs = p;
 			seps_next(&it);   /* that LF */
 			continue;
 		}
