@@ -1335,6 +1335,32 @@ static void test_one_column_same(void **state)
 	}
 }
 
+/* A blank line that ends a stretch of plain records (here the end of the
+ * file) is counted once and its line once. */
+static void test_blank_at_end(void **state)
+{
+	(void)state;
+	static const char *const ins[] = {"t,Vm\n1,2\n\n", "t,Vm\n1,2\n\n\n3,4\n\n",
+					  "t,Vm\n1,2\r\n\r\n"};
+	static const long blanks[] = {1, 3, 1};
+	char err[IM_ERRLEN];
+	for (size_t i = 0; i < IM_COUNT(ins); i++) {
+		corr_opts o = {0};
+		corr_result r;
+		const char *cols[] = {"2"};
+		size_t l = 0;
+		int rc;
+		assert_int_equal(corr_ljp_parse("1", &o.ljp, err), 0);
+		o.columns = cols;
+		o.ncolumns = 1;
+		char *out = run_par(ins[i], strlen(ins[i]), &o, 0, &l, &rc, &r, err);
+		assert_int_equal(rc, 0);
+		assert_int_equal(r.blank, blanks[i]);
+		assert_int_equal(l, strlen(ins[i]));
+		free(out);
+	}
+}
+
 /* A full disk (/dev/full, ENOSPC on every write) is reported, whether the
  * output is small (written at the end) or large (the writer thread). */
 static void test_write_error(void **state)
@@ -1888,6 +1914,7 @@ int main(void)
 		cmocka_unit_test(test_fast_path_same),
 		cmocka_unit_test(test_parallel_same),
 		cmocka_unit_test(test_one_column_same),
+		cmocka_unit_test(test_blank_at_end),
 		cmocka_unit_test(test_write_error),
 		cmocka_unit_test(test_tty_refusal),
 		cmocka_unit_test(test_metadata),
