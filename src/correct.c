@@ -15,10 +15,14 @@
  * quick_emit), else with plain_fast and fix_plain; at anything else it
  * stops at the start of a field and the general per-field loop in run()
  * (scan, do_cell) takes over, and hands back at the next record.  Both
- * write the same bytes (test_fast_path_same).  Past one write buffer of
- * output a writer thread writes full buffers while the next one fills,
- * and a full read buffer is cut in two for a helper thread that does the
- * second half (par_start; test_parallel_same).
+ * write the same bytes (test_fast_path_same).  With one corrected
+ * column fast_run first tries one_run, leaner still for the commonest
+ * records (a short plain number, lean_cell): the corrected text goes over
+ * the cell in the read buffer when it has the cell's length, so that the
+ * unchanged bytes leave in long spans (test_one_column_same).  Past
+ * one write buffer of output a writer thread writes full buffers while
+ * the next one fills, and a full read buffer is cut in two for a helper
+ * thread that does the second half (par_start; test_parallel_same).
  */
 #include "correct.h"
 
@@ -1593,7 +1597,7 @@ static __attribute__((noinline)) const char *one_run(eng *e, const char *p, cons
 	size_t wl = *wlp;
 	const char *span = *spanp;
 	long rows = 0;
-	char tmp[32];
+	char tmp[32] = {0};   /* 24 bytes of it are copied at a time */
 
 	while (p < lim) {
 		const char *fs = p, *ne, *eol;
