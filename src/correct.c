@@ -17,9 +17,8 @@
  * (scan, do_cell) takes over, and hands back at the next record.  Both
  * write the same bytes (test_fast_path_same).  With one corrected
  * column fast_run first tries one_run, leaner still for the commonest
- * records (a short plain number, lean_cell): the corrected text goes over
- * the cell in the read buffer when it has the cell's length, so that the
- * unchanged bytes leave in long spans (test_one_column_same).  Past
+ * records (a short plain number, lean_cell), each looked at whole before
+ * a byte of it is written (test_one_column_same).  Past
  * one write buffer of output a writer thread writes full buffers while
  * the next one fills, and a full read buffer is cut in two for a helper
  * thread that does the second half (par_start; test_parallel_same).
@@ -1493,30 +1492,19 @@ static inline const char *field_end48(const char *p, __m128i vd)
 	return NULL;
 }
 
-/* Write the first n (<= 16) bytes of t over dst, keeping dst[n..16). */
-static inline void patch16(char *dst, const char *t, int n)
-{
-	/* 16 bytes of ones then 16 of zeros: loaded at 16 - n, n ones */
-	static const signed char ones[32] = {-1, -1, -1, -1, -1, -1, -1, -1, -1, -1, -1, -1,
-					     -1, -1, -1, -1};
-	__m128i keep = _mm_loadu_si128((const __m128i *)(const void *)(ones + 16 - n));
-	__m128i old = _mm_loadu_si128((const __m128i *)(const void *)dst);
-	__m128i neu = _mm_loadu_si128((const __m128i *)(const void *)t);
-	_mm_storeu_si128((__m128i *)(void *)dst,
-			 _mm_or_si128(_mm_and_si128(keep, neu), _mm_andnot_si128(keep, old)));
-}
-
 /* The commonest cell, leanest: [+-]digits.digits, at least one digit
  * each side, at most 7 bytes after the sign, and an LJP that has at most
  * the cell's decimals and fits 7 lanes with the dot.  The text after the
  * sign is taken as lanes as it stands (the last byte lowest), the dot
  * kept as a lane of its own: 9 in the cell when adding and 0 when
  * subtracting, 0 in the LJP (dlanes), so that a carry or borrow passes
- * through it as through a digit; it is put back as '.' after.  Writes
- * the corrected number, as quick_emit would, at out (18 bytes writable)
- * and returns the byte after the cell's number, with its length in *k;
- * NULL when the cell is not of this form (nothing written). */
-static inline const char *lean_cell(const char *fs, const ljp_prep *lp, char *out, int *k)
+ * through it as through a digit; it is put back as '.' after.  The
+ * corrected number, as quick_emit would write it, is *sg (its sign, '-'
+ * or '+', or 0 for none) followed by the low bytes of *text (in memory
+ * order), *k bytes in all; returns the byte after the cell's number, or
+ * NULL when the cell is not of this form. */
+static inline const char *lean_cell(const char *fs, const ljp_prep *lp, uint64_t *text,
+				    int *sg, int *k)
 {
 	const uint64_t threes = 0x3030303030303030ULL;
 	int neg = *fs == '-', plus = *fs == '+';
@@ -1546,15 +1534,18 @@ static inline const char *lean_cell(const char *fs, const ljp_prep *lp, char *ou
 	int add = neg != lp->neg, lt = A < B;
 	uint64_t big = lt ? B : A, small = lt ? A : B;
 	uint64_t sum = lanes_add(A | (9ULL << (8 * nf)), B), dif = lanes_sub(big, small);
-	uint64_t R = (add ? sum : dif) & ~dot;
+	/* chosen by a mask, not a branch: the signs of a column's cells
+	 * come in no order (a branch here costs more than both results) */
+	uint64_t sel = -(uint64_t)add;
+	uint64_t R = ((sum & sel) | (dif & ~sel)) & ~dot;
 	int rneg = neg ^ (lt & !add) ^ lp->flip;
 	int nd = R ? 8 - (__builtin_clzll(R) >> 3) : 0;
 	int L = (nd > nf + 1 ? nd - nf - 1 : 1) + 1 + nf;
 	uint64_t w = ((R | threes) & ~dot) | ((uint64_t)'.' << (8 * nf));
 	w = __builtin_bswap64(w) >> (8 * (8 - L));
-	int minus = rneg && R;
-	out[0] = minus ? '-' : '+';
-	memcpy(out + (minus | plus), &w, 8);
+	int minus = rneg & (R != 0);
+	*sg = (minus * '-') | ((plus & !minus) * '+');
+	*text = w;
 	*k = (minus | plus) + L;
 	return s + len;
 }
@@ -1579,20 +1570,19 @@ static __attribute__((noinline)) const char *quick_cell(const char *fs, const lj
  * other field unquoted and shorter than 48 bytes.  A record is looked at
  * whole before anything is written, so where this stops (the returned
  * record start, before lim) nothing of it is done and fast_run goes on
- * there.  The unchanged bytes are left in the read buffer as one span
- * (written in one copy later); a corrected number of the cell's length
- * is written over the cell in place, one of another length ends the span
- * there.  The helper's copy (e->worker) must not change the buffer (its
- * work may be dropped and the half done again): it copies every record
- * to its own buffer, and stops when that is full.  *rowsp: the records
- * done. */
+ * there.  The read buffer is never written to (the helper's half may
+ * be dropped and done again).  The helper's copy (e->worker) stops when
+ * its write buffer is full.  *rowsp: the records done.  (Writing a
+ * corrected number of the cell's length over the cell in the read buffer
+ * and the rest out in long spans was measured: fewer instructions, more
+ * time - a branch on the length that the data decide, and stores the
+ * span copies wait for.) */
 static __attribute__((noinline)) const char *one_run(eng *e, const char *p, const char *lim, int one,
 				  const ljp_prep *lp, char **wbp, size_t *wlp,
 				  const char **spanp, long *rowsp)
 {
 	const __m128i vd = _mm_set1_epi8(e->delim);
 	const char delim = e->delim;
-	const int inplace = !e->worker;
 	char *wb = *wbp;
 	size_t wl = *wlp;
 	const char *span = *spanp;
@@ -1607,9 +1597,11 @@ static __attribute__((noinline)) const char *one_run(eng *e, const char *p, cons
 				goto stop;
 			fs = fe + 1;
 		}
-		int k;
-		ne = lean_cell(fs, lp, tmp, &k);
-		if (!ne && !(ne = quick_cell(fs, lp, tmp, &k)))
+		uint64_t w = 0;
+		int k, sg = 0;
+		ne = lean_cell(fs, lp, &w, &sg, &k);
+		int lean = ne != NULL;
+		if (!lean && !(ne = quick_cell(fs, lp, tmp, &k)))
 			goto stop;
 		if (*ne == '\n') {
 			eol = ne;
@@ -1631,30 +1623,31 @@ static __attribute__((noinline)) const char *one_run(eng *e, const char *p, cons
 		} else {
 			goto stop;
 		}
-		if (inplace && k == ne - fs && lim - fs >= 16) {
-			patch16((char *)fs, tmp, k);
+		size_t n = (size_t)(fs - span);
+		if (WR_CAP - wl < n + 16 + NUM_OUT_MAX) {
+			if (e->worker)
+				goto stop;   /* its buffer is full */
+			e->wl = wl;
+			w_put(e, span, n);
+			if (WR_CAP - e->wl < NUM_OUT_MAX)
+				w_flush(e);
+			wl = e->wl;
+			wb = e->wb;   /* a flush swaps the buffers */
+		} else if (n <= 16) {
+			memcpy(wb + wl, span, 16);
+			wl += n;
 		} else {
-			size_t n = (size_t)(fs - span);
-			if (WR_CAP - wl < n + 16 + NUM_OUT_MAX) {
-				if (!inplace)
-					goto stop;   /* its buffer is full */
-				e->wl = wl;
-				w_put(e, span, n);
-				if (WR_CAP - e->wl < NUM_OUT_MAX)
-					w_flush(e);
-				wl = e->wl;
-				wb = e->wb;   /* a flush swaps the buffers */
-			} else if (n <= 16) {
-				memcpy(wb + wl, span, 16);
-				wl += n;
-			} else {
-				memcpy(wb + wl, span, n);
-				wl += n;
-			}
-			memcpy(wb + wl, tmp, 24);
-			wl += (size_t)k;
-			span = ne;
+			memcpy(wb + wl, span, n);
+			wl += n;
 		}
+		if (lean) {
+			wb[wl] = (char)sg;
+			memcpy(wb + wl + (sg != 0), &w, 8);
+		} else {
+			memcpy(wb + wl, tmp, 24);
+		}
+		wl += (size_t)k;
+		span = ne;
 		rows++;
 		p = eol + 1;
 	}
