@@ -15,10 +15,13 @@
  * quick_emit), else with plain_fast and fix_plain; at anything else it
  * stops at the start of a field and the general per-field loop in run()
  * (scan, do_cell) takes over, and hands back at the next record.  Both
- * write the same bytes (test_fast_path_same).  Past one write buffer of
- * output a writer thread writes full buffers while the next one fills,
- * and a full read buffer is cut in two for a helper thread that does the
- * second half (par_start; test_parallel_same).
+ * write the same bytes (test_fast_path_same).  With one corrected
+ * column fast_run first tries one_run, leaner still for the commonest
+ * records (a short plain number, lean_cell), each looked at whole before
+ * a byte of it is written (test_one_column_same).  Past
+ * one write buffer of output a writer thread writes full buffers while
+ * the next one fills, and a full read buffer is cut in two for a helper
+ * thread that does the second half (par_start; test_parallel_same).
  */
 #include "correct.h"
 
@@ -88,6 +91,9 @@ typedef struct ljp_prep {
 	uint64_t lanes[8]; /* bn[nf] one decimal digit a byte, the last
 			    * lowest (see quick_emit); UINT64_MAX when it
 			    * has more than 7 digits or nf < k0 */
+	uint64_t dlanes[8]; /* lanes[nf] with a lane of 0 for the dot above
+			     * the nf decimals (see lean_cell); UINT64_MAX
+			     * when that takes more than 7 lanes */
 } ljp_prep;
 
 static int is_digit(int c)
@@ -279,6 +285,11 @@ static void ljp_prepare(const corr_ljp *l, int unit_exp, ljp_prep *lp)
 				for (int i = 0; v; i++, v /= 10)
 					l |= (v % 10) << (8 * i);
 				lp->lanes[nf] = l;
+			}
+			lp->dlanes[nf] = UINT64_MAX;
+			if (nf > 0 && z >= 0 && lp->ndig + z <= 6) {
+				uint64_t l = lp->lanes[nf], low = (1ULL << (8 * nf)) - 1;
+				lp->dlanes[nf] = (l & low) | ((l & ~low) << 8);
 			}
 		}
 	}
@@ -1462,6 +1473,193 @@ static inline const char *seps_next(seps *it)
 	return q;
 }
 
+#if defined(HAVE_QUICK) && defined(__SSE2__)
+#define HAVE_ONE_RUN 1
+/* The first delimiter (vd), LF or NUL in p[0..48) (readable: the buffer
+ * has RD_SLACK bytes past its sentinel), or NULL when there is none. */
+static inline const char *field_end48(const char *p, __m128i vd)
+{
+	const __m128i lf = _mm_set1_epi8('\n'), zero = _mm_setzero_si128();
+	for (int i = 0; i < 3; i++) {
+		__m128i x = _mm_loadu_si128((const __m128i *)(const void *)(p + 16 * i));
+		__m128i hit = _mm_or_si128(_mm_or_si128(_mm_cmpeq_epi8(x, vd),
+							 _mm_cmpeq_epi8(x, lf)),
+					   _mm_cmpeq_epi8(x, zero));
+		unsigned m = (unsigned)_mm_movemask_epi8(hit);
+		if (m)
+			return p + 16 * i + __builtin_ctz(m);
+	}
+	return NULL;
+}
+
+/* The commonest cell, leanest: [+-]digits.digits, at least one digit
+ * each side, at most 7 bytes after the sign, and an LJP that has at most
+ * the cell's decimals and fits 7 lanes with the dot.  The text after the
+ * sign is taken as lanes as it stands (the last byte lowest), the dot
+ * kept as a lane of its own: 9 in the cell when adding and 0 when
+ * subtracting, 0 in the LJP (dlanes), so that a carry or borrow passes
+ * through it as through a digit; it is put back as '.' after.  The
+ * corrected number, as quick_emit would write it, is *sg (its sign, '-'
+ * or '+', or 0 for none) followed by the low bytes of *text (in memory
+ * order), *k bytes in all; returns the byte after the cell's number, or
+ * NULL when the cell is not of this form. */
+static inline const char *lean_cell(const char *fs, const ljp_prep *lp, uint64_t *text,
+				    int *sg, int *k)
+{
+	const uint64_t threes = 0x3030303030303030ULL;
+	int neg = *fs == '-', plus = *fs == '+';
+	const char *s = fs + (neg | plus);
+	uint64_t x;
+	memcpy(&x, s, 8);
+	uint64_t t = nondigits(x);
+	if (!t)
+		return NULL;
+	int ni = __builtin_ctzll(t) >> 3;
+	if (ni == 0 || ni > 5 || (unsigned char)(x >> (8 * ni)) != '.')
+		return NULL;
+	/* the first non-digit after the dot (the lanes up to it are right:
+	 * no digit or dot carries into the next when 6 is added) */
+	uint64_t t2 = t & (~0ULL << (8 * (ni + 1)));
+	if (!t2)
+		return NULL;
+	int len = __builtin_ctzll(t2) >> 3, nf = len - ni - 1;
+	if (len > 7 || nf == 0)
+		return NULL;
+	uint64_t B = lp->dlanes[nf];
+	if (B == UINT64_MAX)
+		return NULL;
+	const uint64_t dot = 0xFFULL << (8 * nf);
+	/* reading order to lanes: the text at the top of the word, reversed */
+	uint64_t A = __builtin_bswap64(((x ^ threes) << (8 * (8 - len)))) & ~dot;
+	int add = neg != lp->neg, lt = A < B;
+	uint64_t big = lt ? B : A, small = lt ? A : B;
+	uint64_t sum = lanes_add(A | (9ULL << (8 * nf)), B), dif = lanes_sub(big, small);
+	/* chosen by a mask, not a branch: the signs of a column's cells
+	 * come in no order (a branch here costs more than both results) */
+	uint64_t sel = -(uint64_t)add;
+	uint64_t R = ((sum & sel) | (dif & ~sel)) & ~dot;
+	int rneg = neg ^ (lt & !add) ^ lp->flip;
+	int nd = R ? 8 - (__builtin_clzll(R) >> 3) : 0;
+	int L = (nd > nf + 1 ? nd - nf - 1 : 1) + 1 + nf;
+	uint64_t w = ((R | threes) & ~dot) | ((uint64_t)'.' << (8 * nf));
+	w = __builtin_bswap64(w) >> (8 * (8 - L));
+	int minus = rneg & (R != 0);
+	*sg = (minus * '-') | ((plus & !minus) * '+');
+	*text = w;
+	*k = (minus | plus) + L;
+	return s + len;
+}
+
+/* quick_parse and quick_emit at once, for one_run where lean_cell
+ * declines: the byte after the number at fs with the corrected text at
+ * out and its length in *k, or NULL.  Kept out of one_run's loop (its
+ * registers are for the common case). */
+static __attribute__((noinline)) const char *quick_cell(const char *fs, const ljp_prep *lp,
+							  char *out, int *k)
+{
+	quick q;
+	const char *ne = quick_parse(fs, &q);
+	if (!ne || (*k = quick_emit(&q, lp, out)) < 0)
+		return NULL;
+	return ne;
+}
+
+/* The commonest records, leanest: one corrected column (number `one`,
+ * LJP lp), its cell a number quick_parse and quick_emit take, ending at
+ * its delimiter or the line end (a CR allowed before the LF), every
+ * other field unquoted and shorter than 48 bytes.  A record is looked at
+ * whole before anything is written, so where this stops (the returned
+ * record start, before lim) nothing of it is done and fast_run goes on
+ * there.  The read buffer is never written to (the helper's half may
+ * be dropped and done again).  The helper's copy (e->worker) stops when
+ * its write buffer is full.  *rowsp: the records done.  (Writing a
+ * corrected number of the cell's length over the cell in the read buffer
+ * and the rest out in long spans was measured: fewer instructions, more
+ * time - a branch on the length that the data decide, and stores the
+ * span copies wait for.) */
+static __attribute__((noinline)) const char *one_run(eng *e, const char *p, const char *lim, int one,
+				  const ljp_prep *lp, char **wbp, size_t *wlp,
+				  const char **spanp, long *rowsp)
+{
+	const __m128i vd = _mm_set1_epi8(e->delim);
+	const char delim = e->delim;
+	char *wb = *wbp;
+	size_t wl = *wlp;
+	const char *span = *spanp;
+	long rows = 0;
+	char tmp[32] = {0};   /* 24 bytes of it are copied at a time */
+
+	while (p < lim) {
+		const char *fs = p, *ne, *eol;
+		for (int c = 1; c < one; c++) {
+			const char *fe = field_end48(fs, vd);
+			if (*fs == '"' || !fe || *fe != delim)
+				goto stop;
+			fs = fe + 1;
+		}
+		uint64_t w = 0;
+		int k, sg = 0;
+		ne = lean_cell(fs, lp, &w, &sg, &k);
+		int lean = ne != NULL;
+		if (!lean && !(ne = quick_cell(fs, lp, tmp, &k)))
+			goto stop;
+		if (*ne == '\n') {
+			eol = ne;
+		} else if (*ne == '\r' && ne[1] == '\n') {
+			eol = ne + 1;
+		} else if (*ne == delim) {
+			/* the fields after the cell, to the line end */
+			const char *s = ne + 1;
+			for (;;) {
+				const char *fe = field_end48(s, vd);
+				if (*s == '"' || !fe || *fe == '\0')
+					goto stop;
+				if (*fe == '\n') {
+					eol = fe;
+					break;
+				}
+				s = fe + 1;
+			}
+		} else {
+			goto stop;
+		}
+		size_t n = (size_t)(fs - span);
+		if (WR_CAP - wl < n + 16 + NUM_OUT_MAX) {
+			if (e->worker)
+				goto stop;   /* its buffer is full */
+			e->wl = wl;
+			w_put(e, span, n);
+			if (WR_CAP - e->wl < NUM_OUT_MAX)
+				w_flush(e);
+			wl = e->wl;
+			wb = e->wb;   /* a flush swaps the buffers */
+		} else if (n <= 16) {
+			memcpy(wb + wl, span, 16);
+			wl += n;
+		} else {
+			memcpy(wb + wl, span, n);
+			wl += n;
+		}
+		if (lean) {
+			wb[wl] = (char)sg;
+			memcpy(wb + wl + (sg != 0), &w, 8);
+		} else {
+			memcpy(wb + wl, tmp, 24);
+		}
+		wl += (size_t)k;
+		span = ne;
+		rows++;
+		p = eol + 1;
+	}
+stop:
+	*wbp = wb;
+	*wlp = wl;
+	*spanp = span;
+	*rowsp = rows;
+	return p;
+}
+#endif
+
 /* The common records, fast, as many as come in a row.  Fields end at the
  * separators (seps); a corrected cell that is a plain number ending at
  * its delimiter or the line end (a CR allowed before it) is rewritten
@@ -1494,11 +1692,34 @@ static __attribute__((noinline)) int fast_run(eng *e, const char **pp, int *colp
 	seps it;
 	seps_init(&it, p, e->delim, e->stop_u);
 
+#ifdef HAVE_ONE_RUN
+	int cool = 0;   /* records before one_run is tried again */
+#endif
 	while (p < lim) {
+#ifdef HAVE_ONE_RUN
+		if (one && !cool) {
+			long n;
+			const char *q = one_run(e, p, lim, one, &lp1, &wb, &wl, &span, &n);
+			if (n) {
+				rows += n;
+				corrected += n;
+				line += n;
+				p = fs = q;
+				if (p >= lim)
+					break;
+				seps_at(&it, p);
+			} else {
+				cool = 32;   /* not that shape: a while in the loop below */
+			}
+		} else if (cool) {
+			cool--;
+		}
+#endif
 		if (*p == '\n' || (*p == '\r' && p[1] == '\n')) {
 			e->r->blank++;
 			line++;
 			p += *p == '\n' ? 1 : 2;
+			fs = p;
 			seps_next(&it);   /* that LF */
 			continue;
 		}

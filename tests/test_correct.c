@@ -1243,6 +1243,124 @@ static void test_parallel_same(void **state)
 	free(in);
 }
 
+/* One corrected column, the shape one_run takes, mixed with records it
+ * leaves to the general loops (blank lines, CRLF, quoted and long fields,
+ * blanks, empty cells, exponents, 8 or more digits, cells whose corrected
+ * text is longer or shorter, a cell at the end of a buffer): the output
+ * is the input with each cell replaced by what corr_cell makes of it, the
+ * same with one thread and two, and the counts agree.  Several read
+ * buffers, so that cuts and refills fall between and inside records. */
+static void test_one_column_same(void **state)
+{
+	(void)state;
+	gen g = {777};
+	char err[IM_ERRLEN];
+	static const char *const ljps[] = {"14.2", "-0.05", "3"};
+	for (size_t li = 0; li < IM_COUNT(ljps); li++) {
+		char *in = NULL, *want = NULL;
+		size_t inl = 0, wantl = 0;
+		long cells = 0, blank = 0, skipped = 0;
+		corr_opts o = {0};
+		const char *cols[] = {"2"};
+		assert_int_equal(corr_ljp_parse(ljps[li], &o.ljp, err), 0);
+		o.columns = cols;
+		o.ncolumns = 1;
+		FILE *fi = open_memstream(&in, &inl), *fw = open_memstream(&want, &wantl);
+		fputs("t,Vm (mV),note\n", fi);
+		fputs("t,Vm (mV),note\n", fw);
+		for (long i = 0, n = 0; n < 3L * 1024 * 1024; i++) {
+			unsigned k = rnd(&g) % 100;
+			char v[48], c[160];
+			size_t cl;
+			long mv = (long)(rnd(&g) % 200001) - 120000;
+			if (k < 70) {
+				fmt_milli(v, mv);
+			} else if (k < 75) {
+				snprintf(v, sizeof v, "%ld.%u", mv / 1000, rnd(&g) % 10);
+			} else if (k < 78) {
+				snprintf(v, sizeof v, "%ld.123456", mv / 1000);
+			} else if (k < 80) {
+				snprintf(v, sizeof v, " %ld.5 ", mv / 1000);
+			} else if (k < 82) {
+				v[0] = '\0';
+			} else if (k < 84) {
+				snprintf(v, sizeof v, "%ld.5e-1", mv / 1000);
+			} else if (k < 86) {
+				snprintf(v, sizeof v, "+%u.", rnd(&g) % 30);
+			} else if (k < 88) {
+				snprintf(v, sizeof v, "-.%u", rnd(&g) % 1000);
+			} else {
+				fmt_milli(v, mv % 20000);   /* near 0: lengths change */
+			}
+			int rc = corr_cell(v, strlen(v), &o.ljp, 0, c, sizeof c, &cl, err);
+			assert_true(rc >= 0);
+			cells += rc == 0;
+			skipped += rc == 1;
+			const char *rest = k % 7 == 0 ? ",\"a,b\"" : k % 11 == 0 ? "" :
+				k % 13 == 0 ? ",a-field-longer-than-forty-eight-bytes-for-the-scan" : ",x";
+			const char *eol = i % 9 == 0 ? "\r\n" : "\n";
+			n += fprintf(fi, "%ld,%s%s%s", i, v, rest, eol);
+			fprintf(fw, "%ld,%s%s%s", i, c, rest, eol);
+			if (i % 97 == 0) {
+				n += fprintf(fi, "\n");
+				fprintf(fw, "\n");
+				blank++;
+			}
+		}
+		fclose(fi);
+		fclose(fw);
+		for (int par = 0; par < 2; par++) {
+			corr_result r;
+			size_t l = 0;
+			int rc;
+			char *out = run_par(in, inl, &o, par, &l, &rc, &r, err);
+			if (rc != 0)
+				fail_msg("LJP %s, %d threads: %s", ljps[li], par + 1, err);
+			assert_int_equal(l, wantl);
+			if (memcmp(out, want, l) != 0) {
+				size_t at = 0;
+				while (out[at] == want[at])
+					at++;
+				fail_msg("LJP %s, %d threads: byte %zu differs: '%.40s' for '%.40s'",
+					 ljps[li], par + 1, at, out + at, want + at);
+			}
+			assert_int_equal(r.corrected, cells);
+			assert_int_equal(r.skipped, skipped);
+			assert_int_equal(r.blank, blank);
+			assert_int_equal(r.rows, cells + skipped);
+			free(out);
+		}
+		free(in);
+		free(want);
+	}
+}
+
+/* A blank line that ends a stretch of plain records (here the end of the
+ * file) is counted once and its line once. */
+static void test_blank_at_end(void **state)
+{
+	(void)state;
+	static const char *const ins[] = {"t,Vm\n1,2\n\n", "t,Vm\n1,2\n\n\n3,4\n\n",
+					  "t,Vm\n1,2\r\n\r\n"};
+	static const long blanks[] = {1, 3, 1};
+	char err[IM_ERRLEN];
+	for (size_t i = 0; i < IM_COUNT(ins); i++) {
+		corr_opts o = {0};
+		corr_result r;
+		const char *cols[] = {"2"};
+		size_t l = 0;
+		int rc;
+		assert_int_equal(corr_ljp_parse("1", &o.ljp, err), 0);
+		o.columns = cols;
+		o.ncolumns = 1;
+		char *out = run_par(ins[i], strlen(ins[i]), &o, 0, &l, &rc, &r, err);
+		assert_int_equal(rc, 0);
+		assert_int_equal(r.blank, blanks[i]);
+		assert_int_equal(l, strlen(ins[i]));
+		free(out);
+	}
+}
+
 /* A full disk (/dev/full, ENOSPC on every write) is reported, whether the
  * output is small (written at the end) or large (the writer thread). */
 static void test_write_error(void **state)
@@ -1795,6 +1913,8 @@ int main(void)
 		cmocka_unit_test(test_boundaries),
 		cmocka_unit_test(test_fast_path_same),
 		cmocka_unit_test(test_parallel_same),
+		cmocka_unit_test(test_one_column_same),
+		cmocka_unit_test(test_blank_at_end),
 		cmocka_unit_test(test_write_error),
 		cmocka_unit_test(test_tty_refusal),
 		cmocka_unit_test(test_metadata),
