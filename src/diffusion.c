@@ -24,11 +24,14 @@
  * Solution.  Newton's method with the exact Jacobian, block tridiagonal
  * (one n x n block per node), solved by block elimination with partial
  * pivoting, the forward sweep done node by node as the Jacobian is
- * assembled (only the eliminated upper blocks are kept); each step is cut back (halved up to 12 times) until the largest
- * residual falls, and components that would turn negative are halved
- * toward zero instead.  The start is Henderson's linear mixing along one
- * erfc profile.  If Newton does not converge within max_newton iterations,
- * the concentration step is continued: the bath is taken as
+ * assembled (only the eliminated upper blocks are kept); each step is cut
+ * back (halved up to 12 times) until the largest residual falls, and
+ * components that would turn negative are halved toward zero instead; a
+ * step that no cut makes lower the residual ends that Newton run as not
+ * converged (it has stalled: the next Jacobian, a tiny step away, points
+ * the same way).  The start is Henderson's linear mixing along one erfc
+ * profile.  If Newton does not converge within max_newton iterations or
+ * stalls, the concentration step is continued: the bath is taken as
  * pipette + lambda (bath - pipette), lambda raised from 0 to 1 in steps that
  * double after a success and shrink fourfold after a failure (smallest
  * DF_MIN_DLAMBDA).  Then the grid is refined (nodes doubled, the solution
@@ -55,6 +58,8 @@
 #define DF_NEWTON_TOL_RES 1e-5
 #define DF_RES_TOL 1e-9
 #define DF_MIN_DLAMBDA (1.0 / 4096)
+/* Trials of a Newton step: the full step, then halved up to 12 times. */
+#define DF_MAX_CUTS 13
 #define DF_SIGNIFICANT 1e-3  /* ions below this share of the charge do not set D_ref */
 /* Trace species (H+ and OH- near neutral pH, minor protonation states and
  * complexes) whose share of the conductance is below this on both sides
@@ -450,7 +455,8 @@ static int newton(sys *s, int maxit, int *its, double *res)
 				dmax = fabs(s->dx[q]);
 		if (!isfinite(dmax))
 			return -1;
-		for (int cut = 0; cut < 13; cut++, a *= 0.5) {
+		int cut;
+		for (cut = 0; cut < DF_MAX_CUTS; cut++, a *= 0.5) {
 			memcpy(s->trial, s->c, tot * sizeof *s->c);
 			for (size_t q = (size_t)n; q < tot - n; q++) {
 				double v = s->c[q] + a * s->dx[q];
@@ -461,7 +467,12 @@ static int newton(sys *s, int maxit, int *its, double *res)
 			if (dmax * a < DF_NEWTON_TOL)
 				break;
 		}
-		if (!isfinite(r1))
+		/* stalled: no cut of the step lowered the residual.  The next
+		 * Jacobian, a tiny step away, gives nearly the same direction,
+		 * so iterating on (up to max_newton assemblies, each with
+		 * DF_MAX_CUTS trials) only repeats the failure: give up at
+		 * once and let the caller continue in the concentration step */
+		if (cut == DF_MAX_CUTS || !isfinite(r1))
 			return -1;
 		memcpy(s->c, s->trial, tot * sizeof *s->c);
 		if (a == 1.0 &&
