@@ -90,12 +90,16 @@ typedef struct sys {
 	double *R;         /* M x n (interior rows used) */
 	double *dx;        /* M x n: the Newton correction */
 	double *X;         /* M x n x n: D_k^-1 U_k after elimination */
-	double *L, *Dg, *U; /* n x n: the blocks of the node being eliminated */
+	double *Dg, *U;    /* n x n: the diagonal and upper blocks of the node
+			    * being eliminated */
+	/* its lower block, diagonal plus rank one (see face_jac):
+	 * L = diag(Ld) + Lu Lv^T */
+	double Ld[JN_MAX_IONS], Lu[JN_MAX_IONS], Lv[JN_MAX_IONS];
 	int singular;      /* 1: a diagonal block was singular in the last
 			    * assembly of the Jacobian */
 	unsigned char *up; /* M x n: 1 = upwind advection */
 	int *piv;          /* n */
-	double *Fa, *Fb, *dA, *dB, *F0; /* scratch, n x n and n */
+	double *Fa, *Fb;   /* scratch, n: the fluxes of two faces */
 } sys;
 
 static void sys_free(sys *s)
@@ -105,7 +109,6 @@ static void sys_free(sys *s)
 	free(s->trial);
 	free(s->R);
 	free(s->dx);
-	free(s->L);
 	free(s->Dg);
 	free(s->U);
 	free(s->X);
@@ -113,11 +116,8 @@ static void sys_free(sys *s)
 	free(s->piv);
 	free(s->Fa);
 	free(s->Fb);
-	free(s->dA);
-	free(s->dB);
-	free(s->F0);
-	s->zeta = s->c = s->trial = s->R = s->dx = s->L = s->Dg = s->U = s->X = NULL;
-	s->Fa = s->Fb = s->dA = s->dB = s->F0 = NULL;
+	s->zeta = s->c = s->trial = s->R = s->dx = s->Dg = s->U = s->X = NULL;
+	s->Fa = s->Fb = NULL;
 	s->up = NULL;
 	s->piv = NULL;
 }
@@ -133,7 +133,6 @@ static void sys_grid(sys *s, int M)
 	s->trial = im_xmalloc(sizeof(double) * M * n);
 	s->R = im_xmalloc(sizeof(double) * M * n);
 	s->dx = im_xmalloc(sizeof(double) * M * n);
-	s->L = im_xmalloc(sizeof(double) * nn);
 	s->Dg = im_xmalloc(sizeof(double) * nn);
 	s->U = im_xmalloc(sizeof(double) * nn);
 	s->X = im_xmalloc(sizeof(double) * M * nn);
@@ -141,9 +140,6 @@ static void sys_grid(sys *s, int M)
 	s->piv = im_xmalloc(sizeof(int) * n);
 	s->Fa = im_xmalloc(sizeof(double) * n);
 	s->Fb = im_xmalloc(sizeof(double) * n);
-	s->dA = im_xmalloc(sizeof(double) * nn * 2);
-	s->dB = im_xmalloc(sizeof(double) * nn * 2);
-	s->F0 = im_xmalloc(sizeof(double) * n);
 	for (int k = 0; k < M; k++) {
 		double sk = -1.0 + 2.0 * k / (M - 1);
 		s->zeta[k] = s->Z * sinh(DF_STRETCH * sk) / sinh(DF_STRETCH);
@@ -194,11 +190,22 @@ static double node_rho(const sys *s, int k)
 	return s->zeta[k] > 0 ? rb : 0.5 * (s->rho_p + rb);
 }
 
-/* Flux term d (c' + z c psi') on the face k | k+1, times nothing else; with
- * derivatives dA = dF/dc_k, dB = dF/dc_{k+1} (n x n, row i = flux i) when
- * jac.  Returns -1 when the conductance is not positive. */
-static int face(const sys *s, const double *c, int k, double *F, double *dA, double *dB,
-		int jac)
+/* The derivatives of a face's fluxes F (n) with respect to the nodes on
+ * either side, each a diagonal plus one rank-one term shared by the rows:
+ *     dF_i/dc_{k,j}   = ga_i delta_ij + u_i pa_j
+ *     dF_i/dc_{k+1,j} = gb_i delta_ij + u_i pb_j
+ * (u_i = d_i z_i cbar_i / h, pa and pb the derivatives of the potential
+ * gradient p).  Kept factored, a block costs n, not n^2, to build, and
+ * the lower block's product in the elimination n^2, not n^3. */
+typedef struct face_jac {
+	double u[JN_MAX_IONS], pa[JN_MAX_IONS], pb[JN_MAX_IONS];
+	double ga[JN_MAX_IONS], gb[JN_MAX_IONS];
+} face_jac;
+
+/* Flux term d (c' + z c psi') on the face k | k+1, times nothing else;
+ * with its derivatives in J when J is not NULL.  Returns -1 when the
+ * conductance is not positive. */
+static int face(const sys *s, const double *c, int k, double *F, face_jac *J)
 {
 	int n = s->n;
 	const double *a = c + (size_t)k * n, *b = a + n;
@@ -212,23 +219,19 @@ static int face(const sys *s, const double *c, int k, double *F, double *dA, dou
 	p = -G / K;
 	for (int i = 0; i < n; i++)
 		F[i] = s->d[i] / h * (b[i] - a[i] + s->z[i] * 0.5 * (a[i] + b[i]) * p);
-	if (!jac)
+	if (!J)
 		return 0;
 	/* dp/dc of each side, the same for every row */
-	double pa[JN_MAX_IONS], pb[JN_MAX_IONS];
 	for (int j = 0; j < n; j++) {
 		double zd = s->z[j] * s->d[j], g2 = G * s->z[j] * zd / (2.0 * K * K);
-		pa[j] = zd / K + g2;
-		pb[j] = -zd / K + g2;
+		J->pa[j] = zd / K + g2;
+		J->pb[j] = -zd / K + g2;
 	}
 	for (int i = 0; i < n; i++) {
-		double f = s->d[i] / h, zc = s->z[i] * 0.5 * (a[i] + b[i]);
-		for (int j = 0; j < n; j++) {
-			dA[i * n + j] = f * zc * pa[j];
-			dB[i * n + j] = f * zc * pb[j];
-		}
-		dA[i * n + i] += f * (-1.0 + 0.5 * s->z[i] * p);
-		dB[i * n + i] += f * (1.0 + 0.5 * s->z[i] * p);
+		double f = s->d[i] / h;
+		J->u[i] = f * s->z[i] * 0.5 * (a[i] + b[i]);
+		J->ga[i] = f * (-1.0 + 0.5 * s->z[i] * p);
+		J->gb[i] = f * (1.0 + 0.5 * s->z[i] * p);
 	}
 	return 0;
 }
@@ -237,24 +240,32 @@ static int lu(double *a, int n, int *piv);
 static void lu_solve(const double *a, int n, const int *piv, double *b, int cols);
 
 /* The forward sweep of block elimination at node k, whose blocks are in
- * s->L, s->Dg, s->U and residual in R: R becomes D'^-1 (R - L R_{k-1}'),
- * X_k = D'^-1 U with D' = D - L X_{k-1}.  Sets s->singular when D' is. */
+ * s->Ld, Lu, Lv (L, factored), s->Dg, s->U and residual in R: R becomes
+ * D'^-1 (R - L R_{k-1}'), X_k = D'^-1 U with D' = D - L X_{k-1}.  Sets
+ * s->singular when D' is. */
 static void eliminate(sys *s, int k, double *R)
 {
 	int n = s->n, M = s->M;
 	size_t nn = (size_t)n * n;
 	double *D = s->Dg, *X = s->X + k * nn;
 	if (k > 1) {
-		const double *L = s->L, *Xp = s->X + (k - 1) * nn, *rp = R - n;
-		for (int i = 0; i < n; i++)
-			for (int m = 0; m < n; m++) {
-				double l = L[i * n + m];
-				if (l == 0)
-					continue;
-				R[i] -= l * rp[m];
-				for (int j = 0; j < n; j++)
-					D[i * n + j] -= l * Xp[m * n + j];
-			}
+		/* L X = diag(Ld) X + Lu (Lv^T X) */
+		const double *Xp = s->X + (k - 1) * nn, *rp = R - n;
+		double vX[JN_MAX_IONS], vr = 0;
+		for (int j = 0; j < n; j++)
+			vX[j] = 0;
+		for (int m = 0; m < n; m++) {
+			double v = s->Lv[m];
+			vr += v * rp[m];
+			for (int j = 0; j < n; j++)
+				vX[j] += v * Xp[m * n + j];
+		}
+		for (int i = 0; i < n; i++) {
+			double ld = s->Ld[i], lk = s->Lu[i];
+			R[i] -= ld * rp[i] + lk * vr;
+			for (int j = 0; j < n; j++)
+				D[i * n + j] -= ld * Xp[i * n + j] + lk * vX[j];
+		}
 	}
 	if (lu(D, n, s->piv)) {
 		s->singular = 1;
@@ -267,27 +278,71 @@ static void eliminate(sys *s, int k, double *R)
 	}
 }
 
+/* The Jacobian blocks of node k's residual R from the derivatives of its
+ * left face Jm (k-1 | k) and right face Jp (k | k+1): the lower block
+ * L = -dFm/dc_{k-1} / w (kept factored), the diagonal block
+ * D = (dFp/dc_k - dFm/dc_k) / w and the upper U = dFp/dc_{k+1} / w, plus
+ * the advection term on the diagonals; ion e's row is electroneutrality.
+ * Then the forward elimination of the node (unless an earlier block was
+ * singular). */
+static void node_blocks(sys *s, int k, const face_jac *Jm, const face_jac *Jp, double *R)
+{
+	int n = s->n, e = s->e;
+	double w = 0.5 * (s->zeta[k + 1] - s->zeta[k - 1]);
+	double hm = s->zeta[k] - s->zeta[k - 1], hp = s->zeta[k + 1] - s->zeta[k];
+	double zh = 0.5 * s->zeta[k], *D = s->Dg, *U = s->U;
+	for (int i = 0; i < n; i++) {
+		double um = Jm->u[i] / w, up = Jp->u[i] / w;
+		double *Di = D + (size_t)i * n, *Ui = U + (size_t)i * n;
+		s->Lu[i] = -um;
+		s->Lv[i] = Jm->pa[i];
+		s->Ld[i] = -Jm->ga[i] / w;
+		for (int j = 0; j < n; j++) {
+			Di[j] = up * Jp->pa[j] - um * Jm->pb[j];
+			Ui[j] = up * Jp->pb[j];
+		}
+		Di[i] += (Jp->ga[i] - Jm->gb[i]) / w;
+		Ui[i] += Jp->gb[i] / w;
+		if (!s->up[k * n + i]) {
+			s->Ld[i] -= zh / (2.0 * w);
+			Ui[i] += zh / (2.0 * w);
+		} else if (s->zeta[k] > 0) {
+			Ui[i] += zh / hp;
+			Di[i] -= zh / hp;
+		} else {
+			Di[i] += zh / hm;
+			s->Ld[i] -= zh / hm;
+		}
+	}
+	s->Ld[e] = s->Lu[e] = 0.0;
+	for (int j = 0; j < n; j++) {
+		U[e * n + j] = 0.0;
+		D[e * n + j] = s->z[j];
+	}
+	if (!s->singular)
+		eliminate(s, k, R);
+}
+
 /* Residual of c; the largest |R| in *rmax.  When jac, also the Jacobian,
  * eliminated node by node as it is built (block_solve finishes).  -1 when
  * a conductance is not positive. */
 static int assemble(sys *s, const double *c, int jac, double *rmax)
 {
 	int n = s->n, M = s->M;
-	size_t nn = (size_t)n * n;
-	double *Fm = s->Fa, *Fp = s->Fb, *dAm = s->dA, *dBm = s->dA + nn, *dAp = s->dB,
-	       *dBp = s->dB + nn;
+	double *Fm = s->Fa, *Fp = s->Fb, *t;
+	face_jac ja, jb, *Jm = jac ? &ja : NULL, *Jp = jac ? &jb : NULL, *tj;
 	double mx = 0;
 	if (jac)
 		s->singular = 0;
-	if (face(s, c, 0, Fm, dAm, dBm, jac))
+	if (face(s, c, 0, Fm, Jm))
 		return -1;
 	for (int k = 1; k < M - 1; k++) {
 		double w = 0.5 * (s->zeta[k + 1] - s->zeta[k - 1]);
 		double hm = s->zeta[k] - s->zeta[k - 1], hp = s->zeta[k + 1] - s->zeta[k];
 		double zh = 0.5 * s->zeta[k];
-		double *R = s->R + (size_t)k * n, *L = s->L, *D = s->Dg, *U = s->U, *t;
+		double *R = s->R + (size_t)k * n;
 		const double *ck = c + (size_t)k * n;
-		if (face(s, c, k, Fp, dAp, dBp, jac))
+		if (face(s, c, k, Fp, Jp))
 			return -1;
 		for (int i = 0; i < n; i++) {
 			double adv;
@@ -308,42 +363,15 @@ static int assemble(sys *s, const double *c, int jac, double *rmax)
 		for (int i = 0; i < n; i++)
 			if (fabs(R[i]) > mx)
 				mx = fabs(R[i]);
-		if (jac) {
-			for (size_t q = 0; q < nn; q++) {
-				L[q] = -dAm[q] / w;
-				D[q] = (dAp[q] - dBm[q]) / w;
-				U[q] = dBp[q] / w;
-			}
-			for (int i = 0; i < n; i++) {
-				size_t ii = (size_t)i * n + i;
-				if (!s->up[k * n + i]) {
-					L[ii] -= zh / (2.0 * w);
-					U[ii] += zh / (2.0 * w);
-				} else if (s->zeta[k] > 0) {
-					U[ii] += zh / hp;
-					D[ii] -= zh / hp;
-				} else {
-					D[ii] += zh / hm;
-					L[ii] -= zh / hm;
-				}
-			}
-			for (int j = 0; j < n; j++) {
-				L[s->e * n + j] = U[s->e * n + j] = 0.0;
-				D[s->e * n + j] = s->z[j];
-			}
-			if (!s->singular)
-				eliminate(s, k, R);
-		}
+		if (jac)
+			node_blocks(s, k, Jm, Jp, R);
 		/* this face's flux is the next node's left flux */
 		t = Fm;
 		Fm = Fp;
 		Fp = t;
-		t = dAm;
-		dAm = dAp;
-		dAp = t;
-		t = dBm;
-		dBm = dBp;
-		dBp = t;
+		tj = Jm;
+		Jm = Jp;
+		Jp = tj;
 	}
 	*rmax = mx;
 	return 0;
