@@ -90,11 +90,13 @@ typedef struct sys {
 	double *R;         /* M x n (interior rows used) */
 	double *dx;        /* M x n: the Newton correction */
 	double *X;         /* M x n x n: D_k^-1 U_k after elimination */
-	double *Dg, *U;    /* n x n: the diagonal and upper blocks of the node
-			    * being eliminated */
-	/* its lower block, diagonal plus rank one (see face_jac):
-	 * L = diag(Ld) + Lu Lv^T */
+	double *Dg;        /* n x n: the diagonal block of the node being
+			    * eliminated */
+	/* its lower and upper blocks, each a diagonal plus rank one (see
+	 * face_jac): L = diag(Ld) + Lu Lv^T, U = diag(Ud) + Uu Uv^T */
 	double Ld[JN_MAX_IONS], Lu[JN_MAX_IONS], Lv[JN_MAX_IONS];
+	double Ud[JN_MAX_IONS], Uu[JN_MAX_IONS], Uv[JN_MAX_IONS];
+	double *col;       /* n: scratch */
 	int singular;      /* 1: a diagonal block was singular in the last
 			    * assembly of the Jacobian */
 	unsigned char *up; /* M x n: 1 = upwind advection */
@@ -110,13 +112,13 @@ static void sys_free(sys *s)
 	free(s->R);
 	free(s->dx);
 	free(s->Dg);
-	free(s->U);
+	free(s->col);
 	free(s->X);
 	free(s->up);
 	free(s->piv);
 	free(s->Fa);
 	free(s->Fb);
-	s->zeta = s->c = s->trial = s->R = s->dx = s->Dg = s->U = s->X = NULL;
+	s->zeta = s->c = s->trial = s->R = s->dx = s->Dg = s->col = s->X = NULL;
 	s->Fa = s->Fb = NULL;
 	s->up = NULL;
 	s->piv = NULL;
@@ -134,7 +136,7 @@ static void sys_grid(sys *s, int M)
 	s->R = im_xmalloc(sizeof(double) * M * n);
 	s->dx = im_xmalloc(sizeof(double) * M * n);
 	s->Dg = im_xmalloc(sizeof(double) * nn);
-	s->U = im_xmalloc(sizeof(double) * nn);
+	s->col = im_xmalloc(sizeof(double) * n);
 	s->X = im_xmalloc(sizeof(double) * M * nn);
 	s->up = im_xmalloc((size_t)M * n);
 	s->piv = im_xmalloc(sizeof(int) * n);
@@ -239,8 +241,56 @@ static int face(const sys *s, const double *c, int k, double *F, face_jac *J)
 static int lu(double *a, int n, int *piv);
 static void lu_solve(const double *a, int n, const int *piv, double *b, int cols);
 
+/* X = D'^-1 U with D' factored by lu (a, piv) and U = diag(Ud) + Uu Uv^T:
+ * column j is Ud_j (D'^-1 e_j) + Uv_j (D'^-1 Uu).  A unit vector's
+ * forward substitution starts at its (permuted) row, and a column with
+ * Ud_j = 0 (ion e's) needs none, so this costs about 2/3 of solving for
+ * the n dense columns of U. */
+static void upper_solve(sys *s, const double *a, double *X)
+{
+	int n = s->n;
+	const int *piv = s->piv;
+	double *w = s->col;
+	memcpy(w, s->Uu, (size_t)n * sizeof *w);
+	lu_solve(a, n, piv, w, 1);
+	for (int j = 0; j < n; j++) {
+		double dj = s->Ud[j], vj = s->Uv[j];
+		int pos = j;
+		if (dj == 0) {
+			for (int i = 0; i < n; i++)
+				X[i * n + j] = vj * w[i];
+			continue;
+		}
+		/* P e_j: the row swaps of lu move the 1 */
+		for (int k = 0; k < n; k++)
+			if (piv[k] == pos)
+				pos = k;
+			else if (k == pos)
+				pos = piv[k];
+		double y[JN_MAX_IONS];
+		for (int i = 0; i < pos; i++)
+			y[i] = 0.0;
+		y[pos] = 1.0;
+		for (int i = pos + 1; i < n; i++) {
+			double t = 0.0;
+			for (int k = pos; k < i; k++)
+				t -= a[i * n + k] * y[k];
+			y[i] = t;
+		}
+		for (int i = n - 1; i >= 0; i--) {
+			double t = y[i];
+			for (int k = i + 1; k < n; k++)
+				t -= a[i * n + k] * y[k];
+			y[i] = t / a[i * n + i];
+		}
+		for (int i = 0; i < n; i++)
+			X[i * n + j] = dj * y[i] + vj * w[i];
+	}
+}
+
 /* The forward sweep of block elimination at node k, whose blocks are in
- * s->Ld, Lu, Lv (L, factored), s->Dg, s->U and residual in R: R becomes
+ * s->Ld, Lu, Lv (L, factored), s->Dg, s->Ud, Uu, Uv (U, factored) and
+ * residual in R: R becomes
  * D'^-1 (R - L R_{k-1}'), X_k = D'^-1 U with D' = D - L X_{k-1}.  Sets
  * s->singular when D' is. */
 static void eliminate(sys *s, int k, double *R)
@@ -272,10 +322,8 @@ static void eliminate(sys *s, int k, double *R)
 		return;
 	}
 	lu_solve(D, n, s->piv, R, 1);
-	if (k < M - 2) {
-		memcpy(X, s->U, nn * sizeof *X);
-		lu_solve(D, n, s->piv, X, n);
-	}
+	if (k < M - 2)
+		upper_solve(s, D, X);
 }
 
 /* The Jacobian blocks of node k's residual R from the derivatives of its
@@ -290,35 +338,33 @@ static void node_blocks(sys *s, int k, const face_jac *Jm, const face_jac *Jp, d
 	int n = s->n, e = s->e;
 	double w = 0.5 * (s->zeta[k + 1] - s->zeta[k - 1]);
 	double hm = s->zeta[k] - s->zeta[k - 1], hp = s->zeta[k + 1] - s->zeta[k];
-	double zh = 0.5 * s->zeta[k], *D = s->Dg, *U = s->U;
+	double zh = 0.5 * s->zeta[k], *D = s->Dg;
 	for (int i = 0; i < n; i++) {
 		double um = Jm->u[i] / w, up = Jp->u[i] / w;
-		double *Di = D + (size_t)i * n, *Ui = U + (size_t)i * n;
+		double *Di = D + (size_t)i * n;
 		s->Lu[i] = -um;
 		s->Lv[i] = Jm->pa[i];
 		s->Ld[i] = -Jm->ga[i] / w;
-		for (int j = 0; j < n; j++) {
+		s->Uu[i] = up;
+		s->Uv[i] = Jp->pb[i];
+		s->Ud[i] = Jp->gb[i] / w;
+		for (int j = 0; j < n; j++)
 			Di[j] = up * Jp->pa[j] - um * Jm->pb[j];
-			Ui[j] = up * Jp->pb[j];
-		}
 		Di[i] += (Jp->ga[i] - Jm->gb[i]) / w;
-		Ui[i] += Jp->gb[i] / w;
 		if (!s->up[k * n + i]) {
 			s->Ld[i] -= zh / (2.0 * w);
-			Ui[i] += zh / (2.0 * w);
+			s->Ud[i] += zh / (2.0 * w);
 		} else if (s->zeta[k] > 0) {
-			Ui[i] += zh / hp;
+			s->Ud[i] += zh / hp;
 			Di[i] -= zh / hp;
 		} else {
 			Di[i] += zh / hm;
 			s->Ld[i] -= zh / hm;
 		}
 	}
-	s->Ld[e] = s->Lu[e] = 0.0;
-	for (int j = 0; j < n; j++) {
-		U[e * n + j] = 0.0;
+	s->Ld[e] = s->Lu[e] = s->Ud[e] = s->Uu[e] = 0.0;
+	for (int j = 0; j < n; j++)
 		D[e * n + j] = s->z[j];
-	}
 	if (!s->singular)
 		eliminate(s, k, R);
 }
