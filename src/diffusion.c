@@ -24,11 +24,14 @@
  * Solution.  Newton's method with the exact Jacobian, block tridiagonal
  * (one n x n block per node), solved by block elimination with partial
  * pivoting, the forward sweep done node by node as the Jacobian is
- * assembled (only the eliminated upper blocks are kept); each step is cut back (halved up to 12 times) until the largest
- * residual falls, and components that would turn negative are halved
- * toward zero instead.  The start is Henderson's linear mixing along one
- * erfc profile.  If Newton does not converge within max_newton iterations,
- * the concentration step is continued: the bath is taken as
+ * assembled (only the eliminated upper blocks are kept); each step is cut
+ * back (halved up to 12 times) until the largest residual falls, and
+ * components that would turn negative are halved toward zero instead; a
+ * step that no cut makes lower the residual ends that Newton run as not
+ * converged (it has stalled: the next Jacobian, a tiny step away, points
+ * the same way).  The start is Henderson's linear mixing along one erfc
+ * profile.  If Newton does not converge within max_newton iterations or
+ * stalls, the concentration step is continued: the bath is taken as
  * pipette + lambda (bath - pipette), lambda raised from 0 to 1 in steps that
  * double after a success and shrink fourfold after a failure (smallest
  * DF_MIN_DLAMBDA).  Then the grid is refined (nodes doubled, the solution
@@ -55,6 +58,8 @@
 #define DF_NEWTON_TOL_RES 1e-5
 #define DF_RES_TOL 1e-9
 #define DF_MIN_DLAMBDA (1.0 / 4096)
+/* Trials of a Newton step: the full step, then halved up to 12 times. */
+#define DF_MAX_CUTS 13
 #define DF_SIGNIFICANT 1e-3  /* ions below this share of the charge do not set D_ref */
 /* Trace species (H+ and OH- near neutral pH, minor protonation states and
  * complexes) whose share of the conductance is below this on both sides
@@ -85,12 +90,18 @@ typedef struct sys {
 	double *R;         /* M x n (interior rows used) */
 	double *dx;        /* M x n: the Newton correction */
 	double *X;         /* M x n x n: D_k^-1 U_k after elimination */
-	double *L, *Dg, *U; /* n x n: the blocks of the node being eliminated */
+	double *Dg;        /* n x n: the diagonal block of the node being
+			    * eliminated */
+	/* its lower and upper blocks, each a diagonal plus rank one (see
+	 * face_jac): L = diag(Ld) + Lu Lv^T, U = diag(Ud) + Uu Uv^T */
+	double Ld[JN_MAX_IONS], Lu[JN_MAX_IONS], Lv[JN_MAX_IONS];
+	double Ud[JN_MAX_IONS], Uu[JN_MAX_IONS], Uv[JN_MAX_IONS];
+	double *col;       /* n: scratch */
 	int singular;      /* 1: a diagonal block was singular in the last
 			    * assembly of the Jacobian */
 	unsigned char *up; /* M x n: 1 = upwind advection */
 	int *piv;          /* n */
-	double *Fa, *Fb, *dA, *dB, *F0; /* scratch, n x n and n */
+	double *Fa, *Fb;   /* scratch, n: the fluxes of two faces */
 } sys;
 
 static void sys_free(sys *s)
@@ -100,19 +111,15 @@ static void sys_free(sys *s)
 	free(s->trial);
 	free(s->R);
 	free(s->dx);
-	free(s->L);
 	free(s->Dg);
-	free(s->U);
+	free(s->col);
 	free(s->X);
 	free(s->up);
 	free(s->piv);
 	free(s->Fa);
 	free(s->Fb);
-	free(s->dA);
-	free(s->dB);
-	free(s->F0);
-	s->zeta = s->c = s->trial = s->R = s->dx = s->L = s->Dg = s->U = s->X = NULL;
-	s->Fa = s->Fb = s->dA = s->dB = s->F0 = NULL;
+	s->zeta = s->c = s->trial = s->R = s->dx = s->Dg = s->col = s->X = NULL;
+	s->Fa = s->Fb = NULL;
 	s->up = NULL;
 	s->piv = NULL;
 }
@@ -128,17 +135,13 @@ static void sys_grid(sys *s, int M)
 	s->trial = im_xmalloc(sizeof(double) * M * n);
 	s->R = im_xmalloc(sizeof(double) * M * n);
 	s->dx = im_xmalloc(sizeof(double) * M * n);
-	s->L = im_xmalloc(sizeof(double) * nn);
 	s->Dg = im_xmalloc(sizeof(double) * nn);
-	s->U = im_xmalloc(sizeof(double) * nn);
+	s->col = im_xmalloc(sizeof(double) * n);
 	s->X = im_xmalloc(sizeof(double) * M * nn);
 	s->up = im_xmalloc((size_t)M * n);
 	s->piv = im_xmalloc(sizeof(int) * n);
 	s->Fa = im_xmalloc(sizeof(double) * n);
 	s->Fb = im_xmalloc(sizeof(double) * n);
-	s->dA = im_xmalloc(sizeof(double) * nn * 2);
-	s->dB = im_xmalloc(sizeof(double) * nn * 2);
-	s->F0 = im_xmalloc(sizeof(double) * n);
 	for (int k = 0; k < M; k++) {
 		double sk = -1.0 + 2.0 * k / (M - 1);
 		s->zeta[k] = s->Z * sinh(DF_STRETCH * sk) / sinh(DF_STRETCH);
@@ -189,11 +192,22 @@ static double node_rho(const sys *s, int k)
 	return s->zeta[k] > 0 ? rb : 0.5 * (s->rho_p + rb);
 }
 
-/* Flux term d (c' + z c psi') on the face k | k+1, times nothing else; with
- * derivatives dA = dF/dc_k, dB = dF/dc_{k+1} (n x n, row i = flux i) when
- * jac.  Returns -1 when the conductance is not positive. */
-static int face(const sys *s, const double *c, int k, double *F, double *dA, double *dB,
-		int jac)
+/* The derivatives of a face's fluxes F (n) with respect to the nodes on
+ * either side, each a diagonal plus one rank-one term shared by the rows:
+ *     dF_i/dc_{k,j}   = ga_i delta_ij + u_i pa_j
+ *     dF_i/dc_{k+1,j} = gb_i delta_ij + u_i pb_j
+ * (u_i = d_i z_i cbar_i / h, pa and pb the derivatives of the potential
+ * gradient p).  Kept factored, a block costs n, not n^2, to build, and
+ * the lower block's product in the elimination n^2, not n^3. */
+typedef struct face_jac {
+	double u[JN_MAX_IONS], pa[JN_MAX_IONS], pb[JN_MAX_IONS];
+	double ga[JN_MAX_IONS], gb[JN_MAX_IONS];
+} face_jac;
+
+/* Flux term d (c' + z c psi') on the face k | k+1, times nothing else;
+ * with its derivatives in J when J is not NULL.  Returns -1 when the
+ * conductance is not positive. */
+static int face(const sys *s, const double *c, int k, double *F, face_jac *J)
 {
 	int n = s->n;
 	const double *a = c + (size_t)k * n, *b = a + n;
@@ -207,23 +221,19 @@ static int face(const sys *s, const double *c, int k, double *F, double *dA, dou
 	p = -G / K;
 	for (int i = 0; i < n; i++)
 		F[i] = s->d[i] / h * (b[i] - a[i] + s->z[i] * 0.5 * (a[i] + b[i]) * p);
-	if (!jac)
+	if (!J)
 		return 0;
 	/* dp/dc of each side, the same for every row */
-	double pa[JN_MAX_IONS], pb[JN_MAX_IONS];
 	for (int j = 0; j < n; j++) {
 		double zd = s->z[j] * s->d[j], g2 = G * s->z[j] * zd / (2.0 * K * K);
-		pa[j] = zd / K + g2;
-		pb[j] = -zd / K + g2;
+		J->pa[j] = zd / K + g2;
+		J->pb[j] = -zd / K + g2;
 	}
 	for (int i = 0; i < n; i++) {
-		double f = s->d[i] / h, zc = s->z[i] * 0.5 * (a[i] + b[i]);
-		for (int j = 0; j < n; j++) {
-			dA[i * n + j] = f * zc * pa[j];
-			dB[i * n + j] = f * zc * pb[j];
-		}
-		dA[i * n + i] += f * (-1.0 + 0.5 * s->z[i] * p);
-		dB[i * n + i] += f * (1.0 + 0.5 * s->z[i] * p);
+		double f = s->d[i] / h;
+		J->u[i] = f * s->z[i] * 0.5 * (a[i] + b[i]);
+		J->ga[i] = f * (-1.0 + 0.5 * s->z[i] * p);
+		J->gb[i] = f * (1.0 + 0.5 * s->z[i] * p);
 	}
 	return 0;
 }
@@ -231,35 +241,132 @@ static int face(const sys *s, const double *c, int k, double *F, double *dA, dou
 static int lu(double *a, int n, int *piv);
 static void lu_solve(const double *a, int n, const int *piv, double *b, int cols);
 
+/* X = D'^-1 U with D' factored by lu (a, piv) and U = diag(Ud) + Uu Uv^T:
+ * column j is Ud_j (D'^-1 e_j) + Uv_j (D'^-1 Uu).  A unit vector's
+ * forward substitution starts at its (permuted) row, and a column with
+ * Ud_j = 0 (ion e's) needs none, so this costs about 2/3 of solving for
+ * the n dense columns of U. */
+static void upper_solve(sys *s, const double *a, double *X)
+{
+	int n = s->n;
+	const int *piv = s->piv;
+	double *w = s->col;
+	memcpy(w, s->Uu, (size_t)n * sizeof *w);
+	lu_solve(a, n, piv, w, 1);
+	for (int j = 0; j < n; j++) {
+		double dj = s->Ud[j], vj = s->Uv[j];
+		int pos = j;
+		if (dj == 0) {
+			for (int i = 0; i < n; i++)
+				X[i * n + j] = vj * w[i];
+			continue;
+		}
+		/* P e_j: the row swaps of lu move the 1 */
+		for (int k = 0; k < n; k++)
+			if (piv[k] == pos)
+				pos = k;
+			else if (k == pos)
+				pos = piv[k];
+		double y[JN_MAX_IONS];
+		for (int i = 0; i < pos; i++)
+			y[i] = 0.0;
+		y[pos] = 1.0;
+		for (int i = pos + 1; i < n; i++) {
+			double t = 0.0;
+			for (int k = pos; k < i; k++)
+				t -= a[i * n + k] * y[k];
+			y[i] = t;
+		}
+		for (int i = n - 1; i >= 0; i--) {
+			double t = y[i];
+			for (int k = i + 1; k < n; k++)
+				t -= a[i * n + k] * y[k];
+			y[i] = t / a[i * n + i];
+		}
+		for (int i = 0; i < n; i++)
+			X[i * n + j] = dj * y[i] + vj * w[i];
+	}
+}
+
 /* The forward sweep of block elimination at node k, whose blocks are in
- * s->L, s->Dg, s->U and residual in R: R becomes D'^-1 (R - L R_{k-1}'),
- * X_k = D'^-1 U with D' = D - L X_{k-1}.  Sets s->singular when D' is. */
+ * s->Ld, Lu, Lv (L, factored), s->Dg, s->Ud, Uu, Uv (U, factored) and
+ * residual in R: R becomes
+ * D'^-1 (R - L R_{k-1}'), X_k = D'^-1 U with D' = D - L X_{k-1}.  Sets
+ * s->singular when D' is. */
 static void eliminate(sys *s, int k, double *R)
 {
 	int n = s->n, M = s->M;
 	size_t nn = (size_t)n * n;
 	double *D = s->Dg, *X = s->X + k * nn;
 	if (k > 1) {
-		const double *L = s->L, *Xp = s->X + (k - 1) * nn, *rp = R - n;
-		for (int i = 0; i < n; i++)
-			for (int m = 0; m < n; m++) {
-				double l = L[i * n + m];
-				if (l == 0)
-					continue;
-				R[i] -= l * rp[m];
-				for (int j = 0; j < n; j++)
-					D[i * n + j] -= l * Xp[m * n + j];
-			}
+		/* L X = diag(Ld) X + Lu (Lv^T X) */
+		const double *Xp = s->X + (k - 1) * nn, *rp = R - n;
+		double vX[JN_MAX_IONS], vr = 0;
+		for (int j = 0; j < n; j++)
+			vX[j] = 0;
+		for (int m = 0; m < n; m++) {
+			double v = s->Lv[m];
+			vr += v * rp[m];
+			for (int j = 0; j < n; j++)
+				vX[j] += v * Xp[m * n + j];
+		}
+		for (int i = 0; i < n; i++) {
+			double ld = s->Ld[i], lk = s->Lu[i];
+			R[i] -= ld * rp[i] + lk * vr;
+			for (int j = 0; j < n; j++)
+				D[i * n + j] -= ld * Xp[i * n + j] + lk * vX[j];
+		}
 	}
 	if (lu(D, n, s->piv)) {
 		s->singular = 1;
 		return;
 	}
 	lu_solve(D, n, s->piv, R, 1);
-	if (k < M - 2) {
-		memcpy(X, s->U, nn * sizeof *X);
-		lu_solve(D, n, s->piv, X, n);
+	if (k < M - 2)
+		upper_solve(s, D, X);
+}
+
+/* The Jacobian blocks of node k's residual R from the derivatives of its
+ * left face Jm (k-1 | k) and right face Jp (k | k+1): the lower block
+ * L = -dFm/dc_{k-1} / w (kept factored), the diagonal block
+ * D = (dFp/dc_k - dFm/dc_k) / w and the upper U = dFp/dc_{k+1} / w, plus
+ * the advection term on the diagonals; ion e's row is electroneutrality.
+ * Then the forward elimination of the node (unless an earlier block was
+ * singular). */
+static void node_blocks(sys *s, int k, const face_jac *Jm, const face_jac *Jp, double *R)
+{
+	int n = s->n, e = s->e;
+	double w = 0.5 * (s->zeta[k + 1] - s->zeta[k - 1]);
+	double hm = s->zeta[k] - s->zeta[k - 1], hp = s->zeta[k + 1] - s->zeta[k];
+	double zh = 0.5 * s->zeta[k], *D = s->Dg;
+	for (int i = 0; i < n; i++) {
+		double um = Jm->u[i] / w, up = Jp->u[i] / w;
+		double *Di = D + (size_t)i * n;
+		s->Lu[i] = -um;
+		s->Lv[i] = Jm->pa[i];
+		s->Ld[i] = -Jm->ga[i] / w;
+		s->Uu[i] = up;
+		s->Uv[i] = Jp->pb[i];
+		s->Ud[i] = Jp->gb[i] / w;
+		for (int j = 0; j < n; j++)
+			Di[j] = up * Jp->pa[j] - um * Jm->pb[j];
+		Di[i] += (Jp->ga[i] - Jm->gb[i]) / w;
+		if (!s->up[k * n + i]) {
+			s->Ld[i] -= zh / (2.0 * w);
+			s->Ud[i] += zh / (2.0 * w);
+		} else if (s->zeta[k] > 0) {
+			s->Ud[i] += zh / hp;
+			Di[i] -= zh / hp;
+		} else {
+			Di[i] += zh / hm;
+			s->Ld[i] -= zh / hm;
+		}
 	}
+	s->Ld[e] = s->Lu[e] = s->Ud[e] = s->Uu[e] = 0.0;
+	for (int j = 0; j < n; j++)
+		D[e * n + j] = s->z[j];
+	if (!s->singular)
+		eliminate(s, k, R);
 }
 
 /* Residual of c; the largest |R| in *rmax.  When jac, also the Jacobian,
@@ -268,21 +375,20 @@ static void eliminate(sys *s, int k, double *R)
 static int assemble(sys *s, const double *c, int jac, double *rmax)
 {
 	int n = s->n, M = s->M;
-	size_t nn = (size_t)n * n;
-	double *Fm = s->Fa, *Fp = s->Fb, *dAm = s->dA, *dBm = s->dA + nn, *dAp = s->dB,
-	       *dBp = s->dB + nn;
+	double *Fm = s->Fa, *Fp = s->Fb, *t;
+	face_jac ja, jb, *Jm = jac ? &ja : NULL, *Jp = jac ? &jb : NULL, *tj;
 	double mx = 0;
 	if (jac)
 		s->singular = 0;
-	if (face(s, c, 0, Fm, dAm, dBm, jac))
+	if (face(s, c, 0, Fm, Jm))
 		return -1;
 	for (int k = 1; k < M - 1; k++) {
 		double w = 0.5 * (s->zeta[k + 1] - s->zeta[k - 1]);
 		double hm = s->zeta[k] - s->zeta[k - 1], hp = s->zeta[k + 1] - s->zeta[k];
 		double zh = 0.5 * s->zeta[k];
-		double *R = s->R + (size_t)k * n, *L = s->L, *D = s->Dg, *U = s->U, *t;
+		double *R = s->R + (size_t)k * n;
 		const double *ck = c + (size_t)k * n;
-		if (face(s, c, k, Fp, dAp, dBp, jac))
+		if (face(s, c, k, Fp, Jp))
 			return -1;
 		for (int i = 0; i < n; i++) {
 			double adv;
@@ -303,42 +409,15 @@ static int assemble(sys *s, const double *c, int jac, double *rmax)
 		for (int i = 0; i < n; i++)
 			if (fabs(R[i]) > mx)
 				mx = fabs(R[i]);
-		if (jac) {
-			for (size_t q = 0; q < nn; q++) {
-				L[q] = -dAm[q] / w;
-				D[q] = (dAp[q] - dBm[q]) / w;
-				U[q] = dBp[q] / w;
-			}
-			for (int i = 0; i < n; i++) {
-				size_t ii = (size_t)i * n + i;
-				if (!s->up[k * n + i]) {
-					L[ii] -= zh / (2.0 * w);
-					U[ii] += zh / (2.0 * w);
-				} else if (s->zeta[k] > 0) {
-					U[ii] += zh / hp;
-					D[ii] -= zh / hp;
-				} else {
-					D[ii] += zh / hm;
-					L[ii] -= zh / hm;
-				}
-			}
-			for (int j = 0; j < n; j++) {
-				L[s->e * n + j] = U[s->e * n + j] = 0.0;
-				D[s->e * n + j] = s->z[j];
-			}
-			if (!s->singular)
-				eliminate(s, k, R);
-		}
+		if (jac)
+			node_blocks(s, k, Jm, Jp, R);
 		/* this face's flux is the next node's left flux */
 		t = Fm;
 		Fm = Fp;
 		Fp = t;
-		t = dAm;
-		dAm = dAp;
-		dAp = t;
-		t = dBm;
-		dBm = dBp;
-		dBp = t;
+		tj = Jm;
+		Jm = Jp;
+		Jp = tj;
 	}
 	*rmax = mx;
 	return 0;
@@ -450,7 +529,8 @@ static int newton(sys *s, int maxit, int *its, double *res)
 				dmax = fabs(s->dx[q]);
 		if (!isfinite(dmax))
 			return -1;
-		for (int cut = 0; cut < 13; cut++, a *= 0.5) {
+		int cut;
+		for (cut = 0; cut < DF_MAX_CUTS; cut++, a *= 0.5) {
 			memcpy(s->trial, s->c, tot * sizeof *s->c);
 			for (size_t q = (size_t)n; q < tot - n; q++) {
 				double v = s->c[q] + a * s->dx[q];
@@ -461,7 +541,12 @@ static int newton(sys *s, int maxit, int *its, double *res)
 			if (dmax * a < DF_NEWTON_TOL)
 				break;
 		}
-		if (!isfinite(r1))
+		/* stalled: no cut of the step lowered the residual.  The next
+		 * Jacobian, a tiny step away, gives nearly the same direction,
+		 * so iterating on (up to max_newton assemblies, each with
+		 * DF_MAX_CUTS trials) only repeats the failure: give up at
+		 * once and let the caller continue in the concentration step */
+		if (cut == DF_MAX_CUTS || !isfinite(r1))
 			return -1;
 		memcpy(s->c, s->trial, tot * sizeof *s->c);
 		if (a == 1.0 &&
