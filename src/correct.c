@@ -923,6 +923,33 @@ static void w_put(eng *e, const char *p, size_t n)
 	e->wl += n;
 }
 
+/* The hot loops' copy of the unchanged bytes before a corrected cell
+ * (span, n bytes) into the write buffer *wb at *wl, leaving room for the
+ * cell: a short span as one fixed-size copy (the buffers have room past
+ * their ends), a full buffer through w_put/w_flush (which may swap *wb).
+ * -1 when the helper thread's buffer is full (it stops there), else 0. */
+static inline __attribute__((always_inline)) int put_span(eng *e, char **wb, size_t *wl,
+							  const char *span, size_t n)
+{
+	if (WR_CAP - *wl < n + 16 + NUM_OUT_MAX) {
+		if (e->worker)
+			return -1;
+		e->wl = *wl;
+		w_put(e, span, n);
+		if (WR_CAP - e->wl < NUM_OUT_MAX)
+			w_flush(e);
+		*wl = e->wl;
+		*wb = e->wb;   /* a flush swaps the buffers */
+	} else if (n <= 16) {
+		memcpy(*wb + *wl, span, 16);
+		*wl += n;
+	} else {
+		memcpy(*wb + *wl, span, n);
+		*wl += n;
+	}
+	return 0;
+}
+
 static int write_failed(eng *e)
 {
 	return im_fail(e->err, "cannot write the output: %s", strerror(e->werr));
@@ -1623,23 +1650,8 @@ static __attribute__((noinline)) const char *one_run(eng *e, const char *p, cons
 		} else {
 			goto stop;
 		}
-		size_t n = (size_t)(fs - span);
-		if (WR_CAP - wl < n + 16 + NUM_OUT_MAX) {
-			if (e->worker)
-				goto stop;   /* its buffer is full */
-			e->wl = wl;
-			w_put(e, span, n);
-			if (WR_CAP - e->wl < NUM_OUT_MAX)
-				w_flush(e);
-			wl = e->wl;
-			wb = e->wb;   /* a flush swaps the buffers */
-		} else if (n <= 16) {
-			memcpy(wb + wl, span, 16);
-			wl += n;
-		} else {
-			memcpy(wb + wl, span, n);
-			wl += n;
-		}
+		if (put_span(e, &wb, &wl, span, (size_t)(fs - span)))
+			goto stop;   /* the helper's buffer is full */
 		if (lean) {
 			wb[wl] = (char)sg;
 			memcpy(wb + wl + (sg != 0), &w, 8);
@@ -1745,25 +1757,8 @@ static __attribute__((noinline)) int fast_run(eng *e, const char **pp, int *colp
 #endif
 				if (ne == fe || (ne && ne + 1 == fe && *ne == '\r' && *fe == '\n')) {
 					const ljp_prep *lp = one ? &lp1 : &e->prep[e->corr[col - 1] - 1];
-					size_t n = (size_t)(fs - span);
-					if (WR_CAP - wl < n + 16 + NUM_OUT_MAX) {
-						if (e->worker)
-							goto out;   /* its buffer is full */
-						e->wl = wl;
-						w_put(e, span, n);
-						if (WR_CAP - e->wl < NUM_OUT_MAX)
-							w_flush(e);
-						wl = e->wl;
-						wb = e->wb;   /* a flush swaps the buffers */
-					} else if (n <= 16) {
-						/* a short span: one fixed-size copy (the
-						 * buffers have room past their ends) */
-						memcpy(wb + wl, span, 16);
-						wl += n;
-					} else {
-						memcpy(wb + wl, span, n);
-						wl += n;
-					}
+					if (put_span(e, &wb, &wl, span, (size_t)(fs - span)))
+						goto out;   /* the helper's buffer is full */
 #ifdef HAVE_QUICK
 					int k = viaq ? quick_emit(&q, lp, wb + wl) : -1;
 					if (k < 0) {
