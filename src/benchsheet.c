@@ -5,6 +5,7 @@
 #include "benchsheet.h"
 
 #include "common.h"
+#include "output.h"
 #include "units.h"
 #include "weigh.h"
 
@@ -445,17 +446,7 @@ void bs_write_html(FILE *fp, const bs_sheet *b, const char *version)
 
 static void csv_field(FILE *fp, const char *s, int last)
 {
-	if (strpbrk(s, ",\"\r\n")) {
-		fputc('"', fp);
-		for (; *s; s++) {
-			if (*s == '"')
-				fputc('"', fp);
-			fputc(*s, fp);
-		}
-		fputc('"', fp);
-	} else {
-		fputs(s, fp);
-	}
+	out_csv_field(fp, s);
 	fputs(last ? "\r\n" : ",", fp);
 }
 

@@ -514,22 +514,6 @@ typedef struct iv_out {
 	const char *unit; /* column-name suffix: "A_cm2" or "relative" */
 } iv_out;
 
-/* RFC 4180: quote a field holding a comma, quote or line break. */
-static void csv_field(FILE *fp, const char *s)
-{
-	if (!strpbrk(s, ",\"\r\n")) {
-		fputs(s, fp);
-		return;
-	}
-	fputc('"', fp);
-	for (; *s; s++) {
-		if (*s == '"')
-			fputc('"', fp);
-		fputc(*s, fp);
-	}
-	fputc('"', fp);
-}
-
 static int write_csv(FILE *fp, const iv_out *a, char *err)
 {
 	const ghk_iv_curve *iv = a->iv;
@@ -538,7 +522,7 @@ static int write_csv(FILE *fp, const iv_out *a, char *err)
 	for (int i = 0; i < iv->nions; i++) {
 		snprintf(h, sizeof h, "%s_%s", a->x[i].symbol, a->unit);
 		fputc(',', fp);
-		csv_field(fp, h);
+		out_csv_field(fp, h);
 	}
 	fputs("\r\n", fp);
 	for (int k = 0; k < iv->npts; k++) {

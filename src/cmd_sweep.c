@@ -264,22 +264,6 @@ static void fmt_y(char *b, size_t n, sweep_qty q, double v)
 	}
 }
 
-/* CSV field (RFC 4180): quoted when it holds a comma, quote or line break. */
-static void csv_field(FILE *fp, const char *s)
-{
-	if (!strpbrk(s, ",\"\r\n")) {
-		fputs(s, fp);
-		return;
-	}
-	fputc('"', fp);
-	for (; *s; s++) {
-		if (*s == '"')
-			fputc('"', fp);
-		fputc(*s, fp);
-	}
-	fputc('"', fp);
-}
-
 /* Unit as a column-name suffix: "mOsm/kg" -> "_mOsm_kg", "" -> "". */
 static void unit_suffix(char *b, size_t n, const char *unit)
 {
@@ -302,17 +286,17 @@ static int write_csv(FILE *fp, const sweep_spec *sp, const sweep_result *r,
 		snprintf(h, sizeof h, "temperature_C");
 	else
 		snprintf(h, sizeof h, "%.60s_mM", sp->compound->name);
-	csv_field(fp, h);
+	out_csv_field(fp, h);
 	unit_suffix(u, sizeof u, r->y_unit);
 	snprintf(h, sizeof h, "%.60s%s", r->y_key, u);
 	fputc(',', fp);
-	csv_field(fp, h);
+	out_csv_field(fp, h);
 	fputs(",failure\r\n", fp);
 	for (int i = 0; i < r->n; i++) {
 		fprintf(fp, "%.10g,", r->x[i]);
 		if (r->why[i]) {
 			fputc(',', fp);
-			csv_field(fp, r->why[i]);
+			out_csv_field(fp, r->why[i]);
 		} else {
 			fprintf(fp, "%.10g,", r->y[i]);
 		}

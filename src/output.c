@@ -109,6 +109,21 @@ void out_text_escaped(FILE *fp, const char *msg)
 /* JSON text must be UTF-8 (RFC 8259, section 8.1): bytes that are not,
  * such as a name typed in another encoding and echoed in a message, are
  * written as U+FFFD, the replacement character. */
+void out_csv_field(FILE *fp, const char *s)
+{
+	if (!strpbrk(s, ",\"\r\n")) {
+		fputs(s, fp);
+		return;
+	}
+	fputc('"', fp);
+	for (; *s; s++) {
+		if (*s == '"')
+			fputc('"', fp);
+		fputc(*s, fp);
+	}
+	fputc('"', fp);
+}
+
 void out_json_string(FILE *fp, const char *s)
 {
 	fputc('"', fp);

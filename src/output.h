@@ -69,5 +69,8 @@ void out_text_escaped(FILE *fp, const char *msg);
 
 /* Write s as a JSON string literal (with quotes) to fp. */
 void out_json_string(FILE *fp, const char *s);
+/* s as one CSV field (RFC 4180): quoted, with its quotes doubled, when it
+ * holds a comma, a quote or a line break; as it is otherwise. */
+void out_csv_field(FILE *fp, const char *s);
 
 #endif
