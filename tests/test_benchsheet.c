@@ -10,29 +10,7 @@
 #include "solution.h"
 #include "weigh.h"
 
-static refdb *db;
-
-static int setup(void **state)
-{
-	char err[IM_ERRLEN];
-	(void)state;
-	return refdb_open(&db, err);
-}
-
-static int teardown(void **state)
-{
-	(void)state;
-	refdb_close(db);
-	return 0;
-}
-
-static const rd_compound *C(const char *name)
-{
-	const rd_compound *c = refdb_compound(db, name);
-	if (!c)
-		fail_msg("no compound %s", name);
-	return c;
-}
+#include "testref.h"
 
 static const bs_line *line_of(const bs_sheet *b, const char *name)
 {

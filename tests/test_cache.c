@@ -16,21 +16,7 @@
 #include "session.h"
 #include "speciation.h"
 
-static refdb *db;
-
-static int setup(void **state)
-{
-	char err[IM_ERRLEN];
-	(void)state;
-	return refdb_open(&db, err);
-}
-
-static int teardown(void **state)
-{
-	(void)state;
-	refdb_close(db);
-	return 0;
-}
+#include "testref.h"
 
 static int same(double a, double b)
 {
@@ -83,14 +69,6 @@ static void check_now(session *s, const solution *sol, sol_state *out)
 	assert_int_equal(sol_compute(sol, ses_env(s), &fresh, err), 0);
 	assert_states_equal(out, &fresh);
 	sol_state_free(&fresh);
-}
-
-static const rd_compound *C(const char *name)
-{
-	const rd_compound *c = refdb_compound(db, name);
-	if (!c)
-		fail_msg("no compound %s", name);
-	return c;
 }
 
 static double free_ca(const sol_state *st)

@@ -7,21 +7,7 @@
 #include "eqdata.h"
 #include "refdb.h"
 
-static refdb *db;
-
-static int setup(void **state)
-{
-	char err[IM_ERRLEN];
-	(void)state;
-	return refdb_open(&db, err);
-}
-
-static int teardown(void **state)
-{
-	(void)state;
-	refdb_close(db);
-	return 0;
-}
+#include "testref.h"
 
 static void required_compounds(void **state)
 {

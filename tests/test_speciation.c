@@ -526,6 +526,20 @@ static void test_fallback_agrees(void **state)
 	free(b);
 }
 
+/* A private in-memory copy of the reference database (the same tables and
+ * rows), for fixtures that add made-up constants without touching db. */
+static sqlite3 *private_copy(void)
+{
+	sqlite3 *db2;
+	sqlite3_backup *bk;
+	assert_int_equal(sqlite3_open(":memory:", &db2), SQLITE_OK);
+	bk = sqlite3_backup_init(db2, "main", db, "main");
+	assert_non_null(bk);
+	sqlite3_backup_step(bk, -1);
+	assert_int_equal(sqlite3_backup_finish(bk), SQLITE_OK);
+	return db2;
+}
+
 /* The M2L and ML2 machinery, on constants made up for this test only
  * (a fixture in a private copy of the database, not data): mass balance
  * with two metals or two ligands per complex. */
@@ -533,13 +547,7 @@ static void test_m2l_ml2_fixture(void **state)
 {
 	(void)state;
 	char err[IM_ERRLEN], *msg = NULL;
-	sqlite3 *db2;
-	assert_int_equal(sqlite3_open(":memory:", &db2), SQLITE_OK);
-	/* the private copy: the same tables and rows */
-	sqlite3_backup *bk = sqlite3_backup_init(db2, "main", db, "main");
-	assert_non_null(bk);
-	sqlite3_backup_step(bk, -1);
-	sqlite3_backup_finish(bk);
+	sqlite3 *db2 = private_copy();
 	const char *fixture =
 		"INSERT INTO sources (id, citation) VALUES ('test-fixture', 'made up for "
 		"test_speciation.c');INSERT INTO eq_complexes (symbol, metal, ligand, "
@@ -660,12 +668,7 @@ static void test_heat_capacity_fixture(void **state)
 {
 	(void)state;
 	char err[IM_ERRLEN], *msg = NULL;
-	sqlite3 *db2;
-	assert_int_equal(sqlite3_open(":memory:", &db2), SQLITE_OK);
-	sqlite3_backup *bk = sqlite3_backup_init(db2, "main", db, "main");
-	assert_non_null(bk);
-	sqlite3_backup_step(bk, -1);
-	sqlite3_backup_finish(bk);
+	sqlite3 *db2 = private_copy();
 	const char *fixture =
 		"INSERT INTO sources (id, citation) VALUES ('test-fixture', 'made up for "
 		"test_speciation.c');"
