@@ -28,8 +28,12 @@
 #ifdef __SSE2__
 #include <emmintrin.h>
 #endif
+#if defined(__x86_64__) && defined(__linux__) && (defined(__GNUC__) || defined(__clang__))
+#include <immintrin.h>
+#endif
 
 #include <errno.h>
+#include <sched.h>
 #include <pthread.h>
 #include <signal.h>
 #include <stdarg.h>
@@ -51,7 +55,7 @@
 #define RD_CHUNK (512 * 1024)                  /* at least this much per read */
 #define RD_CAP (RD_CHUNK + CORR_FIELD_MAX + 64) /* read buffer (+1 sentinel) */
 #define RD_SLACK 96                             /* readable bytes past the sentinel */
-#define WR_CAP (512 * 1024)                    /* write buffer */
+#define WR_CAP (2 * RD_CHUNK)                  /* write buffer: a thread's share of a read buffer fits */
 #define NUM_OUT_MAX (CORR_DIGITS_MAX + 24)      /* one formatted number */
 #define COL_NUMBER_MAX 1000000                  /* largest column number taken */
 
@@ -774,6 +778,11 @@ typedef struct eng {
 	const char *span;   /* first byte of buf not yet written */
 	char *wb;           /* WR_CAP bytes: the buffer being filled */
 	char *wb2;          /* the other one (in flight, or free) */
+	char *home_wb, *home_wb2; /* the two from bufs_get (see bufs_home) */
+	char *pend;         /* written before wb (par_finish), or NULL */
+	size_t pendl;
+	char *spare;        /* a free write buffer for the helper, or NULL */
+	int par_frac;       /* where a buffer is cut, in 64ths: this thread's share */
 	writer w;
 	struct helper *hp;  /* the second reader of large buffers; NULL: none yet */
 	int hp_failed;      /* 1: no helper could be started */
@@ -881,8 +890,29 @@ static void writer_stop(eng *e)
 	w->started = 0;
 }
 
+/* Write n bytes at b here, in this thread, after what is in flight. */
+static void w_sync(eng *e, const char *b, size_t n)
+{
+	writer_wait(e);
+	errno = 0;
+	if (n && !e->werr && fwrite(b, 1, n, e->out) != n)
+		e->werr = errno ? errno : EIO;
+}
+
+/* The pending buffer (par_finish) out, and back as the spare. */
+static void w_pend(eng *e)
+{
+	if (!e->pend)
+		return;
+	w_sync(e, e->pend, e->pendl);
+	e->spare = e->pend;
+	e->pend = NULL;
+	e->pendl = 0;
+}
+
 static void w_flush(eng *e)
 {
+	w_pend(e);
 	if (e->wl && !e->werr) {
 		/* a thread only for an output that fills buffers, not for the
 		 * last (or only) flush of a run */
@@ -1670,6 +1700,396 @@ stop:
 	*rowsp = rows;
 	return p;
 }
+
+/* The commonest records at their leanest: rows of at most 32 bytes whose
+ * last field is the one corrected cell, of lean_cell's form, ending at an
+ * LF.  The separators of the whole row (delimiter, LF, NUL) come from two
+ * 16-byte loads at once, so that where the next row starts depends on one
+ * mask and not on the reading of this row's cell; the row is copied out
+ * as it stands (32 bytes: the buffers have room) and the corrected cell
+ * written over its old text, the LF after it.  The arithmetic is
+ * lean_cell's, for cells with F decimals (a constant: lean_rows is made
+ * once for each F from 1 to 5, so that the dot's lane, the LJP's lanes
+ * and the shifts that depend on them are fixed), on a cell whose length
+ * the separators already gave.  Stops at a row of another shape or of
+ * other decimals (nothing of it done), at lim, or when the write buffer
+ * lacks room for a row (*full).  Rows begun: *rowsp. */
+static inline __attribute__((always_inline)) const char *
+lean_rows(const char *p, const char *lim, char delim, int one, const ljp_prep *lp, char *wb,
+	  size_t *wlp, long *rowsp, int *full, const int F)
+{
+	const __m128i vd = _mm_set1_epi8(delim), lf = _mm_set1_epi8('\n');
+	const __m128i zero = _mm_setzero_si128();
+	const uint64_t threes = 0x3030303030303030ULL, ones = LANES_ONE;
+	const uint64_t dot = 0xFFULL << (8 * F), nine = 9ULL << (8 * F);
+	const uint64_t dotx = (uint64_t)('0' ^ '.') << (8 * F);
+	const uint64_t B = lp->dlanes[F];
+	const int lneg = lp->neg, flip = lp->flip;
+	size_t wl = *wlp;
+	long rows = 0;
+	while (p < lim) {
+		if (WR_CAP - wl < 64) {
+			*full = 1;
+			break;
+		}
+		__m128i v0 = _mm_loadu_si128((const __m128i *)(const void *)p);
+		__m128i v1 = _mm_loadu_si128((const __m128i *)(const void *)(p + 16));
+		__m128i s0 = _mm_or_si128(_mm_or_si128(_mm_cmpeq_epi8(v0, vd), _mm_cmpeq_epi8(v0, lf)),
+					  _mm_cmpeq_epi8(v0, zero));
+		__m128i s1 = _mm_or_si128(_mm_or_si128(_mm_cmpeq_epi8(v1, vd), _mm_cmpeq_epi8(v1, lf)),
+					  _mm_cmpeq_epi8(v1, zero));
+		uint32_t bits = (uint32_t)_mm_movemask_epi8(s0) |
+				((uint32_t)_mm_movemask_epi8(s1) << 16);
+		const char *fs = p;
+		if (*p == '"')
+			break;
+		for (int c = 1; c < one; c++) {
+			const char *fe = p + __builtin_ctz(bits | (1U << 31));
+			bits &= bits - 1;
+			if (*fe != delim || fe[1] == '"')
+				goto out;
+			fs = fe + 1;
+		}
+		const char *ce = p + __builtin_ctz(bits | (1U << 31));
+		if (*ce != '\n')
+			goto out;
+		/* the cell fs[0..ce): [+-]digits.digits, F decimals, 1 to
+		 * 5 - F integer digits (m bytes after the sign) */
+		int c0 = (unsigned char)*fs, neg = c0 == '-', plus = c0 == '+';
+		const char *t = fs + (neg | plus);
+		long m = ce - t;
+		if ((unsigned long)(m - (F + 2)) > (unsigned long)(5 - F))
+			goto out;
+		uint64_t x;
+		memcpy(&x, t, 8);
+		/* lanes, the last byte lowest; the dot in lane F */
+		uint64_t A = __builtin_bswap64((x ^ threes) << (8 * (8 - m)));
+		if (((A >> (8 * F)) & 0xFF) != (uint64_t)('.' ^ '0'))
+			goto out;
+		A &= ~dot;
+		if (((A + 0x76 * ones) | A) & (0x80 * ones))
+			goto out;   /* a lane that is not a digit */
+		int add = neg != lneg, lt = A < B;
+		uint64_t big = lt ? B : A, small = lt ? A : B;
+		uint64_t sum = lanes_add(A | nine, B), dif = lanes_sub(big, small);
+		uint64_t sel = -(uint64_t)add;
+		uint64_t R = ((sum & sel) | (dif & ~sel)) & ~dot;
+		int rneg = neg ^ (lt & !add) ^ flip;
+		int nd = 8 - (__builtin_clzll(R | 1) >> 3);
+		int L = nd > F + 2 ? nd : F + 2;
+		uint64_t w = __builtin_bswap64((R | threes) ^ dotx) >> (8 * (8 - L));
+		int minus = rneg & (R != 0), sg = minus | plus;
+		/* the row as it stands, then the cell over it, then the LF */
+		_mm_storeu_si128((__m128i *)(void *)(wb + wl), v0);
+		_mm_storeu_si128((__m128i *)(void *)(wb + wl + 16), v1);
+		size_t o = wl + (size_t)(fs - p);
+		wb[o] = minus ? '-' : '+';
+		memcpy(wb + o + sg, &w, 8);
+		o += (size_t)(sg + L);
+		wb[o] = '\n';
+		wl = o + 1;
+		rows++;
+		p = ce + 1;
+	}
+out:
+	*wlp = wl;
+	*rowsp += rows;
+	return p;
+}
+
+/* The decimals of the cell that ends the row at p, when the row is of
+ * lean_rows's shape as far as a quick look tells (0 otherwise). */
+static inline int lean_decimals(const char *p, char delim, int one)
+{
+	const char *fs = p;
+	int c = 1;
+	for (const char *s = p; s < p + 32; s++) {
+		if (*s == '\n') {
+			if (c != one)
+				return 0;
+			for (int f = 1; f <= 5 && s - 1 - f >= fs; f++)
+				if (s[-1 - f] == '.')
+					return f;
+			return 0;
+		}
+		if (*s == '\0')
+			return 0;
+		if (*s == delim) {
+			c++;
+			fs = s + 1;
+		}
+	}
+	return 0;
+}
+
+#if defined(__x86_64__) && defined(__linux__) && (defined(__GNUC__) || defined(__clang__))
+#define HAVE_QUAD 1
+#define QUAD_TARGET __attribute__((target("avx2,bmi,bmi2,lzcnt,popcnt")))
+#define QUAD_UNROLL _Pragma("GCC unroll 4")
+
+/* lanes_add and lanes_sub on four words at once (see there); the lanes
+ * that carried (or borrowed) get 246 back a byte at a time. */
+static inline __attribute__((always_inline)) QUAD_TARGET __m256i
+quad_add(__m256i a, __m256i b)
+{
+	const __m256i ones = _mm256_set1_epi8(1), f6 = _mm256_set1_epi8((char)0xF6);
+	__m256i x = _mm256_add_epi64(a, f6), s = _mm256_add_epi64(x, b);
+	__m256i c = _mm256_and_si256(_mm256_srli_epi64(_mm256_xor_si256(_mm256_xor_si256(x, b), s), 8),
+				     ones);
+	/* lanes that did not carry: 246 off */
+	__m256i nc = _mm256_cmpeq_epi8(c, _mm256_setzero_si256());
+	return _mm256_sub_epi8(s, _mm256_and_si256(nc, f6));
+}
+
+static inline __attribute__((always_inline)) QUAD_TARGET __m256i
+quad_sub(__m256i a, __m256i b)
+{
+	const __m256i ones = _mm256_set1_epi8(1), f6 = _mm256_set1_epi8((char)0xF6);
+	__m256i s = _mm256_sub_epi64(a, b);
+	__m256i c = _mm256_and_si256(_mm256_srli_epi64(_mm256_xor_si256(_mm256_xor_si256(a, b), s), 8),
+				     ones);
+	return _mm256_sub_epi8(s, _mm256_and_si256(_mm256_cmpeq_epi8(c, ones), f6));
+}
+
+/* lean_rows four rows at a time: the rows are found and their cells read
+ * one by one as there, the arithmetic is done for the four cells at once
+ * in 256-bit registers (one word of lanes each), and the rows written one
+ * by one.  A batch with anything lean_rows would stop at (or fewer than
+ * four rows before lim, or too little room) is left to lean_rows, from
+ * the batch's first row; so the bytes are lean_rows's. */
+static inline __attribute__((always_inline)) QUAD_TARGET const char *
+quad_rows(const char *p, const char *lim, char delim, int one, const ljp_prep *lp, char *wb,
+	  size_t *wlp, long *rowsp, int *full, const int F)
+{
+	const __m256i vd = _mm256_set1_epi8(delim), lf = _mm256_set1_epi8('\n');
+	const __m256i zero = _mm256_setzero_si256();
+	const uint64_t threes = 0x3030303030303030ULL;
+	const __m256i vthrees = _mm256_set1_epi64x((long long)threes);
+	const __m256i vdot = _mm256_set1_epi64x((long long)(0xFFULL << (8 * F)));
+	const __m256i vdotch = _mm256_set1_epi64x((long long)((uint64_t)('.' ^ '0') << (8 * F)));
+	const __m256i vnine = _mm256_set1_epi64x((long long)(9ULL << (8 * F)));
+	const __m256i vB = _mm256_set1_epi64x((long long)lp->dlanes[F]);
+	const __m256i v9 = _mm256_set1_epi8(9);
+	const __m256i rev = _mm256_setr_epi8(7, 6, 5, 4, 3, 2, 1, 0, 15, 14, 13, 12, 11, 10, 9, 8,
+					     7, 6, 5, 4, 3, 2, 1, 0, 15, 14, 13, 12, 11, 10, 9, 8);
+	const __m256i vlneg = _mm256_set1_epi64x(-(long long)lp->neg);
+	const __m256i vflip = _mm256_set1_epi64x(-(long long)lp->flip);
+	const __m256i vminus = _mm256_set1_epi64x('-'), vplus = _mm256_set1_epi64x('+');
+	size_t wl = *wlp;
+	long rows = 0;
+	for (;;) {
+		const char *p0 = p;
+		__m256i v[4];
+		uint64_t xs[4];
+		long long ms[4], cs[4];
+		int fo[4];
+		if (WR_CAP - wl < 4 * 64)
+			break;
+		QUAD_UNROLL
+		for (int r = 0; r < 4; r++) {
+			if (p >= lim || *p == '"')
+				goto tail;
+			v[r] = _mm256_loadu_si256((const __m256i *)(const void *)p);
+			uint32_t bits = (uint32_t)_mm256_movemask_epi8(_mm256_or_si256(
+				_mm256_or_si256(_mm256_cmpeq_epi8(v[r], vd), _mm256_cmpeq_epi8(v[r], lf)),
+				_mm256_cmpeq_epi8(v[r], zero)));
+			const char *fs = p;
+			for (int c = 1; c < one; c++) {
+				const char *fe = p + __builtin_ctz(bits | (1U << 31));
+				bits &= bits - 1;
+				if (*fe != delim || fe[1] == '"')
+					goto tail;
+				fs = fe + 1;
+			}
+			const char *ce = p + __builtin_ctz(bits | (1U << 31));
+			if (*ce != '\n')
+				goto tail;
+			int c0 = (unsigned char)*fs;
+			const char *t = fs + !((c0 - '+') & ~2);   /* '+' or '-' */
+			long m = ce - t;
+			if ((unsigned long)(m - (F + 2)) > (unsigned long)(5 - F))
+				goto tail;
+			memcpy(&xs[r], t, 8);
+			ms[r] = m;
+			cs[r] = c0;
+			fo[r] = (int)(fs - p);
+			p = ce + 1;
+		}
+		{
+			__m256i X = _mm256_set_epi64x((long long)xs[3], (long long)xs[2],
+						      (long long)xs[1], (long long)xs[0]);
+			__m256i S = _mm256_slli_epi64(_mm256_sub_epi64(_mm256_set1_epi64x(8),
+				_mm256_set_epi64x(ms[3], ms[2], ms[1], ms[0])), 3);
+			__m256i C = _mm256_set_epi64x(cs[3], cs[2], cs[1], cs[0]);
+			__m256i NEG = _mm256_cmpeq_epi64(C, vminus), PLUS = _mm256_cmpeq_epi64(C, vplus);
+			__m256i ADD = _mm256_xor_si256(NEG, vlneg);
+			/* lanes, the last byte lowest, the dot in lane F */
+			__m256i A = _mm256_shuffle_epi8(_mm256_sllv_epi64(_mm256_xor_si256(X, vthrees), S),
+							rev);
+			__m256i dotok = _mm256_cmpeq_epi64(_mm256_and_si256(A, vdot), vdotch);
+			A = _mm256_andnot_si256(vdot, A);
+			__m256i digok = _mm256_cmpeq_epi8(_mm256_max_epu8(A, v9), v9);
+			if (_mm256_movemask_epi8(_mm256_and_si256(digok, dotok)) != -1)
+				goto tail;
+			__m256i lt = _mm256_cmpgt_epi64(vB, A);
+			__m256i big = _mm256_blendv_epi8(A, vB, lt), small = _mm256_blendv_epi8(vB, A, lt);
+			__m256i sum = quad_add(_mm256_or_si256(A, vnine), vB), dif = quad_sub(big, small);
+			__m256i R = _mm256_andnot_si256(vdot, _mm256_blendv_epi8(dif, sum, ADD));
+			/* the sign: minus when the result is below 0 and not 0 */
+			__m256i RNEG = _mm256_xor_si256(_mm256_xor_si256(NEG, _mm256_andnot_si256(ADD, lt)),
+							vflip);
+			__m256i MINUS = _mm256_andnot_si256(_mm256_cmpeq_epi64(R, _mm256_setzero_si256()),
+							    RNEG);
+			int mb = _mm256_movemask_pd(_mm256_castsi256_pd(MINUS));
+			int sb = _mm256_movemask_pd(_mm256_castsi256_pd(_mm256_or_si256(MINUS, PLUS)));
+			/* the length: F + 2 (a digit, the dot, the decimals), and
+			 * one more for each further lane that is not 0 */
+			__m256i LEN = _mm256_set1_epi64x(F + 2);
+			for (int k = F + 2; k < 8; k++)
+				LEN = _mm256_sub_epi64(LEN, _mm256_cmpgt_epi64(
+					R, _mm256_set1_epi64x((long long)((1ULL << (8 * k)) - 1))));
+			__m256i W = _mm256_shuffle_epi8(_mm256_xor_si256(_mm256_or_si256(R, vthrees), vdotch),
+							rev);
+			W = _mm256_srlv_epi64(W, _mm256_slli_epi64(
+				_mm256_sub_epi64(_mm256_set1_epi64x(8), LEN), 3));
+			uint64_t ws[4], ls[4];
+			_mm256_storeu_si256((__m256i *)(void *)ws, W);
+			_mm256_storeu_si256((__m256i *)(void *)ls, LEN);
+			QUAD_UNROLL
+			for (int r = 0; r < 4; r++) {
+				int L = (int)ls[r];
+				uint64_t w = ws[r];
+				int minus = (mb >> r) & 1, sg = (sb >> r) & 1;
+				_mm256_storeu_si256((__m256i *)(void *)(wb + wl), v[r]);
+				size_t o = wl + (size_t)fo[r];
+				wb[o] = (char)('+' + 2 * minus);   /* '+' or '-' */
+				memcpy(wb + o + sg, &w, 8);
+				o += (size_t)(sg + L);
+				wb[o] = '\n';
+				wl = o + 1;
+			}
+			rows += 4;
+		}
+		continue;
+tail:
+		p = p0;
+		break;
+	}
+	*rowsp += rows;
+	*wlp = wl;
+	/* the rest (and any row of another shape) as lean_rows does it */
+	return lean_rows(p, lim, delim, one, lp, wb, wlp, rowsp, full, F);
+}
+
+/* short_rows's loop with quad_rows, for processors with AVX2. */
+static QUAD_TARGET __attribute__((noinline)) const char *
+short_rows_quad(const char *p, const char *lim, char delim, int one, const ljp_prep *lp,
+		char *wb, size_t *wlp, long *rowsp, int *full)
+{
+	while (p < lim && !*full) {
+		const char *q = p;
+#define QUAD_CASE(ONE, F) \
+	case F: q = quad_rows(p, lim, delim, ONE, lp, wb, wlp, rowsp, full, F); break
+		int f = lean_decimals(p, delim, one);
+		if (lp->dlanes[f] == UINT64_MAX)
+			f = 0;
+		if (one == 2) {
+			switch (f) {
+			QUAD_CASE(2, 1); QUAD_CASE(2, 2); QUAD_CASE(2, 3); QUAD_CASE(2, 4); QUAD_CASE(2, 5);
+			default: break;
+			}
+		} else {
+			switch (f) {
+			QUAD_CASE(one, 1); QUAD_CASE(one, 2); QUAD_CASE(one, 3); QUAD_CASE(one, 4);
+			QUAD_CASE(one, 5);
+			default: break;
+			}
+		}
+#undef QUAD_CASE
+		if (q == p)
+			break;
+		p = q;
+	}
+	return p;
+}
+
+static int quad_ok = -1;   /* 1: the processor has AVX2 (asked once) */
+#endif
+static int quad_off;       /* corr_set_wide(0) */
+
+void corr_set_wide(int on)
+{
+	quad_off = !on;
+}
+
+#if defined(__x86_64__) && defined(__GNUC__) && !defined(__clang__) && defined(__linux__)
+/* the same code for x86-64-v3 too (BMI2 shifts, LZCNT, VEX), chosen at
+ * load time where the processor has it */
+#define LEAN_CLONES __attribute__((target_clones("arch=x86-64-v3", "default")))
+#else
+#define LEAN_CLONES
+#endif
+
+/* lean_rows for the decimals each row has, from p on; the pending span is
+ * written first, and on return it is the row start (the rows before it
+ * done).  *full: stopped for want of room in the write buffer. */
+static LEAN_CLONES __attribute__((noinline)) const char *
+short_rows(eng *e, const char *p, const char *lim, int one, const ljp_prep *lp, char **wbp,
+	   size_t *wlp, const char **spanp, long *rowsp, int *full)
+{
+	char *wb = *wbp;
+	size_t wl = *wlp;
+	*full = 0;
+	*rowsp = 0;
+	if (put_span(e, &wb, &wl, *spanp, (size_t)(p - *spanp))) {
+		*full = 1;   /* the helper's buffer is full */
+		goto out;
+	}
+	*spanp = p;
+#ifdef HAVE_QUAD
+	if (quad_ok < 0) {
+		__builtin_cpu_init();
+		quad_ok = __builtin_cpu_supports("avx2") && __builtin_cpu_supports("bmi2");
+	}
+	if (quad_ok && !quad_off) {
+		p = short_rows_quad(p, lim, e->delim, one, lp, wb, &wl, rowsp, full);
+		goto done;
+	}
+#endif
+	while (p < lim && !*full) {
+		const char *q = p;
+		/* one made a constant where it is 2 (time, then the voltage) */
+#define LEAN_CASE(ONE, F) \
+	case F: q = lean_rows(p, lim, e->delim, ONE, lp, wb, &wl, rowsp, full, F); break
+		int f = lean_decimals(p, e->delim, one);
+		if (lp->dlanes[f] == UINT64_MAX)
+			f = 0;   /* the LJP has more decimals, or too many digits */
+		if (one == 2) {
+			switch (f) {
+			LEAN_CASE(2, 1); LEAN_CASE(2, 2); LEAN_CASE(2, 3); LEAN_CASE(2, 4); LEAN_CASE(2, 5);
+			default: break;
+			}
+		} else {
+			switch (f) {
+			LEAN_CASE(one, 1); LEAN_CASE(one, 2); LEAN_CASE(one, 3); LEAN_CASE(one, 4);
+			LEAN_CASE(one, 5);
+			default: break;
+			}
+		}
+#undef LEAN_CASE
+		if (q == p)
+			break;   /* not this shape */
+		p = q;
+	}
+#ifdef HAVE_QUAD
+done:
+#endif
+	*spanp = p;
+out:
+	*wbp = wb;
+	*wlp = wl;
+	return p;
+}
 #endif
 
 /* The common records, fast, as many as come in a row.  Fields end at the
@@ -1710,8 +2130,23 @@ static __attribute__((noinline)) int fast_run(eng *e, const char **pp, int *colp
 	while (p < lim) {
 #ifdef HAVE_ONE_RUN
 		if (one && !cool) {
-			long n;
-			const char *q = one_run(e, p, lim, one, &lp1, &wb, &wl, &span, &n);
+			long n = 0, m;
+			const char *q = p;
+			for (;;) {
+				int full;
+				q = short_rows(e, q, lim, one, &lp1, &wb, &wl, &span, &m, &full);
+				n += m;
+				if (q >= lim)
+					break;
+				/* the row short_rows left (a row to flush the
+				 * buffer, or one of another shape), or a stretch
+				 * when it took none */
+				const char *lim1 = full || m ? q + 1 : lim - q > 4096 ? q + 4096 : lim;
+				q = one_run(e, q, lim1, one, &lp1, &wb, &wl, &span, &m);
+				n += m;
+				if (!m)
+					break;
+			}
 			if (n) {
 				rows += n;
 				corrected += n;
@@ -1831,6 +2266,7 @@ out:
  * test_parallel_same); errors and their lines come from this thread. */
 
 #define PAR_MIN (128 * 1024)   /* bytes left in the buffer worth a cut */
+#define PAR_SWAP_MIN (64 * 1024) /* the helper's output taken without a copy */
 
 static int par_on = 1;   /* corr_set_parallel; -1: only one processor */
 
@@ -1845,32 +2281,91 @@ typedef struct helper {
 	pthread_cond_t cv;
 	int busy, quit;     /* under mu */
 	int running;        /* under mu: 1 once the helper has begun the job */
+	int spin_miss;      /* watches that ran out of time (spin_until) */
 	const char *p;      /* in: the cut; out: where the helper stopped */
 	int col;            /* out: the field it stopped at (1: a record start) */
 	eng sh;             /* the engine's copy; sh.wb is the helper's buffer */
 	corr_result res;    /* sh.r: its counts */
 } helper;
 
+/* busy, running and quit are written under mu and read without it too,
+ * atomically: a thread that is about to be needed again within a fraction
+ * of a millisecond watches the other for a while (PAR_SPIN_NS) rather
+ * than sleeping, as waking a sleeping thread can take longer than the
+ * work (measured on a virtual machine: with no watching most cuts found
+ * the helper not yet started, and waking it took more than 300 us).  On a
+ * busy machine the watching costs the processor the other thread needs:
+ * a watch that runs out of time counts against it, and after PAR_SPIN_MISS
+ * of them the two threads only sleep and wake, for the rest of the run. */
+#define PAR_SPIN_NS 1000000L
+#define PAR_SPIN_MISS 4
+#define LOAD(x) __atomic_load_n(&(x), __ATOMIC_ACQUIRE)
+#define STORE(x, v) __atomic_store_n(&(x), (v), __ATOMIC_RELEASE)
+
+static long now_ns(void)
+{
+	struct timespec ts;
+	clock_gettime(CLOCK_MONOTONIC, &ts);
+	return ts.tv_sec * 1000000000L + ts.tv_nsec;
+}
+
+static inline void cpu_relax(void)
+{
+#ifdef __SSE2__
+	_mm_pause();
+#endif
+}
+
+/* Watch *flag for up to PAR_SPIN_NS: 1 when it became `want` (or, with
+ * `or` not NULL, *or became 0); *miss counts the watches that ran out
+ * (none once it reaches PAR_SPIN_MISS). */
+static int spin_until(const int *flag, int want, const int *or, int *miss)
+{
+	long t0 = 0;
+	if (__atomic_load_n(miss, __ATOMIC_RELAXED) >= PAR_SPIN_MISS)
+		return 0;
+	for (int i = 0;; i++) {
+		if (__atomic_load_n(flag, __ATOMIC_ACQUIRE) == want ||
+		    (or && !__atomic_load_n(or, __ATOMIC_ACQUIRE)))
+			return 1;
+		if ((i & 63) == 63) {
+			long t = now_ns();
+			if (!t0) {
+				t0 = t;
+			} else if (t - t0 > PAR_SPIN_NS) {
+				__atomic_fetch_add(miss, 1, __ATOMIC_RELAXED);
+				return 0;
+			}
+			/* a thread waiting for this processor (another
+			 * program's, or the other of these two) gets it */
+			sched_yield();
+		}
+		cpu_relax();
+	}
+}
+
 static void *helper_main(void *arg)
 {
 	helper *h = arg;
-	pthread_mutex_lock(&h->mu);
 	for (;;) {
-		while (!h->busy && !h->quit)
+		spin_until(&h->busy, 1, NULL, &h->spin_miss);
+		pthread_mutex_lock(&h->mu);
+		while (!LOAD(h->busy) && !LOAD(h->quit))
 			pthread_cond_wait(&h->cv, &h->mu);
-		if (!h->busy)
+		if (!LOAD(h->busy))
 			break;
 		const char *p = h->p;
 		int col = 1;
-		h->running = 1;
+		STORE(h->running, 1);
 		pthread_mutex_unlock(&h->mu);
 		fast_run(&h->sh, &p, &col, h->sh.buf + h->sh.len);
 		pthread_mutex_lock(&h->mu);
 		h->p = p;
 		h->col = col;
-		h->running = 0;
-		h->busy = 0;
+		STORE(h->running, 0);
+		STORE(h->busy, 0);
 		pthread_cond_broadcast(&h->cv);
+		pthread_mutex_unlock(&h->mu);
 	}
 	pthread_mutex_unlock(&h->mu);
 	return NULL;
@@ -1905,23 +2400,39 @@ fail_mu:
 	return NULL;
 }
 
-static void helper_stop(eng *e)
+/* Stop the helper (waiting for its job); its write buffer, for bufs_home. */
+static char *helper_stop(eng *e)
 {
 	helper *h = e->hp;
 	if (!h)
-		return;
+		return NULL;
 	pthread_mutex_lock(&h->mu);
-	while (h->busy)
+	while (LOAD(h->busy))
 		pthread_cond_wait(&h->cv, &h->mu);
-	h->quit = 1;
+	STORE(h->quit, 1);
 	pthread_cond_broadcast(&h->cv);
 	pthread_mutex_unlock(&h->mu);
 	pthread_join(h->th, NULL);
 	pthread_cond_destroy(&h->cv);
 	pthread_mutex_destroy(&h->mu);
-	free(h->sh.wb);
+	char *wb = h->sh.wb;
 	free(h);
 	e->hp = NULL;
+	return wb;
+}
+
+/* After the run: par_finish turns the write buffers round, so that bufs_get's
+ * two may be anywhere among the engine's, the helper's, the pending one and
+ * the spare.  Put them back in e->wb and e->wb2 and free the others. */
+static void bufs_home(eng *e, char *helper_wb)
+{
+	char *all[5] = {e->wb, e->wb2, e->pend, e->spare, helper_wb};
+	for (int i = 0; i < 5; i++)
+		if (all[i] && all[i] != e->home_wb && all[i] != e->home_wb2)
+			free(all[i]);
+	e->wb = e->home_wb;
+	e->wb2 = e->home_wb2;
+	e->pend = e->spare = NULL;
 }
 
 /* Cut the buffer from p (a record start) and hand the second half to the
@@ -1936,14 +2447,14 @@ static const char *par_start(eng *e, const char *p)
 	 * two tries */
 	if (par_on != 1 || e->hp_failed || e->par_miss >= 2 || end - p < PAR_MIN)
 		return NULL;
-	const char *half = p + (end - p) / 2;
+	const char *half = p + (end - p) * e->par_frac / 64;
 	const char *nl = memchr(half, '\n', (size_t)(end - half));
 	if (!nl || end - nl < 2)
 		return NULL;
 	if (!e->hp && !(e->hp = helper_start(e)))
 		return NULL;
 	helper *h = e->hp;
-	char *wb = h->sh.wb;
+	char *wb = h->sh.wb ? h->sh.wb : im_xmalloc(WR_CAP);
 	/* the engine as it stands, less the writer (its thread owns it) */
 	memcpy(&h->sh, e, offsetof(eng, w));
 	memcpy((char *)&h->sh + offsetof(eng, hp), (const char *)e + offsetof(eng, hp),
@@ -1953,15 +2464,22 @@ static const char *par_start(eng *e, const char *p)
 	h->sh.r = &h->res;
 	h->sh.worker = 1;
 	h->sh.hp = NULL;
+	h->sh.pend = h->sh.spare = NULL;   /* this thread's */
 	h->sh.wb = wb;
 	h->sh.wl = 0;
 	h->sh.span = nl + 1;
 	h->sh.line = 0;
 	pthread_mutex_lock(&h->mu);
 	h->p = nl + 1;
-	h->busy = 1;
+	STORE(h->busy, 1);
 	pthread_cond_broadcast(&h->cv);
 	pthread_mutex_unlock(&h->mu);
+	/* the output so far goes out here, while the helper works: two
+	 * threads busy, not a third for the writes (the helper's share,
+	 * par_frac, makes up for this thread's writing) */
+	w_pend(e);
+	w_sync(e, e->wb, e->wl);
+	e->wl = 0;
 	return nl + 1;
 }
 
@@ -1972,13 +2490,24 @@ static const char *par_start(eng *e, const char *p)
 static void par_finish(eng *e, const char *cut, const char **p, int *col, int ok)
 {
 	helper *h = e->hp;
+	/* who came first: the one who did not gets more next time */
+	int first = LOAD(h->busy);
+	/* a helper not yet started is given a moment before its half is
+	 * taken back (no processor free for it, then), and the helper at
+	 * work a moment to finish, before this thread sleeps */
+	spin_until(&h->running, 1, &h->busy, &h->spin_miss);
+	spin_until(&h->busy, 0, NULL, &h->spin_miss);
 	pthread_mutex_lock(&h->mu);
-	if (h->busy && !h->running) {
-		h->busy = 0;
+	if (LOAD(h->busy) && !LOAD(h->running)) {
+		STORE(h->busy, 0);
 		pthread_mutex_unlock(&h->mu);
 		return;
 	}
-	while (h->busy)
+	if (first)
+		e->par_frac += e->par_frac < 56;
+	else
+		e->par_frac -= e->par_frac > 8;
+	while (LOAD(h->busy))
 		pthread_cond_wait(&h->cv, &h->mu);
 	pthread_mutex_unlock(&h->mu);
 	if (!ok || *p != cut || *col != 1 || e->werr) {
@@ -1986,7 +2515,21 @@ static void par_finish(eng *e, const char *cut, const char **p, int *col, int ok
 		return;
 	}
 	w_put(e, e->span, (size_t)(cut - e->span));
-	w_put(e, h->sh.wb, h->sh.wl);
+	if (h->sh.wl >= PAR_SWAP_MIN) {
+		/* no copy of the helper's output: this thread's buffer is
+		 * written first (at the next cut, or the next flush), the
+		 * helper's becomes this thread's, and the helper takes the
+		 * spare */
+		w_pend(e);
+		e->pend = e->wb;
+		e->pendl = e->wl;
+		e->wb = h->sh.wb;
+		e->wl = h->sh.wl;
+		h->sh.wb = e->spare;
+		e->spare = NULL;
+	} else {
+		w_put(e, h->sh.wb, h->sh.wl);
+	}
 	e->span = h->sh.span;
 	e->r->rows += h->res.rows;
 	e->r->corrected += h->res.corrected;
@@ -2441,6 +2984,9 @@ int corr_stream(FILE *in, const char *in_name, FILE *out, const corr_opts *o,
 	e.err = err;
 	e.line = 1;
 	bufs_get(&e.buf, &e.wb, &e.wb2);
+	e.home_wb = e.wb;
+	e.home_wb2 = e.wb2;
+	e.par_frac = 32;
 	dig3_init();
 
 	errno = 0;
@@ -2527,8 +3073,8 @@ int corr_stream(FILE *in, const char *in_name, FILE *out, const corr_opts *o,
 done:
 	hdr_free(&h);
 	free(e.corr);
-	helper_stop(&e);
 	writer_stop(&e);
+	bufs_home(&e, helper_stop(&e));
 	bufs_put(e.buf, e.wb, e.wb2);
 	return rc;
 }

@@ -248,6 +248,11 @@ int corr_file(const char *in_path, const char *out_path, FILE *out_fp,
  * same either way; for tests and measurements. */
 void corr_set_parallel(int on);
 
+/* Whether the leanest loop may work on four rows at once with AVX2 where
+ * the processor has it (on: the default) or not; the output is the same
+ * either way.  For tests and measurements. */
+void corr_set_wide(int on);
+
 /* The side note's text: what was subtracted (the formula of r->config),
  * the LJP, its range, pipette, bath, temperature, model, ionmix version and
  * date (r->about), from which columns of which file, and the counts.
