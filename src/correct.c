@@ -2254,16 +2254,22 @@ out:
 }
 
 /* ---- the helper thread ----
- * A full read buffer is cut in two at a line end near its middle; a
- * second thread runs fast_run over the second half on a copy of the
- * engine (e->worker) into a buffer of its own, while this one does the
- * first half.  When this one reaches the cut at a record start with
- * nothing unusual before it (so that the cut is a record start), the
- * helper's output and counts are taken as if this thread had made them,
- * and the rest goes on from where the helper stopped; otherwise its work
- * is dropped and the second half is done here, as without it.  Either
- * way the bytes are those of the one-thread run (test_fast_path_same,
- * test_parallel_same); errors and their lines come from this thread. */
+ * A full read buffer is cut in two at a line end; a second thread runs
+ * fast_run over the second half on a copy of the engine (e->worker) into
+ * a buffer of its own, while this one writes the output so far (par_start:
+ * two threads busy, no third for the writes) and then does the first half.
+ * Where the cut falls (par_frac) moves with who waited for whom at the
+ * last one, so that the writing is made up for.  When this one reaches
+ * the cut at a record start with nothing unusual before it (so that the
+ * cut is a record start), the helper's output and counts are taken as if
+ * this thread had made them - its buffer becomes this thread's, no copy
+ * (par_finish; this thread's own goes out first, bufs_home sorts the
+ * buffers at the end) - and the rest goes on from where the helper
+ * stopped; otherwise its work is dropped and the second half is done
+ * here, as without it.  Either way the bytes are those of the one-thread
+ * run (test_fast_path_same, test_parallel_same, test_one_column_same);
+ * errors and their lines come from this thread.  The writer thread is
+ * left for runs (or stretches) without a helper. */
 
 #define PAR_MIN (128 * 1024)   /* bytes left in the buffer worth a cut */
 #define PAR_SWAP_MIN (64 * 1024) /* the helper's output taken without a copy */
