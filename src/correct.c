@@ -55,6 +55,8 @@
 #define RD_CHUNK (512 * 1024)                  /* at least this much per read */
 #define RD_CAP (RD_CHUNK + CORR_FIELD_MAX + 64) /* read buffer (+1 sentinel) */
 #define RD_SLACK 96                             /* readable bytes past the sentinel */
+#define RD_GAP (CORR_FIELD_MAX + 64)            /* room before read-ahead data for what is kept */
+#define RD_ALLOC (RD_GAP + RD_CAP + 1 + RD_SLACK) /* a read buffer's allocation */
 #define WR_CAP (2 * RD_CHUNK)                  /* write buffer: a thread's share of a read buffer fits */
 #define NUM_OUT_MAX (CORR_DIGITS_MAX + 24)      /* one formatted number */
 #define COL_NUMBER_MAX 1000000                  /* largest column number taken */
@@ -775,6 +777,14 @@ typedef struct eng {
 	char *buf;          /* RD_CAP + 1 (+ RD_SLACK) bytes; buf[len] is a NUL sentinel */
 	size_t len;
 	int eof;
+	char *rd_home;      /* the read buffer from bufs_get */
+	char *rd_alloc;     /* the allocation buf lies in (RD_ALLOC bytes) */
+	char *ah_alloc;     /* the other read buffer (the helper's read-ahead) */
+	const char *ah_data; /* read-ahead bytes not yet taken, ah_len of them */
+	size_t ah_len;
+	int ah_have;        /* 1: ah_data..ah_len (then ah_eof, ah_err) hold */
+	int ah_eof, ah_err;
+	int in_reg;         /* 1: reads never wait (a file, memory): read-ahead allowed */
 	const char *span;   /* first byte of buf not yet written */
 	char *wb;           /* WR_CAP bytes: the buffer being filled */
 	char *wb2;          /* the other one (in flight, or free) */
@@ -988,13 +998,18 @@ static int write_failed(eng *e)
 /* Keep buf[keep..len) (moved to the start), write what came before it, and
  * read more.  Returns 1 when bytes were added, 0 at end of file, -1 on a
  * read error. */
+static int refill_ahead(eng *e, size_t keep, size_t n);
+
 static int refill(eng *e, size_t keep)
 {
 	size_t n = e->len - keep, got;
 	w_put(e, e->span, (size_t)(e->buf + keep - e->span));
-	memmove(e->buf, e->buf + keep, n);
-	e->len = n;
 	e->par_miss = 0;
+	if (e->ah_have && !e->eof && !sig_cancelled())
+		return refill_ahead(e, keep, n);
+	memmove(e->rd_alloc, e->buf + keep, n);
+	e->buf = e->rd_alloc;
+	e->len = n;
 	e->span = e->buf;
 	if (e->eof) {
 		e->buf[e->len] = '\0';
@@ -1011,6 +1026,41 @@ static int refill(eng *e, size_t keep)
 			return im_fail(e->err, "%s: read error: %s", e->name,
 				       strerror(errno ? errno : EIO));
 		e->eof = 1;
+	}
+	return got > 0;
+}
+
+/* refill from what the helper read ahead (par_start): when what is kept
+ * fits the room before it, the two read buffers change places (no copy
+ * of the new bytes); else the bytes are copied after what is kept, as
+ * many as fit, the rest left for the next refill. */
+static int refill_ahead(eng *e, size_t keep, size_t n)
+{
+	size_t got;
+	if (n <= RD_GAP && e->ah_data == e->ah_alloc + RD_GAP) {
+		char *nb = e->ah_alloc + RD_GAP - n;
+		memcpy(nb, e->buf + keep, n);
+		char *t = e->rd_alloc;
+		e->rd_alloc = e->ah_alloc;
+		e->ah_alloc = t;
+		e->buf = nb;
+		got = e->ah_len;
+	} else {
+		memmove(e->rd_alloc, e->buf + keep, n);
+		e->buf = e->rd_alloc;
+		got = e->ah_len < RD_CAP - n ? e->ah_len : RD_CAP - n;
+		memcpy(e->buf + n, e->ah_data, got);
+		e->ah_data += got;
+	}
+	e->ah_len -= got;
+	e->len = n + got;
+	e->buf[e->len] = '\0';
+	e->span = e->buf;
+	if (e->ah_len == 0) {
+		e->ah_have = 0;
+		if (e->ah_err)
+			return im_fail(e->err, "%s: read error: %s", e->name, strerror(e->ah_err));
+		e->eof = e->ah_eof;
 	}
 	return got > 0;
 }
@@ -2288,6 +2338,10 @@ typedef struct helper {
 	int busy, quit;     /* under mu */
 	int running;        /* under mu: 1 once the helper has begun the job */
 	int spin_miss;      /* watches that ran out of time (spin_until) */
+	FILE *ah_in;        /* in: read ahead from here after the job, or NULL */
+	char *ah_dst;       /*     RD_CHUNK bytes into here */
+	size_t ah_got;      /* out: bytes read; ah_eof, ah_err as refill's */
+	int ah_eof, ah_err;
 	const char *p;      /* in: the cut; out: where the helper stopped */
 	int col;            /* out: the field it stopped at (1: a record start) */
 	eng sh;             /* the engine's copy; sh.wb is the helper's buffer */
@@ -2365,6 +2419,19 @@ static void *helper_main(void *arg)
 		STORE(h->running, 1);
 		pthread_mutex_unlock(&h->mu);
 		fast_run(&h->sh, &p, &col, h->sh.buf + h->sh.len);
+		if (h->ah_in) {
+			/* the next read buffer, while the main thread writes
+			 * and works (it reads nothing until this job is done) */
+			errno = 0;
+			h->ah_got = fread(h->ah_dst, 1, RD_CHUNK, h->ah_in);
+			h->ah_eof = h->ah_err = 0;
+			if (h->ah_got < RD_CHUNK) {
+				if (ferror(h->ah_in))
+					h->ah_err = errno ? errno : EIO;
+				else
+					h->ah_eof = 1;
+			}
+		}
 		pthread_mutex_lock(&h->mu);
 		h->p = p;
 		h->col = col;
@@ -2475,6 +2542,16 @@ static const char *par_start(eng *e, const char *p)
 	h->sh.wl = 0;
 	h->sh.span = nl + 1;
 	h->sh.line = 0;
+	/* and then the next read buffer, where a read cannot wait (a pipe
+	 * could keep it waiting for bytes this buffer's output does not
+	 * need) */
+	h->ah_in = NULL;
+	if (e->in_reg && !e->eof && !e->ah_have) {
+		if (!e->ah_alloc)
+			e->ah_alloc = im_xcalloc(RD_ALLOC, 1);
+		h->ah_in = e->in;
+		h->ah_dst = e->ah_alloc + RD_GAP;
+	}
 	pthread_mutex_lock(&h->mu);
 	h->p = nl + 1;
 	STORE(h->busy, 1);
@@ -2516,6 +2593,16 @@ static void par_finish(eng *e, const char *cut, const char **p, int *col, int ok
 	while (LOAD(h->busy))
 		pthread_cond_wait(&h->cv, &h->mu);
 	pthread_mutex_unlock(&h->mu);
+	if (h->ah_in) {
+		/* what it read ahead is the input's next bytes, whatever
+		 * becomes of its half */
+		e->ah_have = 1;
+		e->ah_data = h->ah_dst;
+		e->ah_len = h->ah_got;
+		e->ah_eof = h->ah_eof;
+		e->ah_err = h->ah_err;
+		h->ah_in = NULL;
+	}
 	if (!ok || *p != cut || *col != 1 || e->werr) {
 		e->par_miss++;
 		return;
@@ -2863,7 +2950,7 @@ static void bufs_get(char **rd, char **wr, char **wr2)
 	if (!kept_busy) {
 		kept_busy = 1;
 		if (!kept_rd) {
-			kept_rd = im_xcalloc(RD_CAP + 1 + RD_SLACK, 1);
+			kept_rd = im_xcalloc(RD_ALLOC, 1);
 			kept_wr = im_xmalloc(WR_CAP);
 			kept_wr2 = im_xmalloc(WR_CAP);
 		}
@@ -2872,7 +2959,7 @@ static void bufs_get(char **rd, char **wr, char **wr2)
 		*wr2 = kept_wr2;
 		return;
 	}
-	*rd = im_xcalloc(RD_CAP + 1 + RD_SLACK, 1);
+	*rd = im_xcalloc(RD_ALLOC, 1);
 	*wr = im_xmalloc(WR_CAP);
 	*wr2 = im_xmalloc(WR_CAP);
 }
@@ -2983,6 +3070,14 @@ int corr_stream(FILE *in, const char *in_name, FILE *out, const corr_opts *o,
 	memset(&e, 0, sizeof e);
 	memset(&h, 0, sizeof h);
 	e.in = in;
+	{
+		/* the helper may read ahead, except from what can keep a
+		 * read waiting (a pipe, a socket, a terminal) */
+		struct stat st;
+		int fd = fileno(in);
+		e.in_reg = fd < 0 || (fstat(fd, &st) == 0 && !S_ISFIFO(st.st_mode) &&
+				      !S_ISSOCK(st.st_mode) && !S_ISCHR(st.st_mode));
+	}
 	e.out = out;
 	e.name = in_name ? in_name : "input";
 	e.o = o;
@@ -2990,6 +3085,7 @@ int corr_stream(FILE *in, const char *in_name, FILE *out, const corr_opts *o,
 	e.err = err;
 	e.line = 1;
 	bufs_get(&e.buf, &e.wb, &e.wb2);
+	e.rd_home = e.rd_alloc = e.buf;
 	e.home_wb = e.wb;
 	e.home_wb2 = e.wb2;
 	e.par_frac = 32;
@@ -3081,7 +3177,8 @@ done:
 	free(e.corr);
 	writer_stop(&e);
 	bufs_home(&e, helper_stop(&e));
-	bufs_put(e.buf, e.wb, e.wb2);
+	free(e.rd_alloc == e.rd_home ? e.ah_alloc : e.rd_alloc);
+	bufs_put(e.rd_home, e.wb, e.wb2);
 	return rc;
 }
 
