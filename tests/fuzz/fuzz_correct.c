@@ -14,6 +14,9 @@
  * counts, and no numeric output position holds NaN or infinity: text the
  * input had ("nan" in a note column, a skipped cell) is copied, so the
  * output may spell "nan"/"inf" exactly as often as the input and no more.
+ * Where the processor has AVX2 the input is also corrected without the
+ * four-rows-at-once loop (corr_set_wide(0)): the bytes, the counts and the
+ * message must be the same.
  *
  * Persistent: nothing is set up per input beyond the two memory streams,
  * and the engine keeps its buffers between runs (correct.c).
@@ -105,6 +108,22 @@ int LLVMFuzzerTestOneInput(const uint8_t *data, size_t size)
 	s = &sets[data[0] & 7];
 	rc = pass((const char *)data + 1, size - 1, s, s->ljp, &r, &out, &outn, err);
 	FZ_CHECK(rc == 0 || rc == -1, "corr_stream returned %d", rc);
+	{
+		/* the one-row loop gives the same bytes, counts and message */
+		char err1[IM_ERRLEN], *out1 = NULL;
+		size_t outn1;
+		corr_result r1;
+		corr_set_wide(0);
+		int rc1 = pass((const char *)data + 1, size - 1, s, s->ljp, &r1, &out1, &outn1, err1);
+		corr_set_wide(1);
+		FZ_CHECK(rc1 == rc, "one-row loop: rc %d, four-row loop: rc %d", rc1, rc);
+		FZ_CHECK(outn1 == outn && (outn == 0 || memcmp(out1, out, outn) == 0),
+			 "the one-row and four-row loops wrote different bytes");
+		FZ_CHECK(r1.rows == r.rows && r1.corrected == r.corrected && r1.skipped == r.skipped &&
+			 r1.blank == r.blank, "the one-row and four-row loops counted differently");
+		FZ_CHECK(!rc || strcmp(err1, err) == 0, "different messages: '%s', '%s'", err1, err);
+		free(out1);
+	}
 	if (rc) {
 		fz_check_err(err, "corr_stream", 0);
 	} else {
