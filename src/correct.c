@@ -2376,17 +2376,17 @@ static inline void cpu_relax(void)
 #endif
 }
 
-/* Watch *flag for up to PAR_SPIN_NS: 1 when it became `want` (or, with
- * `or` not NULL, *or became 0); *miss counts the watches that ran out
- * (none once it reaches PAR_SPIN_MISS). */
-static int spin_until(const int *flag, int want, const int *or, int *miss)
+/* Watch *flag for up to PAR_SPIN_NS: 1 when it became `want` or *or
+ * became `or_want`; *miss counts the watches that ran out (none once it
+ * reaches PAR_SPIN_MISS). */
+static int spin_until(const int *flag, int want, const int *or, int or_want, int *miss)
 {
 	long t0 = 0;
 	if (__atomic_load_n(miss, __ATOMIC_RELAXED) >= PAR_SPIN_MISS)
 		return 0;
 	for (int i = 0;; i++) {
 		if (__atomic_load_n(flag, __ATOMIC_ACQUIRE) == want ||
-		    (or && !__atomic_load_n(or, __ATOMIC_ACQUIRE)))
+		    __atomic_load_n(or, __ATOMIC_ACQUIRE) == or_want)
 			return 1;
 		if ((i & 63) == 63) {
 			long t = now_ns();
@@ -2408,7 +2408,7 @@ static void *helper_main(void *arg)
 {
 	helper *h = arg;
 	for (;;) {
-		spin_until(&h->busy, 1, NULL, &h->spin_miss);
+		spin_until(&h->busy, 1, &h->quit, 1, &h->spin_miss);
 		pthread_mutex_lock(&h->mu);
 		while (!LOAD(h->busy) && !LOAD(h->quit))
 			pthread_cond_wait(&h->cv, &h->mu);
@@ -2578,8 +2578,8 @@ static void par_finish(eng *e, const char *cut, const char **p, int *col, int ok
 	/* a helper not yet started is given a moment before its half is
 	 * taken back (no processor free for it, then), and the helper at
 	 * work a moment to finish, before this thread sleeps */
-	spin_until(&h->running, 1, &h->busy, &h->spin_miss);
-	spin_until(&h->busy, 0, NULL, &h->spin_miss);
+	spin_until(&h->running, 1, &h->busy, 0, &h->spin_miss);
+	spin_until(&h->busy, 0, &h->busy, 0, &h->spin_miss);
 	pthread_mutex_lock(&h->mu);
 	if (LOAD(h->busy) && !LOAD(h->running)) {
 		STORE(h->busy, 0);
