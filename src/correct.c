@@ -2072,18 +2072,10 @@ void corr_set_wide(int on)
 	quad_off = !on;
 }
 
-#if defined(__x86_64__) && defined(__GNUC__) && !defined(__clang__) && defined(__linux__)
-/* the same code for x86-64-v3 too (BMI2 shifts, LZCNT, VEX), chosen at
- * load time where the processor has it */
-#define LEAN_CLONES __attribute__((target_clones("arch=x86-64-v3", "default")))
-#else
-#define LEAN_CLONES
-#endif
-
 /* lean_rows for the decimals each row has, from p on; the pending span is
  * written first, and on return it is the row start (the rows before it
  * done).  *full: stopped for want of room in the write buffer. */
-static LEAN_CLONES __attribute__((noinline)) const char *
+static __attribute__((noinline)) const char *
 short_rows(eng *e, const char *p, const char *lim, int one, const ljp_prep *lp, char **wbp,
 	   size_t *wlp, const char **spanp, long *rowsp, int *full)
 {
