@@ -70,11 +70,29 @@
 /* Largest block storage, doubles (about 100 MB). */
 #define DF_MAX_DOUBLES 12500000.0
 
+/* The fuzz build (make fuzz; FUZZING_BUILD_MODE_UNSAFE_FOR_PRODUCTION is
+ * set there alone) bounds the work one input can ask for: the grids start
+ * at 21 nodes and refinement stops at 41 (one refinement), with a target
+ * error of 0.05 mV, so that both ends of refinement (the target met, as
+ * for the usual pipette and bath pairs, and the finest grid reached
+ * without it) are common; the continuation in the concentration step and
+ * its failure are reached as in the normal build.  Results there differ
+ * from the normal build's, which these never change. */
+#ifdef FUZZING_BUILD_MODE_UNSAFE_FOR_PRODUCTION
+#define DF_GRID0 21
+#define DF_GRID_MAX 41
+#define DF_TOL_mV 0.05
+#else
+#define DF_GRID0 51
+#define DF_GRID_MAX 3201
+#define DF_TOL_mV 0.005
+#endif
+
 void df_defaults(df_opts *o)
 {
-	o->grid_points = 51;
-	o->max_grid_points = 3201;
-	o->tol_mV = 0.005;
+	o->grid_points = DF_GRID0;
+	o->max_grid_points = DF_GRID_MAX;
+	o->tol_mV = DF_TOL_mV;
 	o->max_newton = 40;
 }
 
