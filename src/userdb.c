@@ -18,6 +18,13 @@
 #include "common.h"
 #include "units.h"
 
+/* The tables of a new file, at version UDB_SCHEMA_VERSION in one step.
+ * Version 1 had solutions, solution_items and user_compounds without the
+ * columns that version 3 adds (note, fw_g_mol; see migrate_keep); they are
+ * written here as that upgrade leaves them (ALTER TABLE ... ADD COLUMN
+ * puts ", column" after the last column), so that a new file and an
+ * upgraded one have the same schema, the text in sqlite_master included
+ * (test_userdb).  The rest is migrate_targets_sql and schema_keep_sql. */
 static const char schema_sql[] =
 	"CREATE TABLE IF NOT EXISTS solutions ("
 	"  name TEXT PRIMARY KEY,"
@@ -25,19 +32,34 @@ static const char schema_sql[] =
 	"  ph_target REAL,"                      /* NULL: not titrated */
 	"  co2_frac REAL NOT NULL DEFAULT 0,"    /* CO2 gas, fraction */
 	"  co2_p_atm REAL NOT NULL DEFAULT 1,"
-	"  co2_dry INTEGER NOT NULL DEFAULT 0);"
+	"  co2_dry INTEGER NOT NULL DEFAULT 0, note TEXT NOT NULL DEFAULT '');"
 	"CREATE TABLE IF NOT EXISTS solution_items ("
 	"  solution TEXT NOT NULL REFERENCES solutions(name) ON DELETE CASCADE,"
 	"  position INTEGER NOT NULL,"
 	"  compound TEXT NOT NULL,"          /* canonical name in the reference db */
 	"  mM REAL NOT NULL CHECK (mM > 0),"
 	"  stock_mM REAL NOT NULL DEFAULT 0,"
-	"  titrant INTEGER NOT NULL DEFAULT 0,"  /* 1: added by `ph` */
+	"  titrant INTEGER NOT NULL DEFAULT 0, fw_g_mol REAL NOT NULL DEFAULT 0," /* 1: by `ph` */
 	"  PRIMARY KEY (solution, position));"
 	/* user-defined compounds, same columns as the reference table */
 	"CREATE TABLE IF NOT EXISTS user_compounds ("
 	"  name TEXT PRIMARY KEY, formula TEXT NOT NULL, fw_g_mol REAL NOT NULL,"
 	"  yields TEXT NOT NULL, note TEXT);";
+
+/* Version 2: the targets a solution holds (solution.h sol_target), each
+ * with the compound it adds and the temperature at which it holds. */
+static const char migrate_targets_sql[] =
+	"CREATE TABLE IF NOT EXISTS solution_targets ("
+	"  scope INTEGER NOT NULL DEFAULT 0,"   /* 0 saved, 1 a saved version, 2 kept */
+	"  solution TEXT NOT NULL,"
+	"  version INTEGER NOT NULL DEFAULT 0," /* the version (scope 1), else 0 */
+	"  position INTEGER NOT NULL,"
+	"  kind TEXT NOT NULL CHECK (kind IN ('ph', 'free', 'osmo')),"
+	"  value REAL NOT NULL,"             /* pH; free metal, mM; mOsm/kg */
+	"  compound TEXT NOT NULL,"          /* what is added to reach it */
+	"  metal TEXT,"                      /* 'free': the ion's symbol */
+	"  at_C REAL NOT NULL,"              /* where it holds */
+	"  PRIMARY KEY (scope, solution, version, position));";
 
 /* Schema version 3 (migrate_keep): every saved version of a solution, and
  * the shell's workspace kept as it changes.  The same columns as solutions and
@@ -70,10 +92,6 @@ static const char schema_keep_sql[] =
 	"  stock_mM REAL NOT NULL DEFAULT 0, titrant INTEGER NOT NULL DEFAULT 0,"
 	"  fw_g_mol REAL NOT NULL DEFAULT 0,"
 	"  PRIMARY KEY (solution, position));"
-	/* the bottle's formula weight of an item (`fw`); 0: the table's */
-	"ALTER TABLE solution_items ADD COLUMN fw_g_mol REAL NOT NULL DEFAULT 0;"
-	/* the user's note on a solution (`note`) */
-	"ALTER TABLE solutions ADD COLUMN note TEXT NOT NULL DEFAULT '';"
 	"CREATE TABLE IF NOT EXISTS kept_state (key TEXT PRIMARY KEY, value);"
 	/* user-defined ions and compounds (`define`), re-read at start */
 	"CREATE TABLE IF NOT EXISTS defined_ions ("
@@ -82,6 +100,13 @@ static const char schema_keep_sql[] =
 	"CREATE TABLE IF NOT EXISTS defined_compounds ("
 	"  name TEXT PRIMARY KEY, formula TEXT NOT NULL, yields TEXT NOT NULL DEFAULT '',"
 	"  hazard TEXT, source TEXT);";
+
+/* The columns version 3 adds to the tables of version 1 (migrate_keep):
+ * the bottle's formula weight of an item (`fw`; 0: the table's) and the
+ * user's note on a solution (`note`). */
+static const char schema_keep_alter_sql[] =
+	"ALTER TABLE solution_items ADD COLUMN fw_g_mol REAL NOT NULL DEFAULT 0;"
+	"ALTER TABLE solutions ADD COLUMN note TEXT NOT NULL DEFAULT '';";
 
 /* Where a solution's rows live: saved (the latest), a saved version, or
  * the kept workspace.  The head and item tables share their columns. */
@@ -245,13 +270,15 @@ static int user_version(userdb *u, int *v)
 	return rc;
 }
 
-/* Create the tables of a new, empty database.  Two processes may both get
- * here for the same new file: the write lock is taken first (BEGIN
- * IMMEDIATE waits out the other through the busy timeout), and the schema
- * version is read again under it, so the second finds the work done. */
+/* Create the tables of a new, empty database at the current version
+ * directly (no migration steps: they are for older files).  Two processes
+ * may both get here for the same new file: the write lock is taken first
+ * (BEGIN IMMEDIATE waits out the other through the busy timeout), and the
+ * schema version is read again under it, so the second finds the work
+ * done. */
 static int create_schema(userdb *u, char *err)
 {
-	char sql[sizeof schema_sql + sizeof schema_keep_sql + 64];
+	char sql[sizeof schema_sql + sizeof migrate_targets_sql + sizeof schema_keep_sql + 64];
 	int v = 0;
 	/* switching the journal can report busy without calling the busy
 	 * handler: retry it here, as long as a writer would wait */
@@ -274,7 +301,8 @@ static int create_schema(userdb *u, char *err)
 	if (v != 0)
 		return sqlite3_exec(u->db, "COMMIT", NULL, NULL, NULL) == SQLITE_OK
 			       ? 0 : fail_db(u, err, "opening");
-	snprintf(sql, sizeof sql, "%s PRAGMA user_version = 1; COMMIT;", schema_sql);
+	snprintf(sql, sizeof sql, "%s%s%s PRAGMA user_version = %d; COMMIT;", schema_sql,
+		 migrate_targets_sql, schema_keep_sql, UDB_SCHEMA_VERSION);
 	if (sqlite3_exec(u->db, sql, NULL, NULL, NULL) != SQLITE_OK) {
 		fail_db(u, err, "creating the tables");
 		sqlite3_exec(u->db, "ROLLBACK", NULL, NULL, NULL);
@@ -396,21 +424,6 @@ static char *immutable_uri(const char *path)
 
 /* ---- migration steps: each brings the schema from version N - 1 to N ---- */
 
-/* Version 2: the targets a solution holds (solution.h sol_target), each
- * with the compound it adds and the temperature at which it holds. */
-static const char migrate_targets_sql[] =
-	"CREATE TABLE IF NOT EXISTS solution_targets ("
-	"  scope INTEGER NOT NULL DEFAULT 0,"   /* 0 saved, 1 a saved version, 2 kept */
-	"  solution TEXT NOT NULL,"
-	"  version INTEGER NOT NULL DEFAULT 0," /* the version (scope 1), else 0 */
-	"  position INTEGER NOT NULL,"
-	"  kind TEXT NOT NULL CHECK (kind IN ('ph', 'free', 'osmo')),"
-	"  value REAL NOT NULL,"             /* pH; free metal, mM; mOsm/kg */
-	"  compound TEXT NOT NULL,"          /* what is added to reach it */
-	"  metal TEXT,"                      /* 'free': the ion's symbol */
-	"  at_C REAL NOT NULL,"              /* where it holds */
-	"  PRIMARY KEY (scope, solution, version, position));";
-
 static int migrate_targets(userdb *u)
 {
 	return sqlite3_exec(u->db, migrate_targets_sql, NULL, NULL, NULL);
@@ -422,7 +435,8 @@ static int migrate_targets(userdb *u)
  * (schema_keep_sql). */
 static int migrate_keep(userdb *u)
 {
-	return sqlite3_exec(u->db, schema_keep_sql, NULL, NULL, NULL);
+	int rc = sqlite3_exec(u->db, schema_keep_sql, NULL, NULL, NULL);
+	return rc == SQLITE_OK ? sqlite3_exec(u->db, schema_keep_alter_sql, NULL, NULL, NULL) : rc;
 }
 
 static int (*const migrate_step[])(userdb *u) = {migrate_targets, migrate_keep};
@@ -574,10 +588,11 @@ int udb_open(const char *path, int create, userdb **out, char *err)
 		udb_close(u);
 		return -1;
 	}
-	u->schema = v ? v : 1;
-	/* an older file (or one just created at version 1) is upgraded when it
-	 * may be written; read-only, it is read as it stands (no targets, no
-	 * versions, no kept workspace) */
+	u->schema = v ? v : UDB_SCHEMA_VERSION;
+	/* an older file is upgraded when it may be written (one just created
+	 * is at the current version, unless an older ionmix created it first);
+	 * read-only, it is read as it stands (no targets, no versions, no kept
+	 * workspace) */
 	if (!(flags & SQLITE_OPEN_READONLY)) {
 		if (migrate(u, v != 0, err)) {
 			udb_close(u);
