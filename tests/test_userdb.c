@@ -666,20 +666,33 @@ static char *schema_text(const char *p, int *rows)
 	return out;
 }
 
-/* A new file is created at the current version in one step; a file of
- * version 1 is upgraded step by step; both end with the same schema, the
- * SQL text of every table and index included. */
+/* A missing file is created from the image of an empty database (in WAL
+ * mode); an empty file is given its tables by SQL; a file of version 1 is
+ * upgraded step by step; all three end with the same schema, the SQL text
+ * of every table and index included. */
 static void new_file_as_upgraded(void **state)
 {
-	char pn[256], po[256], err[IM_ERRLEN], want[32];
+	char pn[256], pe[256], po[256], err[IM_ERRLEN], want[32];
 	userdb *u;
 	sqlite3 *h;
-	char *tn, *to;
-	int rn, ro;
+	sqlite3_stmt *st;
+	char *tn, *te, *to;
+	int rn, re, ro;
 	(void)state;
 	path(pn, "schema-new.db");
+	path(pe, "schema-empty.db");
 	path(po, "schema-old.db");
 	assert_int_equal(udb_open(pn, 1, &u, err), 0);
+	udb_close(u);
+	assert_int_equal(sqlite3_open(pn, &h), SQLITE_OK);
+	assert_int_equal(sqlite3_prepare_v2(h, "PRAGMA journal_mode", -1, &st, NULL), SQLITE_OK);
+	assert_int_equal(sqlite3_step(st), SQLITE_ROW);
+	assert_string_equal((const char *)sqlite3_column_text(st, 0), "wal");
+	sqlite3_finalize(st);
+	sqlite3_close(h);
+	write_file(pe, "", 0);
+	if (udb_open(pe, 1, &u, err) != 0)
+		fail_msg("empty file: %s", err);
 	udb_close(u);
 	assert_int_equal(sqlite3_open(po, &h), SQLITE_OK);
 	assert_int_equal(sqlite3_exec(h, v1_sql, NULL, NULL, NULL), SQLITE_OK);
@@ -688,15 +701,19 @@ static void new_file_as_upgraded(void **state)
 		fail_msg("upgrade: %s", err);
 	udb_close(u);
 	tn = schema_text(pn, &rn);
+	te = schema_text(pe, &re);
 	to = schema_text(po, &ro);
 	/* every table of every version: 3 + 1 + 7, each with its index */
 	assert_true(rn >= 11);
 	assert_int_equal(rn, ro);
+	assert_int_equal(re, ro);
 	snprintf(want, sizeof want, "user_version %d\n", UDB_SCHEMA_VERSION);
 	assert_non_null(strstr(tn, want));
 	assert_non_null(strstr(tn, "fw_g_mol REAL NOT NULL DEFAULT 0,  PRIMARY KEY"));
 	assert_string_equal(tn, to);
+	assert_string_equal(te, to);
 	free(tn);
+	free(te);
 	free(to);
 }
 
