@@ -120,6 +120,9 @@ static const struct {
 	{"kept_solutions", "kept_items"},
 };
 
+/* Statements kept prepared per connection (stmt_get). */
+#define UDB_STMT_MAX 24
+
 /* Backoff between retries: doubles from 1 ms up to this, with jitter. */
 #define BACKOFF_MAX_MS 100
 
@@ -133,6 +136,12 @@ struct userdb {
 	int noticed;         /* the notice was given for the current wait */
 	unsigned seed;       /* jitter */
 	int schema;          /* the file's schema version */
+	/* the statements of saving, prepared once per connection (stmt_get) */
+	struct {
+		char *sql;
+		sqlite3_stmt *st;
+	} stmt[UDB_STMT_MAX];
+	int nstmt;
 	/* compounds the reference data do not know (user-defined) */
 	const rd_compound *(*lookup)(void *arg, const char *name);
 	void *lookup_arg;
@@ -671,6 +680,10 @@ void udb_close(userdb *u)
 {
 	if (!u)
 		return;
+	for (int i = 0; i < u->nstmt; i++) {
+		sqlite3_finalize(u->stmt[i].st);
+		free(u->stmt[i].sql);
+	}
 	sqlite3_close(u->db);
 	free(u->path);
 	free(u);
@@ -681,6 +694,43 @@ static int step_done(sqlite3_stmt *st)
 	int rc = sqlite3_step(st);
 	sqlite3_reset(st);
 	return rc == SQLITE_DONE ? 0 : -1;
+}
+
+/* The statement for sql, prepared on the first use and kept for the
+ * connection's life (SQLite prepares it again by itself if the schema
+ * changes): a save runs a dozen statements, and scripts and the shell save
+ * again and again.  Give it back with stmt_put, never finalize it.  Once
+ * UDB_STMT_MAX are kept, further ones are prepared for one use (stmt_put
+ * finalizes those).  SQLITE_OK or SQLite's error code (*st NULL then). */
+static int stmt_get(userdb *u, const char *sql, sqlite3_stmt **st)
+{
+	int rc;
+	for (int i = 0; i < u->nstmt; i++)
+		if (strcmp(u->stmt[i].sql, sql) == 0) {
+			*st = u->stmt[i].st;
+			return SQLITE_OK;
+		}
+	rc = sqlite3_prepare_v3(u->db, sql, -1, SQLITE_PREPARE_PERSISTENT, st, NULL);
+	if (rc == SQLITE_OK && u->nstmt < UDB_STMT_MAX) {
+		u->stmt[u->nstmt].sql = im_xstrdup(sql);
+		u->stmt[u->nstmt++].st = *st;
+	}
+	return rc;
+}
+
+/* Done with a statement of stmt_get: reset, its bindings cleared (no
+ * pointer into the caller's memory stays behind); NULL is ignored. */
+static void stmt_put(userdb *u, sqlite3_stmt *st)
+{
+	if (!st)
+		return;
+	for (int i = 0; i < u->nstmt; i++)
+		if (u->stmt[i].st == st) {
+			sqlite3_reset(st);
+			sqlite3_clear_bindings(st);
+			return;
+		}
+	sqlite3_finalize(st);
 }
 
 static const char *const target_kind[] = {"ph", "free", "osmo"};
@@ -694,19 +744,19 @@ static int save_targets(userdb *u, const solution *s, int scope, int version)
 	int rc = 0;
 	if (u->schema < 2)
 		return 0;
-	if (sqlite3_prepare_v2(u->db, "DELETE FROM solution_targets WHERE scope = ?1 AND"
-			       " solution = ?2 AND version = ?3", -1, &del, NULL) != SQLITE_OK)
+	if (stmt_get(u, "DELETE FROM solution_targets WHERE scope = ?1 AND"
+		     " solution = ?2 AND version = ?3", &del) != SQLITE_OK)
 		return -1;
 	sqlite3_bind_int(del, 1, scope);
 	sqlite3_bind_text(del, 2, s->name, -1, SQLITE_STATIC);
 	sqlite3_bind_int(del, 3, version);
 	rc = step_done(del);
-	sqlite3_finalize(del);
+	stmt_put(u, del);
 	if (rc)
 		return -1;
-	if (sqlite3_prepare_v2(u->db, "INSERT INTO solution_targets(solution, position, kind,"
-			       " value, compound, metal, at_C, scope, version) VALUES (?1, ?2, ?3,"
-			       " ?4, ?5, ?6, ?7, ?8, ?9)", -1, &st, NULL) != SQLITE_OK)
+	if (stmt_get(u, "INSERT INTO solution_targets(solution, position, kind,"
+		     " value, compound, metal, at_C, scope, version) VALUES (?1, ?2, ?3,"
+		     " ?4, ?5, ?6, ?7, ?8, ?9)", &st) != SQLITE_OK)
 		return -1;
 	for (int k = 0; k < s->ntg && !rc; k++) {
 		const sol_target *t = &s->tg[k];
@@ -725,7 +775,7 @@ static int save_targets(userdb *u, const solution *s, int scope, int version)
 		rc = step_done(st);
 		sqlite3_clear_bindings(st);
 	}
-	sqlite3_finalize(st);
+	stmt_put(u, st);
 	return rc;
 }
 
@@ -755,17 +805,17 @@ static int save_rows(userdb *u, rows_kind k, const solution *s, int version)
 	sqlite3_stmt *del = NULL, *deli = NULL, *ins = NULL, *item = NULL;
 	int ok = 0;
 	snprintf(sql, sizeof sql, "DELETE FROM %s WHERE name = ?1%s", rows_tab[k].head, vcond);
-	if (sqlite3_prepare_v2(u->db, sql, -1, &del, NULL))
+	if (stmt_get(u, sql, &del))
 		goto done;
 	snprintf(sql, sizeof sql, "DELETE FROM %s WHERE solution = ?1%s", rows_tab[k].items,
 		 vcond);
-	if (sqlite3_prepare_v2(u->db, sql, -1, &deli, NULL))
+	if (stmt_get(u, sql, &deli))
 		goto done;
 	snprintf(sql, sizeof sql, "INSERT INTO %s%s", rows_tab[k].head, head_cols[k]);
-	if (sqlite3_prepare_v2(u->db, sql, -1, &ins, NULL))
+	if (stmt_get(u, sql, &ins))
 		goto done;
 	snprintf(sql, sizeof sql, "INSERT INTO %s%s", rows_tab[k].items, item_cols[k]);
-	if (sqlite3_prepare_v2(u->db, sql, -1, &item, NULL))
+	if (stmt_get(u, sql, &item))
 		goto done;
 	sqlite3_bind_text(del, 1, s->name, -1, SQLITE_STATIC);
 	sqlite3_bind_text(deli, 1, s->name, -1, SQLITE_STATIC);
@@ -801,10 +851,10 @@ static int save_rows(userdb *u, rows_kind k, const solution *s, int version)
 		goto done;
 	ok = 1;
 done:
-	sqlite3_finalize(del);
-	sqlite3_finalize(deli);
-	sqlite3_finalize(ins);
-	sqlite3_finalize(item);
+	stmt_put(u, del);
+	stmt_put(u, deli);
+	stmt_put(u, ins);
+	stmt_put(u, item);
 	return ok ? 0 : -1;
 }
 
@@ -814,9 +864,9 @@ static int same_targets_as_saved(userdb *u, const solution *s)
 {
 	sqlite3_stmt *st;
 	int same = 1, n = 0, rc;
-	if (sqlite3_prepare_v2(u->db, "SELECT kind, value, compound, metal, at_C FROM"
-			       " solution_targets WHERE scope = ?1 AND solution = ?2 AND"
-			       " version = 0 ORDER BY position", -1, &st, NULL))
+	if (stmt_get(u, "SELECT kind, value, compound, metal, at_C FROM"
+		     " solution_targets WHERE scope = ?1 AND solution = ?2 AND"
+		     " version = 0 ORDER BY position", &st))
 		return -1;
 	sqlite3_bind_int(st, 1, ROWS_SAVED);
 	sqlite3_bind_text(st, 2, s->name, -1, SQLITE_STATIC);
@@ -834,7 +884,7 @@ static int same_targets_as_saved(userdb *u, const solution *s)
 			same = 0;
 		n++;
 	}
-	sqlite3_finalize(st);
+	stmt_put(u, st);
 	if (rc != SQLITE_DONE)
 		return -1;
 	return same && n == s->ntg;
@@ -846,13 +896,13 @@ static int same_as_saved(userdb *u, const solution *s)
 {
 	sqlite3_stmt *st;
 	int same = 1, n = 0, rc;
-	if (sqlite3_prepare_v2(u->db, "SELECT ph_target, co2_frac, co2_p_atm, co2_dry, note FROM"
-			       " solutions WHERE name = ?1", -1, &st, NULL))
+	if (stmt_get(u, "SELECT ph_target, co2_frac, co2_p_atm, co2_dry, note FROM"
+		     " solutions WHERE name = ?1", &st))
 		return -1;
 	sqlite3_bind_text(st, 1, s->name, -1, SQLITE_STATIC);
 	rc = sqlite3_step(st);
 	if (rc != SQLITE_ROW) {
-		sqlite3_finalize(st);
+		stmt_put(u, st);
 		return rc == SQLITE_DONE ? 0 : -1;
 	}
 	if (sqlite3_column_type(st, 0) == SQLITE_NULL ? isfinite(s->ph_target)
@@ -864,9 +914,9 @@ static int same_as_saved(userdb *u, const solution *s)
 	if (strcmp(sqlite3_column_text(st, 4) ? (const char *)sqlite3_column_text(st, 4) : "",
 		   s->note) != 0)
 		same = 0;
-	sqlite3_finalize(st);
-	if (sqlite3_prepare_v2(u->db, "SELECT compound, mM, stock_mM, titrant, fw_g_mol FROM"
-			       " solution_items WHERE solution = ?1 ORDER BY position", -1, &st, NULL))
+	stmt_put(u, st);
+	if (stmt_get(u, "SELECT compound, mM, stock_mM, titrant, fw_g_mol FROM"
+		     " solution_items WHERE solution = ?1 ORDER BY position", &st))
 		return -1;
 	sqlite3_bind_text(st, 1, s->name, -1, SQLITE_STATIC);
 	while ((rc = sqlite3_step(st)) == SQLITE_ROW) {
@@ -879,7 +929,7 @@ static int same_as_saved(userdb *u, const solution *s)
 			same = 0;
 		n++;
 	}
-	sqlite3_finalize(st);
+	stmt_put(u, st);
 	if (rc != SQLITE_DONE)
 		return -1;
 	if (same && n == s->n)
@@ -911,13 +961,13 @@ static int last_version(userdb *u, const char *name)
 {
 	sqlite3_stmt *st;
 	int v = -1;
-	if (sqlite3_prepare_v2(u->db, "SELECT coalesce(max(version), 0) FROM solution_versions"
-			       " WHERE name = ?1", -1, &st, NULL))
+	if (stmt_get(u, "SELECT coalesce(max(version), 0) FROM solution_versions"
+		     " WHERE name = ?1", &st))
 		return -1;
 	sqlite3_bind_text(st, 1, name, -1, SQLITE_STATIC);
 	if (sqlite3_step(st) == SQLITE_ROW)
 		v = sqlite3_column_int(st, 0);
-	sqlite3_finalize(st);
+	stmt_put(u, st);
 	return v;
 }
 
@@ -927,17 +977,17 @@ static int adopt_unversioned(userdb *u, const char *name)
 {
 	sqlite3_stmt *a = NULL, *b = NULL;
 	int rc = -1;
-	if (sqlite3_prepare_v2(u->db,
-			       "INSERT INTO solution_versions(name, version, saved_at, summary,"
-			       " ph_target, co2_frac, co2_p_atm, co2_dry) SELECT name, 1, saved_at,"
-			       " '(saved before versions were kept)', ph_target, co2_frac, co2_p_atm,"
-			       " co2_dry FROM solutions WHERE name = ?1", -1, &a, NULL) == SQLITE_OK &&
-	    sqlite3_prepare_v2(u->db,
-			       "INSERT INTO solution_version_items(solution, version, position,"
-			       " compound, mM, stock_mM, titrant, fw_g_mol) SELECT solution, 1,"
-			       " position, compound, mM, stock_mM, titrant, fw_g_mol FROM"
-			       " solution_items WHERE"
-			       " solution = ?1", -1, &b, NULL) == SQLITE_OK) {
+	if (stmt_get(u,
+		     "INSERT INTO solution_versions(name, version, saved_at, summary,"
+		     " ph_target, co2_frac, co2_p_atm, co2_dry) SELECT name, 1, saved_at,"
+		     " '(saved before versions were kept)', ph_target, co2_frac, co2_p_atm,"
+		     " co2_dry FROM solutions WHERE name = ?1", &a) == SQLITE_OK &&
+	    stmt_get(u,
+		     "INSERT INTO solution_version_items(solution, version, position,"
+		     " compound, mM, stock_mM, titrant, fw_g_mol) SELECT solution, 1,"
+		     " position, compound, mM, stock_mM, titrant, fw_g_mol FROM"
+		     " solution_items WHERE"
+		     " solution = ?1", &b) == SQLITE_OK) {
 		sqlite3_bind_text(a, 1, name, -1, SQLITE_STATIC);
 		sqlite3_bind_text(b, 1, name, -1, SQLITE_STATIC);
 		if (step_done(a) == 0) {
@@ -946,8 +996,8 @@ static int adopt_unversioned(userdb *u, const char *name)
 				rc = -1;
 		}
 	}
-	sqlite3_finalize(a);
-	sqlite3_finalize(b);
+	stmt_put(u, a);
+	stmt_put(u, b);
 	return rc;
 }
 
@@ -977,17 +1027,17 @@ int udb_save_v(userdb *u, const solution *s, int *version, int *superseded, char
 		if (save_rows(u, ROWS_VERSION, s, v))
 			goto done;
 		summarize(s, summary, sizeof summary);
-		if (sqlite3_prepare_v2(u->db, "UPDATE solution_versions SET summary = ?3 WHERE"
-				       " name = ?1 AND version = ?2", -1, &st, NULL))
+		if (stmt_get(u, "UPDATE solution_versions SET summary = ?3 WHERE"
+			     " name = ?1 AND version = ?2", &st))
 			goto done;
 		sqlite3_bind_text(st, 1, s->name, -1, SQLITE_STATIC);
 		sqlite3_bind_int(st, 2, v);
 		sqlite3_bind_text(st, 3, summary, -1, SQLITE_STATIC);
 		if (step_done(st)) {
-			sqlite3_finalize(st);
+			stmt_put(u, st);
 			goto done;
 		}
-		sqlite3_finalize(st);
+		stmt_put(u, st);
 	}
 	ok = sqlite3_exec(u->db, "COMMIT", NULL, NULL, NULL) == SQLITE_OK;
 done:
