@@ -19,7 +19,7 @@
  *
  * Built with FUZZING_BUILD_MODE_UNSAFE_FOR_PRODUCTION (the Makefile's fuzz
  * build): the junction solvers bound the work of one input (free
- * diffusion: 21 to 41 grid nodes for 0.05 mV; Planck: 100 to 400 steps for
+ * diffusion: 51 to 101 grid nodes for 0.05 mV; Planck: 100 to 400 steps for
  * 1e-4 mV; see DEVELOPERS.md), with both the converged result and the
  * "finest grid / most steps reached" error still common, so an input never
  * asks for the seconds of numeric work the normal build may spend.
