@@ -23,9 +23,10 @@
 #include "junction.h"
 
 typedef struct df_opts {
-	int grid_points;     /* nodes of the first grid (odd, 21..max); default 101 */
+	int grid_points;     /* nodes of the first grid (odd, 21..max); default 51 */
 	int max_grid_points; /* largest grid refinement may reach; default 3201 */
-	double tol_mV;       /* target estimated discretization error; default 0.005 */
+	double tol_mV;       /* target estimated discretization error; default 0.005
+			      * (the fuzz build's defaults are smaller: diffusion.c) */
 	int max_newton;      /* Newton iterations allowed per solve; default 40 */
 } df_opts;
 

@@ -332,6 +332,31 @@ int fio_commit(fio_file *f, char *err)
 	return rc;
 }
 
+int fio_commit_new(fio_file *f, int *existed, char *err)
+{
+	int rc;
+	*existed = 0;
+	if (f->tmp == NULL) {
+		fio_abort(f);
+		return -2;
+	}
+	rc = finish_stream(f, err);
+	if (rc == 0 && link(f->tmp, f->target) != 0) {
+		int e = errno;
+		if (e == EEXIST)
+			*existed = 1;
+		else if (e == EPERM || e == ENOSYS || e == EOPNOTSUPP)
+			rc = -2; /* no hard links here */
+		else
+			rc = im_fail(err, "cannot write %s: %s", f->path, strerror(e));
+	} else if (rc == 0) {
+		sync_dir_of(f->target);
+	}
+	unlink(f->tmp);
+	file_free(f);
+	return rc;
+}
+
 void fio_abort(fio_file *f)
 {
 	if (f == NULL)

@@ -64,6 +64,16 @@ int fio_is_direct(const fio_file *f);
  * the temporary file is removed then.  Frees f either way. */
 int fio_commit(fio_file *f, char *err);
 
+/* Finish as fio_commit, but never replace anything: the temporary file is
+ * linked to the target, which appears whole or not at all.  When the
+ * target exists by then (another process made it first), *existed is set
+ * to 1, the temporary is removed and that file stands; 0 is returned.
+ * -2 (temporary removed, no message) when the file system has no hard
+ * links or f writes straight through; -1 with err naming the file and
+ * the cause on any other failure.  Frees f either way.  For a file that
+ * must never be overwritten once made (a new database). */
+int fio_commit_new(fio_file *f, int *existed, char *err);
+
 /* Give up: close and remove the temporary file (a direct stream is only
  * flushed).  Frees f; f may be NULL. */
 void fio_abort(fio_file *f);

@@ -16,8 +16,16 @@
 #include <sqlite3.h>
 
 #include "common.h"
+#include "fileio.h"
 #include "units.h"
 
+/* The tables of a new file, at version UDB_SCHEMA_VERSION in one step.
+ * Version 1 had solutions, solution_items and user_compounds without the
+ * columns that version 3 adds (note, fw_g_mol; see migrate_keep); they are
+ * written here as that upgrade leaves them (ALTER TABLE ... ADD COLUMN
+ * puts ", column" after the last column), so that a new file and an
+ * upgraded one have the same schema, the text in sqlite_master included
+ * (test_userdb).  The rest is migrate_targets_sql and schema_keep_sql. */
 static const char schema_sql[] =
 	"CREATE TABLE IF NOT EXISTS solutions ("
 	"  name TEXT PRIMARY KEY,"
@@ -25,19 +33,34 @@ static const char schema_sql[] =
 	"  ph_target REAL,"                      /* NULL: not titrated */
 	"  co2_frac REAL NOT NULL DEFAULT 0,"    /* CO2 gas, fraction */
 	"  co2_p_atm REAL NOT NULL DEFAULT 1,"
-	"  co2_dry INTEGER NOT NULL DEFAULT 0);"
+	"  co2_dry INTEGER NOT NULL DEFAULT 0, note TEXT NOT NULL DEFAULT '');"
 	"CREATE TABLE IF NOT EXISTS solution_items ("
 	"  solution TEXT NOT NULL REFERENCES solutions(name) ON DELETE CASCADE,"
 	"  position INTEGER NOT NULL,"
 	"  compound TEXT NOT NULL,"          /* canonical name in the reference db */
 	"  mM REAL NOT NULL CHECK (mM > 0),"
 	"  stock_mM REAL NOT NULL DEFAULT 0,"
-	"  titrant INTEGER NOT NULL DEFAULT 0,"  /* 1: added by `ph` */
+	"  titrant INTEGER NOT NULL DEFAULT 0, fw_g_mol REAL NOT NULL DEFAULT 0," /* 1: by `ph` */
 	"  PRIMARY KEY (solution, position));"
 	/* user-defined compounds, same columns as the reference table */
 	"CREATE TABLE IF NOT EXISTS user_compounds ("
 	"  name TEXT PRIMARY KEY, formula TEXT NOT NULL, fw_g_mol REAL NOT NULL,"
 	"  yields TEXT NOT NULL, note TEXT);";
+
+/* Version 2: the targets a solution holds (solution.h sol_target), each
+ * with the compound it adds and the temperature at which it holds. */
+static const char migrate_targets_sql[] =
+	"CREATE TABLE IF NOT EXISTS solution_targets ("
+	"  scope INTEGER NOT NULL DEFAULT 0,"   /* 0 saved, 1 a saved version, 2 kept */
+	"  solution TEXT NOT NULL,"
+	"  version INTEGER NOT NULL DEFAULT 0," /* the version (scope 1), else 0 */
+	"  position INTEGER NOT NULL,"
+	"  kind TEXT NOT NULL CHECK (kind IN ('ph', 'free', 'osmo')),"
+	"  value REAL NOT NULL,"             /* pH; free metal, mM; mOsm/kg */
+	"  compound TEXT NOT NULL,"          /* what is added to reach it */
+	"  metal TEXT,"                      /* 'free': the ion's symbol */
+	"  at_C REAL NOT NULL,"              /* where it holds */
+	"  PRIMARY KEY (scope, solution, version, position));";
 
 /* Schema version 3 (migrate_keep): every saved version of a solution, and
  * the shell's workspace kept as it changes.  The same columns as solutions and
@@ -70,10 +93,6 @@ static const char schema_keep_sql[] =
 	"  stock_mM REAL NOT NULL DEFAULT 0, titrant INTEGER NOT NULL DEFAULT 0,"
 	"  fw_g_mol REAL NOT NULL DEFAULT 0,"
 	"  PRIMARY KEY (solution, position));"
-	/* the bottle's formula weight of an item (`fw`); 0: the table's */
-	"ALTER TABLE solution_items ADD COLUMN fw_g_mol REAL NOT NULL DEFAULT 0;"
-	/* the user's note on a solution (`note`) */
-	"ALTER TABLE solutions ADD COLUMN note TEXT NOT NULL DEFAULT '';"
 	"CREATE TABLE IF NOT EXISTS kept_state (key TEXT PRIMARY KEY, value);"
 	/* user-defined ions and compounds (`define`), re-read at start */
 	"CREATE TABLE IF NOT EXISTS defined_ions ("
@@ -82,6 +101,13 @@ static const char schema_keep_sql[] =
 	"CREATE TABLE IF NOT EXISTS defined_compounds ("
 	"  name TEXT PRIMARY KEY, formula TEXT NOT NULL, yields TEXT NOT NULL DEFAULT '',"
 	"  hazard TEXT, source TEXT);";
+
+/* The columns version 3 adds to the tables of version 1 (migrate_keep):
+ * the bottle's formula weight of an item (`fw`; 0: the table's) and the
+ * user's note on a solution (`note`). */
+static const char schema_keep_alter_sql[] =
+	"ALTER TABLE solution_items ADD COLUMN fw_g_mol REAL NOT NULL DEFAULT 0;"
+	"ALTER TABLE solutions ADD COLUMN note TEXT NOT NULL DEFAULT '';";
 
 /* Where a solution's rows live: saved (the latest), a saved version, or
  * the kept workspace.  The head and item tables share their columns. */
@@ -93,6 +119,9 @@ static const struct {
 	{"solution_versions", "solution_version_items"},
 	{"kept_solutions", "kept_items"},
 };
+
+/* Statements kept prepared per connection (stmt_get). */
+#define UDB_STMT_MAX 24
 
 /* Backoff between retries: doubles from 1 ms up to this, with jitter. */
 #define BACKOFF_MAX_MS 100
@@ -107,6 +136,12 @@ struct userdb {
 	int noticed;         /* the notice was given for the current wait */
 	unsigned seed;       /* jitter */
 	int schema;          /* the file's schema version */
+	/* the statements of saving, prepared once per connection (stmt_get) */
+	struct {
+		char *sql;
+		sqlite3_stmt *st;
+	} stmt[UDB_STMT_MAX];
+	int nstmt;
 	/* compounds the reference data do not know (user-defined) */
 	const rd_compound *(*lookup)(void *arg, const char *name);
 	void *lookup_arg;
@@ -245,13 +280,15 @@ static int user_version(userdb *u, int *v)
 	return rc;
 }
 
-/* Create the tables of a new, empty database.  Two processes may both get
- * here for the same new file: the write lock is taken first (BEGIN
- * IMMEDIATE waits out the other through the busy timeout), and the schema
- * version is read again under it, so the second finds the work done. */
+/* Create the tables of a new, empty database at the current version
+ * directly (no migration steps: they are for older files).  Two processes
+ * may both get here for the same new file: the write lock is taken first
+ * (BEGIN IMMEDIATE waits out the other through the busy timeout), and the
+ * schema version is read again under it, so the second finds the work
+ * done. */
 static int create_schema(userdb *u, char *err)
 {
-	char sql[sizeof schema_sql + sizeof schema_keep_sql + 64];
+	char sql[sizeof schema_sql + sizeof migrate_targets_sql + sizeof schema_keep_sql + 64];
 	int v = 0;
 	/* switching the journal can report busy without calling the busy
 	 * handler: retry it here, as long as a writer would wait */
@@ -274,7 +311,8 @@ static int create_schema(userdb *u, char *err)
 	if (v != 0)
 		return sqlite3_exec(u->db, "COMMIT", NULL, NULL, NULL) == SQLITE_OK
 			       ? 0 : fail_db(u, err, "opening");
-	snprintf(sql, sizeof sql, "%s PRAGMA user_version = 1; COMMIT;", schema_sql);
+	snprintf(sql, sizeof sql, "%s%s%s PRAGMA user_version = %d; COMMIT;", schema_sql,
+		 migrate_targets_sql, schema_keep_sql, UDB_SCHEMA_VERSION);
 	if (sqlite3_exec(u->db, sql, NULL, NULL, NULL) != SQLITE_OK) {
 		fail_db(u, err, "creating the tables");
 		sqlite3_exec(u->db, "ROLLBACK", NULL, NULL, NULL);
@@ -396,21 +434,6 @@ static char *immutable_uri(const char *path)
 
 /* ---- migration steps: each brings the schema from version N - 1 to N ---- */
 
-/* Version 2: the targets a solution holds (solution.h sol_target), each
- * with the compound it adds and the temperature at which it holds. */
-static const char migrate_targets_sql[] =
-	"CREATE TABLE IF NOT EXISTS solution_targets ("
-	"  scope INTEGER NOT NULL DEFAULT 0,"   /* 0 saved, 1 a saved version, 2 kept */
-	"  solution TEXT NOT NULL,"
-	"  version INTEGER NOT NULL DEFAULT 0," /* the version (scope 1), else 0 */
-	"  position INTEGER NOT NULL,"
-	"  kind TEXT NOT NULL CHECK (kind IN ('ph', 'free', 'osmo')),"
-	"  value REAL NOT NULL,"             /* pH; free metal, mM; mOsm/kg */
-	"  compound TEXT NOT NULL,"          /* what is added to reach it */
-	"  metal TEXT,"                      /* 'free': the ion's symbol */
-	"  at_C REAL NOT NULL,"              /* where it holds */
-	"  PRIMARY KEY (scope, solution, version, position));";
-
 static int migrate_targets(userdb *u)
 {
 	return sqlite3_exec(u->db, migrate_targets_sql, NULL, NULL, NULL);
@@ -422,7 +445,8 @@ static int migrate_targets(userdb *u)
  * (schema_keep_sql). */
 static int migrate_keep(userdb *u)
 {
-	return sqlite3_exec(u->db, schema_keep_sql, NULL, NULL, NULL);
+	int rc = sqlite3_exec(u->db, schema_keep_sql, NULL, NULL, NULL);
+	return rc == SQLITE_OK ? sqlite3_exec(u->db, schema_keep_alter_sql, NULL, NULL, NULL) : rc;
 }
 
 static int (*const migrate_step[])(userdb *u) = {migrate_targets, migrate_keep};
@@ -491,6 +515,66 @@ static int migrate(userdb *u, int keep_copy, char *err)
 	return -1;
 }
 
+/* The bytes of an empty database at the current schema: the statements
+ * of create_schema run once per process on an in-memory database and
+ * serialized, marked for WAL (the file format's read and write versions,
+ * bytes 18 and 19 of the header, 2 for WAL: SQLite's file format document,
+ * from memory; test_userdb checks that such a file opens in WAL).  A new
+ * file is written from them (create_from_image), which costs a fraction of
+ * running the statements on the file: no schema re-reads per table, no
+ * WAL frames to checkpoint on close.  Kept until the process ends. */
+static unsigned char *image;
+static size_t image_len;
+
+static int empty_image(char *err)
+{
+	sqlite3 *db = NULL;
+	unsigned char *p = NULL;
+	sqlite3_int64 n = 0;
+	char sql[sizeof schema_sql + sizeof migrate_targets_sql + sizeof schema_keep_sql + 64];
+	if (image)
+		return 0;
+	snprintf(sql, sizeof sql, "%s%s%s PRAGMA user_version = %d;", schema_sql,
+		 migrate_targets_sql, schema_keep_sql, UDB_SCHEMA_VERSION);
+	if (sqlite3_open(":memory:", &db) != SQLITE_OK ||
+	    sqlite3_exec(db, sql, NULL, NULL, NULL) != SQLITE_OK ||
+	    (p = sqlite3_serialize(db, "main", &n, 0)) == NULL || n < 100) {
+		im_fail(err, "cannot make a new database: %s",
+			db ? sqlite3_errmsg(db) : "out of memory");
+		sqlite3_free(p);
+		sqlite3_close(db);
+		return -1;
+	}
+	image = im_xmalloc((size_t)n);
+	memcpy(image, p, (size_t)n);
+	image_len = (size_t)n;
+	image[18] = image[19] = 2;
+	sqlite3_free(p);
+	sqlite3_close(db);
+	return 0;
+}
+
+/* Create the missing file path from the image: written to a temporary
+ * file beside it, synced and linked into place (fio_commit_new), so no
+ * other process ever sees it half-written and none is overwritten (a file
+ * another process created first stands).  0 when path exists afterwards;
+ * 1 when hard links are not supported there (the caller then lets SQLite
+ * create the file and runs create_schema); -1 with err naming path. */
+static int create_from_image(const char *path, char *err)
+{
+	fio_file *f;
+	int existed, rc;
+	if (empty_image(err) || fio_open(&f, path, err))
+		return -1;
+	if (fwrite(image, 1, image_len, fio_stream(f)) != image_len) {
+		int e = errno;
+		fio_abort(f);
+		return im_fail(err, "cannot write %s: %s", path, strerror(e ? e : EIO));
+	}
+	rc = fio_commit_new(f, &existed, err);
+	return rc == -2 ? 1 : rc;
+}
+
 int udb_open(const char *path, int create, userdb **out, char *err)
 {
 	userdb *u;
@@ -503,7 +587,8 @@ int udb_open(const char *path, int create, userdb **out, char *err)
 	if (!exists) {
 		if (!create)
 			return 1;
-		if (mkdirs(path, err) || dir_writable(path, err))
+		if (mkdirs(path, err) || dir_writable(path, err) ||
+		    create_from_image(path, err) < 0)
 			return -1;
 	}
 	flags = SQLITE_OPEN_READWRITE | (create ? SQLITE_OPEN_CREATE : 0);
@@ -574,10 +659,11 @@ int udb_open(const char *path, int create, userdb **out, char *err)
 		udb_close(u);
 		return -1;
 	}
-	u->schema = v ? v : 1;
-	/* an older file (or one just created at version 1) is upgraded when it
-	 * may be written; read-only, it is read as it stands (no targets, no
-	 * versions, no kept workspace) */
+	u->schema = v ? v : UDB_SCHEMA_VERSION;
+	/* an older file is upgraded when it may be written (one just created
+	 * is at the current version, unless an older ionmix created it first);
+	 * read-only, it is read as it stands (no targets, no versions, no kept
+	 * workspace) */
 	if (!(flags & SQLITE_OPEN_READONLY)) {
 		if (migrate(u, v != 0, err)) {
 			udb_close(u);
@@ -594,6 +680,10 @@ void udb_close(userdb *u)
 {
 	if (!u)
 		return;
+	for (int i = 0; i < u->nstmt; i++) {
+		sqlite3_finalize(u->stmt[i].st);
+		free(u->stmt[i].sql);
+	}
 	sqlite3_close(u->db);
 	free(u->path);
 	free(u);
@@ -604,6 +694,43 @@ static int step_done(sqlite3_stmt *st)
 	int rc = sqlite3_step(st);
 	sqlite3_reset(st);
 	return rc == SQLITE_DONE ? 0 : -1;
+}
+
+/* The statement for sql, prepared on the first use and kept for the
+ * connection's life (SQLite prepares it again by itself if the schema
+ * changes): a save runs a dozen statements, and scripts and the shell save
+ * again and again.  Give it back with stmt_put, never finalize it.  Once
+ * UDB_STMT_MAX are kept, further ones are prepared for one use (stmt_put
+ * finalizes those).  SQLITE_OK or SQLite's error code (*st NULL then). */
+static int stmt_get(userdb *u, const char *sql, sqlite3_stmt **st)
+{
+	int rc;
+	for (int i = 0; i < u->nstmt; i++)
+		if (strcmp(u->stmt[i].sql, sql) == 0) {
+			*st = u->stmt[i].st;
+			return SQLITE_OK;
+		}
+	rc = sqlite3_prepare_v3(u->db, sql, -1, SQLITE_PREPARE_PERSISTENT, st, NULL);
+	if (rc == SQLITE_OK && u->nstmt < UDB_STMT_MAX) {
+		u->stmt[u->nstmt].sql = im_xstrdup(sql);
+		u->stmt[u->nstmt++].st = *st;
+	}
+	return rc;
+}
+
+/* Done with a statement of stmt_get: reset, its bindings cleared (no
+ * pointer into the caller's memory stays behind); NULL is ignored. */
+static void stmt_put(userdb *u, sqlite3_stmt *st)
+{
+	if (!st)
+		return;
+	for (int i = 0; i < u->nstmt; i++)
+		if (u->stmt[i].st == st) {
+			sqlite3_reset(st);
+			sqlite3_clear_bindings(st);
+			return;
+		}
+	sqlite3_finalize(st);
 }
 
 static const char *const target_kind[] = {"ph", "free", "osmo"};
@@ -617,19 +744,19 @@ static int save_targets(userdb *u, const solution *s, int scope, int version)
 	int rc = 0;
 	if (u->schema < 2)
 		return 0;
-	if (sqlite3_prepare_v2(u->db, "DELETE FROM solution_targets WHERE scope = ?1 AND"
-			       " solution = ?2 AND version = ?3", -1, &del, NULL) != SQLITE_OK)
+	if (stmt_get(u, "DELETE FROM solution_targets WHERE scope = ?1 AND"
+		     " solution = ?2 AND version = ?3", &del) != SQLITE_OK)
 		return -1;
 	sqlite3_bind_int(del, 1, scope);
 	sqlite3_bind_text(del, 2, s->name, -1, SQLITE_STATIC);
 	sqlite3_bind_int(del, 3, version);
 	rc = step_done(del);
-	sqlite3_finalize(del);
+	stmt_put(u, del);
 	if (rc)
 		return -1;
-	if (sqlite3_prepare_v2(u->db, "INSERT INTO solution_targets(solution, position, kind,"
-			       " value, compound, metal, at_C, scope, version) VALUES (?1, ?2, ?3,"
-			       " ?4, ?5, ?6, ?7, ?8, ?9)", -1, &st, NULL) != SQLITE_OK)
+	if (stmt_get(u, "INSERT INTO solution_targets(solution, position, kind,"
+		     " value, compound, metal, at_C, scope, version) VALUES (?1, ?2, ?3,"
+		     " ?4, ?5, ?6, ?7, ?8, ?9)", &st) != SQLITE_OK)
 		return -1;
 	for (int k = 0; k < s->ntg && !rc; k++) {
 		const sol_target *t = &s->tg[k];
@@ -648,7 +775,7 @@ static int save_targets(userdb *u, const solution *s, int scope, int version)
 		rc = step_done(st);
 		sqlite3_clear_bindings(st);
 	}
-	sqlite3_finalize(st);
+	stmt_put(u, st);
 	return rc;
 }
 
@@ -678,17 +805,17 @@ static int save_rows(userdb *u, rows_kind k, const solution *s, int version)
 	sqlite3_stmt *del = NULL, *deli = NULL, *ins = NULL, *item = NULL;
 	int ok = 0;
 	snprintf(sql, sizeof sql, "DELETE FROM %s WHERE name = ?1%s", rows_tab[k].head, vcond);
-	if (sqlite3_prepare_v2(u->db, sql, -1, &del, NULL))
+	if (stmt_get(u, sql, &del))
 		goto done;
 	snprintf(sql, sizeof sql, "DELETE FROM %s WHERE solution = ?1%s", rows_tab[k].items,
 		 vcond);
-	if (sqlite3_prepare_v2(u->db, sql, -1, &deli, NULL))
+	if (stmt_get(u, sql, &deli))
 		goto done;
 	snprintf(sql, sizeof sql, "INSERT INTO %s%s", rows_tab[k].head, head_cols[k]);
-	if (sqlite3_prepare_v2(u->db, sql, -1, &ins, NULL))
+	if (stmt_get(u, sql, &ins))
 		goto done;
 	snprintf(sql, sizeof sql, "INSERT INTO %s%s", rows_tab[k].items, item_cols[k]);
-	if (sqlite3_prepare_v2(u->db, sql, -1, &item, NULL))
+	if (stmt_get(u, sql, &item))
 		goto done;
 	sqlite3_bind_text(del, 1, s->name, -1, SQLITE_STATIC);
 	sqlite3_bind_text(deli, 1, s->name, -1, SQLITE_STATIC);
@@ -724,10 +851,10 @@ static int save_rows(userdb *u, rows_kind k, const solution *s, int version)
 		goto done;
 	ok = 1;
 done:
-	sqlite3_finalize(del);
-	sqlite3_finalize(deli);
-	sqlite3_finalize(ins);
-	sqlite3_finalize(item);
+	stmt_put(u, del);
+	stmt_put(u, deli);
+	stmt_put(u, ins);
+	stmt_put(u, item);
 	return ok ? 0 : -1;
 }
 
@@ -737,9 +864,9 @@ static int same_targets_as_saved(userdb *u, const solution *s)
 {
 	sqlite3_stmt *st;
 	int same = 1, n = 0, rc;
-	if (sqlite3_prepare_v2(u->db, "SELECT kind, value, compound, metal, at_C FROM"
-			       " solution_targets WHERE scope = ?1 AND solution = ?2 AND"
-			       " version = 0 ORDER BY position", -1, &st, NULL))
+	if (stmt_get(u, "SELECT kind, value, compound, metal, at_C FROM"
+		     " solution_targets WHERE scope = ?1 AND solution = ?2 AND"
+		     " version = 0 ORDER BY position", &st))
 		return -1;
 	sqlite3_bind_int(st, 1, ROWS_SAVED);
 	sqlite3_bind_text(st, 2, s->name, -1, SQLITE_STATIC);
@@ -757,7 +884,7 @@ static int same_targets_as_saved(userdb *u, const solution *s)
 			same = 0;
 		n++;
 	}
-	sqlite3_finalize(st);
+	stmt_put(u, st);
 	if (rc != SQLITE_DONE)
 		return -1;
 	return same && n == s->ntg;
@@ -769,13 +896,13 @@ static int same_as_saved(userdb *u, const solution *s)
 {
 	sqlite3_stmt *st;
 	int same = 1, n = 0, rc;
-	if (sqlite3_prepare_v2(u->db, "SELECT ph_target, co2_frac, co2_p_atm, co2_dry, note FROM"
-			       " solutions WHERE name = ?1", -1, &st, NULL))
+	if (stmt_get(u, "SELECT ph_target, co2_frac, co2_p_atm, co2_dry, note FROM"
+		     " solutions WHERE name = ?1", &st))
 		return -1;
 	sqlite3_bind_text(st, 1, s->name, -1, SQLITE_STATIC);
 	rc = sqlite3_step(st);
 	if (rc != SQLITE_ROW) {
-		sqlite3_finalize(st);
+		stmt_put(u, st);
 		return rc == SQLITE_DONE ? 0 : -1;
 	}
 	if (sqlite3_column_type(st, 0) == SQLITE_NULL ? isfinite(s->ph_target)
@@ -787,9 +914,9 @@ static int same_as_saved(userdb *u, const solution *s)
 	if (strcmp(sqlite3_column_text(st, 4) ? (const char *)sqlite3_column_text(st, 4) : "",
 		   s->note) != 0)
 		same = 0;
-	sqlite3_finalize(st);
-	if (sqlite3_prepare_v2(u->db, "SELECT compound, mM, stock_mM, titrant, fw_g_mol FROM"
-			       " solution_items WHERE solution = ?1 ORDER BY position", -1, &st, NULL))
+	stmt_put(u, st);
+	if (stmt_get(u, "SELECT compound, mM, stock_mM, titrant, fw_g_mol FROM"
+		     " solution_items WHERE solution = ?1 ORDER BY position", &st))
 		return -1;
 	sqlite3_bind_text(st, 1, s->name, -1, SQLITE_STATIC);
 	while ((rc = sqlite3_step(st)) == SQLITE_ROW) {
@@ -802,7 +929,7 @@ static int same_as_saved(userdb *u, const solution *s)
 			same = 0;
 		n++;
 	}
-	sqlite3_finalize(st);
+	stmt_put(u, st);
 	if (rc != SQLITE_DONE)
 		return -1;
 	if (same && n == s->n)
@@ -834,13 +961,13 @@ static int last_version(userdb *u, const char *name)
 {
 	sqlite3_stmt *st;
 	int v = -1;
-	if (sqlite3_prepare_v2(u->db, "SELECT coalesce(max(version), 0) FROM solution_versions"
-			       " WHERE name = ?1", -1, &st, NULL))
+	if (stmt_get(u, "SELECT coalesce(max(version), 0) FROM solution_versions"
+		     " WHERE name = ?1", &st))
 		return -1;
 	sqlite3_bind_text(st, 1, name, -1, SQLITE_STATIC);
 	if (sqlite3_step(st) == SQLITE_ROW)
 		v = sqlite3_column_int(st, 0);
-	sqlite3_finalize(st);
+	stmt_put(u, st);
 	return v;
 }
 
@@ -850,17 +977,17 @@ static int adopt_unversioned(userdb *u, const char *name)
 {
 	sqlite3_stmt *a = NULL, *b = NULL;
 	int rc = -1;
-	if (sqlite3_prepare_v2(u->db,
-			       "INSERT INTO solution_versions(name, version, saved_at, summary,"
-			       " ph_target, co2_frac, co2_p_atm, co2_dry) SELECT name, 1, saved_at,"
-			       " '(saved before versions were kept)', ph_target, co2_frac, co2_p_atm,"
-			       " co2_dry FROM solutions WHERE name = ?1", -1, &a, NULL) == SQLITE_OK &&
-	    sqlite3_prepare_v2(u->db,
-			       "INSERT INTO solution_version_items(solution, version, position,"
-			       " compound, mM, stock_mM, titrant, fw_g_mol) SELECT solution, 1,"
-			       " position, compound, mM, stock_mM, titrant, fw_g_mol FROM"
-			       " solution_items WHERE"
-			       " solution = ?1", -1, &b, NULL) == SQLITE_OK) {
+	if (stmt_get(u,
+		     "INSERT INTO solution_versions(name, version, saved_at, summary,"
+		     " ph_target, co2_frac, co2_p_atm, co2_dry) SELECT name, 1, saved_at,"
+		     " '(saved before versions were kept)', ph_target, co2_frac, co2_p_atm,"
+		     " co2_dry FROM solutions WHERE name = ?1", &a) == SQLITE_OK &&
+	    stmt_get(u,
+		     "INSERT INTO solution_version_items(solution, version, position,"
+		     " compound, mM, stock_mM, titrant, fw_g_mol) SELECT solution, 1,"
+		     " position, compound, mM, stock_mM, titrant, fw_g_mol FROM"
+		     " solution_items WHERE"
+		     " solution = ?1", &b) == SQLITE_OK) {
 		sqlite3_bind_text(a, 1, name, -1, SQLITE_STATIC);
 		sqlite3_bind_text(b, 1, name, -1, SQLITE_STATIC);
 		if (step_done(a) == 0) {
@@ -869,8 +996,8 @@ static int adopt_unversioned(userdb *u, const char *name)
 				rc = -1;
 		}
 	}
-	sqlite3_finalize(a);
-	sqlite3_finalize(b);
+	stmt_put(u, a);
+	stmt_put(u, b);
 	return rc;
 }
 
@@ -900,17 +1027,17 @@ int udb_save_v(userdb *u, const solution *s, int *version, int *superseded, char
 		if (save_rows(u, ROWS_VERSION, s, v))
 			goto done;
 		summarize(s, summary, sizeof summary);
-		if (sqlite3_prepare_v2(u->db, "UPDATE solution_versions SET summary = ?3 WHERE"
-				       " name = ?1 AND version = ?2", -1, &st, NULL))
+		if (stmt_get(u, "UPDATE solution_versions SET summary = ?3 WHERE"
+			     " name = ?1 AND version = ?2", &st))
 			goto done;
 		sqlite3_bind_text(st, 1, s->name, -1, SQLITE_STATIC);
 		sqlite3_bind_int(st, 2, v);
 		sqlite3_bind_text(st, 3, summary, -1, SQLITE_STATIC);
 		if (step_done(st)) {
-			sqlite3_finalize(st);
+			stmt_put(u, st);
 			goto done;
 		}
-		sqlite3_finalize(st);
+		stmt_put(u, st);
 	}
 	ok = sqlite3_exec(u->db, "COMMIT", NULL, NULL, NULL) == SQLITE_OK;
 done:

@@ -14,12 +14,14 @@
 #include "solution.h"
 #include "usercomp.h"
 
-/* The schema: version 1 is schema_sql in userdb.c (what a new file is
- * created with), each later version one migration step run on open, in
- * one transaction, after a copy of the file is kept beside it
- * (PATH.vN-backup).  2: solution_targets (the targets of issue 11);
- * 3: saved versions, the kept workspace, defined ions and compounds, the
- * bottle's formula weight of an item. */
+/* The schema: a new file is created at this version directly (schema_sql,
+ * migrate_targets_sql and schema_keep_sql in userdb.c); an older file is
+ * brought to it on open by one migration step per version, in one
+ * transaction, after a copy of the file is kept beside it
+ * (PATH.vN-backup), and ends with the same schema as a new one.
+ * 1: solutions, their items, user compounds; 2: solution_targets (the
+ * targets of issue 11); 3: saved versions, the kept workspace, defined
+ * ions and compounds, the bottle's formula weight of an item, the note. */
 #define UDB_SCHEMA_VERSION 3
 /* Seconds a statement waits for another process holding the database's
  * lock, and after how long an interactive user is told so. */

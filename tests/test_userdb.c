@@ -607,6 +607,116 @@ static void waits_for_lock(void **state)
 	printf("userdb: waited out a 2.5 s lock in %.2f s\n", waited);
 }
 
+/* ---- a new file and an upgraded one (schema) ---- */
+
+/* The tables as version 1 of ionmix created them (its schema_sql, word
+ * for word: ALTER TABLE edits this text in sqlite_master). */
+static const char v1_sql[] =
+	"CREATE TABLE IF NOT EXISTS solutions ("
+	"  name TEXT PRIMARY KEY,"
+	"  saved_at TEXT NOT NULL DEFAULT (strftime('%Y-%m-%dT%H:%M:%SZ','now')),"
+	"  ph_target REAL,"
+	"  co2_frac REAL NOT NULL DEFAULT 0,"
+	"  co2_p_atm REAL NOT NULL DEFAULT 1,"
+	"  co2_dry INTEGER NOT NULL DEFAULT 0);"
+	"CREATE TABLE IF NOT EXISTS solution_items ("
+	"  solution TEXT NOT NULL REFERENCES solutions(name) ON DELETE CASCADE,"
+	"  position INTEGER NOT NULL,"
+	"  compound TEXT NOT NULL,"
+	"  mM REAL NOT NULL CHECK (mM > 0),"
+	"  stock_mM REAL NOT NULL DEFAULT 0,"
+	"  titrant INTEGER NOT NULL DEFAULT 0,"
+	"  PRIMARY KEY (solution, position));"
+	"CREATE TABLE IF NOT EXISTS user_compounds ("
+	"  name TEXT PRIMARY KEY, formula TEXT NOT NULL, fw_g_mol REAL NOT NULL,"
+	"  yields TEXT NOT NULL, note TEXT);"
+	"PRAGMA user_version = 1;";
+
+/* The schema of the file at p as text: user_version, then one line per
+ * entry of sqlite_master (type, name, table, SQL) by name; *rows counts
+ * the entries. */
+static char *schema_text(const char *p, int *rows)
+{
+	sqlite3 *h;
+	sqlite3_stmt *st;
+	char *out = NULL;
+	size_t len = 0;
+	FILE *f = open_memstream(&out, &len);
+	assert_non_null(f);
+	assert_int_equal(sqlite3_open_v2(p, &h, SQLITE_OPEN_READONLY, NULL), SQLITE_OK);
+	assert_int_equal(sqlite3_prepare_v2(h, "PRAGMA user_version", -1, &st, NULL), SQLITE_OK);
+	assert_int_equal(sqlite3_step(st), SQLITE_ROW);
+	fprintf(f, "user_version %d\n", sqlite3_column_int(st, 0));
+	sqlite3_finalize(st);
+	assert_int_equal(sqlite3_prepare_v2(h,
+					    "SELECT type, name, tbl_name, sql FROM sqlite_master "
+					    "ORDER BY name", -1, &st, NULL), SQLITE_OK);
+	*rows = 0;
+	while (sqlite3_step(st) == SQLITE_ROW) {
+		for (int i = 0; i < 4; i++) {
+			const unsigned char *t = sqlite3_column_text(st, i);
+			fprintf(f, "%s%s", i ? " | " : "", t ? (const char *)t : "NULL");
+		}
+		fputc('\n', f);
+		(*rows)++;
+	}
+	sqlite3_finalize(st);
+	sqlite3_close(h);
+	fclose(f);
+	return out;
+}
+
+/* A missing file is created from the image of an empty database (in WAL
+ * mode); an empty file is given its tables by SQL; a file of version 1 is
+ * upgraded step by step; all three end with the same schema, the SQL text
+ * of every table and index included. */
+static void new_file_as_upgraded(void **state)
+{
+	char pn[256], pe[256], po[256], err[IM_ERRLEN], want[32];
+	userdb *u;
+	sqlite3 *h;
+	sqlite3_stmt *st;
+	char *tn, *te, *to;
+	int rn, re, ro;
+	(void)state;
+	path(pn, "schema-new.db");
+	path(pe, "schema-empty.db");
+	path(po, "schema-old.db");
+	assert_int_equal(udb_open(pn, 1, &u, err), 0);
+	udb_close(u);
+	assert_int_equal(sqlite3_open(pn, &h), SQLITE_OK);
+	assert_int_equal(sqlite3_prepare_v2(h, "PRAGMA journal_mode", -1, &st, NULL), SQLITE_OK);
+	assert_int_equal(sqlite3_step(st), SQLITE_ROW);
+	assert_string_equal((const char *)sqlite3_column_text(st, 0), "wal");
+	sqlite3_finalize(st);
+	sqlite3_close(h);
+	write_file(pe, "", 0);
+	if (udb_open(pe, 1, &u, err) != 0)
+		fail_msg("empty file: %s", err);
+	udb_close(u);
+	assert_int_equal(sqlite3_open(po, &h), SQLITE_OK);
+	assert_int_equal(sqlite3_exec(h, v1_sql, NULL, NULL, NULL), SQLITE_OK);
+	sqlite3_close(h);
+	if (udb_open(po, 1, &u, err) != 0)
+		fail_msg("upgrade: %s", err);
+	udb_close(u);
+	tn = schema_text(pn, &rn);
+	te = schema_text(pe, &re);
+	to = schema_text(po, &ro);
+	/* every table of every version: 3 + 1 + 7, each with its index */
+	assert_true(rn >= 11);
+	assert_int_equal(rn, ro);
+	assert_int_equal(re, ro);
+	snprintf(want, sizeof want, "user_version %d\n", UDB_SCHEMA_VERSION);
+	assert_non_null(strstr(tn, want));
+	assert_non_null(strstr(tn, "fw_g_mol REAL NOT NULL DEFAULT 0,  PRIMARY KEY"));
+	assert_string_equal(tn, to);
+	assert_string_equal(te, to);
+	free(tn);
+	free(te);
+	free(to);
+}
+
 int main(void)
 {
 	const struct CMUnitTest tests[] = {
@@ -615,6 +725,7 @@ int main(void)
 		cmocka_unit_test(refused_paths), cmocka_unit_test(unreachable),
 		cmocka_unit_test(default_place), cmocka_unit_test(edited_rows),
 		cmocka_unit_test(read_only_file), cmocka_unit_test(waits_for_lock),
+		cmocka_unit_test(new_file_as_upgraded),
 	};
 	return cmocka_run_group_tests(tests, setup, teardown);
 }

@@ -17,6 +17,9 @@
 #include <unistd.h>
 
 static char fz_dir[512];
+/* fz_dir, open for the whole run and rewound for every input: an opendir
+ * per input cost 3 % of fuzz_recipe (its 32 KiB buffer, under ASan). */
+static DIR *fz_dirp;
 
 #define FZ_CHECK(cond, ...)                                                   \
 	do {                                                                  \
@@ -32,23 +35,23 @@ static char fz_dir[512];
  * files only: the database, its -wal and -shm, exports, plots). */
 static inline void fz_empty_dir(void)
 {
-	DIR *d = opendir(fz_dir);
 	struct dirent *e;
-	char p[1024];
-	if (!d)
+	if (!fz_dirp)
 		return;
-	while ((e = readdir(d)) != NULL) {
+	rewinddir(fz_dirp);
+	while ((e = readdir(fz_dirp)) != NULL) {
 		if (strcmp(e->d_name, ".") == 0 || strcmp(e->d_name, "..") == 0)
 			continue;
-		snprintf(p, sizeof p, "%s/%s", fz_dir, e->d_name);
-		unlink(p);
+		unlinkat(dirfd(fz_dirp), e->d_name, 0);
 	}
-	closedir(d);
 }
 
 static inline void fz_remove_dir(void)
 {
 	fz_empty_dir();
+	if (fz_dirp)
+		closedir(fz_dirp);
+	fz_dirp = NULL;
 	rmdir(fz_dir);
 }
 
@@ -59,6 +62,8 @@ static inline const char *fz_scratch(const char *tag)
 	const char *t = getenv("TMPDIR");
 	snprintf(fz_dir, sizeof fz_dir, "%s/ionmix-%s-XXXXXX", t && *t ? t : "/tmp", tag);
 	FZ_CHECK(mkdtemp(fz_dir) != NULL, "cannot make %s", fz_dir);
+	fz_dirp = opendir(fz_dir);
+	FZ_CHECK(fz_dirp != NULL, "cannot read %s", fz_dir);
 	atexit(fz_remove_dir);
 	return fz_dir;
 }
