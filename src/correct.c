@@ -1847,6 +1847,36 @@ out:
 	return p;
 }
 
+/* The loop of short_rows (KERNEL lean_rows) and short_rows_quad (quad_rows):
+ * the kernel made for the decimals of the row at p, until a row it does
+ * not take (of no lean shape, or an LJP with more decimals than the cell
+ * or too many digits), lim, or a full buffer; one is made a constant where
+ * it is 2 (time, then the voltage).  Uses p, lim, one, lp, wb, rowsp and
+ * full of the function it is in. */
+#define BY_DECIMALS(KERNEL, DELIM, WLP)                                                   \
+	while (p < lim && !*full) {                                                        \
+		const char *q = p;                                                          \
+		int f = lean_decimals(p, DELIM, one);                                        \
+		if (lp->dlanes[f] == UINT64_MAX)                                             \
+			f = 0;                                                              \
+		switch (f ? (one == 2 ? f : 8 + f) : 0) {                                    \
+		case 1: q = KERNEL(p, lim, DELIM, 2, lp, wb, WLP, rowsp, full, 1); break;     \
+		case 2: q = KERNEL(p, lim, DELIM, 2, lp, wb, WLP, rowsp, full, 2); break;     \
+		case 3: q = KERNEL(p, lim, DELIM, 2, lp, wb, WLP, rowsp, full, 3); break;     \
+		case 4: q = KERNEL(p, lim, DELIM, 2, lp, wb, WLP, rowsp, full, 4); break;     \
+		case 5: q = KERNEL(p, lim, DELIM, 2, lp, wb, WLP, rowsp, full, 5); break;     \
+		case 9: q = KERNEL(p, lim, DELIM, one, lp, wb, WLP, rowsp, full, 1); break;   \
+		case 10: q = KERNEL(p, lim, DELIM, one, lp, wb, WLP, rowsp, full, 2); break;  \
+		case 11: q = KERNEL(p, lim, DELIM, one, lp, wb, WLP, rowsp, full, 3); break;  \
+		case 12: q = KERNEL(p, lim, DELIM, one, lp, wb, WLP, rowsp, full, 4); break;  \
+		case 13: q = KERNEL(p, lim, DELIM, one, lp, wb, WLP, rowsp, full, 5); break;  \
+		default: break;                                                             \
+		}                                                                           \
+		if (q == p)                                                                 \
+			break;                                                              \
+		p = q;                                                                      \
+	}
+
 /* The decimals of the cell that ends the row at p, when the row is of
  * lean_rows's shape as far as a quick look tells (0 otherwise). */
 static inline int lean_decimals(const char *p, char delim, int one)
@@ -2036,30 +2066,7 @@ static QUAD_TARGET __attribute__((noinline)) const char *
 short_rows_quad(const char *p, const char *lim, char delim, int one, const ljp_prep *lp,
 		char *wb, size_t *wlp, long *rowsp, int *full)
 {
-	while (p < lim && !*full) {
-		const char *q = p;
-#define QUAD_CASE(ONE, F) \
-	case F: q = quad_rows(p, lim, delim, ONE, lp, wb, wlp, rowsp, full, F); break
-		int f = lean_decimals(p, delim, one);
-		if (lp->dlanes[f] == UINT64_MAX)
-			f = 0;
-		if (one == 2) {
-			switch (f) {
-			QUAD_CASE(2, 1); QUAD_CASE(2, 2); QUAD_CASE(2, 3); QUAD_CASE(2, 4); QUAD_CASE(2, 5);
-			default: break;
-			}
-		} else {
-			switch (f) {
-			QUAD_CASE(one, 1); QUAD_CASE(one, 2); QUAD_CASE(one, 3); QUAD_CASE(one, 4);
-			QUAD_CASE(one, 5);
-			default: break;
-			}
-		}
-#undef QUAD_CASE
-		if (q == p)
-			break;
-		p = q;
-	}
+	BY_DECIMALS(quad_rows, delim, wlp);
 	return p;
 }
 
@@ -2098,31 +2105,7 @@ short_rows(eng *e, const char *p, const char *lim, int one, const ljp_prep *lp, 
 		goto done;
 	}
 #endif
-	while (p < lim && !*full) {
-		const char *q = p;
-		/* one made a constant where it is 2 (time, then the voltage) */
-#define LEAN_CASE(ONE, F) \
-	case F: q = lean_rows(p, lim, e->delim, ONE, lp, wb, &wl, rowsp, full, F); break
-		int f = lean_decimals(p, e->delim, one);
-		if (lp->dlanes[f] == UINT64_MAX)
-			f = 0;   /* the LJP has more decimals, or too many digits */
-		if (one == 2) {
-			switch (f) {
-			LEAN_CASE(2, 1); LEAN_CASE(2, 2); LEAN_CASE(2, 3); LEAN_CASE(2, 4); LEAN_CASE(2, 5);
-			default: break;
-			}
-		} else {
-			switch (f) {
-			LEAN_CASE(one, 1); LEAN_CASE(one, 2); LEAN_CASE(one, 3); LEAN_CASE(one, 4);
-			LEAN_CASE(one, 5);
-			default: break;
-			}
-		}
-#undef LEAN_CASE
-		if (q == p)
-			break;   /* not this shape */
-		p = q;
-	}
+	BY_DECIMALS(lean_rows, e->delim, &wl);
 #ifdef HAVE_QUAD
 done:
 #endif
