@@ -1751,6 +1751,26 @@ stop:
 	return p;
 }
 
+/* The one corrected cell of the row at p, from the separator bits of its
+ * 32 bytes (delimiter, LF, NUL): the LF that ends it (the cell is *fsp up
+ * to there), or NULL when the row is not one - the first one - 1 fields
+ * ended by the delimiter and unquoted, then the cell ended by an LF. */
+static inline __attribute__((always_inline)) const char *
+row_cell(const char *p, uint32_t bits, char delim, int one, const char **fsp)
+{
+	const char *fs = p;
+	for (int c = 1; c < one; c++) {
+		const char *fe = p + __builtin_ctz(bits | (1U << 31));
+		bits &= bits - 1;
+		if (*fe != delim || fe[1] == '"')
+			return NULL;
+		fs = fe + 1;
+	}
+	const char *ce = p + __builtin_ctz(bits | (1U << 31));
+	*fsp = fs;
+	return *ce == '\n' ? ce : NULL;
+}
+
 /* The commonest records at their leanest: rows of at most 32 bytes whose
  * last field is the one corrected cell, of lean_cell's form, ending at an
  * LF.  The separators of the whole row (delimiter, LF, NUL) come from two
@@ -1790,18 +1810,11 @@ lean_rows(const char *p, const char *lim, char delim, int one, const ljp_prep *l
 					  _mm_cmpeq_epi8(v1, zero));
 		uint32_t bits = (uint32_t)_mm_movemask_epi8(s0) |
 				((uint32_t)_mm_movemask_epi8(s1) << 16);
-		const char *fs = p;
+		const char *fs;
 		if (*p == '"')
 			break;
-		for (int c = 1; c < one; c++) {
-			const char *fe = p + __builtin_ctz(bits | (1U << 31));
-			bits &= bits - 1;
-			if (*fe != delim || fe[1] == '"')
-				goto out;
-			fs = fe + 1;
-		}
-		const char *ce = p + __builtin_ctz(bits | (1U << 31));
-		if (*ce != '\n')
+		const char *ce = row_cell(p, bits, delim, one, &fs);
+		if (!ce)
 			goto out;
 		/* the cell fs[0..ce): [+-]digits.digits, F decimals, 1 to
 		 * 5 - F integer digits (m bytes after the sign) */
@@ -1973,16 +1986,9 @@ quad_rows(const char *p, const char *lim, char delim, int one, const ljp_prep *l
 			uint32_t bits = (uint32_t)_mm256_movemask_epi8(_mm256_or_si256(
 				_mm256_or_si256(_mm256_cmpeq_epi8(v[r], vd), _mm256_cmpeq_epi8(v[r], lf)),
 				_mm256_cmpeq_epi8(v[r], zero)));
-			const char *fs = p;
-			for (int c = 1; c < one; c++) {
-				const char *fe = p + __builtin_ctz(bits | (1U << 31));
-				bits &= bits - 1;
-				if (*fe != delim || fe[1] == '"')
-					goto tail;
-				fs = fe + 1;
-			}
-			const char *ce = p + __builtin_ctz(bits | (1U << 31));
-			if (*ce != '\n')
+			const char *fs;
+			const char *ce = row_cell(p, bits, delim, one, &fs);
+			if (!ce)
 				goto tail;
 			int c0 = (unsigned char)*fs;
 			const char *t = fs + !((c0 - '+') & ~2);   /* '+' or '-' */
