@@ -106,9 +106,6 @@ void out_text_escaped(FILE *fp, const char *msg)
 	}
 }
 
-/* JSON text must be UTF-8 (RFC 8259, section 8.1): bytes that are not,
- * such as a name typed in another encoding and echoed in a message, are
- * written as U+FFFD, the replacement character. */
 void out_csv_field(FILE *fp, const char *s)
 {
 	if (!strpbrk(s, ",\"\r\n")) {
@@ -124,34 +121,40 @@ void out_csv_field(FILE *fp, const char *s)
 	fputc('"', fp);
 }
 
+/* JSON text must be UTF-8 (RFC 8259, section 8.1): bytes that are not,
+ * such as a name typed in another encoding and echoed in a message, are
+ * written as U+FFFD, the replacement character.  Runs of bytes that need
+ * no escape go out in one fwrite (a stream's lock per byte cost 2 % of a
+ * fuzz run of scripts). */
 void out_json_string(FILE *fp, const char *s)
 {
+	const unsigned char *p = (const unsigned char *)s, *run = p;
 	fputc('"', fp);
-	for (const unsigned char *p = (const unsigned char *)s; *p; p++) {
-		if (*p >= 0x80) {
-			int k = utf8_len(p);
-			if (k == 0) {
-				fputs("\\ufffd", fp);
-				continue;
-			}
-			fwrite(p, 1, (size_t)k, fp);
+	for (;; p++) {
+		int k;
+		if (*p >= 0x20 && *p < 0x80 && *p != '"' && *p != '\\')
+			continue;
+		if (*p >= 0x80 && (k = utf8_len(p)) > 0) {
 			p += k - 1;
 			continue;
 		}
+		if (p > run)
+			fwrite(run, 1, (size_t)(p - run), fp);
+		run = p + 1;
 		switch (*p) {
+		case '\0': fputc('"', fp); return;
 		case '"': fputs("\\\"", fp); break;
 		case '\\': fputs("\\\\", fp); break;
 		case '\n': fputs("\\n", fp); break;
 		case '\r': fputs("\\r", fp); break;
 		case '\t': fputs("\\t", fp); break;
 		default:
-			if (*p < 0x20)
-				fprintf(fp, "\\u%04x", *p);
+			if (*p >= 0x80) /* not UTF-8 */
+				fputs("\\ufffd", fp);
 			else
-				fputc(*p, fp);
+				fprintf(fp, "\\u%04x", *p);
 		}
 	}
-	fputc('"', fp);
 }
 
 void out_error(out *o, const char *file, int line, const char *msg)

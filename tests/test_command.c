@@ -77,6 +77,40 @@ static void ok(const char *line)
 		fail_msg("'%s' failed: %s", line, err);
 }
 
+/* out_json_string against RFC 8259 (section 7: '"', '\\' and controls
+ * escaped; section 8.1: UTF-8) and against its own rule for bytes that
+ * are not UTF-8 (U+FFFD): runs, escapes and sequences at every position. */
+static void json_strings(void **state)
+{
+	static const struct {
+		const char *in, *out;
+	} cases[] = {
+		{"", "\"\""},
+		{"NaCl 140", "\"NaCl 140\""},
+		{"a\"b\\c", "\"a\\\"b\\\\c\""},
+		{"\n\r\t", "\"\\n\\r\\t\""},
+		{"x\001y\037", "\"x\\u0001y\\u001f\""},
+		{"del\177", "\"del\177\""},
+		{"5 \302\265M", "\"5 \302\265M\""},           /* U+00B5, two bytes */
+		{"\360\237\230\200!", "\"\360\237\230\200!\""}, /* four bytes */
+		{"bad\303", "\"bad\\ufffd\""},                  /* cut short at the end */
+		{"\300\257x", "\"\\ufffd\\ufffdx\""},           /* overlong '/' */
+		{"\355\240\200", "\"\\ufffd\\ufffd\\ufffd\""},   /* a surrogate */
+		{"\"\"", "\"\\\"\\\"\""},
+	};
+	(void)state;
+	for (size_t i = 0; i < IM_COUNT(cases); i++) {
+		char *got = NULL;
+		size_t n = 0;
+		FILE *fp = open_memstream(&got, &n);
+		out_json_string(fp, cases[i].in);
+		fclose(fp);
+		if (strcmp(got, cases[i].out) != 0)
+			fail_msg("case %zu: got [%s], want [%s]", i, got, cases[i].out);
+		free(got);
+	}
+}
+
 static void compose(void **state)
 {
 	(void)state;
@@ -376,6 +410,7 @@ int main(void)
 		cmocka_unit_test_setup_teardown(render_long_note, fresh, done),
 		cmocka_unit_test_setup_teardown(render_text_printf, fresh, done),
 		cmocka_unit_test_setup_teardown(loop_rules, fresh, done),
+		cmocka_unit_test(json_strings),
 	};
 	return cmocka_run_group_tests(tests, setup, teardown);
 }
