@@ -278,7 +278,8 @@ struct userdb *ses_userdb(session *s, int create, char *err, int *failed)
 		udb_nowhere(err);
 		return NULL;
 	}
-	if (udb_open(s->db_path, create, &s->user, err) < 0)
+	if ((s->open_db ? s->open_db(s->open_db_arg, s->db_path, create, &s->user, err)
+			: udb_open(s->db_path, create, &s->user, err)) < 0)
 		*failed = 1;
 	else if (s->user && s->wait_notice) /* after 2 s of waiting, say so */
 		udb_set_patience(s->user, UDB_WAIT_S, UDB_NOTICE_S, s->wait_notice);

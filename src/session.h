@@ -38,6 +38,12 @@ typedef struct session {
 	sol_env env;            /* filled by ses_env() */
 	struct userdb *user;    /* the user's database, opened lazily, owned */
 	const char *db_path;    /* its path; owned by the caller; may be NULL */
+	/* How ses_userdb gets the connection: udb_open's arguments and
+	 * result.  NULL (the default): udb_open itself.  The fuzz harness
+	 * lends one connection to all its inputs (tests/fuzz/fuzz_recipe.c);
+	 * whoever sets it takes s->user back before ses_free. */
+	int (*open_db)(void *arg, const char *path, int create, struct userdb **out, char *err);
+	void *open_db_arg;
 	FILE *wait_notice;      /* where a long wait for a locked database is
 				 * announced (the shell's stderr); NULL: silently */
 	workspace ws;           /* named solutions, one current */

@@ -676,6 +676,11 @@ int udb_open(const char *path, int create, userdb **out, char *err)
 	return 0;
 }
 
+struct sqlite3 *udb_sqlite(userdb *u)
+{
+	return u->db;
+}
+
 void udb_close(userdb *u)
 {
 	if (!u)

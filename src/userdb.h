@@ -43,6 +43,10 @@ typedef struct userdb userdb;
  * *out. */
 int udb_open(const char *path, int create, userdb **out, char *err);
 void udb_close(userdb *u);
+/* The SQLite connection itself, for tests that look under the API (the
+ * fuzz harness checks that no command left a transaction or statement
+ * open, and empties the tables between its inputs).  Still owned by u. */
+struct sqlite3 *udb_sqlite(userdb *u);
 
 /* Save (replace) a solution in one transaction. */
 int udb_save(userdb *u, const solution *s, char *err);

@@ -9,6 +9,7 @@
 #include "command.h"
 #include "common.h"
 #include "render.h"
+#include "userdb.h"
 
 static refdb *db;
 static im_ctx ctx;
@@ -75,6 +76,54 @@ static void ok(const char *line)
 	char err[IM_ERRLEN];
 	if (run(line, err))
 		fail_msg("'%s' failed: %s", line, err);
+}
+
+/* The session's open_db hook: every way to the user database goes
+ * through it, with the create flag of the command (a read asks without
+ * creating, a save with), and the connection it gives is the one used;
+ * whoever set it takes the connection back before ctx_free. */
+static int hook_calls[2];
+static userdb *hook_db;
+
+static int hook_open(void *arg, const char *path, int create, userdb **out, char *err)
+{
+	int *calls = arg;
+	calls[create != 0]++;
+	if (!create) {
+		*out = hook_db; /* none before the first save: "no database yet" */
+		return hook_db ? 0 : 1;
+	}
+	if (!hook_db && udb_open(path, 1, &hook_db, err) < 0)
+		return -1;
+	*out = hook_db;
+	return 0;
+}
+
+static void open_db_hook(void **state)
+{
+	char path[160];
+	(void)state;
+	snprintf(path, sizeof path, "%s/hook.db", dir);
+	ctx.ses->db_path = path;
+	ctx.ses->open_db = hook_open;
+	ctx.ses->open_db_arg = hook_calls;
+	ok("list");
+	assert_int_equal(hook_calls[0], 1);
+	assert_int_equal(hook_calls[1], 0);
+	assert_null(ctx.ses->user);
+	assert_non_null(strstr(buf, "none"));
+	ok("solution hooked; add NaCl 140; save");
+	assert_int_equal(hook_calls[1], 1);
+	assert_non_null(hook_db);
+	assert_ptr_equal(ctx.ses->user, hook_db);
+	/* the same connection, opened once, serves the reads that follow */
+	ok("list");
+	assert_non_null(strstr(buf, "  hooked"));
+	assert_int_equal(hook_calls[0] + hook_calls[1], 2);
+	assert_int_equal(access(path, F_OK), 0);
+	ctx.ses->user = NULL; /* the hook's, not the session's */
+	udb_close(hook_db);
+	hook_db = NULL;
 }
 
 /* out_json_string against RFC 8259 (section 7: '"', '\\' and controls
@@ -410,6 +459,7 @@ int main(void)
 		cmocka_unit_test_setup_teardown(render_long_note, fresh, done),
 		cmocka_unit_test_setup_teardown(render_text_printf, fresh, done),
 		cmocka_unit_test_setup_teardown(loop_rules, fresh, done),
+		cmocka_unit_test_setup_teardown(open_db_hook, fresh, done),
 		cmocka_unit_test(json_strings),
 	};
 	return cmocka_run_group_tests(tests, setup, teardown);
