@@ -680,7 +680,7 @@ static int isdigit_ascii(int c)
 int eqd_osm_sym(const osm_data *d, const char *s)
 {
 	for (int i = 0; i < d->nsym; i++)
-		if (strcmp(d->sym[i], s) == 0)
+		if (im_symeq(d->sym[i], s))
 			return i;
 	return -1;
 }

@@ -267,8 +267,7 @@ static int add_input(work *w, const spec_in *in, int dest, char *err)
 	}
 	for (int k = 0; k < d->nlig; k++)
 		for (int h = 0; h <= MAXH; h++)
-			if (d->lig[k].has_state[h] &&
-			    strcmp(d->lig[k].state[h], s) == 0) {
+			if (d->lig[k].has_state[h] && im_symeq(d->lig[k].state[h], s)) {
 				if (in->z != d->lig[k].zb + h)
 					return im_fail(err,
 						       "speciation: %s given with charge "
@@ -283,7 +282,7 @@ static int add_input(work *w, const spec_in *in, int dest, char *err)
 			}
 	int m = -1;
 	for (int i = 0; i < d->nmet; i++)
-		if (strcmp(d->met[i].sym, s) == 0)
+		if (im_symeq(d->met[i].sym, s))
 			m = i;
 	if (m >= 0) {
 		if (in->z != d->met[m].z)
