@@ -127,10 +127,10 @@ typedef struct sys {
 	double *X;         /* M x n x n: D_k^-1 U_k after elimination */
 	double *Dg;        /* M x n x n: each node's diagonal block, then its
 			    * LU factors D' (kept for chord steps) */
-	double *L3;        /* M x 3n: each node's lower block's Ld, Lu, Lv */
-	/* its lower and upper blocks, each a diagonal plus rank one (see
-	 * face_jac): L = diag(Ld) + Lu Lv^T, U = diag(Ud) + Uu Uv^T */
-	double Ld[JN_MAX_IONS], Lu[JN_MAX_IONS], Lv[JN_MAX_IONS];
+	double *L3;        /* M x 3n: each node's lower block, Ld, Lu, Lv */
+	/* its upper block, a diagonal plus rank one (see face_jac):
+	 * U = diag(Ud) + Uu Uv^T (the lower one, L = diag(Ld) + Lu Lv^T, is
+	 * kept per node in L3) */
 	double Ud[JN_MAX_IONS], Uu[JN_MAX_IONS], Uv[JN_MAX_IONS];
 	double *col;       /* n: scratch */
 	int singular;      /* 1: a diagonal block was singular in the last
@@ -326,7 +326,7 @@ static void upper_solve(sys *s, const double *a, const int *piv, double *X)
 }
 
 /* The forward sweep of block elimination at node k, whose blocks are in
- * s->Ld, Lu, Lv (L, factored), s->Dg, s->Ud, Uu, Uv (U, factored) and
+ * s->L3 (L, factored), s->Dg, s->Ud, Uu, Uv (U, factored) and
  * residual in R: R becomes
  * D'^-1 (R - L R_{k-1}'), X_k = D'^-1 U with D' = D - L X_{k-1}.  Sets
  * s->singular when D' is. */
@@ -334,10 +334,8 @@ static void eliminate(sys *s, int k, double *R)
 {
 	int n = s->n, M = s->M, *piv = s->piv + (size_t)k * n;
 	size_t nn = (size_t)n * n;
-	double *D = s->Dg + k * nn, *X = s->X + k * nn, *L = s->L3 + (size_t)k * 3 * n;
-	memcpy(L, s->Ld, n * sizeof *L);
-	memcpy(L + n, s->Lu, n * sizeof *L);
-	memcpy(L + 2 * n, s->Lv, n * sizeof *L);
+	double *D = s->Dg + k * nn, *X = s->X + k * nn;
+	const double *Ld = s->L3 + (size_t)k * 3 * n, *Lu = Ld + n, *Lv = Lu + n;
 	if (k > 1) {
 		/* L X = diag(Ld) X + Lu (Lv^T X) */
 		const double *Xp = s->X + (k - 1) * nn, *rp = R - n;
@@ -345,13 +343,13 @@ static void eliminate(sys *s, int k, double *R)
 		for (int j = 0; j < n; j++)
 			vX[j] = 0;
 		for (int m = 0; m < n; m++) {
-			double v = s->Lv[m];
+			double v = Lv[m];
 			vr += v * rp[m];
 			for (int j = 0; j < n; j++)
 				vX[j] += v * Xp[m * n + j];
 		}
 		for (int i = 0; i < n; i++) {
-			double ld = s->Ld[i], lk = s->Lu[i];
+			double ld = Ld[i], lk = Lu[i];
 			R[i] -= ld * rp[i] + lk * vr;
 			for (int j = 0; j < n; j++)
 				D[i * n + j] -= ld * Xp[i * n + j] + lk * vX[j];
@@ -401,12 +399,13 @@ static void node_blocks(sys *s, int k, const face_jac *Jm, const face_jac *Jp, d
 	double w = 0.5 * (s->zeta[k + 1] - s->zeta[k - 1]);
 	double hm = s->zeta[k] - s->zeta[k - 1], hp = s->zeta[k + 1] - s->zeta[k];
 	double zh = 0.5 * s->zeta[k], *D = s->Dg + (size_t)k * n * n;
+	double *Ld = s->L3 + (size_t)k * 3 * n, *Lu = Ld + n, *Lv = Lu + n;
 	for (int i = 0; i < n; i++) {
 		double um = Jm->u[i] / w, up = Jp->u[i] / w;
 		double *Di = D + (size_t)i * n;
-		s->Lu[i] = -um;
-		s->Lv[i] = Jm->pa[i];
-		s->Ld[i] = -Jm->ga[i] / w;
+		Lu[i] = -um;
+		Lv[i] = Jm->pa[i];
+		Ld[i] = -Jm->ga[i] / w;
 		s->Uu[i] = up;
 		s->Uv[i] = Jp->pb[i];
 		s->Ud[i] = Jp->gb[i] / w;
@@ -414,17 +413,17 @@ static void node_blocks(sys *s, int k, const face_jac *Jm, const face_jac *Jp, d
 			Di[j] = up * Jp->pa[j] - um * Jm->pb[j];
 		Di[i] += (Jp->ga[i] - Jm->gb[i]) / w;
 		if (!s->up[k * n + i]) {
-			s->Ld[i] -= zh / (2.0 * w);
+			Ld[i] -= zh / (2.0 * w);
 			s->Ud[i] += zh / (2.0 * w);
 		} else if (s->zeta[k] > 0) {
 			s->Ud[i] += zh / hp;
 			Di[i] -= zh / hp;
 		} else {
 			Di[i] += zh / hm;
-			s->Ld[i] -= zh / hm;
+			Ld[i] -= zh / hm;
 		}
 	}
-	s->Ld[e] = s->Lu[e] = s->Ud[e] = s->Uu[e] = 0.0;
+	Ld[e] = Lu[e] = s->Ud[e] = s->Uu[e] = 0.0;
 	for (int j = 0; j < n; j++)
 		D[e * n + j] = s->z[j];
 	if (!s->singular)
