@@ -38,9 +38,26 @@ for name in "$@"; do
 	# 256 MB kept allocations on cold pages (62 page faults per seed
 	# against 27) and fuzz_recipe ran about 7 % slower (698 against
 	# 652 us of CPU per run, 60 s each)
-	TMPDIR=$scratch ASAN_OPTIONS=detect_leaks=1:allocator_may_return_null=0:quarantine_size_mb=64 \
+	# allocator_release_to_os_interval_ms=-1: ASan keeps the memory it
+	# frees mapped for reuse instead of returning it with madvise every
+	# few seconds (5 % of a run's samples in the madvise call alone, perf,
+	# and page faults after it); no check is weakened, the RSS settles near
+	# 330 MB instead of 250.
+	# -reload=0: the corpus directory is written by this one process, so
+	# rereading it every second (libFuzzer's default, to share a corpus
+	# between parallel jobs) only listed thousands of files (3 % late in a
+	# run).
+	# -entropic_scale_per_exec_time=1: the entropic schedule gives an input
+	# more turns the faster it runs (libFuzzer's own option).  Without it
+	# the inputs chosen for mutation grew heavier through a run (more
+	# junction, iv and target lines: 2,600 runs/s after a minute, 1,400 at
+	# the tenth) while the faster ones reach new code as well: in ten
+	# minutes fuzz_recipe ran 5,495 runs/s and ended with 4,569 edges
+	# covered (21,972 features), against 1,777 to 2,087 runs/s and 4,414
+	# edges (21,718) without it (one run each on a 2-core machine).
+	TMPDIR=$scratch ASAN_OPTIONS=detect_leaks=1:allocator_may_return_null=0:quarantine_size_mb=64:allocator_release_to_os_interval_ms=-1 \
 	UBSAN_OPTIONS=halt_on_error=1:print_stacktrace=1 \
-		"$bin" -max_total_time="$secs" -timeout=10 -rss_limit_mb=2048 \
+		"$bin" -max_total_time="$secs" -timeout=10 -rss_limit_mb=2048 -reload=0 -entropic_scale_per_exec_time=1 \
 		-max_len=$maxlen -print_final_stats=1 \
 		-artifact_prefix="$build/artifacts/$name-" "$work" "$seeds" >"$log" 2>&1
 	rc=$?
