@@ -407,7 +407,7 @@ int cmd_loop(im_ctx *ctx, const cmd_reader *rd, int *line_out, char *err)
 {
 	char *line;
 	size_t len;
-	int lineno = 0, r;
+	int lineno = 0, r = 0;
 	*line_out = 0;
 	while (!ctx->quit && (r = rd->next(rd->arg, &line, &len)) > 0) {
 		int rc;
