@@ -484,6 +484,11 @@ static int fix_big(const num *m, const ljp_prep *lp, char *out, int D, int za, i
 		neg = !m->neg;
 	}
 	neg ^= lp->flip;
+	/* a carry into a new leading digit (9.99... + 1) may take a cell of
+	 * CORR_DIGITS_MAX digits past the limit: refused like a longer cell,
+	 * so that every number written can be read back (and corrected back) */
+	if (a.n > CORR_DIGITS_MAX)
+		return -1;
 	for (int i = 0; i < a.n; i++)
 		tmp[i] = (char)('0' + a.d[a.n - 1 - i]);
 	return emit(out, tmp, a.n, D, neg && a.n > 0, m);
@@ -620,7 +625,7 @@ int corr_cell(const char *s, size_t n, const corr_ljp *l, int unit_exp,
 	ljp_prepare(l, unit_exp, &lp);
 	k = fix_num(&m, &lp, nb);
 	if (k < 0)
-		return im_fail(err, "number with more than %d digits once aligned;"
+		return im_fail(err, "number with more than %d digits once aligned or corrected;"
 			       " cannot correct it exactly", CORR_DIGITS_MAX);
 	size_t pre = (size_t)(m.ns - s), post = (size_t)(s + n - m.ne);
 	if (pre + (size_t)k + post + 1 > bufsz)
@@ -1173,7 +1178,7 @@ static int do_cell(eng *e, const field *f, long line, int col)
 		}
 		if (!e->o->skip_bad) {
 			char msg[IM_ERRLEN];
-			snprintf(msg, sizeof msg, "number with more than %d digits once aligned;"
+			snprintf(msg, sizeof msg, "number with more than %d digits once aligned or corrected;"
 				 " cannot correct it exactly", CORR_DIGITS_MAX);
 			return field_error(e, line, col, msg);
 		}

@@ -46,7 +46,9 @@
  * (their values always do).  Scientific cells ("1.2e-3") keep their exponent text as
  * written, and the mantissa absorbs the change: "-7.0e-2" (V) minus 14.2 mV
  * is "-8.42e-2".  Numbers with more than CORR_DIGITS_MAX digits once
- * aligned stop with an error rather than lose digits.
+ * aligned, or once corrected (a carry into a new leading digit), stop
+ * with an error rather than lose digits or write a number that could not
+ * be read back.
  *
  * Cells.  Blanks (space, and tab when it is not the delimiter) around a
  * number, the quotes of a quoted cell and a CR are kept as they are.  An

@@ -328,6 +328,26 @@ static void test_cells_big(void **state)
 	big[200] = '\0';
 	assert_int_equal(corr_cell(big, 200, &l, 0, buf, sizeof buf, &len, err), -1);
 	assert_contains(err, "more than 100 digits");
+	/* 100 digits, the limit, taken; a carry that would make them 101
+	 * refused: the result could not be read back (found by fuzz_correct:
+	 * 7.25 and 98 more digits corrected by -3 mV gave 10.25..., which the
+	 * way back called not a number) */
+	char lim[104] = "7.";
+	memset(lim + 2, '6', 99);
+	lim[101] = '\0';
+	assert_int_equal(corr_ljp_parse("-2", &l, err), 0);
+	assert_int_equal(corr_cell(lim, 101, &l, 0, buf, sizeof buf, &len, err), 0);
+	assert_int_equal(len, 101);
+	assert_int_equal(buf[0], '9');
+	assert_int_equal(corr_ljp_parse("-3", &l, err), 0);
+	assert_int_equal(corr_cell(lim, 101, &l, 0, buf, sizeof buf, &len, err), -1);
+	assert_contains(err, "more than 100 digits once aligned or corrected");
+	lim[0] = '-'; /* -.66... (99 digits) + 3 mV: 2.33...4, 100 digits, taken */
+	assert_int_equal(corr_cell(lim, 101, &l, 0, buf, sizeof buf, &len, err), 0);
+	assert_int_equal(len, 101);
+	assert_memory_equal(buf, "2.33", 4);
+	assert_int_equal(buf[100], '4');
+	assert_int_equal(corr_ljp_parse("1", &l, err), 0);
 	assert_int_equal(corr_cell("1e-300", 6, &l, 0, buf, sizeof buf, &len, err), -1);
 	const char *bad[] = {"abc", "1,5", "nan", "inf", "0x1A", "1.2.3", "--1", "1e",
 			     "12mV", "- 1", "1 2", "\"1\""};
