@@ -509,6 +509,37 @@ static void test_diffusion_refinement(void **st)
 	assert_close(d1, d2, 0, 3 * r1.grid_err_mV + 1e-6);
 }
 
+/* A pipette 580 times as concentrated as the bath (K-gluconate against
+ * 1 mM NaCl, with the H+ and OH- of neutral water, which are not trace
+ * ions beside 1 mM): Newton fails on the first grid of 51 nodes, even by
+ * continuation, and the solve starts again on 101, where it converges.
+ * The answer is the one a first grid of 201 nodes gives directly (the
+ * same code, another start: a consistency check, not a reference). */
+static void test_diffusion_steep_layer(void **st)
+{
+	(void)st;
+	char err[IM_ERRLEN];
+	double d, d201;
+	df_opts o;
+	df_report r;
+	jn_ion x[6] = {
+		{"H+", 1, 9.3106e-9, 1.362e-4, 1.043e-4},
+		{"K+", 1, 1.9567e-9, 586, 0},
+		{"Cl-", -1, 2.0320e-9, 6, 1},
+		{"OH-", -1, 5.2724e-9, 1.362e-4, 1.043e-4},
+		{"gluconate-", -1, 0.6457e-9, 580, 0},
+		{"Na+", 1, 1.3336e-9, 0, 1},
+	};
+	if (df_ljp_mV(x, 6, 25, NULL, &r, &d, err) != 0)
+		fail_msg("%s", err);
+	assert_true(r.grid_points >= 201);
+	df_defaults(&o);
+	o.grid_points = 201;
+	assert_int_equal(df_ljp_mV(x, 6, 25, &o, NULL, &d201, err), 0);
+	assert_close(d, d201, 0, 0.01);
+	assert_true(d > 60 && d < 75); /* Henderson gives +78, Planck +82 */
+}
+
 /* ---- Planck for any valence ----
  * The numerical model (shooting, junction.c) against Planck's closed form
  * for 1:1 electrolytes (Planck 1890; the equation as given in junction.h),
@@ -624,6 +655,7 @@ int main(void)
 		cmocka_unit_test(test_temperature),
 		cmocka_unit_test(test_failures),
 		cmocka_unit_test(test_diffusion_refinement),
+		cmocka_unit_test(test_diffusion_steep_layer),
 		cmocka_unit_test(test_planck_numeric_vs_classic),
 		cmocka_unit_test(test_single_salt_any_valence),
 		cmocka_unit_test(test_planck_divalent),
