@@ -60,6 +60,9 @@
 #define WR_CAP (2 * RD_CHUNK)                  /* write buffer: a thread's share of a read buffer fits */
 #define NUM_OUT_MAX (CORR_DIGITS_MAX + 24)      /* one formatted number */
 #define COL_NUMBER_MAX 1000000                  /* largest column number taken */
+/* the one message for a number fix_num refuses (corr_cell and the stream) */
+#define TOO_MANY_DIGITS                                                                  \
+	"number with more than %d digits once aligned or corrected; cannot correct it exactly"
 
 _Static_assert(RD_CAP > CORR_FIRST_MAX + 64, "first record must fit the buffer");
 _Static_assert(CORR_DIGITS_MAX >= 19, "fast path needs 18 digits");
@@ -625,8 +628,7 @@ int corr_cell(const char *s, size_t n, const corr_ljp *l, int unit_exp,
 	ljp_prepare(l, unit_exp, &lp);
 	k = fix_num(&m, &lp, nb);
 	if (k < 0)
-		return im_fail(err, "number with more than %d digits once aligned or corrected;"
-			       " cannot correct it exactly", CORR_DIGITS_MAX);
+		return im_fail(err, TOO_MANY_DIGITS, CORR_DIGITS_MAX);
 	size_t pre = (size_t)(m.ns - s), post = (size_t)(s + n - m.ne);
 	if (pre + (size_t)k + post + 1 > bufsz)
 		return im_fail(err, "output buffer too small");
@@ -1178,8 +1180,7 @@ static int do_cell(eng *e, const field *f, long line, int col)
 		}
 		if (!e->o->skip_bad) {
 			char msg[IM_ERRLEN];
-			snprintf(msg, sizeof msg, "number with more than %d digits once aligned or corrected;"
-				 " cannot correct it exactly", CORR_DIGITS_MAX);
+			snprintf(msg, sizeof msg, TOO_MANY_DIGITS, CORR_DIGITS_MAX);
 			return field_error(e, line, col, msg);
 		}
 		e->r->bad++;
